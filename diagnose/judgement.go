@@ -169,13 +169,19 @@ type Judgement struct {
 	BayesError      float64 `json:"bayes_error"`
 	BayesErrorGiven bool    `json:"bayes_error_given"`
 
+	// Tolerance is the gap a component must reach to be judged high, in
+	// the units of the judged metric (absolute for rates; for other
+	// metrics Config.RelTolerance times the metric's scale).
+	Tolerance float64 `json:"tolerance"`
+
 	AvoidableBias Num `json:"avoidable_bias"`
 	Variance      Num `json:"variance"`
 	DataMismatch  Num `json:"data_mismatch"`
 	ValOverfit    Num `json:"val_overfit"`
 
 	// Noise is the estimated standard deviation of the per-epoch validation
-	// values around their smoothed curve.
+	// values around their local trend (from pseudo-residuals of three
+	// consecutive values; see stats.go).
 	Noise Num `json:"noise"`
 	// ValLow, ValHigh: Wilson score interval of the validation error (95%),
 	// when the validation set size is known.

@@ -100,6 +100,10 @@ type Column struct {
 	// Rate is true for metrics bounded in [0,1] (or [0,100] when written as
 	// percent) whose complement is an error rate: accuracy, error.
 	Rate bool
+	// Percent is true for a Rate column whose values are written as percent
+	// (0–100): the reader sets it once it has seen a value of the column
+	// above 1. Values stay as logged; divide by 100 to get a fraction.
+	Percent bool
 }
 
 // Sample is one value of one column at one evaluation point.

@@ -1,0 +1,65 @@
+// Command ingest reads a metrics log with the watch package and prints a
+// one-line summary: the ingestion-only reference that bench/ingest.sh
+// times against wc -l and awk.
+//
+//	ingest [-format auto|csv|tsv|jsonl|text] FILE
+//	ingest -follow FILE    follow FILE until interrupted (idle CPU check)
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"os"
+	"os/signal"
+	"syscall"
+
+	"github.com/fitgap/fitgap/watch"
+)
+
+func main() {
+	if err := run(); err != nil {
+		fmt.Fprintln(os.Stderr, "ingest:", err)
+		os.Exit(1)
+	}
+}
+
+func run() error {
+	format := flag.String("format", "auto", "log format")
+	follow := flag.Bool("follow", false, "follow the file until interrupted")
+	flag.Parse()
+	if flag.NArg() != 1 {
+		return fmt.Errorf("usage: ingest [-format F] [-follow] FILE")
+	}
+	f, err := watch.ParseFormat(*format)
+	if err != nil {
+		return err
+	}
+	opts := watch.Options{Format: f}
+	if *follow {
+		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+		defer stop()
+		opts.Follow = true
+		ch, err := watch.Follow(ctx, flag.Arg(0), opts)
+		if err != nil {
+			return err
+		}
+		points := 0
+		for b := range ch {
+			points += len(b.Points)
+		}
+		fmt.Printf("followed: %d points handed on\n", points)
+		return nil
+	}
+	points, st, err := watch.ReadAll(flag.Arg(0), nil, opts)
+	if err != nil {
+		return err
+	}
+	last := ""
+	if n := len(points); n > 0 {
+		p := points[n-1]
+		last = fmt.Sprintf(", last epoch %d (%d rows)", p.Epoch, p.Rows)
+	}
+	fmt.Printf("%s: %d lines, %d points, %d skipped%s\n", st.Format, st.Lines, len(points), st.Skipped, last)
+	return nil
+}

@@ -1,0 +1,61 @@
+package main
+
+import (
+	"os/exec"
+	"strings"
+	"testing"
+)
+
+// TestImportArrows enforces the package arrows of DEVELOPERS.md: watch
+// reads, diagnose judges, tui shows, and only cmd/fitgap wires them. It
+// reads the transitive dependencies with `go list -deps`, so an indirect
+// import through a helper package is caught too.
+func TestImportArrows(t *testing.T) {
+	if _, err := exec.LookPath("go"); err != nil {
+		t.Skip("go command not found")
+	}
+	const mod = "github.com/fitgap/fitgap/"
+	charm := []string{"github.com/charmbracelet/", "github.com/NimbleMarkets/", "github.com/muesli/"}
+	fsnotify := []string{"github.com/fsnotify/"}
+	io := []string{"os", "os/exec", "net", "syscall", "io/ioutil"}
+	tests := []struct {
+		pkg string
+		// deps are forbidden anywhere below the package; direct only in
+		// its own imports (the standard library itself uses syscall).
+		deps, direct [][]string
+	}{
+		{"diagnose", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "report"}}, [][]string{io}},
+		{"report", [][]string{charm, fsnotify, {mod + "watch", mod + "tui"}}, [][]string{io}},
+		{"watch", [][]string{charm, {mod + "tui", mod + "report"}}, nil},
+		{"tui", [][]string{fsnotify, {mod + "watch"}}, nil},
+		{"trainer", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "diagnose"}}, nil},
+	}
+	for _, tt := range tests {
+		t.Run(tt.pkg, func(t *testing.T) {
+			check(t, tt.pkg, goList(t, "-deps", tt.pkg), tt.deps)
+			check(t, tt.pkg, goList(t, "-f={{join .Imports \"\\n\"}}", tt.pkg), tt.direct)
+		})
+	}
+}
+
+func goList(t *testing.T, flag, pkg string) []string {
+	t.Helper()
+	out, err := exec.Command("go", "list", flag, "../../"+pkg).Output()
+	if err != nil {
+		t.Fatalf("go list %s %s: %v", flag, pkg, err)
+	}
+	return strings.Fields(string(out))
+}
+
+func check(t *testing.T, pkg string, deps []string, forbidden [][]string) {
+	t.Helper()
+	for _, dep := range deps {
+		for _, group := range forbidden {
+			for _, bad := range group {
+				if dep == bad || (strings.HasSuffix(bad, "/") && strings.HasPrefix(dep, bad)) {
+					t.Errorf("%s depends on %s, which it must not (see DEVELOPERS.md, package arrows)", pkg, dep)
+				}
+			}
+		}
+	}
+}

@@ -1,0 +1,161 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync"
+	"time"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/trainer"
+	"github.com/fitgap/fitgap/watch"
+)
+
+var demoCommand = &command{
+	name:    "demo",
+	args:    "",
+	summary: "train a small network in the background and watch it live",
+	about: `Trains a small neural network (a multilayer perceptron, pure Go, no GPU) on an
+invented data set whose optimal error is known, writes its metrics log to a
+file in a temporary directory, and opens the live screen on that file through
+the same path a real run uses. --write trains with no screen, for scripts.
+Scenarios: ` + scenarioList() + `.`,
+	example: `  fitgap demo
+  fitgap demo --scenario overfit --pace 100ms
+  fitgap demo --scenario mismatch --pace 0 --write /tmp/mismatch.csv && fitgap report /tmp/mismatch.csv`,
+	flags: func(fs *flag.FlagSet) func(context.Context, *env, []string) error {
+		var (
+			scenario, format, write string
+			epochs                  int
+			seed                    int64
+			pace                    time.Duration
+			scr                     screenFlags
+		)
+		fs.StringVar(&scenario, "scenario", trainer.Balanced.String(), "what to train: `name` of "+scenarioList())
+		fs.IntVar(&epochs, "epochs", 100, "number of `epochs` to train")
+		fs.DurationVar(&pace, "pace", 300*time.Millisecond, "`time` between epochs (0 = as fast as it trains)")
+		fs.Int64Var(&seed, "seed", 1, "random `seed` of the data and the weights")
+		fs.StringVar(&format, "format", "csv", "log `format`: csv, jsonl or text (every reader is exercised)")
+		fs.StringVar(&write, "write", "", "train and write the log to this `file`, with no screen")
+		scr.register(fs)
+		return func(ctx context.Context, e *env, args []string) error {
+			if len(args) > 0 {
+				return usageErrorf("demo takes no arguments, got %s", strings.Join(args, " "))
+			}
+			sc, err := trainer.ParseScenario(scenario)
+			if err != nil {
+				return usageErrorf("--scenario: %v", err)
+			}
+			lf, err := trainer.ParseLogFormat(format)
+			if err != nil {
+				return usageErrorf("--format: %v", err)
+			}
+			if epochs < 1 || epochs > 100000 {
+				return usageErrorf("--epochs: must be between 1 and 100000, got %d", epochs)
+			}
+			if pace < 0 {
+				return usageErrorf("--pace: must not be negative, got %s", pace)
+			}
+			cfg := trainer.Config{Scenario: sc, Epochs: epochs, Seed: seed, Pace: pace, Format: lf}
+			if write != "" {
+				return writeDemoLog(ctx, e, cfg, write)
+			}
+			return runDemoScreen(ctx, e, cfg, format, scr)
+		}
+	},
+}
+
+func scenarioList() string {
+	var names []string
+	for _, s := range trainer.Scenarios() {
+		names = append(names, s.String())
+	}
+	return strings.Join(names, ", ")
+}
+
+// demoJudgeConfig passes what the demo knows about its data to the
+// diagnosis: the optimal error is the label-noise rate it generated.
+func demoJudgeConfig(f trainer.Facts) diagnose.Config {
+	c := diagnose.DefaultConfig()
+	c.BayesError, c.BayesErrorGiven = f.BayesError, true
+	c.ValSize, c.TrainSize = f.ValSize, f.TrainSize
+	return c
+}
+
+// reportCommandLine is the report command that judges a demo log with what
+// the demo knows about its data.
+func reportCommandLine(f trainer.Facts, path string) string {
+	return fmt.Sprintf("fitgap report --bayes-error %g --val-size %d --train-size %d %s",
+		f.BayesError, f.ValSize, f.TrainSize, path)
+}
+
+func writeDemoLog(ctx context.Context, e *env, cfg trainer.Config, path string) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
+	runErr := trainer.Run(ctx, cfg, f)
+	if err := f.Close(); runErr == nil && err != nil {
+		runErr = fmt.Errorf("demo: write %s: %w", path, err)
+	}
+	if runErr != nil {
+		return runErr
+	}
+	fmt.Fprintf(e.stderr, "fitgap demo: wrote %d epochs of the %s scenario to %s\njudge it with: %s\n",
+		cfg.Epochs, cfg.Scenario, path, reportCommandLine(cfg.Facts(), path))
+	return nil
+}
+
+func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format string, scr screenFlags) error {
+	dir, err := os.MkdirTemp("", "fitgap-demo-")
+	if err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
+	ext := map[string]string{"csv": ".csv", "jsonl": ".jsonl", "text": ".log"}[format]
+	path := filepath.Join(dir, "train-"+cfg.Scenario.String()+ext)
+	f, err := os.Create(path)
+	if err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
+	facts := cfg.Facts()
+	fmt.Fprintf(e.stderr, "fitgap demo: %s\nfitgap demo: log at %s\n", cfg.Scenario.Describe(), path)
+
+	trainCtx, stopTraining := context.WithCancel(ctx)
+	trained := make(chan error, 1)
+	go func() {
+		err := trainer.Run(trainCtx, cfg, f)
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+		trained <- err
+	}()
+	var once sync.Once
+	after := func() {
+		once.Do(func() {
+			stopTraining()
+			if err := <-trained; err != nil && !errors.Is(err, context.Canceled) {
+				fmt.Fprintln(e.stderr, "fitgap demo: training: "+err.Error())
+			}
+		})
+	}
+	defer after()
+	err = runScreen(ctx, e, screenSpec{
+		path:      path,
+		opts:      watch.Options{Follow: true},
+		cfg:       demoJudgeConfig(facts),
+		bayesNote: fmt.Sprintf("known: the demo flips %.0f%% of labels", facts.BayesError*100),
+		flags:     scr,
+		after:     after,
+	})
+	var nt *noTerminalError
+	if errors.As(err, &nt) {
+		return &noTerminalError{err: fmt.Errorf("%w; for a headless demo: fitgap demo --pace 0 --write run.csv, then fitgap report run.csv", nt.err)}
+	}
+	fmt.Fprintf(e.stderr, "fitgap demo: the log is kept at %s\njudge it again with: %s\n", path, reportCommandLine(facts, path))
+	return err
+}

@@ -1,0 +1,155 @@
+package main
+
+import (
+	"errors"
+	"flag"
+	"fmt"
+	"strconv"
+	"time"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch"
+)
+
+// sourceFlags are the flags of every command that reads a log.
+type sourceFlags struct {
+	format                     string
+	poll                       time.Duration
+	train, val, trainDev, test string
+}
+
+func (s *sourceFlags) register(fs *flag.FlagSet) {
+	fs.StringVar(&s.format, "format", "auto", "log format: `auto`, csv, tsv, jsonl or text")
+	fs.DurationVar(&s.poll, "poll", 0, "check the file by polling at this `interval` (for network filesystems where change events never arrive), e.g. 1s")
+	fs.StringVar(&s.train, "train", "", "the `column` holding the training value of the judged metric")
+	fs.StringVar(&s.val, "val", "", "the `column` holding the validation value")
+	fs.StringVar(&s.trainDev, "train-dev", "", "the `column` holding the train-dev value (held out from the training distribution)")
+	fs.StringVar(&s.test, "test", "", "the `column` holding the test value")
+}
+
+func (s *sourceFlags) options(follow bool) (watch.Options, error) {
+	f, err := watch.ParseFormat(s.format)
+	if err != nil {
+		return watch.Options{}, usageErrorf("--format: %v", err)
+	}
+	if s.poll < 0 {
+		return watch.Options{}, usageErrorf("--poll: must not be negative, got %s", s.poll)
+	}
+	return watch.Options{
+		Format: f,
+		Poll:   s.poll,
+		Follow: follow,
+		Roles:  watch.Overrides{Train: s.train, Val: s.val, TrainDev: s.trainDev, Test: s.test},
+	}, nil
+}
+
+// judgeFlags are the flags that set the diagnosis.
+type judgeFlags struct {
+	metric        string
+	bayes         rateFlag
+	baseline      rateFlag
+	tolerance     numberFlag
+	patience      int
+	minDelta      float64
+	valSize       int
+	trainSize     int
+	smoothing     float64
+	defaultConfig diagnose.Config
+}
+
+func (j *judgeFlags) register(fs *flag.FlagSet) {
+	d := diagnose.DefaultConfig()
+	j.defaultConfig = d
+	fs.StringVar(&j.metric, "metric", "", "the base `metric` to judge, e.g. acc or loss (default: an error rate when one is logged, else a loss)")
+	j.bayes.parse = diagnose.ParseBayesError
+	j.baseline.parse = diagnose.ParseRate
+	fs.Var(&j.bayes, "bayes-error", "the optimal (Bayes) error, estimated from expert or human error or the label-noise rate, in the units of the judged metric: `value` as 0.04 or 4% (default: taken as 0, so the bias figure is an upper bound)")
+	fs.Var(&j.baseline, "baseline-error", "the error of always predicting the most common class: `rate` as 0.05 or 5%")
+	fs.Var(&j.tolerance, "tolerance", fmt.Sprintf("a gap counts as a problem from this `size` on: error-rate points as a fraction (0.02 = 2 points), relative to the scale for other metrics (default %g for error rates, %g relative for losses)", d.Tolerance, d.RelTolerance))
+	fs.IntVar(&j.patience, "patience", d.Patience, "`epochs` without improvement of the smoothed validation value before the signal says stop")
+	fs.Float64Var(&j.minDelta, "min-delta", d.MinDelta, "the smallest `change` that counts as an improvement")
+	fs.IntVar(&j.valSize, "val-size", 0, "number of validation `examples`: gives the validation error a confidence interval")
+	fs.IntVar(&j.trainSize, "train-size", 0, "number of training `examples` (with --val-size: the standard error of the gap)")
+	fs.Float64Var(&j.smoothing, "smoothing", d.Smoothing, "`beta` of the debiased moving average the judgement smooths with (0 = no smoothing)")
+}
+
+func (j *judgeFlags) config() (diagnose.Config, error) {
+	c := j.defaultConfig
+	c.Metric = j.metric
+	if j.bayes.set {
+		c.BayesError, c.BayesErrorGiven = j.bayes.v, true
+	}
+	if j.baseline.set {
+		c.BaselineError = diagnose.Some(j.baseline.v)
+	}
+	switch {
+	case j.tolerance.set && !(j.tolerance.v > 0):
+		return c, usageErrorf("--tolerance: must be positive, got %g", j.tolerance.v)
+	case j.patience < 1:
+		return c, usageErrorf("--patience: must be at least 1, got %d", j.patience)
+	case j.minDelta < 0:
+		return c, usageErrorf("--min-delta: must not be negative, got %g", j.minDelta)
+	case j.valSize < 0 || j.trainSize < 0:
+		return c, usageErrorf("--val-size and --train-size: must not be negative")
+	case j.smoothing < 0 || j.smoothing >= 1:
+		return c, usageErrorf("--smoothing: must be in [0, 1), got %g", j.smoothing)
+	}
+	if j.tolerance.set {
+		c.SetTolerance(j.tolerance.v)
+	}
+	c.Patience = j.patience
+	c.MinDelta = j.minDelta
+	c.ValSize = j.valSize
+	c.TrainSize = j.trainSize
+	c.Smoothing = j.smoothing
+	if j.smoothing == 0 {
+		c.Smoothing = diagnose.SmoothingOff
+	}
+	return c, nil
+}
+
+// rateFlag is an error rate written as a fraction or a percentage.
+type rateFlag struct {
+	v     float64
+	set   bool
+	parse func(string) (float64, error)
+}
+
+func (r *rateFlag) String() string {
+	if r == nil || !r.set {
+		return ""
+	}
+	return strconv.FormatFloat(r.v, 'g', -1, 64)
+}
+
+func (r *rateFlag) Set(s string) error {
+	v, err := r.parse(s)
+	if err != nil {
+		return err
+	}
+	r.v, r.set = v, true
+	return nil
+}
+
+// numberFlag is a number whose default depends on what is judged, so the
+// command line must know whether it was given.
+type numberFlag struct {
+	v   float64
+	set bool
+}
+
+func (n *numberFlag) String() string {
+	if n == nil || !n.set {
+		return ""
+	}
+	return strconv.FormatFloat(n.v, 'g', -1, 64)
+}
+
+func (n *numberFlag) Set(s string) error {
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil {
+		return errors.New("not a number")
+	}
+	n.v, n.set = v, true
+	return nil
+}

@@ -1,0 +1,300 @@
+package main
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+)
+
+// followLine is the part of a follow output line the tests read.
+type followLine struct {
+	Epoch     int    `json:"epoch"`
+	Diagnosis string `json:"diagnosis"`
+	Time      string `json:"time"`
+	EarlyStop struct {
+		Signal    string `json:"signal"`
+		BestEpoch int    `json:"best_epoch"`
+	} `json:"early_stop"`
+}
+
+// stopFileBody is what a training loop reads from the stop file.
+type stopFileBody struct {
+	Epoch     int      `json:"epoch"`
+	BestEpoch int      `json:"best_epoch"`
+	BestVal   *float64 `json:"best_val"`
+	Reason    string   `json:"reason"`
+}
+
+// writeOverfitLog trains the demo's overfit scenario as a separate writer
+// process, pacing its epochs, into path.
+func startOverfitWriter(t *testing.T, path string, pace time.Duration) *exec.Cmd {
+	t.Helper()
+	w := exec.Command(binPath, "demo", "--scenario", "overfit", "--pace", pace.String(), "--write", path)
+	var stderr bytes.Buffer
+	w.Stderr = &stderr
+	if err := w.Start(); err != nil {
+		t.Fatalf("start writer: %v", err)
+	}
+	t.Cleanup(func() {
+		w.Process.Kill()
+		w.Wait()
+	})
+	return w
+}
+
+func waitForFile(t *testing.T, path string) {
+	t.Helper()
+	deadline := time.Now().Add(20 * time.Second)
+	for time.Now().Before(deadline) {
+		if _, err := os.Stat(path); err == nil {
+			return
+		}
+		time.Sleep(10 * time.Millisecond)
+	}
+	t.Fatalf("%s never appeared", path)
+}
+
+// TestFollow_ExitOnStopCreatesStopFile runs the demo trainer's overfitting
+// curve through a writer process while `fitgap follow` reads it live.
+func TestFollow_ExitOnStopCreatesStopFile(t *testing.T) {
+	dir := t.TempDir()
+	logPath := filepath.Join(dir, "overfit.csv")
+	stopPath := filepath.Join(dir, "run.stop")
+	startOverfitWriter(t, logPath, 5*time.Millisecond)
+	waitForFile(t, logPath)
+
+	f := exec.Command(binPath, "follow", "--bayes-error", "0.05", "--exit-on-stop", "--idle-exit", "10s", "--stop-file", stopPath, logPath)
+	var stdout, stderr bytes.Buffer
+	f.Stdout, f.Stderr = &stdout, &stderr
+	if err := runWithTimeout(f, 60*time.Second); err != nil {
+		t.Fatalf("fitgap follow: %v\nstderr: %s", err, stderr.String())
+	}
+	lines := parseFollow(t, stdout.Bytes())
+	if len(lines) == 0 {
+		t.Fatal("follow printed nothing")
+	}
+	last := lines[len(lines)-1]
+	if last.EarlyStop.Signal != "stop" {
+		t.Fatalf("follow --exit-on-stop ended on signal %q at epoch %d, want stop", last.EarlyStop.Signal, last.Epoch)
+	}
+	for _, l := range lines[:len(lines)-1] {
+		if l.EarlyStop.Signal == "stop" {
+			t.Errorf("signal was stop at epoch %d already, but follow went on to %d", l.Epoch, last.Epoch)
+			break
+		}
+	}
+	var body stopFileBody
+	b, err := os.ReadFile(stopPath)
+	if err != nil {
+		t.Fatalf("stop file: %v", err)
+	}
+	if err := json.Unmarshal(b, &body); err != nil {
+		t.Fatalf("stop file is not JSON: %v: %q", err, b)
+	}
+	if body.Epoch != last.Epoch || body.BestEpoch != last.EarlyStop.BestEpoch {
+		t.Errorf("stop file says epoch %d best %d; the last judgement says epoch %d best %d",
+			body.Epoch, body.BestEpoch, last.Epoch, last.EarlyStop.BestEpoch)
+	}
+	if body.BestEpoch < 1 || body.BestEpoch >= body.Epoch {
+		t.Errorf("best epoch %d should be an earlier epoch than the stop at %d", body.BestEpoch, body.Epoch)
+	}
+	// The epoch to restore is the one a whole-log report picks for the same
+	// epochs: follow judges live exactly as report judges afterwards.
+	want := reportBestEpochUpTo(t, logPath, body.Epoch)
+	if body.BestEpoch != want {
+		t.Errorf("stop file best epoch %d, report on the same %d epochs says %d", body.BestEpoch, body.Epoch, want)
+	}
+	if body.Reason == "" {
+		t.Error("stop file has no reason")
+	}
+	assertNoTempFiles(t, dir)
+}
+
+// reportBestEpochUpTo runs report on the first epochs of a CSV log.
+func reportBestEpochUpTo(t *testing.T, logPath string, epochs int) int {
+	t.Helper()
+	b, err := os.ReadFile(logPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitAfter(string(b), "\n")
+	if len(lines) < epochs+1 {
+		t.Fatalf("log has %d lines, want at least %d", len(lines), epochs+1)
+	}
+	part := filepath.Join(t.TempDir(), "part.csv")
+	if err := os.WriteFile(part, []byte(strings.Join(lines[:epochs+1], "")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, stderr, code := runCLI(t, "", "report", "--json", "--bayes-error", "0.05", part)
+	if code != 0 {
+		t.Fatalf("report: exit %d: %s", code, stderr)
+	}
+	var l followLine
+	if err := json.Unmarshal([]byte(out), &l); err != nil {
+		t.Fatalf("report --json: %v", err)
+	}
+	return l.EarlyStop.BestEpoch
+}
+
+func TestFollow_RefusesExistingStopFile(t *testing.T) {
+	dir := t.TempDir()
+	logPath := filepath.Join(dir, "run.csv")
+	stopPath := filepath.Join(dir, "run.stop")
+	writeFile(t, logPath, "epoch,loss,val_loss\n1,1.0,1.1\n")
+	writeFile(t, stopPath, "someone else's file\n")
+	old := time.Now().Add(-time.Hour).Truncate(time.Second)
+	if err := os.Chtimes(stopPath, old, old); err != nil {
+		t.Fatal(err)
+	}
+	_, stderr, code := runCLI(t, "", "follow", "--stop-file", stopPath, logPath)
+	if code != exitUsage {
+		t.Errorf("exit %d, want %d", code, exitUsage)
+	}
+	if !strings.Contains(stderr, "already exists") {
+		t.Errorf("stderr %q, want it to say the stop file already exists", stderr)
+	}
+	b, _ := os.ReadFile(stopPath)
+	st, _ := os.Stat(stopPath)
+	if string(b) != "someone else's file\n" || !st.ModTime().Equal(old) {
+		t.Errorf("the existing stop file was touched: %q, mtime %v", b, st.ModTime())
+	}
+}
+
+// TestFollow_SIGTERMLeavesNoHalfWrittenFile ends follow with SIGTERM at
+// many moments around the stop, and checks that the stop file is either
+// absent or complete, with no temporary file left behind.
+func TestFollow_SIGTERMLeavesNoHalfWrittenFile(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the trainer several times")
+	}
+	for i, delay := range []time.Duration{50 * time.Millisecond, 150 * time.Millisecond, 300 * time.Millisecond, 600 * time.Millisecond} {
+		t.Run(fmt.Sprintf("After%s", delay), func(t *testing.T) {
+			dir := t.TempDir()
+			logPath := filepath.Join(dir, "overfit.csv")
+			stopPath := filepath.Join(dir, "run.stop")
+			startOverfitWriter(t, logPath, time.Duration(i+1)*time.Millisecond)
+			waitForFile(t, logPath)
+			f := exec.Command(binPath, "follow", "--bayes-error", "5%", "--stop-file", stopPath, logPath)
+			var stderr bytes.Buffer
+			f.Stderr = &stderr
+			if err := f.Start(); err != nil {
+				t.Fatal(err)
+			}
+			time.Sleep(delay)
+			f.Process.Signal(syscall.SIGTERM)
+			err := f.Wait()
+			if code := f.ProcessState.ExitCode(); code != exitTerminated {
+				t.Errorf("exit %d (%v), want %d; stderr %s", code, err, exitTerminated, stderr.String())
+			}
+			if b, err := os.ReadFile(stopPath); err == nil {
+				var body stopFileBody
+				if err := json.Unmarshal(b, &body); err != nil || body.BestEpoch == 0 {
+					t.Errorf("stop file is incomplete: %q (%v)", b, err)
+				}
+			}
+			assertNoTempFiles(t, dir)
+		})
+	}
+}
+
+func TestFollow_NoStopNoFile(t *testing.T) {
+	dir := t.TempDir()
+	logPath := filepath.Join(dir, "improving.csv")
+	stopPath := filepath.Join(dir, "run.stop")
+	var b strings.Builder
+	b.WriteString("epoch,loss,val_loss\n")
+	// A run still improving at every epoch: nothing says stop.
+	for e := 1; e <= 30; e++ {
+		fmt.Fprintf(&b, "%d,%.4f,%.4f\n", e, 2.0/float64(e), 2.2/float64(e))
+	}
+	writeFile(t, logPath, b.String())
+	f := exec.Command(binPath, "follow", "--idle-exit", "300ms", "--stop-file", stopPath, logPath)
+	var stdout, stderr bytes.Buffer
+	f.Stdout, f.Stderr = &stdout, &stderr
+	if err := runWithTimeout(f, 20*time.Second); err != nil {
+		t.Fatalf("follow: %v; stderr %s", err, stderr.String())
+	}
+	lines := parseFollow(t, stdout.Bytes())
+	if len(lines) != 30 {
+		t.Errorf("follow printed %d objects, want one per epoch (30)", len(lines))
+	}
+	for _, l := range lines {
+		if l.EarlyStop.Signal == "stop" {
+			t.Errorf("signal stop at epoch %d on an improving run", l.Epoch)
+		}
+		if _, err := time.Parse(time.RFC3339Nano, l.Time); err != nil {
+			t.Errorf("epoch %d: time %q is not RFC 3339: %v", l.Epoch, l.Time, err)
+		}
+	}
+	if _, err := os.Stat(stopPath); err == nil {
+		t.Error("a stop file exists although the signal never reached stop")
+	}
+}
+
+func TestFollow_Pipe(t *testing.T) {
+	in := "epoch,loss,val_loss\n1,1.0,1.1\n2,0.8,0.9\n3,0.7,0.85\n"
+	stdout, stderr, code := runCLI(t, in, "follow", "-")
+	if code != 0 {
+		t.Fatalf("follow -: exit %d: %s", code, stderr)
+	}
+	lines := parseFollow(t, []byte(stdout))
+	if len(lines) != 3 || lines[2].Epoch != 3 {
+		t.Errorf("follow - printed %+v, want 3 objects ending at epoch 3", lines)
+	}
+}
+
+func parseFollow(t *testing.T, out []byte) []followLine {
+	t.Helper()
+	var lines []followLine
+	sc := bufio.NewScanner(bytes.NewReader(out))
+	sc.Buffer(make([]byte, 1<<20), 1<<24)
+	for sc.Scan() {
+		var l followLine
+		if err := json.Unmarshal(sc.Bytes(), &l); err != nil {
+			t.Fatalf("follow line is not JSON: %v: %q", err, sc.Text())
+		}
+		lines = append(lines, l)
+	}
+	return lines
+}
+
+func runWithTimeout(cmd *exec.Cmd, d time.Duration) error {
+	if err := cmd.Start(); err != nil {
+		return err
+	}
+	done := make(chan error, 1)
+	go func() { done <- cmd.Wait() }()
+	select {
+	case err := <-done:
+		return err
+	case <-time.After(d):
+		cmd.Process.Kill()
+		<-done
+		return fmt.Errorf("still running after %s", d)
+	}
+}
+
+func assertNoTempFiles(t *testing.T, dir string) {
+	t.Helper()
+	entries, _ := os.ReadDir(dir)
+	for _, e := range entries {
+		if strings.Contains(e.Name(), ".tmp-") {
+			t.Errorf("temporary file left behind: %s", e.Name())
+		}
+	}
+}
+
+func writeFile(t *testing.T, path, content string) {
+	t.Helper()
+	if err := os.WriteFile(path, []byte(content), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}

@@ -1,0 +1,85 @@
+// Command fitgap watches the metrics log of a neural-network training run
+// and judges every epoch: how far training error is from the optimal error
+// (avoidable bias), how far validation error is from training error
+// (variance), data mismatch, divergence, when to stop and which epoch to keep,
+// and what to change next.
+//
+// Data flow, the same for every command:
+//
+//	log file or pipe ──► watch (tail, decode, aggregate per epoch)
+//	                        │ batches of diagnose.Point
+//	                        ▼
+//	                     diagnose.Tracker (judges each point, keeps history)
+//	                        │
+//	          ┌─────────────┼──────────────┬───────────────┐
+//	          ▼             ▼              ▼               ▼
+//	   tui (watch)   report (Markdown/JSON)  follow (JSON Lines)  stop file
+//
+// This package only wires: it parses flags, opens the reader, hands batches
+// to the screen or to the headless printers, and maps errors to exit codes.
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"os"
+)
+
+func main() {
+	err := run(context.Background(), os.Args[1:], os.Stdin, os.Stdout, os.Stderr)
+	if err != nil && !isQuietExit(err) {
+		fmt.Fprintln(os.Stderr, "fitgap: "+err.Error())
+		if h := hintFor(err); h != "" {
+			fmt.Fprintln(os.Stderr, "fitgap: "+h)
+		}
+	}
+	os.Exit(exitCode(err))
+}
+
+// env is what a command may touch of the outside world. Tests give their
+// own buffers; main gives the process's files.
+type env struct {
+	stdin  io.Reader
+	stdout io.Writer
+	stderr io.Writer
+}
+
+// run is main without the process: it returns an error that exitCode maps
+// to the process status, and never calls os.Exit.
+func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) error {
+	e := &env{stdin: stdin, stdout: stdout, stderr: stderr}
+	if len(args) == 0 {
+		fmt.Fprint(stderr, topUsage())
+		return usageErrorf("no log given: try fitgap FILE, or fitgap demo")
+	}
+	name, rest := args[0], args[1:]
+	switch name {
+	case "-h", "--help", "-help", "help":
+		if name == "help" && len(rest) > 0 {
+			if c := lookupCommand(rest[0]); c != nil {
+				fmt.Fprint(stdout, c.usage())
+				return nil
+			}
+			return usageErrorf("unknown command %q (see fitgap --help)", rest[0])
+		}
+		fmt.Fprint(stdout, topUsage())
+		return nil
+	case "-v", "--version", "-version", "version":
+		fmt.Fprintln(stdout, "fitgap "+version())
+		return nil
+	}
+	if c := lookupCommand(name); c != nil {
+		return c.run(ctx, e, rest)
+	}
+	if len(name) > 1 && name[0] == '-' {
+		// A flag before any command: the default command is watch.
+		return watchCommand.run(ctx, e, args)
+	}
+	if looksLikeCommand(name) {
+		if _, err := os.Stat(name); err != nil {
+			return usageErrorf("unknown command %q%s (see fitgap --help)", name, suggest(name, commandNames()))
+		}
+	}
+	return watchCommand.run(ctx, e, args)
+}

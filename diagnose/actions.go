@@ -1,0 +1,148 @@
+package diagnose
+
+// The remedies and their order follow Machine Learning Yearning: ch. 23
+// (the simplest remedy first: a bigger model for bias, more data for
+// variance), ch. 25 (bias: bigger model, less regularization, a new
+// architecture; more data does not help), ch. 27 (variance: more data,
+// regularization, early stopping, a smaller model last), ch. 40 (data
+// mismatch: make the training data more like the validation data); the
+// optimizer and learning-rate remedies follow Goodfellow et al. (2016)
+// §8.3.1 and §8.2.4 (gradient clipping); calibration follows Guo et al.
+// (2017).
+
+// actions builds the ranked next actions of point i.
+func (t *Tracker) actions(i int) []Action {
+	r := t.recs.at(i)
+	p := &t.points[i]
+	st := &r.snap
+	name := t.metricName()
+	out := make([]Action, 0, 7)
+	add := func(text, why string) { out = append(out, Action{Text: text, Why: why}) }
+	bestEpoch := 0
+	if st.bestIdx >= 0 {
+		bestEpoch = t.points[st.bestIdx].Epoch
+	}
+	restore := func(text string) {
+		if st.bestIdx < 0 {
+			return
+		}
+		add(text, t.text().s("best smoothed validation ").s(name).s(" ").val(st.best).s(" at epoch ").n(bestEpoch).
+			s(", now ").val(r.sm[SplitVal]).done())
+	}
+
+	if t.metric == nil {
+		add("log an accuracy, an error rate or a loss per split (train, val)", "nothing judgeable has been logged yet")
+		return out
+	}
+	switch r.diag {
+	case Diverging:
+		why := t.text().s("non-finite values at epoch ").n(p.Epoch).done()
+		if r.blowup {
+			why = t.text().s("training ").s(name).s(" ").val(r.raw[SplitTrain]).s(" vs best ").val(st.trMin).s(" and rising").done()
+		}
+		if bestEpoch > 0 && st.bestIdx != int32(i) {
+			restore("restore the checkpoint of epoch " + itoa(bestEpoch))
+		}
+		add("lower the learning rate (a factor of 3 to 10)", why)
+		add("clip the gradient norm", "exploding gradients let single steps undo training (Goodfellow et al. 2016, §8.2.4)")
+		add("check the inputs and labels for NaN, Inf and unnormalized features", why)
+		return out
+	case TooEarly:
+		if st.seen&(1<<SplitTrain) == 0 && st.judged >= minPoints {
+			add("log the training "+name+" as well", "no training values: bias and variance cannot be separated")
+		} else {
+			add("keep training: judge after a few more epochs", t.text().n(int(st.judged)).s(" of ").n(minPoints).s(" points with ").s(name).s(" so far").done())
+		}
+		return out
+	}
+
+	biasWhy := ""
+	why := func(c Component) string {
+		switch c {
+		case AvoidableBias:
+			if biasWhy == "" {
+				biasWhy = t.text().s("train ").val(r.sm[SplitTrain]).s(" vs optimal ").val(t.bayes).
+					s(": avoidable bias ").gap(r.comp[AvoidableBias].V).done()
+			}
+			return biasWhy
+		case Variance:
+			other, otherName := r.sm[SplitVal], "val "
+			if st.seen&(1<<SplitTrainDev) != 0 {
+				other, otherName = r.sm[SplitTrainDev], "train-dev "
+			}
+			return t.text().s(otherName).val(other).s(" vs train ").val(r.sm[SplitTrain]).s(": variance ").gap(r.comp[Variance].V).done()
+		case Mismatch:
+			return t.text().s("val ").val(r.sm[SplitVal]).s(" vs train-dev ").val(r.sm[SplitTrainDev]).
+				s(": data mismatch ").gap(r.comp[Mismatch].V).done()
+		}
+		return t.text().s("test ").val(r.sm[SplitTest]).s(" vs val ").val(r.sm[SplitVal]).s(": ").
+			gap(r.comp[ValOverfit].V).s(" of overfitting to the validation set").done()
+	}
+	run := func(c Component) {
+		w := why(c)
+		switch c {
+		case AvoidableBias:
+			add("train a larger model (more layers or units)", w)
+			switch r.trainProg {
+			case Improving:
+				add("train longer: the training "+name+" is still falling", w)
+			case Plateaued, Worsening:
+				add("tune the optimizer and learning rate: the training "+name+" has stopped falling",
+					t.text().s(w).s(", no progress over the last ").n(slopeWindow).s(" epochs").done())
+			}
+			if v := r.comp[Variance]; v.OK && v.V < 0 {
+				add("reduce regularization (dropout, weight decay)",
+					t.text().s("validation beats training by ").gap(-v.V).s(": regularization holds training back").done())
+			} else {
+				add("reduce regularization (dropout, weight decay)", w)
+			}
+			add("try an architecture suited to the input (convolutions for images, attention or recurrence for sequences)", w)
+		case Variance:
+			if r.since > 0 {
+				restore("restore the checkpoint of epoch " + itoa(bestEpoch) + " (early stopping)")
+			}
+			add("get more training data", w)
+			add("use data augmentation", w)
+			add("add regularization: L2 / weight decay, dropout", w)
+			add("add batch normalization", w)
+			add("try a smaller model (last resort: it can raise the bias)", w)
+		case Mismatch:
+			add("make the training data more like the validation data (collect or synthesize similar examples)", w)
+			add("compare errors on validation and train-dev examples to find what differs", w)
+		case ValOverfit:
+			add("get a larger or fresh validation set: tuning has overfit the current one", w)
+		}
+	}
+	done := uint8(0)
+	if r.focus != NoComponent {
+		done |= 1 << r.focus
+		run(r.focus)
+	}
+	for k := 0; k < int(r.nprob); k++ {
+		if c := r.problems[k]; done&(1<<c) == 0 {
+			done |= 1 << c
+			run(c)
+		}
+	}
+	if r.overconf {
+		add("calibrate the model (e.g. temperature scaling) and early-stop on the metric that matters",
+			"validation "+Printable(t.loss.name)+" rising while validation "+metricOf(t.rate).Label+" holds")
+	}
+	if r.warn&warnBaseline != 0 {
+		add("check the labels and the class balance",
+			t.text().s("validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" vs majority-class baseline ").val(t.cfg.BaselineError.V).done())
+	}
+	if r.diag == GoodFit {
+		w := t.text()
+		if st.seen&(1<<SplitVal) != 0 {
+			w.s("val ").val(r.sm[SplitVal]).s(" is ").gap(r.sm[SplitVal] - t.bayes).s(" above optimal ").val(t.bayes).s("; ")
+		}
+		w.s("no component reaches the tolerance ").gap(r.tol)
+		if st.seen&(1<<SplitTest) == 0 {
+			add("evaluate once on the untouched test set", w.done())
+		} else {
+			add("done: report the test result", w.done())
+		}
+	}
+	return out
+}

@@ -1,0 +1,205 @@
+package diagnose
+
+import "math"
+
+// reason says why the early-stopping signal is what it is.
+type reason uint8
+
+const (
+	reasonNone reason = iota
+	reasonNoMetric
+	reasonTooEarly
+	reasonDiverged
+	reasonPatience
+	reasonPQ
+	reasonGuard // a stop held back: high bias and still improving
+	reasonAging
+	reasonUP
+	reasonGL
+	reasonPlateau
+	reasonImproving
+	reasonNewBest
+)
+
+// judgeProgress sets the trend of the smoothed validation curve (the
+// training curve when no validation value is logged) and of the training
+// curve, from the least-squares slope over the last slopeWindow points.
+func (t *Tracker) judgeProgress(i int) {
+	r := t.recs.at(i)
+	s := SplitVal
+	if t.cur.seen&(1<<SplitVal) == 0 {
+		s = SplitTrain
+	}
+	r.progress = t.trend(i, s, r.tol)
+	r.trainProg = t.trend(i, SplitTrain, r.tol)
+}
+
+// trend judges one split's smoothed curve over the last points where the
+// split was logged.
+func (t *Tracker) trend(i int, s Split, tol float64) Progress {
+	var xs, ys [slopeWindow]float64
+	n := 0
+	bit := uint8(1) << s
+	// Look back at most 4 windows of points, so a split logged rarely
+	// still costs O(1) per point.
+	for j := i; j >= 0 && j > i-4*slopeWindow && n < slopeWindow; j-- {
+		r := t.recs.at(j)
+		if r.has&bit == 0 || r.bad&bit != 0 {
+			continue
+		}
+		xs[n], ys[n] = float64(t.points[j].Epoch), r.sm[s]
+		n++
+	}
+	if n < minPoints {
+		return ProgressUnknown
+	}
+	m := slope(xs[:n], ys[:n])
+	if math.IsNaN(m) {
+		return ProgressUnknown
+	}
+	span := xs[0] - xs[n-1] // epochs covered by the window
+	move := m * span
+	switch {
+	case move <= -plateauFrac*tol*(1-eps):
+		return Improving
+	case move >= plateauFrac*tol*(1-eps):
+		return Worsening
+	}
+	return Plateaued
+}
+
+// earlyStop updates the best epoch, Prechelt's criteria and the signal.
+//
+// Prechelt (1998), "Early Stopping — But When?": GL(t) = 100·(E_va(t) /
+// E_opt(t) − 1); over strips of k points ending at a multiple of k,
+// P_k(t) = 1000·(Σ E_tr / (k·min E_tr) − 1); PQ = GL/P_k; UP counts
+// successive strips whose last validation value is above the one a strip
+// before. They are computed on the logged (raw) values as the paper
+// defines them; the best epoch and patience use the smoothed values.
+//
+// The signal: stop on divergence, when patience runs out, or when PQ_α
+// fires at a strip end; watch when the best epoch ages past half the
+// patience, the validation value rose over the last strip, GL exceeds
+// watchGL, or the curve has plateaued. A run judged high-bias that is
+// still improving is never stopped: training longer is one of its remedies.
+func (t *Tracker) earlyStop(i int) {
+	r := t.recs.at(i)
+	st := &t.cur
+	p := &t.points[i]
+	const valBit = uint8(1) << SplitVal
+	hasVal := r.has&valBit != 0 && r.bad&valBit == 0
+
+	newBest := false
+	if hasVal {
+		v := r.sm[SplitVal]
+		if st.bestIdx < 0 || v < st.best-t.cfg.MinDelta {
+			st.best, st.bestIdx, st.pqFired = v, int32(i), false
+			newBest = true
+		}
+		raw := r.raw[SplitVal]
+		if !st.hasOpt || raw < st.eOpt {
+			st.eOpt, st.hasOpt = raw, true
+		}
+		st.gl = generalizationLoss(raw, st.eOpt)
+	}
+	if st.bestIdx >= 0 {
+		r.since = p.Epoch - t.points[st.bestIdx].Epoch
+	}
+
+	k := t.cfg.Strip
+	if n := i + 1; n%k == 0 {
+		st.pk = t.trainingProgress(i, k)
+		st.pq = None
+		if st.gl.OK && st.pk.OK {
+			switch {
+			case st.pk.V > 0:
+				st.pq = Some(st.gl.V / st.pk.V)
+			case st.gl.V > 0:
+				st.pq = Some(math.Inf(1)) // training has stopped moving
+			default:
+				st.pq = Some(0)
+			}
+			if st.pq.V > t.cfg.StopPQ {
+				st.pqFired = true
+			}
+		}
+		if j := i - k; j >= 0 && hasVal && t.recs.at(j).has&valBit != 0 && t.recs.at(j).bad&valBit == 0 {
+			if r.raw[SplitVal] > t.recs.at(j).raw[SplitVal] {
+				st.up++
+			} else {
+				st.up = 0
+			}
+		} else {
+			st.up = 0
+		}
+	}
+
+	improving := r.progress == Improving || (r.diag == HighBias && r.trainProg == Improving)
+	guard := (r.diag == HighBias || r.diag == HighBiasHighVariance) && improving
+	switch {
+	case t.metric == nil:
+		r.signal, r.why = Continue, reasonNoMetric
+	case r.diag == Diverging:
+		r.signal, r.why = Stop, reasonDiverged
+	case st.judged < minPoints:
+		r.signal, r.why = Continue, reasonTooEarly
+	case st.bestIdx >= 0 && r.since >= t.cfg.Patience:
+		r.signal, r.why = Stop, reasonPatience
+	case st.pqFired:
+		r.signal, r.why = Stop, reasonPQ
+	case st.bestIdx >= 0 && 2*r.since >= t.cfg.Patience:
+		r.signal, r.why = Watch, reasonAging
+	case st.up >= 1:
+		r.signal, r.why = Watch, reasonUP
+	case st.gl.OK && st.gl.V > watchGL:
+		r.signal, r.why = Watch, reasonGL
+	case r.progress == Plateaued:
+		r.signal, r.why = Watch, reasonPlateau
+	case newBest:
+		r.signal, r.why = Continue, reasonNewBest
+	default:
+		r.signal, r.why = Continue, reasonImproving
+	}
+	if r.signal == Stop && r.why != reasonDiverged && guard {
+		r.signal, r.why = Watch, reasonGuard
+	}
+}
+
+// generalizationLoss is Prechelt's GL in percent. |E_opt| keeps the sign
+// right for metrics that can be negative; GL is undefined at E_opt = 0
+// unless E_va is 0 too.
+func generalizationLoss(eva, eopt float64) Num {
+	if eopt == 0 {
+		if eva == 0 {
+			return Some(0)
+		}
+		return None
+	}
+	if eopt > 0 {
+		return Some(100 * (eva/eopt - 1)) // as Prechelt writes it
+	}
+	return Some(100 * (eva - eopt) / math.Abs(eopt))
+}
+
+// trainingProgress is Prechelt's P_k over the k points ending at i, in
+// per mille, or None when a training value is missing or the minimum is
+// not positive.
+func (t *Tracker) trainingProgress(i, k int) Num {
+	const bit = uint8(1) << SplitTrain
+	sum, lo := 0.0, math.Inf(1)
+	for j := i - k + 1; j <= i; j++ {
+		if j < 0 {
+			return None
+		}
+		r := t.recs.at(j)
+		if r.has&bit == 0 || r.bad&bit != 0 {
+			return None
+		}
+		sum += r.raw[SplitTrain]
+		lo = math.Min(lo, r.raw[SplitTrain])
+	}
+	if !(lo > 0) {
+		return None
+	}
+	return Some(1000 * (sum/(float64(k)*lo) - 1))
+}

@@ -1,0 +1,121 @@
+package diagnose
+
+import "math"
+
+// judgement assembles the Judgement of point i from its record.
+func (t *Tracker) judgement(i int) Judgement {
+	r := t.recs.at(i)
+	p := &t.points[i]
+	st := &r.snap
+	j := Judgement{
+		Index:           i,
+		Epoch:           p.Epoch,
+		Segment:         p.Segment,
+		Metric:          t.desc,
+		BayesError:      t.bayes,
+		BayesErrorGiven: t.cfg.BayesErrorGiven,
+		Tolerance:       r.tol,
+		AvoidableBias:   r.comp[AvoidableBias],
+		Variance:        r.comp[Variance],
+		DataMismatch:    r.comp[Mismatch],
+		ValOverfit:      r.comp[ValOverfit],
+		Diagnosis:       r.diag,
+		Focus:           r.focus,
+		Progress:        r.progress,
+	}
+	est := func(s Split) Estimate {
+		var e Estimate
+		if r.has&(1<<s) != 0 {
+			e.Raw = Some(r.raw[s])
+		}
+		if st.seen&(1<<s) != 0 {
+			e.Smooth = Some(r.sm[s])
+		}
+		return e
+	}
+	j.Train, j.Val, j.TrainDev, j.Test = est(SplitTrain), est(SplitVal), est(SplitTrainDev), est(SplitTest)
+	if v := r.nzv[SplitVal]; finite(v) {
+		j.Noise = Some(v)
+	}
+	if t.metric != nil && t.metric.kind == kindErrorRate && t.cfg.ValSize > 0 {
+		n := float64(t.cfg.ValSize)
+		if j.Val.Raw.OK && finite(j.Val.Raw.V) {
+			pv := math.Min(1, math.Max(0, j.Val.Raw.V))
+			lo, hi := Wilson(pv*n, n, z95)
+			j.ValLow, j.ValHigh = Some(lo), Some(hi)
+		}
+		if j.Val.Smooth.OK && j.Train.Smooth.OK {
+			se := binomialSE(j.Val.Smooth.V, t.cfg.ValSize)
+			if t.cfg.TrainSize > 0 {
+				se = math.Hypot(se, binomialSE(j.Train.Smooth.V, t.cfg.TrainSize))
+			}
+			j.GapSE = Some(se)
+		}
+	}
+	if r.nprob > 0 {
+		j.Problems = append([]Component(nil), r.problems[:r.nprob]...)
+	}
+	j.EarlyStop = EarlyStop{
+		Signal:   r.signal,
+		GL:       st.gl,
+		PK:       st.pk,
+		PQ:       st.pq,
+		UP:       int(st.up),
+		Patience: t.cfg.Patience,
+		MinDelta: t.cfg.MinDelta,
+	}
+	if st.bestIdx >= 0 {
+		j.EarlyStop.BestEpoch = t.points[st.bestIdx].Epoch
+		j.EarlyStop.BestVal = Some(st.best)
+		j.EarlyStop.EpochsSinceBest = r.since
+	}
+	j.EarlyStop.Reason = t.reasonText(i)
+	j.Actions = t.actions(i)
+	j.Warnings = t.warningTexts(i)
+	return j
+}
+
+// reasonText explains the early-stopping signal of point i, naming the
+// epoch to restore.
+func (t *Tracker) reasonText(i int) string {
+	r := t.recs.at(i)
+	st := &r.snap
+	p := &t.points[i]
+	name := t.metricName()
+	w := t.text()
+	switch r.why {
+	case reasonNoMetric:
+		return "nothing to judge yet"
+	case reasonTooEarly:
+		w.s("too early: ").n(int(st.judged)).s(" of ").n(minPoints).s(" points")
+	case reasonDiverged:
+		w.s("diverged at epoch ").n(p.Epoch)
+	case reasonPatience:
+		w.s("no improvement of the smoothed validation ").s(name)
+		if t.cfg.MinDelta > 0 {
+			w.s(" by more than ").gap(t.cfg.MinDelta)
+		}
+		w.s(" for ").n(r.since).s(" epochs (patience ").n(t.cfg.Patience).s(")")
+	case reasonPQ:
+		w.s("Prechelt's PQ criterion: GL/P").n(t.cfg.Strip).s(" = ").f(st.pq.V, 2).s(" > ").f(t.cfg.StopPQ, 2).
+			s(" at the end of a strip (generalization loss outgrows training progress)")
+	case reasonGuard:
+		w.s("a stopping criterion is met, but the run is high-bias and still improving: keep training")
+	case reasonAging:
+		w.s("best epoch was ").n(r.since).s(" epochs ago (patience ").n(t.cfg.Patience).s(")")
+	case reasonUP:
+		w.s("validation ").s(name).s(" rose over the last ").n(int(st.up)).s(" strip(s) of ").n(t.cfg.Strip)
+	case reasonGL:
+		w.s("validation ").s(name).s(" is ").f(st.gl.V, 1).s("% above its best (generalization loss)")
+	case reasonPlateau:
+		w.s("validation ").s(name).s(" has plateaued")
+	case reasonNewBest:
+		return w.s("new best validation ").s(name).s(" ").val(st.best).done()
+	default:
+		w.s("validation ").s(name).s(" still improving")
+	}
+	if st.bestIdx >= 0 {
+		w.s("; restore epoch ").n(t.points[st.bestIdx].Epoch)
+	}
+	return w.done()
+}

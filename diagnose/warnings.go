@@ -1,0 +1,250 @@
+package diagnose
+
+import (
+	"math"
+	"strings"
+)
+
+// warnSet holds the warnings of one point as bits; their texts are built
+// when a Judgement is asked for.
+type warnSet uint16
+
+const (
+	warnNoMetric warnSet = 1 << iota
+	warnNonFinite
+	warnBlowup
+	warnBayesAssumed
+	warnNegVariance
+	warnNegBias
+	warnNegMismatch
+	warnBaseline
+	warnOverconfident
+	warnNoVal
+	warnNoTrain
+	warnOutOfRange
+	warnBayesPercent
+)
+
+// overconfident reports the pattern of miscalibration of Guo et al.
+// (2017), §3, Fig. 3: the validation loss (NLL) rises while the error rate
+// holds or still falls. The loss must be worsening by its own tolerance
+// over the slope window, the error must not be worsening, and the error's
+// relative rise must be under a quarter of the loss's: when both rise in
+// proportion the run is simply overfitting (design choice).
+func (t *Tracker) overconfident(i int) bool {
+	if t.loss == nil || t.rate == nil || t.loss == t.rate || t.cur.auxSeen != 3 {
+		return false
+	}
+	lossTol := t.cfg.RelTolerance * math.Abs(t.cur.auxStart[auxLoss])
+	if !(lossTol > 0) {
+		return false
+	}
+	l, lMove, lLevel := t.auxTrend(i, auxLoss, lossTol)
+	e, eMove, eLevel := t.auxTrend(i, auxRate, t.cfg.Tolerance)
+	if l != Worsening || e == Worsening || e == ProgressUnknown || !(lLevel > 0) || !(eLevel > 0) {
+		return false
+	}
+	return eMove/eLevel < lMove/lLevel/4
+}
+
+// auxTrend is trend for the two series of the overconfidence check; it
+// also returns the move over the window and the mean level.
+func (t *Tracker) auxTrend(i, k int, tol float64) (Progress, float64, float64) {
+	var xs, ys [slopeWindow]float64
+	n := 0
+	for j := i; j >= 0 && j > i-4*slopeWindow && n < slopeWindow; j-- {
+		if !t.recs.at(j).auxAt(k) {
+			continue
+		}
+		xs[n], ys[n] = float64(t.points[j].Epoch), t.recs.at(j).auxSm[k]
+		n++
+	}
+	if n < minPoints {
+		return ProgressUnknown, 0, 0
+	}
+	m := slope(xs[:n], ys[:n])
+	if math.IsNaN(m) {
+		return ProgressUnknown, 0, 0
+	}
+	level := 0.0
+	for _, y := range ys[:n] {
+		level += y
+	}
+	level /= float64(n)
+	move := m * (xs[0] - xs[n-1])
+	switch {
+	case move <= -plateauFrac*tol:
+		return Improving, move, level
+	case move >= plateauFrac*tol:
+		return Worsening, move, level
+	}
+	return Plateaued, move, level
+}
+
+// auxAt reports whether aux series k was logged at this point.
+func (r *rec) auxAt(k int) bool { return r.auxHit&(1<<k) != 0 }
+
+// collectWarnings sets the warning bits of point i.
+func (t *Tracker) collectWarnings(i int) {
+	r := t.recs.at(i)
+	st := &t.cur
+	var w warnSet
+	if t.metric == nil {
+		w |= warnNoMetric
+	}
+	if r.badSample >= 0 || r.bad != 0 {
+		w |= warnNonFinite
+	}
+	if r.blowup {
+		w |= warnBlowup
+	}
+	if t.metric != nil && !t.cfg.BayesErrorGiven && r.comp[AvoidableBias].OK {
+		w |= warnBayesAssumed
+	}
+	if t.bayesPercent {
+		w |= warnBayesPercent
+	}
+	if st.judged < minPoints {
+		// The components of the first points are not judged yet (a
+		// training value averaged over the first epoch is far above the
+		// validation value measured at its end).
+		r.warn = w
+		return
+	}
+	u := t.uncertainty(r)
+	if v := r.comp[Variance]; v.OK && v.V < 0 {
+		margin := math.Max(r.tol/2, z95*math.Hypot(u[SplitTrain], u[SplitVal]))
+		if -v.V >= margin*(1-eps) {
+			w |= warnNegVariance
+		}
+	}
+	if b := r.comp[AvoidableBias]; b.OK && b.V < 0 && t.cfg.BayesErrorGiven && -b.V > z95*u[SplitTrain] {
+		w |= warnNegBias
+	}
+	if m := r.comp[Mismatch]; m.OK && m.V < 0 {
+		margin := math.Max(r.tol/2, z95*math.Hypot(u[SplitVal], u[SplitTrainDev]))
+		if -m.V >= margin*(1-eps) {
+			w |= warnNegMismatch
+		}
+	}
+	if bl := t.cfg.BaselineError; bl.OK && t.metric != nil && t.metric.kind == kindErrorRate && st.seen&(1<<SplitVal) != 0 {
+		// "Clearly below": by more than the uncertainty of the smoothed
+		// validation error and at least half the tolerance (a gap smaller
+		// than that is not worth acting on either).
+		if r.sm[SplitVal] > bl.V-math.Max(z95*u[SplitVal], r.tol/2)*(1+eps) {
+			w |= warnBaseline
+		}
+	}
+	if t.overconfident(i) {
+		r.overconf = true
+		w |= warnOverconfident
+	}
+	if t.metric != nil {
+		if st.seen&(1<<SplitVal|1<<SplitTrainDev) == 0 {
+			w |= warnNoVal
+		}
+		if st.seen&(1<<SplitTrain) == 0 {
+			w |= warnNoTrain
+		}
+	}
+	if t.metric != nil && t.metric.kind.bounded() {
+		for s := SplitTrain; s <= SplitTest; s++ {
+			if r.has&(1<<s) != 0 && r.bad&(1<<s) == 0 && (r.raw[s] < -eps || r.raw[s] > 1+eps) {
+				w |= warnOutOfRange
+			}
+		}
+	}
+	r.warn = w
+}
+
+// warningTexts builds the texts of the warnings of point i.
+func (t *Tracker) warningTexts(i int) []string {
+	r := t.recs.at(i)
+	if r.warn == 0 {
+		return nil
+	}
+	p := &t.points[i]
+	st := &r.snap
+	name := t.metricName()
+	out := make([]string, 0, 3)
+	add := func(w *text) { out = append(out, w.done()) }
+	if r.warn&warnNoMetric != 0 {
+		if t.missing {
+			avail := strings.Join(t.Metrics(), ", ")
+			if avail == "" {
+				avail = "none yet"
+			}
+			add(t.text().s("metric ").s(quote(t.cfg.Metric)).s(" is not in the log (judgeable: ").s(Printable(avail)).s(")"))
+		} else {
+			out = append(out, "no judgeable metric in the log yet: an accuracy, an error rate or a lower-is-better metric such as a loss")
+		}
+	}
+	if r.warn&warnNonFinite != 0 {
+		w := t.text().s("non-finite value at epoch ").n(p.Epoch)
+		if p.Line > 0 {
+			w.s(" (line ").n(p.Line).s(")")
+		}
+		w.s(": ")
+		if r.badSample >= 0 && int(r.badSample) < len(p.Samples) {
+			smp := &p.Samples[r.badSample]
+			w.s(quote(smp.Column.Name)).s(" = ").s(nonFinite(smp.Value))
+		} else {
+			for s := SplitTrain; s <= SplitTest; s++ {
+				if r.bad&(1<<s) != 0 {
+					w.s(s.String()).s(" ").s(name).s(" = ").s(nonFinite(r.raw[s]))
+					break
+				}
+			}
+		}
+		add(w.s(": training has diverged or the inputs hold NaN/Inf"))
+	}
+	if r.warn&warnBlowup != 0 {
+		add(t.text().s("training ").s(name).s(" ").val(r.raw[SplitTrain]).s(" has climbed back more than half-way from its best ").
+			val(st.trMin).s(" to its start ").val(st.trStart).s(" and is rising: diverging"))
+	}
+	if r.warn&warnBayesAssumed != 0 {
+		add(t.text().s("optimal error not given: taken as 0, so the avoidable bias ").gap(r.comp[AvoidableBias].V).
+			s(" is an upper bound (give an estimate from expert or human-level error, or the noise level)"))
+	}
+	if r.warn&warnNegVariance != 0 {
+		add(t.text().s("validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is below training ").val(r.sm[SplitTrain]).
+			s(" (variance ").gap(r.comp[Variance].V).s("): common with dropout or other regularization that acts only in training, ").
+			s("or a training value averaged over an epoch while the model improved; it is not evidence of a good fit"))
+	}
+	if r.warn&warnNegBias != 0 {
+		add(t.text().s("training ").s(name).s(" ").val(r.sm[SplitTrain]).s(" is below the optimal error ").val(t.bayes).
+			s(": the model fits noise of its training set (treat it as variance), or the optimal-error estimate is too high"))
+	}
+	if r.warn&warnNegMismatch != 0 {
+		add(t.text().s("validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is below train-dev ").val(r.sm[SplitTrainDev]).
+			s(" (data mismatch ").gap(r.comp[Mismatch].V).s("): the validation data is easier than the training distribution"))
+	}
+	if r.warn&warnBaseline != 0 {
+		add(t.text().s("validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is not clearly below the majority-class baseline ").
+			val(t.cfg.BaselineError.V).s(": class imbalance, or a broken pipeline"))
+	}
+	if r.warn&warnOverconfident != 0 {
+		add(t.text().s("validation ").s(Printable(t.loss.name)).s(" is rising while validation ").s(metricOf(t.rate).Label).
+			s(" holds: the model grows overconfident (miscalibrated), not worse at its task"))
+	}
+	if r.warn&warnNoVal != 0 {
+		add(t.text().s("no validation split of ").s(name).s(" is logged: variance cannot be estimated"))
+	}
+	if r.warn&warnNoTrain != 0 {
+		add(t.text().s("no training split of ").s(name).s(" is logged: bias and variance cannot be separated"))
+	}
+	if r.warn&warnBayesPercent != 0 {
+		add(t.text().s("optimal error ").f(t.cfg.BayesError, 4).s(" is above 1 for a rate: read as ").val(t.bayes).s(" (write a percent with %)"))
+	}
+	if r.warn&warnOutOfRange != 0 {
+		add(t.text().s(name).s(" has values outside 0–1 after conversion: is it really a rate?"))
+	}
+	return out
+}
+
+// metricName is how texts name the judged metric.
+func (t *Tracker) metricName() string {
+	return t.desc.Label
+}
+
+func quote(s string) string { return "\"" + Printable(s) + "\"" }

@@ -1,0 +1,221 @@
+package report
+
+import (
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// Markdown renders the summary for people: a heading, the verdict, the
+// values by split, the decomposition, the early-stopping state, the ranked
+// actions with their evidence, and the warnings.
+func (s Summary) Markdown() string {
+	var b strings.Builder
+	b.WriteString("# Training diagnosis: ")
+	b.WriteString(inline(orDash(s.Source)))
+	b.WriteString("\n\n")
+
+	b.WriteString("- Log: ")
+	b.WriteString(inline(orDash(s.Source)))
+	if s.Format != "" {
+		b.WriteString(" (" + inline(s.Format) + ")")
+	}
+	b.WriteString(", " + plural(s.Points, "evaluation point", "evaluation points"))
+	if s.SkippedLines > 0 {
+		b.WriteString(", " + plural(s.SkippedLines, "line skipped", "lines skipped"))
+	}
+	b.WriteString("\n")
+	if s.Epoch == nil {
+		b.WriteString("- No evaluation point to judge yet.\n")
+		s.writeWarnings(&b)
+		return b.String()
+	}
+	b.WriteString("- Epoch " + strconv.Itoa(*s.Epoch))
+	if s.Line != nil {
+		b.WriteString(" (line " + strconv.Itoa(*s.Line) + ")")
+	}
+	b.WriteString("; gaps measured in " + inline(orDash(s.Metric)) + "\n\n")
+
+	b.WriteString("## Verdict\n\n")
+	b.WriteString("**" + s.Diagnosis + "**")
+	if s.Focus != diagnose.NoComponent.String() {
+		b.WriteString(" — work on " + words(s.Focus) + " first")
+	}
+	if len(s.Problems) > 0 {
+		high := make([]string, len(s.Problems))
+		for i, p := range s.Problems {
+			high[i] = words(p)
+		}
+		b.WriteString(" (high: " + strings.Join(high, ", ") + ")")
+	}
+	b.WriteString(". Validation curve: " + s.Progress + ".\n\n")
+
+	b.WriteString("| split | smoothed | logged |\n|---|---:|---:|\n")
+	for _, row := range []struct {
+		name    string
+		sm, raw diagnose.Num
+	}{
+		{"train", s.Train, s.TrainRaw},
+		{"train-dev", s.TrainDev, s.TrainDevRaw},
+		{"val", s.Val, s.ValRaw},
+		{"test", s.Test, s.TestRaw},
+	} {
+		if !row.sm.OK && !row.raw.OK {
+			continue
+		}
+		b.WriteString("| " + row.name + " | " + s.value(row.sm) + " | " + s.value(row.raw) + " |\n")
+	}
+	b.WriteString("\n| estimate | value |\n|---|---:|\n")
+	opt := s.value(diagnose.Some(s.BayesError))
+	if !s.BayesErrorGiven {
+		opt += " (not given: taken as 0)"
+	}
+	b.WriteString("| optimal error | " + opt + " |\n")
+	bias := s.gap(s.AvoidableBias)
+	if !s.BayesErrorGiven && s.AvoidableBias.OK {
+		bias += " (upper bound)"
+	}
+	b.WriteString("| avoidable bias | " + bias + " |\n")
+	b.WriteString("| variance | " + s.gap(s.Variance) + " |\n")
+	if s.DataMismatch.OK {
+		b.WriteString("| data mismatch | " + s.gap(s.DataMismatch) + " |\n")
+	}
+	if s.ValOverfit.OK {
+		b.WriteString("| overfitting to val (test − val) | " + s.gap(s.ValOverfit) + " |\n")
+	}
+	b.WriteString("| tolerance | " + s.gap(diagnose.Some(s.Tolerance)) + " |\n")
+	if s.Noise.OK {
+		b.WriteString("| noise of val per epoch (s.d.) | " + s.gap(s.Noise) + " |\n")
+	}
+	if s.ValLow.OK && s.ValHigh.OK {
+		b.WriteString("| val 95% interval (Wilson) | " + s.value(s.ValLow) + " – " + s.value(s.ValHigh) + " |\n")
+	}
+	if s.GapSE.OK {
+		b.WriteString("| standard error of the gap | " + s.gap(s.GapSE) + " |\n")
+	}
+	if s.BaselineError.OK {
+		b.WriteString("| majority-class baseline | " + s.value(s.BaselineError) + " |\n")
+	}
+
+	es := s.EarlyStop
+	b.WriteString("\n## Early stopping\n\n")
+	b.WriteString("**" + es.Signal + "**")
+	if es.BestEpoch != nil {
+		b.WriteString(" — restore epoch " + strconv.Itoa(*es.BestEpoch) + " (best smoothed val " + s.value(es.BestVal))
+		if es.EpochsSinceBest != nil {
+			b.WriteString(", " + plural(*es.EpochsSinceBest, "epoch ago", "epochs ago"))
+		}
+		b.WriteString(")")
+	}
+	b.WriteString(".\n" + inline(es.Reason) + ".\n\n")
+	b.WriteString("Prechelt's criteria: GL " + num(es.GL, 2) + "%, P5 " + num(es.P5, 1) + "‰, PQ " + num(es.PQ, 2) +
+		", UP " + strconv.Itoa(es.UP) + "; patience " + strconv.Itoa(es.Patience) + " epochs.\n")
+
+	if len(s.Actions) > 0 {
+		b.WriteString("\n## Next actions\n\n")
+		for i, a := range s.Actions {
+			b.WriteString(strconv.Itoa(i+1) + ". " + inline(a.Text) + " — " + inline(a.Why) + "\n")
+		}
+	}
+	s.writeWarnings(&b)
+	return b.String()
+}
+
+func (s Summary) writeWarnings(b *strings.Builder) {
+	if len(s.Warnings) == 0 {
+		return
+	}
+	b.WriteString("\n## Warnings\n\n")
+	for _, w := range s.Warnings {
+		b.WriteString("- " + inline(w) + "\n")
+	}
+}
+
+// value formats a value of the judged metric: percent for rates.
+func (s Summary) value(n diagnose.Num) string {
+	if !n.OK {
+		return "–"
+	}
+	if s.ErrorRate || s.boundedLabel() {
+		return pct(n.V, "%")
+	}
+	return num(n, 4)
+}
+
+// gap formats a difference: percentage points for rates.
+func (s Summary) gap(n diagnose.Num) string {
+	if !n.OK {
+		return "–"
+	}
+	if s.ErrorRate || s.boundedLabel() {
+		return pct(n.V, " points")
+	}
+	return num(n, 4)
+}
+
+// boundedLabel recognises a shortfall score (1 − f1), shown in percent.
+func (s Summary) boundedLabel() bool { return strings.HasPrefix(s.Metric, "1 − ") }
+
+func pct(v float64, unit string) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "n/a"
+	}
+	p := v * 100
+	prec := 1
+	if math.Abs(p) < 1 && p != 0 {
+		prec = 2
+	}
+	return strconv.FormatFloat(p, 'f', prec, 64) + unit
+}
+
+func num(n diagnose.Num, prec int) string {
+	if !n.OK {
+		return "–"
+	}
+	if math.IsNaN(n.V) {
+		return "n/a"
+	}
+	if math.IsInf(n.V, 0) {
+		return "∞"
+	}
+	if prec == 4 {
+		return strconv.FormatFloat(n.V, 'g', 4, 64)
+	}
+	return strconv.FormatFloat(n.V, 'f', prec, 64)
+}
+
+// words names a component for people.
+func words(component string) string {
+	switch component {
+	case diagnose.AvoidableBias.String():
+		return "avoidable bias"
+	case diagnose.Mismatch.String():
+		return "data mismatch"
+	case diagnose.ValOverfit.String():
+		return "overfitting to the validation set"
+	}
+	return component
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return strconv.Itoa(n) + " " + many
+}
+
+func orDash(s string) string {
+	if s == "" {
+		return "–"
+	}
+	return s
+}
+
+// inline makes text safe inside one Markdown line or table cell: it is
+// printable already; a pipe would split a table cell and a leading
+// character could start a heading or list, so they are escaped.
+var mdEscaper = strings.NewReplacer("|", "\\|", "`", "\\`", "*", "\\*", "[", "\\[", "]", "\\]", "<", "&lt;", ">", "&gt;")
+
+func inline(s string) string { return mdEscaper.Replace(diagnose.Printable(s)) }

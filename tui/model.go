@@ -1,0 +1,288 @@
+// Package tui is the live screen: curves of the judged metric, the
+// sparklines of the other columns, where the validation error comes from,
+// the early-stopping signal and the next actions, with keys to pause,
+// inspect past epochs as they were judged then, switch metric, type a new
+// optimal-error estimate and save the summary.
+//
+// Data arrives as FeedMsg values on a channel; the screen judges the
+// points with its own diagnose.Tracker, keeps the raw series in its own
+// store, and rebuilds the rendered panels on a 10 Hz tick only when
+// something changed. View only joins cached strings. The package never
+// opens the log.
+package tui
+
+import (
+	"errors"
+	"time"
+
+	"github.com/charmbracelet/bubbles/help"
+	"github.com/charmbracelet/bubbles/textinput"
+	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/lipgloss"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/report"
+)
+
+// SourceState is what the reader knows about the log.
+type SourceState uint8
+
+const (
+	// Waiting: the file does not exist yet.
+	Waiting SourceState = iota
+	// Live: the log is open and being followed. The screen shows it as
+	// quiet when no write came for about three usual epoch intervals.
+	Live
+	// Removed: the file was deleted or renamed away; a new one is waited for.
+	Removed
+	// Finished: the input ended (a pipe closed); no more data will come.
+	Finished
+)
+
+func (s SourceState) String() string {
+	switch s {
+	case Waiting:
+		return "waiting"
+	case Live:
+		return "live"
+	case Removed:
+		return "removed"
+	case Finished:
+		return "finished"
+	}
+	return "unknown"
+}
+
+// SourceInfo describes the log as the reader last saw it. All counts are
+// totals since the start, not per message.
+type SourceInfo struct {
+	Name, Format string
+	State        SourceState
+	// Lines read, lines skipped as unreadable, values that were NaN or ±Inf.
+	Lines, Skipped, NonFinite int
+	// Examples of skipped lines with their reasons (sanitized by the
+	// reader; the screen sanitizes them again).
+	Examples []string
+	// LastWrite is when the log last grew; zero when unknown.
+	LastWrite time.Time
+}
+
+// FeedMsg is one batch from the reader: new evaluation points, per-step
+// rows for the charts, the state of the source, and notices (a truncated
+// file, a resumed run) to show once.
+type FeedMsg struct {
+	Points  []diagnose.Point
+	Steps   []diagnose.StepRow
+	Source  SourceInfo
+	Notices []string
+}
+
+// Options configure the screen.
+type Options struct {
+	// Config is the judgement's configuration; `m` and `b` change a copy.
+	Config diagnose.Config
+	// BayesNote says where a given optimal error comes from, shown beside
+	// it ("from the demo's label-noise rate").
+	BayesNote string
+	// NoColor draws without colour (the terminal may still show bold).
+	NoColor bool
+	// SaveSummary writes a summary for the `s` key and returns where it
+	// went. Nil disables the key.
+	SaveSummary func(report.Summary) (string, error)
+	// Now is the clock; nil means time.Now. Tests fix it.
+	Now func() time.Time
+}
+
+// ExitReason says why the screen closed.
+type ExitReason uint8
+
+const (
+	// ExitQuit: the user pressed q.
+	ExitQuit ExitReason = iota
+	// ExitInterrupted: ctrl+c, or SIGINT.
+	ExitInterrupted
+	// ExitHangup: SIGHUP, the terminal went away (an SSH link dropped).
+	ExitHangup
+	// ExitTerminated: SIGTERM.
+	ExitTerminated
+	// ExitCanceled: the caller's context ended.
+	ExitCanceled
+)
+
+func (r ExitReason) String() string {
+	switch r {
+	case ExitQuit:
+		return "quit"
+	case ExitInterrupted:
+		return "interrupted"
+	case ExitHangup:
+		return "hangup"
+	case ExitTerminated:
+		return "terminated"
+	case ExitCanceled:
+		return "canceled"
+	}
+	return "unknown"
+}
+
+// ErrNoTerminal is returned by Run when there is no terminal to draw on or
+// read keys from (no controlling terminal: CI, setsid, a container without
+// a TTY).
+var ErrNoTerminal = errors.New("no terminal for the live screen")
+
+// Model is the screen's bubbletea model. It is a value, as bubbletea
+// wants; the judged history, the series store and the render cache are
+// shared pointers, mutated only by Update.
+type Model struct {
+	opts   Options
+	now    func() time.Time
+	st     *Styles
+	keys   keyMap
+	help   help.Model
+	input  textinput.Model
+	typing bool // an optimal error is being typed
+
+	tracker *diagnose.Tracker
+	data    *store
+	src     SourceInfo
+	notices []string // sanitized, newest last, at most maxNotices
+	batches int      // FeedMsgs received
+	ended   bool     // the feed channel closed
+
+	width, height int
+
+	paused     bool
+	frozen     int // points shown while paused
+	newPaused  int // points that arrived while paused
+	cursor     int // inspected row; -1 follows the latest shown
+	logY       bool
+	fullHelp   bool
+	flash      string
+	flashErr   bool
+	flashID    int
+	metricNote string // why the judged metric is what it is, after `m`
+
+	dirty       bool // data changed since the last rebuild
+	tickPending bool
+	clockAt     time.Time // when the pending clock tick fires; zero when none
+	cache       *frame
+
+	feed   <-chan FeedMsg
+	reason ExitReason
+}
+
+// maxNotices bounds the notices kept for the warnings panel: the screen
+// shows two or three, and a log that restarts in a loop must not grow
+// memory without bound.
+const maxNotices = 32
+
+// New returns the screen for opts, with no data yet.
+func New(opts Options) Model {
+	now := opts.Now
+	if now == nil {
+		now = time.Now
+	}
+	in := textinput.New()
+	in.Prompt = "optimal error: "
+	in.Placeholder = "0.04 or 4%"
+	in.CharLimit = 24
+	m := Model{
+		opts:    opts,
+		now:     now,
+		keys:    newKeyMap(),
+		help:    help.New(),
+		input:   in,
+		tracker: diagnose.New(opts.Config),
+		data:    newStore(),
+		cursor:  -1,
+		cache:   &frame{},
+		dirty:   true,
+	}
+	m.setRenderer(lipgloss.DefaultRenderer())
+	return m
+}
+
+// setRenderer builds the styles for a renderer (Run passes the terminal's).
+func (m *Model) setRenderer(r *lipgloss.Renderer) {
+	m.st = newStyles(r, m.opts.NoColor)
+	m.help.Styles.ShortKey = m.st.Key
+	m.help.Styles.FullKey = m.st.Key
+	m.help.Styles.ShortDesc = m.st.Dim
+	m.help.Styles.FullDesc = m.st.Dim
+	m.help.Styles.ShortSeparator = m.st.Dim
+	m.help.Styles.FullSeparator = m.st.Dim
+	m.help.Styles.Ellipsis = m.st.Dim
+	m.input.PromptStyle = m.st.Heading
+	m.input.PlaceholderStyle = m.st.Dim
+	m.dirty = true
+}
+
+// Init starts, under Run, the wait for the first batch. The first frame is
+// built when the terminal size arrives.
+func (m Model) Init() tea.Cmd {
+	return m.waitFeed()
+}
+
+// waitFeed blocks on the feed for one batch (the command is re-issued after
+// each batch, so at most one read is pending).
+func (m Model) waitFeed() tea.Cmd {
+	feed := m.feed
+	if feed == nil {
+		return nil
+	}
+	return func() tea.Msg {
+		msg, ok := <-feed
+		if !ok {
+			return feedEndMsg{}
+		}
+		return msg
+	}
+}
+
+// Internal messages.
+type (
+	frameMsg struct{}         // the ~10 Hz rebuild tick
+	clockMsg struct{}         // the status line's clock changed what it shows
+	flashOff struct{ id int } // a flash message's time is up
+	savedMsg struct {
+		path string
+		err  error
+	}
+	feedEndMsg struct{}
+	// signalMsg carries a signal caught by Run.
+	signalMsg struct{ reason ExitReason }
+)
+
+// frameInterval is the rebuild tick: 10 Hz keeps a fast log from costing a
+// rebuild per batch, and is below what the eye sees as lag.
+const frameInterval = 100 * time.Millisecond
+
+// flashFor is how long a message about a key's result stays on the help line.
+const flashFor = 4 * time.Second
+
+// frameTick schedules a rebuild unless one is pending.
+func (m *Model) frameTick() tea.Cmd {
+	if m.tickPending {
+		return nil
+	}
+	m.tickPending = true
+	return tea.Tick(frameInterval, func(time.Time) tea.Msg { return frameMsg{} })
+}
+
+// Tracker returns the screen's judged history (shared: read only).
+func (m Model) Tracker() *diagnose.Tracker { return m.tracker }
+
+// Reason returns why the screen closed.
+func (m Model) Reason() ExitReason { return m.reason }
+
+// Summary returns the snapshot summary as of the last point received,
+// whatever the display shows (paused or inspecting).
+func (m Model) Summary() report.Summary {
+	return report.Build(report.Source{
+		Name:         m.src.Name,
+		Format:       m.src.Format,
+		Points:       m.tracker.Len(),
+		SkippedLines: m.src.Skipped,
+		Warnings:     m.sourceWarnings(),
+	}, m.tracker)
+}

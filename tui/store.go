@@ -1,0 +1,252 @@
+package tui
+
+import (
+	"math"
+	"time"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// row is what the chart needs of one judged point, in our own store: the
+// chart is rebuilt from these, never from the judgements, so a rebuild
+// walks flat numbers.
+type row struct {
+	epoch    int
+	train    float64 // judged (converted) raw values; NaN when absent
+	val      float64
+	trainDev float64
+	bad      bool      // a judged split's value was NaN or ±Inf
+	total    int       // announced number of epochs, 0 if unknown
+	logged   time.Time // the point's own time column, if any
+	arrived  time.Time // when the screen received it
+	batch    int       // which FeedMsg brought it (intervals inside one batch are backlog, not pace)
+}
+
+// column is one other numeric column of the log, aligned with the rows
+// (NaN where a point did not have it).
+type column struct {
+	meta diagnose.Column // Name sanitized
+	vals []float64
+}
+
+// store keeps the raw series the screen draws: one row per judged point,
+// the other columns per point, and the per-step series.
+type store struct {
+	rows    []row
+	cols    []*column
+	colByID map[string]*column
+
+	steps     map[string]*stepSeries // per-step metric columns by name
+	stepMeta  map[string]diagnose.Column
+	stepOrder []string
+	clock     stepClock
+	// percent remembers bases seen above 1 in per-step rows: a rate or score
+	// written in percent (the same inference the judgement makes).
+	percent map[string]bool
+
+	// optimal holds the optimal errors given per base metric (flag or `b`),
+	// so cycling the metric does not carry one metric's estimate to another.
+	optimal map[string]float64
+}
+
+func newStore() *store {
+	return &store{
+		colByID:  map[string]*column{},
+		steps:    map[string]*stepSeries{},
+		stepMeta: map[string]diagnose.Column{},
+		percent:  map[string]bool{},
+	}
+}
+
+// truncate keeps the first n rows and column values.
+func (s *store) truncate(n int) {
+	if n < len(s.rows) {
+		s.rows = s.rows[:n]
+	}
+	for _, c := range s.cols {
+		if n < len(c.vals) {
+			c.vals = c.vals[:n]
+		}
+	}
+}
+
+// add stores the judgement j of point p, which replaces the rows from
+// j.Index on (the Tracker's rule for a point whose epoch is not above the
+// last one).
+func (s *store) add(j diagnose.Judgement, p diagnose.Point, arrived time.Time, batch int) {
+	n := j.Index
+	if n < 0 {
+		n = len(s.rows)
+	}
+	s.truncate(n)
+	r := rowOf(j, p)
+	r.arrived, r.batch = arrived, batch
+	for len(s.rows) < n { // a gap cannot happen with the Tracker; stay aligned anyway
+		s.rows = append(s.rows, row{epoch: r.epoch, train: math.NaN(), val: math.NaN(), trainDev: math.NaN()})
+	}
+	s.rows = append(s.rows, r)
+	for _, smp := range p.Samples {
+		switch smp.Column.Kind {
+		case diagnose.KindEpoch, diagnose.KindStep, diagnose.KindTime:
+			continue
+		}
+		name := clean(smp.Column.Name)
+		c := s.colByID[name]
+		if c == nil {
+			meta := smp.Column
+			meta.Name = name
+			c = &column{meta: meta}
+			s.colByID[name] = c
+			s.cols = append(s.cols, c)
+		}
+		for len(c.vals) < n {
+			c.vals = append(c.vals, math.NaN())
+		}
+		c.vals = append(c.vals[:n], smp.Value)
+	}
+	for _, c := range s.cols {
+		for len(c.vals) < n+1 {
+			c.vals = append(c.vals, math.NaN())
+		}
+	}
+}
+
+// rejudge refreshes the judged values of every row after the Tracker was
+// reconfigured (another metric, another optimal error), keeping arrival
+// times, which only the screen knows.
+func (s *store) rejudge(t *diagnose.Tracker) {
+	pts := t.Points()
+	n := min(t.Len(), len(pts))
+	old := s.rows
+	s.rows = make([]row, 0, n)
+	for i := 0; i < n; i++ {
+		r := rowOf(t.At(i), pts[i])
+		if i < len(old) {
+			r.arrived, r.batch = old[i].arrived, old[i].batch
+		}
+		s.rows = append(s.rows, r)
+	}
+}
+
+func rowOf(j diagnose.Judgement, p diagnose.Point) row {
+	val := func(e diagnose.Estimate) float64 {
+		if !e.Raw.OK {
+			return math.NaN()
+		}
+		return e.Raw.V
+	}
+	r := row{
+		epoch:    p.Epoch,
+		train:    val(j.Train),
+		val:      val(j.Val),
+		trainDev: val(j.TrainDev),
+		total:    p.Total,
+		logged:   p.Time,
+	}
+	if j.Epoch != 0 || p.Epoch == 0 {
+		r.epoch = j.Epoch
+	}
+	for _, e := range []diagnose.Estimate{j.Train, j.Val, j.TrainDev} {
+		if e.Raw.OK && !isFinite(e.Raw.V) {
+			r.bad = true
+		}
+	}
+	for _, smp := range p.Samples {
+		if smp.Column.Kind == diagnose.KindMetric && smp.Column.Base == j.Metric.Base && !isFinite(smp.Value) {
+			r.bad = true
+		}
+	}
+	return r
+}
+
+// addStep stores one per-step row: its metric columns, and its place on
+// the epoch axis.
+func (s *store) addStep(r diagnose.StepRow) {
+	if r.Step < 0 {
+		return
+	}
+	s.clock.observe(r.Epoch, r.Step)
+	for _, smp := range r.Samples {
+		if smp.Column.Kind != diagnose.KindMetric {
+			continue
+		}
+		name := clean(smp.Column.Name)
+		ss := s.steps[name]
+		if ss == nil {
+			ss = &stepSeries{}
+			s.steps[name] = ss
+			meta := smp.Column
+			meta.Name = name
+			s.stepMeta[name] = meta
+			s.stepOrder = append(s.stepOrder, name)
+		}
+		if (smp.Column.Rate || smp.Column.Dir == diagnose.HigherIsBetter) && smp.Value > 1 {
+			s.percent[smp.Column.Base] = true
+		}
+		ss.add(r.Step, smp.Value)
+	}
+}
+
+// trainSteps returns the per-step training series of a base metric, if the
+// log has one.
+func (s *store) trainSteps(base string) (*stepSeries, diagnose.Column, bool) {
+	for _, name := range s.stepOrder {
+		m := s.stepMeta[name]
+		if m.Base == base && m.Split == diagnose.SplitTrain && len(s.steps[name].steps) > 0 {
+			return s.steps[name], m, true
+		}
+	}
+	return nil, diagnose.Column{}, false
+}
+
+// stepConverter returns the function that turns a logged per-step value of
+// column c into the judged metric's units: an error rate as a fraction
+// (1 − accuracy), the shortfall 1 − score of a bounded score, or the value
+// itself. It mirrors how the judgement converts its points, so the band
+// and the epoch curves share one axis.
+func (s *store) stepConverter(c diagnose.Column) func(float64) float64 {
+	scale := 1.0
+	if s.percentFor(c) {
+		scale = 0.01
+	}
+	switch {
+	case c.Dir == diagnose.HigherIsBetter:
+		return func(v float64) float64 { return 1 - v*scale }
+	case c.Rate:
+		return func(v float64) float64 { return v * scale }
+	}
+	return func(v float64) float64 { return v }
+}
+
+// percentFor reports whether a per-step column is written in percent. The
+// reader's flag decides when set; else the judgement's own conversion of
+// the same column at a recent epoch shows which scale it used (a training
+// value of 0.95 judged as 0.05 is a fraction, judged as 0.9905 a percent);
+// else a per-step value above 1 does.
+func (s *store) percentFor(c diagnose.Column) bool {
+	if c.Percent {
+		return true
+	}
+	bounded := c.Rate || c.Dir == diagnose.HigherIsBetter
+	if !bounded {
+		return false
+	}
+	if col := s.colByID[c.Name]; col != nil {
+		conv := func(v, scale float64) float64 {
+			if c.Dir == diagnose.HigherIsBetter {
+				return 1 - v*scale
+			}
+			return v * scale
+		}
+		for i := len(s.rows) - 1; i >= 0 && i >= len(s.rows)-64; i-- {
+			if i >= len(col.vals) {
+				continue
+			}
+			v, j := col.vals[i], s.rows[i].train
+			if isFinite(v) && isFinite(j) && v != 0 {
+				return math.Abs(j-conv(v, 0.01)) < math.Abs(j-conv(v, 1))
+			}
+		}
+	}
+	return s.percent[c.Base]
+}

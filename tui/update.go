@@ -1,0 +1,435 @@
+package tui
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/charmbracelet/bubbles/key"
+	tea "github.com/charmbracelet/bubbletea"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// Update handles one message: a flat switch that delegates.
+func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+	switch msg := msg.(type) {
+	case tea.WindowSizeMsg:
+		return m.handleResize(msg)
+	case tea.KeyMsg:
+		return m.handleKey(msg)
+	case FeedMsg:
+		return m.handleData(msg)
+	case feedEndMsg:
+		m.ended = true
+		if m.src.State != Removed {
+			m.src.State = Finished
+		}
+		m.dirty = true
+		cmd := m.frameTick()
+		return m, cmd
+	case frameMsg:
+		m.tickPending = false
+		if m.dirty {
+			m.rebuild()
+		}
+		cmd := m.clockTick()
+		return m, cmd
+	case clockMsg:
+		m.clockAt = zeroTime
+		m.renderStatus()
+		cmd := m.clockTick()
+		return m, cmd
+	case flashOff:
+		if msg.id == m.flashID && m.flash != "" {
+			m.flash = ""
+			m.renderBottom()
+		}
+		return m, nil
+	case savedMsg:
+		if msg.err != nil {
+			cmd := m.say(true, "summary not saved: "+clean(msg.err.Error()))
+			return m, cmd
+		}
+		cmd := m.say(false, "summary saved to "+clean(msg.path))
+		return m, cmd
+	case signalMsg:
+		m.reason = msg.reason
+		return m, tea.Quit
+	}
+	if m.typing {
+		var cmd tea.Cmd
+		m.input, cmd = m.input.Update(msg)
+		return m, cmd
+	}
+	return m, nil
+}
+
+// handleResize lays the screen out again; a size of 0×0 or 1×1 is valid
+// and gives an empty or one-character screen, never a crash.
+func (m Model) handleResize(msg tea.WindowSizeMsg) (tea.Model, tea.Cmd) {
+	m.width, m.height = max(msg.Width, 0), max(msg.Height, 0)
+	m.help.Width = m.width
+	m.input.Width = max(m.width-len(m.input.Prompt)-2, 1)
+	m.rebuild()
+	cmd := m.clockTick()
+	return m, cmd
+}
+
+// handleData judges the new points, stores the series and marks the screen
+// dirty; the rebuild waits for the next tick, so a fast log costs one
+// rebuild per tick, not one per batch.
+func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
+	m.batches++
+	now := m.now()
+	metric := diagnose.Metric{}
+	if n := len(m.data.rows); n > 0 {
+		metric = m.tracker.At(n - 1).Metric
+	}
+	for _, p := range msg.Points {
+		j := m.tracker.Add(p)
+		m.data.add(j, p, now, m.batches)
+		if m.paused {
+			m.newPaused++
+		}
+	}
+	if len(msg.Points) > 0 {
+		m.checkReplay(metric)
+	}
+	for _, s := range msg.Steps {
+		m.data.addStep(s)
+	}
+	m.mergeSource(msg.Source)
+	for _, n := range msg.Notices {
+		if n = clean(n); n != "" {
+			m.notices = append(m.notices, n)
+		}
+	}
+	if over := len(m.notices) - maxNotices; over > 0 {
+		m.notices = append(m.notices[:0], m.notices[over:]...)
+	}
+	m.clampView()
+	m.dirty = true
+	cmd := tea.Batch(m.waitFeed(), m.frameTick())
+	return m, cmd
+}
+
+// checkReplay notices when the Tracker judged its earlier points again
+// (it chose another metric, or learned that a rate is written in percent)
+// and refreshes the stored rows; the check reads one old judgement.
+func (m *Model) checkReplay(before diagnose.Metric) {
+	n := len(m.data.rows)
+	if n == 0 {
+		return
+	}
+	last := m.tracker.At(n - 1)
+	stale := last.Metric != before && before != (diagnose.Metric{})
+	if !stale && n > 1 {
+		r := rowOf(m.tracker.At(0), m.tracker.Points()[0])
+		stale = !sameValue(r.train, m.data.rows[0].train) || !sameValue(r.val, m.data.rows[0].val)
+	}
+	if stale {
+		m.data.rejudge(m.tracker)
+	}
+}
+
+func sameValue(a, b float64) bool { return a == b || (math.IsNaN(a) && math.IsNaN(b)) }
+
+// mergeSource takes the reader's latest view of the source. A message with
+// no source information (only points) keeps the previous one.
+func (m *Model) mergeSource(s SourceInfo) {
+	if s.Name == "" && s.Format == "" && s.Lines == 0 && s.LastWrite.IsZero() && s.State == Waiting && len(s.Examples) == 0 {
+		if m.src.State == Waiting && len(m.data.rows) > 0 {
+			m.src.State = Live
+		}
+		return
+	}
+	s.Name = clean(s.Name)
+	s.Format = clean(s.Format)
+	s.Examples = cleanAll(s.Examples)
+	if m.ended && s.State != Removed {
+		s.State = Finished
+	}
+	m.src = s
+}
+
+// shown is how many rows the display covers: all of them, or those that
+// had arrived when the display was paused.
+func (m *Model) shown() int {
+	n := len(m.data.rows)
+	if m.paused {
+		return min(m.frozen, n)
+	}
+	return n
+}
+
+// clampView keeps the frozen count and the cursor inside the rows after a
+// rewind dropped some.
+func (m *Model) clampView() {
+	n := len(m.data.rows)
+	if m.frozen > n {
+		m.frozen = n
+	}
+	if m.cursor >= m.shown() {
+		m.cursor = m.shown() - 1
+	}
+}
+
+// inspected is the row whose judgement the panels show.
+func (m *Model) inspected() int {
+	if m.cursor >= 0 {
+		return m.cursor
+	}
+	return m.shown() - 1
+}
+
+func (m Model) handleKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
+	if m.typing {
+		return m.handleTyping(msg)
+	}
+	k := m.keys
+	var cmd tea.Cmd
+	switch {
+	case key.Matches(msg, k.Abort):
+		m.reason = ExitInterrupted
+		return m, tea.Quit
+	case key.Matches(msg, k.Quit):
+		m.reason = ExitQuit
+		return m, tea.Quit
+	case key.Matches(msg, k.Suspend):
+		// Raw mode turns ctrl+z into a key; suspend as the shell would.
+		return m, tea.Suspend
+	case key.Matches(msg, k.Pause):
+		if m.paused {
+			m.paused, m.cursor, m.newPaused = false, -1, 0
+		} else {
+			m.pause()
+		}
+	case key.Matches(msg, k.Prev):
+		m.moveCursor(-1)
+	case key.Matches(msg, k.Next):
+		m.moveCursor(+1)
+	case key.Matches(msg, k.First):
+		if m.pause(); m.shown() > 0 {
+			m.cursor = 0
+		}
+	case key.Matches(msg, k.Last):
+		if m.pause(); m.shown() > 0 {
+			m.cursor = m.shown() - 1
+		}
+	case key.Matches(msg, k.Metric):
+		cmd = m.cycleMetric()
+	case key.Matches(msg, k.LogY):
+		m.logY = !m.logY
+		if m.logY && !m.hasPositive() {
+			cmd = m.say(true, "log scale shows only values above 0; none are shown yet")
+		}
+	case key.Matches(msg, k.Optimal):
+		m.typing = true
+		m.input.Prompt = m.optimalPrompt()
+		m.input.Width = max(m.width-len(m.input.Prompt)-2, 1)
+		m.input.SetValue("")
+		cmd = m.input.Focus()
+		m.renderBottom()
+		return m, cmd
+	case key.Matches(msg, k.Save):
+		cmd = m.save()
+	case key.Matches(msg, k.Help):
+		m.fullHelp = !m.fullHelp
+	default:
+		return m, nil
+	}
+	m.rebuild()
+	return m, cmd
+}
+
+// pause freezes the display at the rows that have arrived.
+func (m *Model) pause() {
+	if !m.paused {
+		m.paused, m.frozen, m.newPaused = true, len(m.data.rows), 0
+	}
+}
+
+// moveCursor moves the inspected epoch; the first move pauses the display
+// and starts from the latest epoch shown.
+func (m *Model) moveCursor(d int) {
+	m.pause()
+	n := m.shown()
+	if n == 0 {
+		return
+	}
+	c := m.cursor
+	if c < 0 {
+		c = n - 1
+		if d > 0 {
+			d = 0 // → on the latest epoch selects it
+		}
+	}
+	m.cursor = clampInt(c+d, 0, n-1)
+}
+
+func (m *Model) hasPositive() bool {
+	for _, r := range m.data.rows[:m.shown()] {
+		if r.train > 0 || r.val > 0 || r.trainDev > 0 {
+			return true
+		}
+	}
+	return false
+}
+
+// cycleMetric judges the next judgeable metric of the log. An optimal
+// error typed for one metric stays with it: another metric starts from
+// the estimate given for it, if any.
+func (m *Model) cycleMetric() tea.Cmd {
+	metrics := m.tracker.Metrics()
+	if len(metrics) == 0 {
+		return m.say(true, "no judgeable metric in the log yet")
+	}
+	cur := m.currentMetric().Base
+	next := metrics[0]
+	for i, b := range metrics {
+		if b == cur {
+			next = metrics[(i+1)%len(metrics)]
+		}
+	}
+	if next == cur {
+		return m.say(false, "the log has one judgeable metric: "+clean(cur))
+	}
+	cfg := m.tracker.Config()
+	m.rememberOptimal(cur, cfg)
+	cfg.Metric = next
+	cfg.BayesError, cfg.BayesErrorGiven = 0, false
+	if o, ok := m.optimalFor()[next]; ok {
+		cfg.BayesError, cfg.BayesErrorGiven = o, true
+	}
+	m.tracker.Reconfigure(cfg)
+	m.data.rejudge(m.tracker)
+	m.clampView()
+	label := m.currentMetric().Label
+	if !cfg.BayesErrorGiven {
+		return m.say(false, "judging "+clean(label)+" · optimal error taken as 0 (b sets it)")
+	}
+	return m.say(false, "judging "+clean(label))
+}
+
+// currentMetric is the metric of the latest judgement.
+func (m *Model) currentMetric() diagnose.Metric {
+	if j, ok := m.tracker.Latest(); ok {
+		return j.Metric
+	}
+	return diagnose.Metric{Base: m.tracker.Config().Metric}
+}
+
+// optimalFor returns the optimal errors given per metric, creating the map.
+func (m *Model) optimalFor() map[string]float64 {
+	if m.data.optimal == nil {
+		m.data.optimal = map[string]float64{}
+	}
+	return m.data.optimal
+}
+
+func (m *Model) rememberOptimal(base string, cfg diagnose.Config) {
+	if base != "" && cfg.BayesErrorGiven {
+		m.optimalFor()[base] = cfg.BayesError
+	}
+}
+
+// optimalPrompt names what is being typed in the judged metric's terms.
+func (m *Model) optimalPrompt() string {
+	if isRateMetric(m.currentMetric()) {
+		return "optimal error (0.04 or 4%): "
+	}
+	return "optimal " + clean(m.currentMetric().Label) + ": "
+}
+
+// isRateMetric reports whether the judged values are fractions in [0, 1]:
+// an error rate, or the shortfall 1 − score of a bounded score.
+func isRateMetric(mt diagnose.Metric) bool {
+	return mt.Error || strings.HasPrefix(mt.Label, "1 − ")
+}
+
+func (m Model) handleTyping(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
+	switch {
+	case key.Matches(msg, m.keys.Abort):
+		m.reason = ExitInterrupted
+		return m, tea.Quit
+	case key.Matches(msg, m.keys.Cancel):
+		m.typing = false
+		m.input.Blur()
+		m.renderBottom()
+		return m, nil
+	case key.Matches(msg, m.keys.Accept):
+		v, err := parseOptimal(m.input.Value(), isRateMetric(m.currentMetric()))
+		if err != nil {
+			// Keep the text so it can be corrected.
+			cmd := m.say(true, err.Error())
+			return m, cmd
+		}
+		m.typing = false
+		m.input.Blur()
+		cfg := m.tracker.Config()
+		cfg.BayesError, cfg.BayesErrorGiven = v, true
+		if b := m.currentMetric().Base; b != "" {
+			if cfg.Metric == "" {
+				cfg.Metric = b // keep judging this metric under the new estimate
+			}
+			m.optimalFor()[b] = v
+		}
+		m.tracker.Reconfigure(cfg)
+		m.data.rejudge(m.tracker)
+		m.clampView()
+		m.opts.BayesNote = "typed in"
+		m.rebuild()
+		cmd := m.say(false, "optimal error set to "+formatNum(v, 4)+": verdict recomputed for every epoch")
+		return m, cmd
+	}
+	var cmd tea.Cmd
+	m.input, cmd = m.input.Update(msg)
+	m.renderBottom()
+	return m, cmd
+}
+
+// parseOptimal reads a typed optimal error: a rate as 0.04 or 4% for an
+// error-rate metric, else a non-negative number in the metric's units.
+func parseOptimal(s string, rate bool) (float64, error) {
+	if strings.TrimSpace(s) == "" {
+		return 0, fmt.Errorf("type an optimal error such as 0.04 or 4%%, or esc to cancel")
+	}
+	if rate {
+		v, err := diagnose.ParseRate(s)
+		if err != nil {
+			return 0, fmt.Errorf("optimal error: %w", err)
+		}
+		return v, nil
+	}
+	t := strings.TrimSpace(s)
+	v, err := strconv.ParseFloat(t, 64)
+	if err != nil || !isFinite(v) || v < 0 {
+		return 0, fmt.Errorf("optimal value %q: want a number ≥ 0 in the metric's units", clean(t))
+	}
+	return v, nil
+}
+
+// save builds the summary now and writes it off the event loop.
+func (m *Model) save() tea.Cmd {
+	if m.opts.SaveSummary == nil {
+		return m.say(true, "no place to save the summary")
+	}
+	sum := m.Summary()
+	save := m.opts.SaveSummary
+	return func() tea.Msg {
+		p, err := save(sum)
+		return savedMsg{path: p, err: err}
+	}
+}
+
+// say shows a short message on the key-help line for flashFor.
+func (m *Model) say(isErr bool, text string) tea.Cmd {
+	m.flash, m.flashErr = text, isErr
+	m.flashID++
+	id := m.flashID
+	m.renderBottom()
+	return tea.Tick(flashFor, func(time.Time) tea.Msg { return flashOff{id: id} })
+}

@@ -1,0 +1,204 @@
+package tui
+
+import (
+	"strings"
+
+	"github.com/charmbracelet/x/ansi"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// frame is the render cache: the strings View joins, and the scratch
+// memory the rebuild reuses.
+type frame struct {
+	lay    layout
+	status string
+	body   string // the lines between the status line and the bottom line
+	bottom string // key help, or a flash message
+
+	chart curveChart
+	spark cells
+	raw   [3][]xy
+	ds    [3][]xy
+	vals  []xy
+	dsv   []xy
+	ys    []float64
+	runes []rune
+	knots []xy
+
+	builds int // rebuilds so far (tests check that idle ticks build nothing)
+}
+
+// View joins the cached strings. It does no layout and no drawing, except
+// the text input while an optimal error is typed (a one-line widget).
+func (m Model) View() string {
+	f := m.cache
+	if f == nil || f.lay.mode == modeEmpty {
+		return ""
+	}
+	bottom := f.bottom
+	if m.typing {
+		bottom = fit(m.input.View(), m.width)
+	}
+	var b strings.Builder
+	b.Grow(len(f.status) + len(f.body) + len(bottom) + 2)
+	b.WriteString(f.status)
+	if f.body != "" {
+		b.WriteByte('\n')
+		b.WriteString(f.body)
+	}
+	if m.height >= 2 {
+		b.WriteByte('\n')
+		b.WriteString(bottom)
+	}
+	return b.String()
+}
+
+// rebuild lays the screen out and renders every panel into the cache.
+func (m *Model) rebuild() {
+	m.dirty = false
+	f := m.cache
+	f.builds++
+	idx := m.inspected()
+	var j diagnose.Judgement
+	if idx >= 0 && idx < m.tracker.Len() {
+		j = m.tracker.At(idx)
+	}
+	warns := m.warnings(j)
+	sparks := m.sparkColumns()
+	f.lay = computeLayout(m.width, m.height, len(sparks), len(warns))
+	lay := f.lay
+	var body []string
+	switch lay.mode {
+	case modeEmpty:
+		f.status, f.body, f.bottom = "", "", ""
+		return
+	case modeCompact:
+		body = m.compactBody(j, idx, warns, max(m.height-2, 0))
+	case modeStacked:
+		body = m.stackedBody(j, idx, warns, sparks)
+	case modeWide:
+		body = m.wideBody(j, idx, warns, sparks)
+	}
+	for i := range body {
+		body[i] = fit(body[i], m.width)
+	}
+	f.body = strings.Join(body, "\n")
+	m.renderStatus()
+	m.renderBottom()
+}
+
+// stackedBody puts the panels one under the other: chart, sparklines,
+// the verdict in four lines, one warning line.
+func (m *Model) stackedBody(j diagnose.Judgement, idx int, warns []string, sparks []*column) []string {
+	lay := m.cache.lay
+	var out []string
+	if m.fullHelp {
+		out = append(out, m.fullHelpLines(lay.w, lay.chartH)...)
+	} else {
+		out = append(out, m.chartLines(lay.w, lay.chartH)...)
+	}
+	out = append(out, m.sparkLines(sparks, lay)...)
+	out = append(out, m.verdictCompact(j, idx, lay.w, lay.verdictRows)...)
+	out = append(out, m.warningLines(warns, lay.w, lay.warnRows)...)
+	return out
+}
+
+// wideBody puts the chart and sparklines on the left and the verdict on
+// the right, with the warnings across the bottom.
+func (m *Model) wideBody(j diagnose.Judgement, idx int, warns []string, sparks []*column) []string {
+	lay := m.cache.lay
+	left := m.chartLines(lay.mainW, lay.chartH)
+	left = append(left, m.sparkLines(sparks, lay)...)
+	h := lay.chartH + lay.sparkRows
+	var right []string
+	if m.fullHelp {
+		right = m.fullHelpLines(lay.sideW, h)
+	} else {
+		right = m.verdictPanel(j, idx, lay.sideW, h)
+	}
+	out := make([]string, 0, h+lay.warnRows)
+	for i := 0; i < h; i++ {
+		var l, r string
+		if i < len(left) {
+			l = left[i]
+		}
+		if i < len(right) {
+			r = right[i]
+		}
+		out = append(out, pad(fit(l, lay.mainW), lay.mainW)+"  "+fit(r, lay.sideW))
+	}
+	out = append(out, m.warningLines(warns, lay.w, lay.warnRows)...)
+	return out
+}
+
+// fullHelpLines is the key list shown by `?`.
+func (m *Model) fullHelpLines(w, h int) []string {
+	hm := m.help
+	hm.ShowAll = true
+	hm.Width = w
+	lines := []string{m.st.paint(clsHeading, "keys")}
+	lines = append(lines, strings.Split(hm.FullHelpView(m.keys.FullHelp()), "\n")...)
+	lines = append(lines, "",
+		m.st.paint(clsDim, "Reading goes on while paused or inspecting;"),
+		m.st.paint(clsDim, "space returns to the latest epoch."))
+	if len(lines) > h {
+		lines = lines[:max(h, 0)]
+	}
+	for len(lines) < h {
+		lines = append(lines, "")
+	}
+	return lines
+}
+
+// renderBottom renders the key-help line, or the flash message over it.
+func (m *Model) renderBottom() {
+	f := m.cache
+	switch {
+	case m.flash != "":
+		c := clsDim
+		if m.flashErr {
+			c = clsWarn
+		}
+		f.bottom = fit(m.st.paint(c, m.flash), m.width)
+	case m.typing:
+		hm := m.help
+		hm.Width = m.width
+		f.bottom = fit(hm.ShortHelpView(m.keys.editHelp()), m.width)
+	default:
+		hm := m.help
+		hm.Width = m.width
+		f.bottom = fit(hm.ShortHelpView(m.keys.ShortHelp()), m.width)
+	}
+}
+
+// fit cuts a styled line to w columns.
+func fit(s string, w int) string {
+	if w <= 0 {
+		return ""
+	}
+	if ansi.StringWidth(s) <= w {
+		return s
+	}
+	return ansi.Truncate(s, w, "")
+}
+
+// pad fills a styled line with spaces to w columns.
+func pad(s string, w int) string {
+	if n := w - ansi.StringWidth(s); n > 0 {
+		return s + strings.Repeat(" ", n)
+	}
+	return s
+}
+
+// wrap breaks plain text into lines of at most w columns.
+func wrap(s string, w int) []string {
+	if w <= 0 {
+		return nil
+	}
+	out := strings.Split(ansi.Wrap(s, w, ""), "\n")
+	for i := range out {
+		out[i] = strings.TrimRight(out[i], " ")
+	}
+	return out
+}

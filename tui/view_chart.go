@@ -1,0 +1,325 @@
+package tui
+
+import (
+	"math"
+	"sort"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// yHeadroom is the share of the y span added above and below the data, so
+// the extreme points do not sit on the frame.
+const yHeadroom = 0.04
+
+// maxBadMarks caps the '!' marks of non-finite values: one per column is
+// all a chart can show.
+const maxBadMarks = 512
+
+// plotted maps a judged value to the y axis: log10 on a log axis, where
+// values at or below 0 cannot be shown and become gaps.
+func (m *Model) plotted(v float64) float64 {
+	if !m.logY {
+		return v
+	}
+	if !(v > 0) {
+		return math.NaN()
+	}
+	return math.Log10(v)
+}
+
+// chartLines draws the main chart of the rows shown at w×h.
+func (m *Model) chartLines(w, h int) []string {
+	if h <= 0 || w <= 0 {
+		return nil
+	}
+	f := m.cache
+	n := m.shown()
+	rows := m.data.rows[:n]
+	metric := m.currentMetric()
+	title := metric.Label
+	if title == "" {
+		title = "judged metric"
+	}
+	title = clean(title) + " by epoch"
+	if m.logY {
+		title += " · log"
+	}
+	spec := chartSpec{title: title, logY: m.logY, percent: isRateMetric(metric)}
+
+	// Raw series into our scratch, then downsampled: about two points per
+	// braille column is what the plot can show.
+	threshold := 4 * w
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for s := 0; s < 3; s++ {
+		raw := f.raw[s][:0]
+		finite := 0
+		for i := range rows {
+			v := m.plotted(seriesValue(&rows[i], s))
+			raw = append(raw, xy{X: float64(rows[i].epoch), Y: v})
+			if isFinite(v) {
+				finite++
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+		}
+		f.raw[s] = raw
+		if finite == 0 {
+			continue
+		}
+		f.ds[s] = lttbRuns(f.ds[s], raw, threshold)
+		spec.curves = append(spec.curves, curve{
+			label: seriesLabel[s], glyph: seriesGlyph[s], cls: seriesClass[s], pts: f.ds[s],
+		})
+	}
+	// Draw order: validation last, so it wins the cells it shares.
+	sort.SliceStable(spec.curves, func(a, b int) bool { return curveRank(spec.curves[a].cls) < curveRank(spec.curves[b].cls) })
+
+	if len(rows) > 0 {
+		spec.xmin, spec.xmax = float64(rows[0].epoch), float64(rows[len(rows)-1].epoch)
+	}
+	if band := m.band(metric); band != nil {
+		spec.band = band
+		last := band.series.steps[len(band.series.steps)-1]
+		endX := epochAt(band.knots, float64(last))
+		if len(rows) == 0 {
+			spec.xmin, spec.xmax = band.knots[0].X, endX
+			if bl, bh, ok := band.series.minMax(0, len(band.series.steps)); ok {
+				a, b := band.conv(bl), band.conv(bh)
+				lo, hi = math.Min(a, b), math.Max(a, b)
+			}
+		} else if !m.paused && endX > spec.xmax {
+			// The epoch in progress: its steps extend the axis.
+			spec.xmax = endX
+		}
+	}
+	if spec.xmax <= spec.xmin {
+		if spec.xmin >= 1 {
+			spec.xmin--
+		} else {
+			spec.xmax++
+		}
+	}
+	if !(hi >= lo) {
+		return m.emptyChart(w, h, title)
+	}
+	if hi == lo {
+		d := math.Max(math.Abs(lo)*0.1, 0.05)
+		if m.logY {
+			d = 0.5
+		}
+		lo, hi = lo-d, hi+d
+	}
+	pad := (hi - lo) * yHeadroom
+	spec.ymin, spec.ymax = lo-pad, hi+pad
+	if !m.logY && lo >= 0 && spec.ymin < 0 {
+		spec.ymin = 0 // errors and losses are not negative: keep 0 as the floor
+	}
+
+	idx := m.inspected()
+	if idx >= 0 && idx < n {
+		j := m.tracker.At(idx)
+		if es := j.EarlyStop; es.BestVal.OK {
+			if k := rowOfEpoch(rows, es.BestEpoch); k >= 0 {
+				spec.best = xy{X: float64(rows[k].epoch), Y: m.plotted(rows[k].val)}
+				spec.hasBest = isFinite(spec.best.Y)
+			}
+		}
+	}
+	if m.cursor >= 0 && m.cursor < n {
+		spec.cursor, spec.hasCursor = float64(rows[m.cursor].epoch), true
+	}
+	for i := range rows {
+		if rows[i].bad && len(spec.bad) < maxBadMarks {
+			spec.bad = append(spec.bad, float64(rows[i].epoch))
+		}
+	}
+	return f.chart.draw(w, h, &spec, m.st)
+}
+
+// Per-series tables of the main chart, indexed as seriesValue.
+var (
+	seriesLabel = [3]string{"train", "val", "train-dev"}
+	seriesGlyph = [3]rune{glyphTrain, glyphVal, glyphTrainDev}
+	seriesClass = [3]class{clsTrain, clsVal, clsTrainDev}
+)
+
+func seriesValue(r *row, s int) float64 {
+	switch s {
+	case 0:
+		return r.train
+	case 1:
+		return r.val
+	}
+	return r.trainDev
+}
+
+func curveRank(c class) int {
+	switch c {
+	case clsTrain:
+		return 0
+	case clsTrainDev:
+		return 1
+	}
+	return 2
+}
+
+// rowOfEpoch finds the row of an epoch (rows have increasing epochs).
+func rowOfEpoch(rows []row, epoch int) int {
+	k := sort.Search(len(rows), func(i int) bool { return rows[i].epoch >= epoch })
+	if k < len(rows) && rows[k].epoch == epoch {
+		return k
+	}
+	return -1
+}
+
+// band returns the per-step training series of the judged metric, if the
+// log has one and it can be placed on the epoch axis.
+func (m *Model) band(metric diagnose.Metric) *bandSource {
+	ss, col, ok := m.data.trainSteps(metric.Base)
+	if !ok {
+		return nil
+	}
+	f := m.cache
+	f.knots = m.data.clock.knots(f.knots)
+	if len(f.knots) < 2 {
+		return nil
+	}
+	conv := m.data.stepConverter(col)
+	return &bandSource{
+		series: ss,
+		knots:  f.knots,
+		conv:   func(v float64) float64 { return m.plotted(conv(v)) },
+		label:  "per step",
+	}
+}
+
+// emptyChart is the chart before any value arrived.
+func (m *Model) emptyChart(w, h int, title string) []string {
+	out := make([]string, h)
+	out[0] = m.st.paint(clsHeading, title)
+	msg := "waiting for the first evaluation point"
+	switch m.src.State {
+	case Waiting:
+		msg = "waiting for the log to appear"
+		if m.src.Name != "" {
+			msg = "waiting for " + m.src.Name + " to appear"
+		}
+	case Finished:
+		msg = "the input ended before any evaluation point"
+	case Removed:
+		msg = "the log was removed; waiting for it to come back"
+	}
+	if h >= 3 {
+		out[h/2] = pad("", max((w-ansiLen(msg))/2, 0)) + m.st.paint(clsDim, msg)
+	}
+	return out
+}
+
+// sparkColumns are the numeric columns the main chart does not draw, with
+// at least one finite value in the rows shown.
+func (m *Model) sparkColumns() []*column {
+	base := m.currentMetric().Base
+	n := m.shown()
+	var out []*column
+	for _, c := range m.data.cols {
+		if c.meta.Kind == diagnose.KindMetric && c.meta.Base == base {
+			switch c.meta.Split {
+			case diagnose.SplitTrain, diagnose.SplitVal, diagnose.SplitTrainDev:
+				continue
+			}
+		}
+		for _, v := range c.vals[:min(n, len(c.vals))] {
+			if isFinite(v) {
+				out = append(out, c)
+				break
+			}
+		}
+	}
+	return out
+}
+
+// sparkLines draws the sparklines in the grid the layout gives: each a
+// name, a one-row column chart and the value at the inspected epoch. When
+// more columns exist than fit, the last cell says how many are hidden.
+func (m *Model) sparkLines(cols []*column, lay layout) []string {
+	if lay.sparkRows <= 0 || len(cols) == 0 {
+		return nil
+	}
+	f := m.cache
+	g := &f.spark
+	g.reset(lay.mainW, lay.sparkRows)
+	slots := lay.sparkRows * lay.sparkCols
+	hidden := 0
+	if len(cols) > slots {
+		hidden = len(cols) - (slots - 1)
+		cols = cols[:slots-1]
+	}
+	nameW := 4
+	for _, c := range cols {
+		nameW = max(nameW, ansiLen(c.meta.Name))
+	}
+	const valueW = 9 // "-1.234e-5" plus a space
+	nameW = min(nameW, max(lay.sparkW/3, 4))
+	blocksW := lay.sparkW - nameW - valueW - 2
+	n := m.shown()
+	idx := m.inspected()
+	for i, c := range cols {
+		x := (i % lay.sparkCols) * lay.sparkW
+		y := i / lay.sparkCols
+		name := []rune(c.meta.Name)
+		if len(name) > nameW {
+			name = append(name[:nameW-1], '…')
+		}
+		g.text(x, y, string(name), clsDim)
+		vals := c.vals[:min(n, len(c.vals))]
+		if blocksW >= 4 {
+			f.vals = f.vals[:0]
+			for k, v := range vals {
+				f.vals = append(f.vals, xy{X: float64(k), Y: v})
+			}
+			f.dsv = lttbRuns(f.dsv, f.vals, blocksW)
+			if len(f.dsv) > blocksW {
+				f.dsv = f.dsv[len(f.dsv)-blocksW:]
+			}
+			f.ys = f.ys[:0]
+			for _, p := range f.dsv {
+				f.ys = append(f.ys, p.Y)
+			}
+			f.runes = sparkRow(f.ys, blocksW, f.runes)
+			bx := x + nameW + 1
+			hl := -1
+			if m.cursor >= 0 {
+				hl = nearestX(f.dsv, float64(idx)) + blocksW - len(f.dsv)
+			}
+			for k, r := range f.runes {
+				cls := clsTrain
+				if k == hl {
+					cls = clsCursor
+				}
+				g.set(bx+k, y, r, cls)
+			}
+		}
+		v := math.NaN()
+		if idx >= 0 && idx < len(vals) {
+			v = vals[idx]
+		}
+		g.text(x+lay.sparkW-valueW, y, formatNum(v, 4), clsPlain)
+	}
+	if hidden > 0 {
+		i := slots - 1
+		x := (i % lay.sparkCols) * lay.sparkW
+		g.text(x, i/lay.sparkCols, "+"+itoa(hidden)+" more columns", clsDim)
+	}
+	return g.lines(m.st)
+}
+
+// nearestX returns the index of the point whose X is closest to x.
+func nearestX(pts []xy, x float64) int {
+	k := sort.Search(len(pts), func(i int) bool { return pts[i].X >= x })
+	if k >= len(pts) {
+		return len(pts) - 1
+	}
+	if k > 0 && x-pts[k-1].X < pts[k].X-x {
+		return k - 1
+	}
+	return k
+}

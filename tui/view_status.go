@@ -1,0 +1,266 @@
+package tui
+
+import (
+	"math"
+	"sort"
+	"strings"
+	"time"
+
+	tea "github.com/charmbracelet/bubbletea"
+)
+
+var zeroTime time.Time
+
+// Quiet detection. A live log is shown as quiet when no write came for
+// quietFactor usual epoch intervals: one slow epoch (a validation pass, a
+// checkpoint save) can take twice the usual time, three times rarely
+// happens while training is healthy. quietFloor keeps a fast log (an epoch
+// every few hundred milliseconds) from flapping on scheduling noise.
+const (
+	quietFactor = 3
+	quietFloor  = 10 * time.Second
+	// paceWindow is how many recent epoch intervals give the usual pace
+	// (their median, so one slow epoch does not move it).
+	paceWindow = 15
+)
+
+// pace returns the usual time between epochs: the median of the recent
+// intervals of the log's own time column, else of arrival times (skipping
+// points that arrived in one batch, which is a backlog being read, not
+// the pace of training).
+func (m *Model) pace() (time.Duration, bool) {
+	rows := m.data.rows
+	var iv []time.Duration
+	for i := len(rows) - 1; i > 0 && len(iv) < paceWindow; i-- {
+		a, b := rows[i-1], rows[i]
+		de := b.epoch - a.epoch
+		if de <= 0 {
+			continue
+		}
+		var d time.Duration
+		switch {
+		case !a.logged.IsZero() && !b.logged.IsZero():
+			d = b.logged.Sub(a.logged)
+		case a.batch != b.batch:
+			d = b.arrived.Sub(a.arrived)
+		default:
+			continue
+		}
+		if d > 0 {
+			iv = append(iv, d/time.Duration(de))
+		}
+	}
+	if len(iv) == 0 {
+		return 0, false
+	}
+	sort.Slice(iv, func(i, k int) bool { return iv[i] < iv[k] })
+	return iv[len(iv)/2], true
+}
+
+// lastWrite is when the log last grew, as the reader saw it, else when the
+// last batch arrived.
+func (m *Model) lastWrite() time.Time {
+	if !m.src.LastWrite.IsZero() {
+		return m.src.LastWrite
+	}
+	if n := len(m.data.rows); n > 0 {
+		return m.data.rows[n-1].arrived
+	}
+	return zeroTime
+}
+
+// quietAfter is how long without a write makes a live log quiet.
+func (m *Model) quietAfter() (time.Duration, bool) {
+	p, ok := m.pace()
+	if !ok {
+		return 0, false
+	}
+	return max(quietFactor*p, quietFloor), true
+}
+
+// stateText is the source's state as the status line shows it.
+func (m *Model) stateText(now time.Time) (string, class) {
+	switch m.src.State {
+	case Waiting:
+		return "waiting for the file", clsWatch
+	case Removed:
+		return "file removed", clsWarn
+	case Finished:
+		return "finished", clsDim
+	}
+	if lw := m.lastWrite(); !lw.IsZero() {
+		if q, ok := m.quietAfter(); ok && now.Sub(lw) > q {
+			return "quiet " + ago(now.Sub(lw)) + ": stopped or hung?", clsWarn
+		}
+	}
+	return "live", clsContinue
+}
+
+// ago prints a duration coarsely: seconds under a minute, minutes under an
+// hour, then hours; the status line changes at most once per second.
+func ago(d time.Duration) string {
+	switch {
+	case d < 0:
+		return "0s"
+	case d < time.Minute:
+		return itoa(int(d/time.Second)) + "s"
+	case d < time.Hour:
+		return itoa(int(d/time.Minute)) + "m"
+	case d < 100*time.Hour:
+		return itoa(int(d/time.Hour)) + "h"
+	}
+	return itoa(int(d/(24*time.Hour))) + "d"
+}
+
+// nextChange is when ago(now−t) next shows another text.
+func nextChange(now, t time.Time) time.Time {
+	d := now.Sub(t)
+	unit := time.Second
+	switch {
+	case d < 0:
+		return t
+	case d >= 100*time.Hour:
+		unit = 24 * time.Hour
+	case d >= time.Hour:
+		unit = time.Hour
+	case d >= time.Minute:
+		unit = time.Minute
+	}
+	return t.Add((d/unit + 1) * unit)
+}
+
+// clockTick schedules the status line's next refresh, when its text will
+// change: the age of the last write, or the switch to quiet. Nothing is
+// scheduled when nothing can change (no data yet, a finished input), so an
+// idle screen does no work.
+func (m *Model) clockTick() tea.Cmd {
+	if m.width <= 0 || m.height <= 0 {
+		return nil
+	}
+	lw := m.lastWrite()
+	if lw.IsZero() || m.src.State == Finished {
+		return nil
+	}
+	now := m.now()
+	at := nextChange(now, lw)
+	if q, ok := m.quietAfter(); ok && m.src.State == Live {
+		if qa := lw.Add(q + time.Millisecond); qa.After(now) && qa.Before(at) {
+			at = qa
+		}
+	}
+	if !m.clockAt.IsZero() && !m.clockAt.After(at) && m.clockAt.After(now) {
+		return nil // an earlier tick is already pending
+	}
+	m.clockAt = at
+	return tea.Tick(at.Sub(now), func(time.Time) tea.Msg { return clockMsg{} })
+}
+
+// progressBar draws done/total in w cells: heavy line done, light line to go.
+func progressBar(done, total, w int) string {
+	if w <= 0 || total <= 0 {
+		return ""
+	}
+	k := int(math.Round(float64(min(done, total)) / float64(total) * float64(w)))
+	return strings.Repeat("━", k) + strings.Repeat("─", w-k)
+}
+
+// statusPart is one piece of the status line; pieces with a higher drop
+// rank go first when the line is too long.
+type statusPart struct {
+	text string
+	cls  class
+	drop int
+}
+
+// renderStatus renders the status line: source, format, progress, age of
+// the last write, state, and the paused or inspecting badge.
+func (m *Model) renderStatus() {
+	f := m.cache
+	if m.width <= 0 || m.height <= 0 {
+		f.status = ""
+		return
+	}
+	now := m.now()
+	var parts []statusPart
+	parts = append(parts, statusPart{"fitgap", clsHeading, 6})
+	name := m.src.Name
+	if name == "" {
+		name = "(no source yet)"
+	}
+	parts = append(parts, statusPart{name, clsPlain, 0})
+	if m.src.Format != "" {
+		parts = append(parts, statusPart{m.src.Format, clsDim, 5})
+	}
+	rows := m.data.rows
+	if n := len(rows); n > 0 {
+		last := rows[n-1]
+		ep := "epoch " + itoa(last.epoch)
+		if last.total > 0 {
+			ep += "/" + itoa(last.total)
+		}
+		parts = append(parts, statusPart{ep, clsPlain, 1})
+		if last.total > 0 {
+			parts = append(parts, statusPart{progressBar(last.epoch, last.total, 12), clsTrain, 7})
+			parts = append(parts, statusPart{itoa(min(100, 100*max(last.epoch, 0)/last.total)) + "%", clsPlain, 4})
+			if p, ok := m.pace(); ok && last.epoch < last.total && m.src.State == Live {
+				parts = append(parts, statusPart{"eta " + ago(time.Duration(last.total-last.epoch)*p), clsPlain, 3})
+			}
+		}
+	}
+	if lw := m.lastWrite(); !lw.IsZero() {
+		parts = append(parts, statusPart{"wrote " + ago(now.Sub(lw)) + " ago", clsDim, 2})
+	}
+	stateTxt, stateCls := m.stateText(now)
+	parts = append(parts, statusPart{stateTxt, stateCls, 0})
+	switch {
+	case m.cursor >= 0 && m.cursor < len(rows):
+		badge := " INSPECTING epoch " + itoa(rows[m.cursor].epoch) + " "
+		if m.newPaused > 0 {
+			badge += "· " + itoa(m.newPaused) + " new "
+		}
+		parts = append(parts, statusPart{badge, clsPaused, 0})
+	case m.paused:
+		badge := " PAUSED "
+		if m.newPaused > 0 {
+			badge += "· " + itoa(m.newPaused) + " new "
+		}
+		parts = append(parts, statusPart{badge, clsPaused, 0})
+	}
+
+	for {
+		line, width := m.joinStatus(parts)
+		if width <= m.width {
+			f.status = line
+			return
+		}
+		worst := -1
+		for i, p := range parts {
+			if p.drop > 0 && (worst < 0 || p.drop > parts[worst].drop) {
+				worst = i
+			}
+		}
+		if worst < 0 {
+			f.status = fit(line, m.width)
+			return
+		}
+		parts = append(parts[:worst], parts[worst+1:]...)
+	}
+}
+
+func (m *Model) joinStatus(parts []statusPart) (string, int) {
+	var b strings.Builder
+	w := 0
+	for i, p := range parts {
+		if i > 0 {
+			sep := " · "
+			if p.cls == clsPaused {
+				sep = " "
+			}
+			b.WriteString(m.st.paint(clsDim, sep))
+			w += ansiLen(sep)
+		}
+		b.WriteString(m.st.paint(p.cls, p.text))
+		w += ansiLen(p.text)
+	}
+	return b.String(), w
+}

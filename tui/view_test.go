@@ -1,0 +1,124 @@
+package tui
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/charmbracelet/x/ansi"
+)
+
+// golden compares got with testdata/name.golden, or rewrites the file
+// under -update.
+func golden(t *testing.T, name, got string) {
+	t.Helper()
+	path := filepath.Join("testdata", name+".golden")
+	if *update {
+		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	want, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatalf("read golden (run go test ./tui -update to create it): %v", err)
+	}
+	if got != string(want) {
+		t.Errorf("screen differs from %s (go test ./tui -update rewrites it)\n--- got\n%s\n--- want\n%s", path, got, want)
+	}
+}
+
+// checkFits asserts that a screen has at most h lines of at most w columns.
+func checkFits(t *testing.T, view string, w, h int) {
+	t.Helper()
+	if view == "" {
+		return
+	}
+	lines := strings.Split(view, "\n")
+	if len(lines) > h {
+		t.Errorf("%dx%d: view has %d lines", w, h, len(lines))
+	}
+	for i, l := range lines {
+		if n := ansi.StringWidth(l); n > w {
+			t.Errorf("%dx%d: line %d is %d columns: %q", w, h, i, n, l)
+		}
+	}
+}
+
+var goldenRun = runSpec{epochs: 36, total: 60, stepsPer: 25, turn: 18, trainBase: 0.06, valBase: 0.11}
+
+func TestView_Golden(t *testing.T) {
+	tests := []struct {
+		name string
+		w, h int
+		run  runSpec
+		keys []string
+	}{
+		{"stacked_80x24", 80, 24, goldenRun, nil},
+		{"wide_120x40", 120, 40, runSpec{epochs: 36, total: 60, stepsPer: 25, turn: 18, trainBase: 0.06, valBase: 0.11, trainDev: true}, nil},
+		{"compact_50x14", 50, 14, goldenRun, nil},
+		{"inspect_120x40", 120, 40, goldenRun, []string{"left", "left", "left", "left", "left", "left", "left", "left", "left", "left"}},
+		{"help_100x30", 100, 30, goldenRun, []string{"?"}},
+		{"waiting_80x24", 80, 24, runSpec{}, nil},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			m := newTestModel(t, tt.w, tt.h, Options{})
+			if tt.run.epochs > 0 {
+				m = feed(t, m, tt.run)
+			} else {
+				m = settle(t, send(t, m, FeedMsg{Source: SourceInfo{Name: "runs/next.csv", State: Waiting}}))
+			}
+			m = press(t, m, tt.keys...)
+			v := m.View()
+			checkFits(t, v, tt.w, tt.h)
+			golden(t, tt.name, v)
+		})
+	}
+}
+
+// TestView_EverySize resizes through many sizes, tiny ones included: the
+// screen must never panic nor draw outside the terminal.
+func TestView_EverySize(t *testing.T) {
+	m := newTestModel(t, 80, 24, Options{})
+	m = feed(t, m, runSpec{epochs: 40, total: 50, stepsPer: 10, turn: 20, trainBase: 0.05, valBase: 0.1, trainDev: true})
+	sizes := [][2]int{{0, 0}, {1, 1}, {0, 10}, {10, 0}, {2, 2}, {5, 3}, {20, 5}, {59, 15}, {60, 16}, {61, 17},
+		{79, 23}, {80, 24}, {99, 19}, {100, 20}, {101, 21}, {150, 45}, {200, 60}, {300, 100}}
+	for w := 1; w <= 130; w += 7 {
+		for h := 1; h <= 50; h += 5 {
+			sizes = append(sizes, [2]int{w, h})
+		}
+	}
+	for _, s := range sizes {
+		m = send(t, m, tea_WindowSize(s[0], s[1]))
+		checkFits(t, m.View(), s[0], s[1])
+		// Keys at every size too.
+		m = press(t, m, "left", "?")
+		checkFits(t, m.View(), s[0], s[1])
+		m = press(t, m, "?", "space")
+	}
+}
+
+func TestView_HostileColumnName(t *testing.T) {
+	m := newTestModel(t, 120, 40, Options{})
+	pts := goldenRun.points()
+	evil := "lr\x1b]0;pwned\x07\x1b[2J\x1b[31m\u202e"
+	for i := range pts {
+		pts[i].Samples = append(pts[i].Samples, sampleOf(otherCol(evil), 0.01))
+	}
+	m = send(t, m, FeedMsg{Points: pts, Source: SourceInfo{
+		Name: "run\x1b[1;1H.csv", Format: "csv", State: Live, Skipped: 1,
+		Examples: []string{"line 3: \x1b[31mbad\x1b[0m"},
+	}, Notices: []string{"file truncated\x1b[?1049l"}})
+	m = settle(t, m)
+	v := m.View()
+	if strings.ContainsAny(v, "\x1b\x07\u202e") {
+		t.Fatalf("hostile text reached the screen: %q", v)
+	}
+	for _, want := range []string{"lr", "run.csv", "line 3: bad", "file truncated"} {
+		if !strings.Contains(v, want) {
+			t.Errorf("screen lacks the sanitized %q", want)
+		}
+	}
+}

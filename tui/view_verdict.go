@@ -1,0 +1,442 @@
+package tui
+
+import (
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// diagnosisWords names a diagnosis the way practitioners say it, with the
+// bias/variance term beside it.
+func diagnosisWords(d diagnose.Diagnosis) (head, detail string) {
+	switch d {
+	case diagnose.TooEarly:
+		return "too early to judge", "a few more epochs are needed"
+	case diagnose.Diverging:
+		return "diverging", "the loss is blowing up or not finite"
+	case diagnose.HighBias:
+		return "underfitting", "high avoidable bias: training error well above the optimal error"
+	case diagnose.HighVariance:
+		return "overfitting", "high variance: validation error well above training error"
+	case diagnose.HighBiasHighVariance:
+		return "underfitting and overfitting", "high avoidable bias and high variance"
+	case diagnose.DataMismatch:
+		return "data mismatch", "train-dev close to training, validation worse"
+	case diagnose.GoodFit:
+		return "near the optimal error", "little avoidable bias or variance left"
+	}
+	return clean(d.String()), ""
+}
+
+func diagnosisClass(d diagnose.Diagnosis) class {
+	switch d {
+	case diagnose.Diverging:
+		return clsStop
+	case diagnose.GoodFit:
+		return clsContinue
+	case diagnose.TooEarly:
+		return clsDim
+	}
+	return clsWatch
+}
+
+func signalClass(s diagnose.Signal) class {
+	switch s {
+	case diagnose.Stop:
+		return clsStop
+	case diagnose.Watch:
+		return clsWatch
+	}
+	return clsContinue
+}
+
+// signalWords is the early-stopping signal in one short phrase.
+func signalWords(es diagnose.EarlyStop) string {
+	switch es.Signal {
+	case diagnose.Stop:
+		if es.BestVal.OK {
+			return "STOP · restore epoch " + itoa(es.BestEpoch)
+		}
+		return "STOP"
+	case diagnose.Watch:
+		return "WATCH · best epoch " + itoa(es.BestEpoch)
+	}
+	if es.BestVal.OK {
+		return "CONTINUE · best epoch " + itoa(es.BestEpoch)
+	}
+	return "CONTINUE"
+}
+
+// stopDetails are the numbers behind the signal.
+func (m *Model) stopDetails(es diagnose.EarlyStop) string {
+	return m.stopNumbers(es, false)
+}
+
+// stopNumbers lists best value, epochs since best, GL, patience and PQ;
+// short drops the words a one-line panel has no room for.
+func (m *Model) stopNumbers(es diagnose.EarlyStop, short bool) string {
+	var parts []string
+	if es.BestVal.OK {
+		parts = append(parts, "best "+m.fmtValue(es.BestVal.V))
+		if short {
+			parts = append(parts, itoa(es.EpochsSinceBest)+" since best")
+		} else {
+			parts = append(parts, plural(es.EpochsSinceBest, "epoch", "epochs")+" since best")
+		}
+	}
+	if es.GL.OK {
+		parts = append(parts, "GL "+formatNum(es.GL.V, 3)+"%")
+	}
+	if es.Patience > 0 {
+		parts = append(parts, "patience "+itoa(min(es.EpochsSinceBest, es.Patience))+"/"+itoa(es.Patience))
+	}
+	if es.PQ.OK && !short {
+		parts = append(parts, "PQ "+formatNum(es.PQ.V, 3))
+	}
+	return strings.Join(parts, " · ")
+}
+
+// epochHeading says which epoch the panels show and how.
+func (m *Model) epochHeading(j diagnose.Judgement, idx int) string {
+	if idx < 0 {
+		return "VERDICT"
+	}
+	s := "VERDICT · epoch " + itoa(j.Epoch)
+	switch {
+	case m.cursor >= 0:
+		s += " · as judged then"
+	case m.paused:
+		s += " · paused"
+	}
+	return s
+}
+
+// component is one part of the validation error's decomposition.
+type component struct {
+	name  string
+	short string
+	glyph rune
+	cls   class
+	val   diagnose.Num
+	kind  diagnose.Component
+}
+
+// Glyphs of the error bar: shades from light (unavoidable) to full, so
+// the parts differ without colour.
+const (
+	glyphOptimal  = '░'
+	glyphBias     = '▒'
+	glyphVariance = '▓'
+	glyphMismatch = '█'
+)
+
+func components(j diagnose.Judgement) []component {
+	opt := diagnose.Some(j.BayesError)
+	return []component{
+		{"optimal", "opt", glyphOptimal, clsOptimal, opt, diagnose.NoComponent},
+		{"avoidable bias", "bias", glyphBias, clsBias, j.AvoidableBias, diagnose.AvoidableBias},
+		{"variance", "var", glyphVariance, clsVariance, j.Variance, diagnose.Variance},
+		{"data mismatch", "mismatch", glyphMismatch, clsMismatch, j.DataMismatch, diagnose.Mismatch},
+	}
+}
+
+// errorBar draws the decomposition as one bar of w cells: each positive
+// part gets cells in proportion to its size (largest remainder, so the
+// cells add up to w exactly), and any positive part at least one cell.
+// Negative parts (validation easier than training, for instance) take no
+// room; the numbers beside the bar show their sign.
+func (m *Model) errorBar(comps []component, w int) string {
+	if w <= 0 {
+		return ""
+	}
+	total := 0.0
+	for _, c := range comps {
+		if c.val.OK && c.val.V > 0 && isFinite(c.val.V) {
+			total += c.val.V
+		}
+	}
+	if !(total > 0) {
+		return m.st.paint(clsDim, strings.Repeat("·", w))
+	}
+	cells := make([]int, len(comps))
+	rem := make([]float64, len(comps))
+	used := 0
+	for i, c := range comps {
+		if !(c.val.OK && c.val.V > 0 && isFinite(c.val.V)) {
+			continue
+		}
+		exact := c.val.V / total * float64(w)
+		cells[i] = int(math.Floor(exact))
+		rem[i] = exact - float64(cells[i])
+		used += cells[i]
+	}
+	for used < w {
+		best := -1
+		for i := range comps {
+			if rem[i] > 0 && (best < 0 || rem[i] > rem[best]) {
+				best = i
+			}
+		}
+		if best < 0 {
+			break
+		}
+		cells[best]++
+		rem[best] = 0
+		used++
+	}
+	// A visible part never vanishes: take a cell from the widest part.
+	for i := range comps {
+		if cells[i] == 0 && rem[i] > 0 {
+			widest := 0
+			for k := range cells {
+				if cells[k] > cells[widest] {
+					widest = k
+				}
+			}
+			if cells[widest] > 1 {
+				cells[widest]--
+				cells[i] = 1
+			}
+		}
+	}
+	var b strings.Builder
+	for i, c := range comps {
+		if cells[i] > 0 {
+			b.WriteString(m.st.paint(c.cls, strings.Repeat(string(c.glyph), cells[i])))
+		}
+	}
+	return b.String()
+}
+
+// optimalNote says where the optimal error came from.
+func (m *Model) optimalNote(j diagnose.Judgement) string {
+	if !j.BayesErrorGiven {
+		return "taken as 0"
+	}
+	if m.opts.BayesNote != "" {
+		return clean(m.opts.BayesNote)
+	}
+	return "given"
+}
+
+// valuesLine lists the judged values of the inspected point.
+func (m *Model) valuesLine(j diagnose.Judgement) string {
+	parts := []string{}
+	add := func(name string, e diagnose.Estimate) {
+		if e.Raw.OK {
+			parts = append(parts, name+" "+m.fmtValue(e.Raw.V))
+		}
+	}
+	add("train", j.Train)
+	add("val", j.Val)
+	add("train-dev", j.TrainDev)
+	if len(parts) == 0 {
+		return "no values of the judged metric yet"
+	}
+	return strings.Join(parts, " · ")
+}
+
+// verdictPanel is the side panel of the wide layout, w×h. Sections are
+// dropped or shortened, least important first, until they fit.
+func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
+	st := m.st
+	if idx < 0 {
+		out := []string{st.paint(clsHeading, "VERDICT"), st.paint(clsDim, "no evaluation point yet")}
+		return out
+	}
+	head, detail := diagnosisWords(j.Diagnosis)
+	var verdict []string
+	verdict = append(verdict, st.paint(clsHeading, m.epochHeading(j, idx)))
+	verdict = append(verdict, st.paint(diagnosisClass(j.Diagnosis), head))
+	for _, l := range wrap(detail, w) {
+		verdict = append(verdict, st.paint(clsDim, l))
+	}
+	vl := m.valuesLine(j)
+	if p := j.Progress; p != diagnose.ProgressUnknown {
+		vl += " · " + p.String()
+	}
+	verdict = append(verdict, wrap(clean(vl), w)...)
+
+	var stop []string
+	stop = append(stop, st.paint(signalClass(j.EarlyStop.Signal), signalWords(j.EarlyStop)))
+	for _, l := range wrap(m.stopDetails(j.EarlyStop), w) {
+		stop = append(stop, l)
+	}
+	var reason []string
+	if r := clean(j.EarlyStop.Reason); r != "" {
+		for _, l := range wrap(r, w) {
+			reason = append(reason, st.paint(clsDim, l))
+		}
+	}
+
+	comps := components(j)
+	decomp := []string{st.paint(clsHeading, "WHERE THE VAL ERROR COMES FROM")}
+	decomp = append(decomp, m.errorBar(comps, w))
+	legend := make([]string, 0, 4)
+	for _, c := range comps {
+		v := m.fmtGap(c.val)
+		note := ""
+		switch {
+		case c.kind == diagnose.NoComponent:
+			note = m.optimalNote(j)
+		case c.kind == diagnose.Mismatch && !c.val.OK:
+			note = "no train-dev"
+		case c.kind != diagnose.NoComponent && c.kind == j.Focus:
+			note = "focus"
+		}
+		line := st.paint(c.cls, string(c.glyph)) + " " + pad(c.name, 15) + pad(v, 7)
+		if note != "" {
+			cls := clsDim
+			if c.kind == j.Focus && c.kind != diagnose.NoComponent {
+				cls = clsHeading
+			}
+			line += " " + st.paint(cls, note)
+		}
+		legend = append(legend, line)
+	}
+	decomp = append(decomp, legend...)
+
+	var acts [][]string
+	for i, a := range j.Actions {
+		var block []string
+		textW := max(w-3, 1)
+		for k, l := range wrap(clean(a.Text), textW) {
+			prefix := "   "
+			if k == 0 {
+				prefix = strconv.Itoa(i+1) + ". "
+			}
+			block = append(block, prefix+l)
+		}
+		for _, l := range wrap(clean(a.Why), textW) {
+			block = append(block, "   "+st.paint(clsDim, l))
+		}
+		acts = append(acts, block)
+	}
+
+	// Assemble with blank separators, shortening to fit h.
+	build := func(withReason bool, nActs int, withWhy bool, legendLines int) []string {
+		var out []string
+		out = append(out, verdict...)
+		out = append(out, "")
+		out = append(out, stop...)
+		if withReason {
+			out = append(out, reason...)
+		}
+		out = append(out, "")
+		out = append(out, decomp[:2+legendLines]...)
+		if nActs > 0 {
+			out = append(out, "", st.paint(clsHeading, "NEXT"))
+			for _, b := range acts[:nActs] {
+				if withWhy {
+					out = append(out, b...)
+				} else {
+					out = append(out, b[0])
+				}
+			}
+		}
+		return out
+	}
+	nActs := min(len(acts), 3)
+	tries := []func() []string{
+		func() []string { return build(true, nActs, true, 4) },
+		func() []string { return build(false, nActs, true, 4) },
+		func() []string { return build(false, min(nActs, 2), true, 4) },
+		func() []string { return build(false, min(nActs, 1), true, 4) },
+		func() []string { return build(false, min(nActs, 2), false, 4) },
+		func() []string { return build(false, min(nActs, 1), false, 4) },
+		func() []string { return build(false, min(nActs, 1), false, 0) },
+		func() []string { return build(false, 0, false, 0) },
+	}
+	var out []string
+	for _, t := range tries {
+		if out = t(); len(out) <= h {
+			break
+		}
+	}
+	if len(out) > h {
+		out = out[:max(h, 0)]
+	}
+	return out
+}
+
+// verdictCompact is the stacked layout's verdict: the diagnosis, the
+// signal, the error bar with its numbers, and the first next action.
+func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []string {
+	st := m.st
+	if rows <= 0 {
+		return nil
+	}
+	if idx < 0 {
+		return append([]string{st.paint(clsDim, "verdict: no evaluation point yet")}, make([]string, rows-1)...)
+	}
+	head, _ := diagnosisWords(j.Diagnosis)
+	l1 := st.paint(diagnosisClass(j.Diagnosis), head) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
+	if m.cursor >= 0 {
+		l1 += st.paint(clsDim, " as judged then")
+	}
+	l1 += " · " + m.valuesLine(j)
+	l2 := st.paint(signalClass(j.EarlyStop.Signal), signalWords(j.EarlyStop))
+	if d := m.stopNumbers(j.EarlyStop, true); d != "" {
+		l2 += " · " + d
+	}
+	comps := components(j)
+	barW := clampInt(w/4, 8, 24)
+	l3 := m.errorBar(comps, barW)
+	for _, c := range comps {
+		part := " " + st.paint(c.cls, string(c.glyph)) + c.short + " " + m.fmtGap(c.val)
+		if c.kind == diagnose.NoComponent && !j.BayesErrorGiven {
+			part += "?"
+		}
+		if c.kind != diagnose.NoComponent && c.kind == j.Focus {
+			part = st.paint(clsHeading, part+"◂")
+		}
+		l3 += part
+	}
+	l4 := st.paint(clsDim, "next: ")
+	if len(j.Actions) > 0 {
+		a := j.Actions[0]
+		l4 += clean(a.Text)
+		if a.Why != "" {
+			l4 += st.paint(clsDim, " — "+clean(a.Why))
+		}
+	} else {
+		l4 += st.paint(clsDim, "keep training")
+	}
+	out := []string{l1, l2, l3, l4}
+	if rows < len(out) {
+		out = out[:rows]
+	}
+	return out
+}
+
+// fmtValue prints a judged value: error rates (and shortfalls of bounded
+// scores) in percent, as practitioners quote them; other metrics in their
+// units.
+func (m *Model) fmtValue(v float64) string {
+	if isRateMetric(m.currentMetric()) && isFinite(v) {
+		return formatNum(v*100, 3) + "%"
+	}
+	return formatNum(v, 4)
+}
+
+// fmtGap prints a component of the decomposition, "–" when absent.
+func (m *Model) fmtGap(n diagnose.Num) string {
+	if !n.OK {
+		return "–"
+	}
+	if isRateMetric(m.currentMetric()) && isFinite(n.V) {
+		return formatNum(n.V*100, 3) + "%"
+	}
+	return formatNum(n.V, 3)
+}
+
+func itoa(i int) string { return strconv.Itoa(i) }
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return itoa(n) + " " + many
+}

@@ -1,0 +1,427 @@
+package watch
+
+import (
+	"bytes"
+	"fmt"
+	"strconv"
+	"time"
+	"unicode/utf8"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// maxRecordLines bounds how many lines one quoted CSV field may span before
+// the record is given up as an unclosed quote. A metrics log has no reason
+// for multi-line fields; a stray quote must not swallow the log. Unit: lines.
+const maxRecordLines = 64
+
+// cellRole says what a CSV field position feeds.
+type cellRole uint8
+
+const (
+	cellValue cellRole = iota
+	cellEpoch
+	cellStep
+	cellTime
+	cellIgnore
+)
+
+// csvDecoder reads a delimited log with a header row.
+type csvDecoder struct {
+	ing  *ingester
+	asm  *assembler
+	recs csvRecords
+
+	header    []byte // the header line as read, to spot it repeated
+	names     []string
+	roles     []cellRole
+	colOf     []int
+	extraNote bool
+
+	dec []byte // decimal-comma rewrite buffer
+}
+
+func newCSVDecoder(ing *ingester, asm *assembler, delim byte) *csvDecoder {
+	return &csvDecoder{ing: ing, asm: asm, recs: csvRecords{delim: delim}}
+}
+
+func (d *csvDecoder) reset() {
+	d.header, d.names, d.roles, d.colOf = nil, nil, nil, nil
+	d.recs.pending, d.recs.pendingLines = d.recs.pending[:0], 0
+	d.extraNote = false
+}
+
+func (d *csvDecoder) decode(line []byte, n int) {
+	rec, start, st := d.recs.add(line, n)
+	switch st {
+	case recordDone:
+		d.record(rec, n)
+	case recordNone:
+	default:
+		d.ing.bad(start, st.reason(), rec)
+	}
+}
+
+// finish reports a record left open by an unclosed quote at the end.
+func (d *csvDecoder) finish() {
+	if rec, start, open := d.recs.flush(); open {
+		d.ing.bad(start, splitOpenQuote.reason(), rec)
+	}
+}
+
+// recordStatus is what csvRecords.add made of a line.
+type recordStatus uint8
+
+const (
+	recordDone recordStatus = iota // a record is ready in fields and cells
+	recordNone                     // a blank line, or a record goes on
+	recordBareQuote
+	recordQuote
+	recordTooLong
+	recordOpenQuote
+)
+
+func (s recordStatus) reason() string {
+	switch s {
+	case recordBareQuote:
+		return splitBareQuote.reason()
+	case recordQuote:
+		return splitQuote.reason()
+	case recordTooLong:
+		return "quoted field longer than 1 MiB"
+	case recordOpenQuote:
+		return splitOpenQuote.reason() + " after " + strconv.Itoa(maxRecordLines) + " lines"
+	}
+	return "ok"
+}
+
+// csvRecords joins the lines of a delimited log into records: a line is a
+// record unless a quoted field runs past its end, and then the next lines
+// join it (RFC 4180 §2 rule 6), up to maxRecordLines and maxLineBytes. The
+// fields and their numbers are left in fields and cells.
+type csvRecords struct {
+	delim byte
+	// fields and cells are the current record: views of fbuf and cbuf, or
+	// of a prescan.
+	fields  [][]byte
+	cells   []cell
+	fbuf    [][]byte
+	cbuf    []cell
+	scratch []byte
+	// pre holds the lines of the chunk being read, already split by a
+	// worker (backlog reading), or is nil.
+	pre *prescan
+
+	pending      []byte
+	pendingLines int
+	pendingStart int
+}
+
+// add reads line n. On recordDone the record text is returned; on an error
+// status, the text and first line of the record given up.
+func (r *csvRecords) add(line []byte, n int) ([]byte, int, recordStatus) {
+	if r.pendingLines == 0 {
+		if len(line) == 0 {
+			return nil, n, recordNone
+		}
+		if r.pre != nil {
+			if fields, cells, ok := r.pre.lookup(line); ok {
+				r.fields, r.cells = fields, cells
+				return line, n, recordDone
+			}
+		}
+		var ok bool
+		r.fbuf, r.cbuf, ok = scanRow(line, r.delim, r.fbuf[:0], r.cbuf[:0])
+		if ok {
+			r.fields, r.cells = r.fbuf, r.cbuf
+			return line, n, recordDone
+		}
+	}
+	rec := line
+	if r.pendingLines > 0 {
+		r.pending = append(r.pending, '\n')
+		r.pending = append(r.pending, line...)
+		r.pendingLines++
+		if len(r.pending) > maxLineBytes {
+			return r.giveUp(recordTooLong)
+		}
+		rec = r.pending
+	}
+	fields, scratch, st := splitCSV(r.fbuf, rec, r.delim, r.scratch)
+	r.fbuf, r.scratch = fields, scratch
+	switch st {
+	case splitOK:
+	case splitOpenQuote:
+		if r.pendingLines == 0 {
+			r.pending = append(r.pending[:0], line...)
+			r.pendingLines = 1
+			r.pendingStart = n
+			return nil, n, recordNone
+		}
+		if r.pendingLines < maxRecordLines {
+			return nil, n, recordNone
+		}
+		return r.giveUp(recordOpenQuote)
+	case splitBareQuote:
+		if r.pendingLines > 0 {
+			return r.giveUp(recordBareQuote)
+		}
+		return rec, n, recordBareQuote
+	default:
+		if r.pendingLines > 0 {
+			return r.giveUp(recordQuote)
+		}
+		return rec, n, recordQuote
+	}
+	r.cbuf = r.cbuf[:0]
+	for _, f := range fields {
+		v, ok := parseNumber(f)
+		r.cbuf = append(r.cbuf, cell{v, ok})
+	}
+	r.fields, r.cells = r.fbuf, r.cbuf
+	r.pendingLines = 0
+	return rec, n, recordDone
+}
+
+func (r *csvRecords) giveUp(st recordStatus) ([]byte, int, recordStatus) {
+	rec := append([]byte(nil), r.pending[:min(len(r.pending), exampleBytes*4)]...)
+	start := r.pendingStart
+	r.pending, r.pendingLines = r.pending[:0], 0
+	return rec, start, st
+}
+
+// flush returns a record left open at the end of the input.
+func (r *csvRecords) flush() ([]byte, int, bool) {
+	if r.pendingLines == 0 {
+		return nil, 0, false
+	}
+	rec, start, _ := r.giveUp(recordOpenQuote)
+	return rec, start, true
+}
+
+// continues reports whether line reads as a data row under this
+// decoder's header: the first line of a log that was truncated or replaced
+// and goes on without a header of its own.
+func (d *csvDecoder) continues(line []byte) bool {
+	if d.names == nil {
+		return false
+	}
+	if f, delim := detect(line); (f == FormatCSV || f == FormatTSV) && delim == d.recs.delim {
+		return false // a header of its own
+	}
+	fields, cells, ok := scanRow(line, d.recs.delim, nil, nil)
+	return ok && len(fields) == len(d.names) && anyNumber(cells)
+}
+
+// record handles one split record.
+func (d *csvDecoder) record(line []byte, n int) {
+	if d.names == nil {
+		if blank(d.recs.fields) {
+			return
+		}
+		d.setHeader(line, d.recs.fields, n)
+		return
+	}
+	d.row(line, d.recs.fields, n)
+}
+
+func anyNumber(cells []cell) bool {
+	for _, c := range cells {
+		if c.ok {
+			return true
+		}
+	}
+	return false
+}
+
+func blank(fields [][]byte) bool {
+	for _, f := range fields {
+		if len(bytes.TrimSpace(f)) > 0 {
+			return false
+		}
+	}
+	return true
+}
+
+func (d *csvDecoder) setHeader(line []byte, fields [][]byte, n int) {
+	d.header = append(d.header[:0], line...)
+	d.names = make([]string, len(fields))
+	d.roles = make([]cellRole, len(fields))
+	d.colOf = make([]int, len(fields))
+	var epochSeen, stepSeen, timeSeen bool
+	for i, f := range fields {
+		name := string(bytes.TrimSpace(f))
+		if name == "" {
+			name = "column " + strconv.Itoa(i+1)
+		}
+		d.names[i] = name
+		col := d.asm.roles.column(name)
+		switch {
+		case col.Kind == diagnose.KindEpoch && !epochSeen:
+			d.roles[i], epochSeen = cellEpoch, true
+		case col.Kind == diagnose.KindStep && !stepSeen:
+			d.roles[i], stepSeen = cellStep, true
+		case col.Kind == diagnose.KindTime && !timeSeen:
+			d.roles[i], timeSeen = cellTime, true
+			d.colOf[i] = d.asm.column(name)
+		default:
+			d.roles[i] = cellValue
+			d.colOf[i] = d.asm.column(name)
+			if d.asm.cols[d.colOf[i]].eval {
+				d.asm.evalExpected = true
+			}
+		}
+	}
+	d.ing.checkRoles(d.names)
+	_ = n
+}
+
+// row reads one data row.
+func (d *csvDecoder) row(line []byte, fields [][]byte, n int) {
+	if len(fields) > len(d.roles) && !anyNumber(d.recs.cells) {
+		d.textRow(line, fields, n) // a wider header, or a bad line
+		return
+	}
+	a := d.asm
+	a.beginRow()
+	numeric := 0
+	for i, f := range fields {
+		if i >= len(d.roles) {
+			d.extraColumns(len(fields), n)
+		}
+		if len(f) == 0 {
+			continue
+		}
+		v, ok := d.recs.cells[i].v, d.recs.cells[i].ok
+		if !ok && d.recs.delim == ';' {
+			v, ok = d.decimalComma(f)
+		}
+		switch d.roles[i] {
+		case cellValue:
+			if ok {
+				a.value(d.colOf[i], v)
+				numeric++
+			}
+		case cellEpoch:
+			if ok {
+				a.epochValue(v)
+				numeric++
+			}
+		case cellStep:
+			if ok {
+				a.stepValue(v)
+				numeric++
+			}
+		case cellTime:
+			if ok {
+				a.timeNumber(d.colOf[i], v)
+				numeric++
+			} else if t, tok := parseTime(f); tok {
+				a.timeValue(t)
+				numeric++
+			}
+		}
+	}
+	if numeric > 0 {
+		a.endRow(n)
+		return
+	}
+	d.textRow(line, fields, n)
+}
+
+// textRow handles a row without any number: a repeated or new header, or a
+// line that cannot be read.
+func (d *csvDecoder) textRow(line []byte, fields [][]byte, n int) {
+	if bytes.Equal(line, d.header) {
+		d.ing.restart(fmt.Sprintf("header repeated at line %d", n))
+		d.setHeader(line, fields, n)
+		return
+	}
+	if d.looksLikeHeader(fields) {
+		d.ing.restart(fmt.Sprintf("header changed at line %d (%d → %d columns)", n, len(d.names), len(fields)))
+		d.setHeader(line, fields, n)
+		return
+	}
+	nonEmpty := false
+	for _, f := range fields {
+		if len(bytes.TrimSpace(f)) > 0 {
+			nonEmpty = true
+			break
+		}
+	}
+	if !nonEmpty {
+		return // a row of empty cells holds nothing
+	}
+	reason := "no numeric value"
+	if !utf8.Valid(line) || bytes.IndexByte(line, 0) >= 0 {
+		reason = "binary data"
+	}
+	d.ing.bad(n, reason, line)
+}
+
+// looksLikeHeader: every cell is a plausible name and at least one is a
+// known column name or a recognised epoch, step or metric.
+func (d *csvDecoder) looksLikeHeader(fields [][]byte) bool {
+	known := false
+	for _, f := range fields {
+		name := string(bytes.TrimSpace(f))
+		if name == "" {
+			continue
+		}
+		if !validName(name) {
+			return false
+		}
+		if _, ok := d.asm.byName[name]; ok {
+			known = true
+			continue
+		}
+		if c := ParseColumn(name); c.Kind != diagnose.KindOther {
+			known = true
+		}
+	}
+	return known
+}
+
+// extraColumns gives names to cells beyond the header ("column 8"), so
+// their values are kept, and says so once.
+func (d *csvDecoder) extraColumns(count, n int) {
+	if !d.extraNote {
+		d.extraNote = true
+		d.ing.notice(fmt.Sprintf("line %d has %d fields, the header %d: extra fields read as \"column %d\"…",
+			n, count, len(d.names), len(d.names)+1))
+	}
+	for i := len(d.roles); i < count; i++ {
+		name := "column " + strconv.Itoa(i+1)
+		d.names = append(d.names, name)
+		d.roles = append(d.roles, cellValue)
+		d.colOf = append(d.colOf, d.asm.column(name))
+	}
+}
+
+// decimalComma reads "0,41" as 0.41, as semicolon-separated files written
+// with a decimal comma have it.
+func (d *csvDecoder) decimalComma(f []byte) (float64, bool) {
+	i := bytes.IndexByte(f, ',')
+	if i < 0 || bytes.IndexByte(f[i+1:], ',') >= 0 {
+		return 0, false
+	}
+	d.dec = append(d.dec[:0], f...)
+	d.dec[i] = '.'
+	return parseNumber(d.dec)
+}
+
+// parseTime reads an RFC 3339 time stamp, also with a space for the "T"
+// (RFC 3339 §5.6 allows it) and without a zone (read as UTC).
+func parseTime(b []byte) (time.Time, bool) {
+	s := string(bytes.TrimSpace(b))
+	if len(s) < len("2006-01-02T15:04:05") || len(s) > 40 {
+		return time.Time{}, false
+	}
+	for _, layout := range []string{time.RFC3339Nano, "2006-01-02 15:04:05.999999999Z07:00",
+		"2006-01-02T15:04:05.999999999", "2006-01-02 15:04:05.999999999"} {
+		if t, err := time.Parse(layout, s); err == nil {
+			return t, true
+		}
+	}
+	return time.Time{}, false
+}

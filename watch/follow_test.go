@@ -1,0 +1,430 @@
+package watch
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fsnotify/fsnotify"
+)
+
+// waitTimeout bounds every wait on the reader; the events themselves take
+// well under a millisecond, so a slow CI machine still has ample margin.
+const waitTimeout = 10 * time.Second
+
+// follower collects what a Follow channel delivers.
+type follower struct {
+	mu      sync.Mutex
+	points  []diagnose.Point
+	notices []string
+	stats   Stats
+	batches int
+	changed chan struct{}
+	done    chan struct{}
+}
+
+func collectBatches(ch <-chan Batch) *follower {
+	f := &follower{changed: make(chan struct{}, 1), done: make(chan struct{})}
+	go func() {
+		defer close(f.done)
+		for b := range ch {
+			f.mu.Lock()
+			for _, p := range b.Points {
+				f.points = AppendPoint(f.points, p)
+			}
+			for _, n := range b.Notices {
+				f.notices = append(f.notices, n.Text)
+			}
+			f.stats = b.Stats
+			f.batches++
+			f.mu.Unlock()
+			select {
+			case f.changed <- struct{}{}:
+			default:
+			}
+		}
+	}()
+	return f
+}
+
+// startFollow follows path until the test ends.
+func startFollow(t *testing.T, path string, opts Options) *follower {
+	t.Helper()
+	opts.Follow = true
+	ctx, cancel := context.WithCancel(context.Background())
+	ch, err := Follow(ctx, path, opts)
+	if err != nil {
+		cancel()
+		t.Fatalf("Follow(%q): %v", path, err)
+	}
+	f := collectBatches(ch)
+	t.Cleanup(func() {
+		cancel()
+		select {
+		case <-f.done:
+		case <-time.After(waitTimeout):
+			t.Errorf("channel not closed after cancel")
+		}
+	})
+	return f
+}
+
+// waitFor waits until cond holds on the collected state.
+func (f *follower) waitFor(t *testing.T, what string, cond func(f *follower) bool) {
+	t.Helper()
+	deadline := time.After(waitTimeout)
+	for {
+		f.mu.Lock()
+		ok := cond(f)
+		f.mu.Unlock()
+		if ok {
+			return
+		}
+		select {
+		case <-f.changed:
+		case <-deadline:
+			f.mu.Lock()
+			defer f.mu.Unlock()
+			t.Fatalf("timed out waiting for %s; epochs %v, notices %q, stats %+v", what, epochs(f.points), f.notices, f.stats)
+		}
+	}
+}
+
+func (f *follower) waitEpochs(t *testing.T, want ...int) {
+	t.Helper()
+	f.waitFor(t, fmt.Sprintf("epochs %v", want), func(f *follower) bool {
+		return fmt.Sprint(epochs(f.points)) == fmt.Sprint(want)
+	})
+}
+
+func (f *follower) waitNotice(t *testing.T, sub string) {
+	t.Helper()
+	f.waitFor(t, "notice "+sub, func(f *follower) bool {
+		for _, n := range f.notices {
+			if strings.Contains(n, sub) {
+				return true
+			}
+		}
+		return false
+	})
+}
+
+func (f *follower) lastPoint() diagnose.Point {
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	return f.points[len(f.points)-1]
+}
+
+func appendLines(t *testing.T, path string, lines ...string) {
+	t.Helper()
+	writeRaw(t, path, strings.Join(lines, "\n")+"\n")
+}
+
+func writeRaw(t *testing.T, path, text string) {
+	t.Helper()
+	f, err := os.OpenFile(path, os.O_APPEND|os.O_CREATE|os.O_WRONLY, 0o644)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := f.WriteString(text); err != nil {
+		t.Fatal(err)
+	}
+	if err := f.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func truncate(t *testing.T, path string) {
+	t.Helper()
+	if err := os.Truncate(path, 0); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func replaceByRename(t *testing.T, path, text string) {
+	t.Helper()
+	tmp := path + ".tmp"
+	if err := os.WriteFile(tmp, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Rename(tmp, path); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func copyTruncate(t *testing.T, path string) {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path+".1", b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	truncate(t, path)
+}
+
+const header = "epoch,loss,val_loss"
+
+func row(epoch int) string {
+	return fmt.Sprintf("%d,%.3f,%.3f", epoch, 1/float64(epoch), 1.1/float64(epoch))
+}
+
+func TestFollow_AppendAndPartialLine(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, header, row(1))
+	f := startFollow(t, path, Options{})
+	f.waitEpochs(t, 1)
+	writeRaw(t, path, "2,0.4")
+	writeRaw(t, path, "00,0.55\n")
+	f.waitEpochs(t, 1, 2)
+	// The partial line was held until its newline, not read as "2,0.4".
+	if v, _ := sample(t, f.lastPoint(), "loss"); v != 0.400 {
+		t.Errorf("loss = %v", v)
+	}
+	if v, _ := sample(t, f.lastPoint(), "val_loss"); v != 0.55 {
+		t.Errorf("val_loss = %v", v)
+	}
+	if f.stats.State != StateLive {
+		t.Errorf("state = %v", f.stats.State)
+	}
+}
+
+// TestFollow_Coalescing appends from a writer goroutine as fast as it can;
+// inotify coalesces the events, and every line must still arrive.
+func TestFollow_Coalescing(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, header)
+	f := startFollow(t, path, Options{})
+	const n = 2000
+	var wg sync.WaitGroup
+	wg.Add(1)
+	go func() {
+		defer wg.Done()
+		fh, err := os.OpenFile(path, os.O_APPEND|os.O_WRONLY, 0)
+		if err != nil {
+			t.Error(err)
+			return
+		}
+		defer fh.Close()
+		for i := 1; i <= n; i++ {
+			fmt.Fprintln(fh, row(i))
+		}
+	}()
+	wg.Wait()
+	f.waitFor(t, "all epochs", func(f *follower) bool { return len(f.points) == n })
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	if f.batches >= n {
+		t.Errorf("%d batches for %d lines: no batching", f.batches, n)
+	}
+}
+
+func TestFollow_Truncation(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, header, row(1), row(2), row(3))
+	f := startFollow(t, path, Options{})
+	f.waitEpochs(t, 1, 2, 3)
+	truncate(t, path)
+	appendLines(t, path, header, row(1))
+	f.waitNotice(t, "run.csv truncated: reading from the start (segment 2)")
+	f.waitEpochs(t, 1)
+	if p := f.lastPoint(); p.Segment != 2 || p.Line != 2 {
+		t.Errorf("point after truncation = %+v", p)
+	}
+}
+
+// TestFollow_CopyTruncate rotates the way logrotate's copytruncate does:
+// copy the log aside, truncate it in place, and the writer goes on.
+func TestFollow_CopyTruncate(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, header, row(1), row(2))
+	f := startFollow(t, path, Options{})
+	f.waitEpochs(t, 1, 2)
+	copyTruncate(t, path)
+	f.waitNotice(t, "truncated")
+	// The writer goes on without a header: its rows are read with the
+	// header of the file before the rotation.
+	appendLines(t, path, row(3), row(4))
+	f.waitEpochs(t, 1, 2, 3, 4)
+}
+
+// TestFollow_RegrownPastOffset: a truncation followed by a rewrite longer
+// than what was read is not visible by size; the changed first bytes give
+// it away.
+func TestFollow_RegrownPastOffset(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, "epoch,loss", "1,0.5")
+	f := startFollow(t, path, Options{Poll: 20 * time.Millisecond})
+	f.waitEpochs(t, 1)
+	if err := os.WriteFile(path, []byte("epoch,loss,val_loss\n1,0.9,1.0\n2,0.8,0.9\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	f.waitNotice(t, "rewritten")
+	f.waitEpochs(t, 1, 2)
+}
+
+func TestFollow_AtomicReplace(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, header, row(1), row(2))
+	f := startFollow(t, path, Options{})
+	f.waitEpochs(t, 1, 2)
+	replaceByRename(t, path, header+"\n"+row(1)+"\n")
+	f.waitNotice(t, "run.csv replaced: reading the new file from the start")
+	f.waitEpochs(t, 1)
+	appendLines(t, path, row(2))
+	f.waitEpochs(t, 1, 2)
+	if p := f.lastPoint(); p.Segment != 2 {
+		t.Errorf("segment = %d", p.Segment)
+	}
+}
+
+func TestFollow_DeleteThenRecreate(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, header, row(1), row(2))
+	f := startFollow(t, path, Options{})
+	f.waitEpochs(t, 1, 2)
+	if err := os.Remove(path); err != nil {
+		t.Fatal(err)
+	}
+	f.waitNotice(t, "run.csv removed")
+	f.waitFor(t, "state removed", func(f *follower) bool { return f.stats.State == StateRemoved })
+	// What was read is kept.
+	f.waitEpochs(t, 1, 2)
+	appendLines(t, path, header, row(1))
+	f.waitNotice(t, "replaced")
+	f.waitEpochs(t, 1)
+	f.waitFor(t, "state live", func(f *follower) bool { return f.stats.State == StateLive })
+}
+
+func TestFollow_LateCreation(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	f := startFollow(t, path, Options{})
+	f.waitNotice(t, "waiting for "+path)
+	f.waitFor(t, "state waiting", func(f *follower) bool { return f.stats.State == StateWaiting })
+	appendLines(t, path, header, row(1))
+	f.waitEpochs(t, 1)
+	f.waitFor(t, "state live", func(f *follower) bool { return f.stats.State == StateLive })
+}
+
+// TestFollow_Poll forces polling, as on a network filesystem where
+// inotify sees nothing.
+func TestFollow_Poll(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, header, row(1))
+	f := startFollow(t, path, Options{Poll: 20 * time.Millisecond})
+	f.waitEpochs(t, 1)
+	appendLines(t, path, row(2))
+	f.waitEpochs(t, 1, 2)
+	replaceByRename(t, path, header+"\n"+row(1)+"\n")
+	f.waitNotice(t, "replaced")
+	f.waitEpochs(t, 1)
+}
+
+// TestFollow_WatchFallback: when the directory cannot be watched (here it
+// does not exist yet), the reader says so and polls.
+func TestFollow_WatchFallback(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "later")
+	path := filepath.Join(dir, "run.csv")
+	f := startFollow(t, path, Options{})
+	f.waitNotice(t, "cannot watch")
+	f.waitNotice(t, "checking every 250ms")
+	if err := os.Mkdir(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	appendLines(t, path, header, row(1))
+	f.waitEpochs(t, 1)
+}
+
+// TestFollow_Overflow feeds the loop an inotify queue overflow: the answer
+// is a full check of the file, which finds the lines no event announced.
+func TestFollow_Overflow(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, header, row(1))
+	tl, err := newTailer(path, Options{Follow: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	events := make(chan fsnotify.Event)
+	errs := make(chan error)
+	go func() {
+		// An hour between ticks: only the overflow can trigger the read.
+		tl.loop(ctx, events, errs, time.Hour)
+		close(tl.out)
+	}()
+	f := collectBatches(tl.out)
+	f.waitEpochs(t, 1)
+	appendLines(t, path, row(2), row(3))
+	errs <- fsnotify.ErrEventOverflow
+	f.waitEpochs(t, 1, 2, 3)
+	f.waitNotice(t, "queue overflow")
+}
+
+func TestFollow_OneShot(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	writeRaw(t, path, header+"\n"+row(1)+"\n"+row(2)) // no final newline
+	ch, err := Follow(context.Background(), path, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := collectBatches(ch)
+	select {
+	case <-f.done:
+	case <-time.After(waitTimeout):
+		t.Fatal("one-shot read did not finish")
+	}
+	if fmt.Sprint(epochs(f.points)) != "[1 2]" || f.stats.State != StateFinished {
+		t.Errorf("epochs %v state %v", epochs(f.points), f.stats.State)
+	}
+}
+
+func TestFollow_ContextEnds(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.csv")
+	appendLines(t, path, header)
+	ctx, cancel := context.WithCancel(context.Background())
+	ch, err := Follow(ctx, path, Options{Follow: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	<-ch
+	cancel()
+	select {
+	case _, ok := <-ch:
+		for ok {
+			_, ok = <-ch
+		}
+	case <-time.After(waitTimeout):
+		t.Fatal("channel not closed after the context ended")
+	}
+}
+
+func TestFollowReader_Pipe(t *testing.T) {
+	r, w, err := os.Pipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	f := collectBatches(FollowReader(context.Background(), "stdin", r, Options{}))
+	fmt.Fprintln(w, header)
+	fmt.Fprintln(w, row(1))
+	// The line leaves as soon as the pipe has nothing more to read.
+	f.waitEpochs(t, 1)
+	fmt.Fprint(w, row(2)) // unterminated
+	w.Close()
+	select {
+	case <-f.done:
+	case <-time.After(waitTimeout):
+		t.Fatal("channel not closed at EOF")
+	}
+	if fmt.Sprint(epochs(f.points)) != "[1 2]" || f.stats.State != StateFinished {
+		t.Errorf("epochs %v state %v", epochs(f.points), f.stats.State)
+	}
+}

@@ -1,0 +1,248 @@
+package watch
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"io"
+	"math"
+	"reflect"
+	"sort"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+func TestReadAll_JSONL(t *testing.T) {
+	in := `{"epoch": 1, "train": {"loss": 0.5, "acc": 0.8}, "val": {"loss": 0.6}, "run": "exp-a", "ok": true}` + "\n" +
+		`{"epoch": 2, "train": {"loss": 0.4}, "val": {"loss": NaN}, "time": "2024-03-01T10:00:00Z", "hist": [1, 2, {"x": 3}]}` + "\n" +
+		`{"epoch": 3, "train": {"loss": Infinity}, "val": {"loss": -Infinity}, "lr": null}` + "\n"
+	points, st := readString(t, in, Options{})
+	if st.Format != FormatJSONL || st.Skipped != 0 || st.NonFinite != 3 {
+		t.Fatalf("stats = %+v", st)
+	}
+	if got := epochs(points); !reflect.DeepEqual(got, []int{1, 2, 3}) {
+		t.Fatalf("epochs = %v", got)
+	}
+	s, ok := points[0].Lookup(diagnose.SplitTrain, "acc")
+	if !ok || s.Column.Name != "train/acc" || s.Value != 0.8 {
+		t.Errorf("train/acc = %+v", s)
+	}
+	if len(points[0].Samples) != 3 {
+		t.Errorf("samples = %+v (strings and booleans must be ignored)", points[0].Samples)
+	}
+	if v, _ := sample(t, points[1], "val/loss"); !math.IsNaN(v) {
+		t.Errorf("val/loss = %v, want NaN", v)
+	}
+	if !points[1].Time.Equal(time.Date(2024, 3, 1, 10, 0, 0, 0, time.UTC)) {
+		t.Errorf("time = %v", points[1].Time)
+	}
+	if v, _ := sample(t, points[2], "train/loss"); !math.IsInf(v, 1) {
+		t.Errorf("train/loss = %v", v)
+	}
+}
+
+func TestReadAll_JSONLBadLines(t *testing.T) {
+	tests := []struct {
+		name, line, reason string
+	}{
+		{"NotObject", `[1, 2]`, "not a JSON object"},
+		{"Truncated", `{"epoch": 1, "loss": 0.`, "invalid JSON"},
+		{"Trailing", `{"epoch": 1} x`, "data after the JSON object"},
+		{"LeadingZero", `{"loss": 01}`, "invalid JSON"},
+		{"BadEscape", `{"lo\qss": 1}`, "invalid JSON"},
+		{"TooDeep", strings.Repeat(`{"a":`, 40) + "1" + strings.Repeat("}", 40), "JSON nested too deep"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			in := `{"epoch": 1, "loss": 0.5}` + "\n" + tt.line + "\n" + `{"epoch": 2, "loss": 0.4}` + "\n"
+			points, st := readString(t, in, Options{})
+			if len(points) != 2 || st.Skipped != 1 || len(st.Examples) != 1 {
+				t.Fatalf("points %d stats %+v", len(points), st)
+			}
+			if e := st.Examples[0]; e.Line != 2 || e.Reason != tt.reason {
+				t.Errorf("example = %+v, want line 2 reason %q", e, tt.reason)
+			}
+		})
+	}
+}
+
+// flatten is the reference for the JSON decoder: it reads one line with
+// encoding/json (the standard library's RFC 8259 decoder) token by token
+// and lists the numeric leaves under their "/"-joined keys, later
+// duplicates replacing earlier ones.
+func flatten(line []byte) (map[string]float64, error) {
+	dec := json.NewDecoder(bytes.NewReader(line))
+	dec.UseNumber()
+	out := map[string]float64{}
+	tok, err := dec.Token()
+	if err != nil {
+		return nil, err
+	}
+	if d, ok := tok.(json.Delim); !ok || d != '{' {
+		return nil, errors.New("not an object")
+	}
+	var walk func(prefix string) error
+	walk = func(prefix string) error {
+		for dec.More() {
+			kt, err := dec.Token()
+			if err != nil {
+				return err
+			}
+			key := kt.(string)
+			if prefix != "" {
+				key = prefix + "/" + key
+			}
+			vt, err := dec.Token()
+			if err != nil {
+				return err
+			}
+			switch v := vt.(type) {
+			case json.Number:
+				f, err := strconv.ParseFloat(string(v), 64)
+				if err != nil && !errors.Is(err, strconv.ErrRange) {
+					return err
+				}
+				out[key] = f
+			case json.Delim:
+				if v == '{' {
+					if err := walk(key); err != nil {
+						return err
+					}
+				} else if err := skipJSON(dec); err != nil {
+					return err
+				}
+			}
+		}
+		_, err := dec.Token() // closing }
+		return err
+	}
+	if err := walk(""); err != nil {
+		return nil, err
+	}
+	if _, err := dec.Token(); !errors.Is(err, io.EOF) {
+		return nil, errors.New("trailing data")
+	}
+	return out, nil
+}
+
+func skipJSON(dec *json.Decoder) error {
+	depth := 1
+	for depth > 0 {
+		t, err := dec.Token()
+		if err != nil {
+			return err
+		}
+		if d, ok := t.(json.Delim); ok {
+			switch d {
+			case '{', '[':
+				depth++
+			default:
+				depth--
+			}
+		}
+	}
+	return nil
+}
+
+// decodeJSON runs the JSON decoder on one line and lists what it read.
+func decodeJSON(line []byte) (map[string]float64, bool) {
+	g := newIngester("fuzz", Options{Format: FormatJSONL}, time.Now)
+	d := newJSONDecoder(g, g.asm)
+	d.decode(line, 1)
+	if g.stats.Skipped > 0 {
+		return nil, false
+	}
+	out := map[string]float64{}
+	for k, ci := range g.asm.rowIdx {
+		out[g.asm.cols[ci].col.Name] = g.asm.rowVal[k]
+	}
+	return out, true
+}
+
+func checkJSONAgainstReference(t *testing.T, line []byte) {
+	t.Helper()
+	// The reference rejects the non-finite tokens we accept, so lines with
+	// them are only checked for not crashing; invalid UTF-8 and control
+	// characters in keys are compared after sanitizing; keys naming
+	// epoch, step or time columns are read into the point, not as values.
+	if len(bytes.TrimSpace(line)) == 0 {
+		return // blank lines are skipped, not records
+	}
+	got, ok := decodeJSON(line)
+	if bytes.Contains(line, []byte("NaN")) || bytes.Contains(line, []byte("Infinity")) {
+		return
+	}
+	want, err := flatten(line)
+	if (err == nil) != ok {
+		t.Fatalf("line %q: decoder ok=%v, encoding/json err=%v", line, ok, err)
+	}
+	if !ok {
+		return
+	}
+	wantS := map[string]float64{}
+	for k, v := range want {
+		c := ParseColumn(k)
+		if c.Kind == diagnose.KindEpoch || c.Kind == diagnose.KindStep || c.Kind == diagnose.KindTime {
+			continue
+		}
+		wantS[Sanitize(k)] = v
+	}
+	gotS := map[string]float64{}
+	for k, v := range got {
+		if c := ParseColumn(k); c.Kind == diagnose.KindTime {
+			continue
+		}
+		gotS[k] = v
+	}
+	if len(gotS) != len(wantS) {
+		t.Fatalf("line %q: decoder %v, reference %v", line, keys(gotS), keys(wantS))
+	}
+	for k, v := range wantS {
+		if g, ok := gotS[k]; !ok || !sameFloat(g, v) {
+			t.Fatalf("line %q key %q: decoder %v (%v), reference %v", line, k, g, ok, v)
+		}
+	}
+}
+
+func keys(m map[string]float64) []string {
+	var out []string
+	for k := range m {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}
+
+func TestJSONDecoder_MatchesReference(t *testing.T) {
+	for _, line := range []string{
+		`{"a": 1, "b": {"c": 2.5, "d": {"e": -3e2}}, "f": [1, {"g": 2}], "h": "x", "i": null, "j": true}`,
+		`{"a": 1, "a": 2}`,
+		`{"k\u00e9y": 1, "tab\tkey": 2}`,
+		`{"emoji \ud83d\ude00": 1, "lone \ud83d": 2}`,
+		`{}`, `{"a":{}}`, `{"a": 1e400}`, `{"a": -0}`, `{"a": 0.1e-5}`,
+		` {"a" : 1 } `, `{"a":1,}`, `{"a" 1}`, `{"a":1}{"b":2}`, `{"a":tru}`, `{"a":"\u12"}`,
+	} {
+		t.Run(strconv.Quote(line), func(t *testing.T) { checkJSONAgainstReference(t, []byte(line)) })
+	}
+}
+
+func FuzzJSONL(f *testing.F) {
+	for _, s := range []string{
+		`{"epoch": 1, "train": {"loss": 0.5}, "val": {"loss": 0.6}}`,
+		`{"step": 10, "loss": NaN, "lr": 1e-3, "tags": ["a", "b"]}`,
+		`{"a": "\u00e9\n", "b": {"c": [1, [2, {"d": 3}]]}}`,
+		`{"time": "2024-01-01T00:00:00Z", "val_acc": 91.5}`,
+	} {
+		f.Add([]byte(s))
+	}
+	f.Fuzz(func(t *testing.T, line []byte) {
+		if bytes.IndexByte(line, '\n') >= 0 || len(line) > 4096 {
+			return
+		}
+		checkJSONAgainstReference(t, line)
+	})
+}
