@@ -37,8 +37,8 @@ func (t *Tracker) actions(i int) []Action {
 	switch r.diag {
 	case Diverging:
 		why := t.text().s("non-finite values at epoch ").n(p.Epoch).done()
-		if r.blowup {
-			why = t.text().s("training ").s(name).s(" ").val(r.raw[SplitTrain]).s(" vs best ").val(st.trMin).s(" and rising").done()
+		if r.blowup != blowNone {
+			why = t.text().s("training ").s(name).s(" ").val(r.raw[SplitTrain]).s(" vs best ").val(st.trMin).s(", rising for two epochs").done()
 		}
 		if bestEpoch > 0 && st.bestIdx != int32(i) {
 			restore("restore the checkpoint of epoch " + itoa(bestEpoch))

@@ -105,7 +105,7 @@ func (t *Tracker) classify(r *rec) {
 		r.focus = r.problems[0]
 	}
 
-	bad := r.bad != 0 || r.badSample >= 0 || r.blowup
+	bad := r.bad != 0 || r.badSample >= 0 || r.blowup != blowNone
 	switch {
 	case bad:
 		r.diag = Diverging

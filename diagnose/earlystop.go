@@ -74,8 +74,16 @@ func (t *Tracker) trend(i int, s Split, tol float64) Progress {
 // E_opt(t) − 1); over strips of k points ending at a multiple of k,
 // P_k(t) = 1000·(Σ E_tr / (k·min E_tr) − 1); PQ = GL/P_k; UP counts
 // successive strips whose last validation value is above the one a strip
-// before. They are computed on the logged (raw) values as the paper
-// defines them; the best epoch and patience use the smoothed values.
+// before.
+//
+// GL and UP are computed on the smoothed validation values, the basis of
+// the best epoch and of patience, and E_opt is the smoothed value at the
+// best epoch: GL is then measured from the epoch that every signal says to
+// restore, and a lucky noisy epoch neither becomes the reference of GL nor
+// makes a run look overfit. With Config.Smoothing = SmoothingOff they are
+// exactly the paper's definitions on the logged values. P_k is computed on
+// the logged training values as the paper defines it (it refers to no best
+// epoch).
 //
 // The signal: stop on divergence, when patience runs out, or when PQ_α
 // fires at a strip end; watch when the best epoch ages past half the
@@ -96,11 +104,7 @@ func (t *Tracker) earlyStop(i int) {
 			st.best, st.bestIdx, st.pqFired = v, int32(i), false
 			newBest = true
 		}
-		raw := r.raw[SplitVal]
-		if !st.hasOpt || raw < st.eOpt {
-			st.eOpt, st.hasOpt = raw, true
-		}
-		st.gl = generalizationLoss(raw, st.eOpt)
+		st.gl = generalizationLoss(v, st.best)
 	}
 	if st.bestIdx >= 0 {
 		r.since = p.Epoch - t.points[st.bestIdx].Epoch
@@ -124,7 +128,7 @@ func (t *Tracker) earlyStop(i int) {
 			}
 		}
 		if j := i - k; j >= 0 && hasVal && t.recs.at(j).has&valBit != 0 && t.recs.at(j).bad&valBit == 0 {
-			if r.raw[SplitVal] > t.recs.at(j).raw[SplitVal] {
+			if r.sm[SplitVal] > t.recs.at(j).sm[SplitVal] {
 				st.up++
 			} else {
 				st.up = 0
@@ -167,18 +171,21 @@ func (t *Tracker) earlyStop(i int) {
 
 // generalizationLoss is Prechelt's GL in percent. |E_opt| keeps the sign
 // right for metrics that can be negative; GL is undefined at E_opt = 0
-// unless E_va is 0 too.
+// unless E_va is 0 too. It is never negative: with a MinDelta, a value a
+// little below the best epoch's (by less than MinDelta) is no loss and no
+// new best either.
 func generalizationLoss(eva, eopt float64) Num {
 	if eopt == 0 {
-		if eva == 0 {
+		if eva <= 0 {
 			return Some(0)
 		}
 		return None
 	}
-	if eopt > 0 {
-		return Some(100 * (eva/eopt - 1)) // as Prechelt writes it
+	gl := 100 * (eva/eopt - 1) // as Prechelt writes it
+	if eopt < 0 {
+		gl = 100 * (eva - eopt) / math.Abs(eopt)
 	}
-	return Some(100 * (eva - eopt) / math.Abs(eopt))
+	return Some(math.Max(0, gl))
 }
 
 // trainingProgress is Prechelt's P_k over the k points ending at i, in

@@ -106,7 +106,9 @@ func (t *Tracker) reasonText(i int) string {
 	case reasonUP:
 		w.s("validation ").s(name).s(" rose over the last ").n(int(st.up)).s(" strip(s) of ").n(t.cfg.Strip)
 	case reasonGL:
-		w.s("validation ").s(name).s(" is ").f(st.gl.V, 1).s("% above its best (generalization loss)")
+		// GL is measured from the best epoch, the one to restore.
+		w.s("smoothed validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is ").f(st.gl.V, 1).s("% above its best ").
+			val(st.best).s(" at epoch ").n(t.points[st.bestIdx].Epoch).s(" (generalization loss)")
 	case reasonPlateau:
 		w.s("validation ").s(name).s(" has plateaued")
 	case reasonNewBest:

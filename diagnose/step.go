@@ -20,12 +20,24 @@ const (
 	// at least watch: GL_5, the least eager GL criterion of Prechelt
 	// (1998), is beyond the epoch-to-epoch noise of most runs.
 	watchGL = 5.0
-	// blowupFrac: a training curve has diverged when it has climbed back
-	// more than this fraction of the way from its best to its start, by at
-	// least the tolerance, rising at two points in a row (design choice: a
-	// warm restart of the learning rate or a noisy epoch gives a bump, not
-	// a sustained return to where training began).
-	blowupFrac = 0.5
+	// A finite training curve is judged diverging only on clear evidence
+	// (design choice: a warm restart of the learning rate or a few noisy
+	// epochs give a bump, not a sustained return to where training began):
+	// it has risen over the last two epochs, it stands above its best by
+	// at least the noise band, and either
+	//   - after the first strip, it has climbed back more than blowupFrac
+	//     of the way from its best to its start, or
+	//   - at any time, it is above blowupStart times its start (a loss
+	//     that leaves its initial value far behind: 2.3 → 5 → 12).
+	// The noise band is max(tolerance, blowupSigmas·σ), σ the per-epoch
+	// noise of the training values before the climb (pseudo-residuals,
+	// stats.go): a flat curve of white noise lies within about ±2.5σ of
+	// its mean over a few hundred epochs, so 4σ above its lowest value
+	// with two rises in a row is rare for noise and early for a real
+	// blow-up (whose rise is many times σ within an epoch or two).
+	blowupFrac   = 0.5
+	blowupStart  = 2.0
+	blowupSigmas = 4.0
 	// eps absorbs float rounding in comparisons with thresholds that are
 	// exact only on paper (0.10 − 0.08 is 0.020000000000000004).
 	eps = 1e-9
@@ -54,13 +66,14 @@ type state struct {
 
 	trStart, trMin  float64 // raw train values, for divergence
 	trPrev, trPrev2 float64
-	trN             int32
+	// trSig1, trSig2: noise of the training values as of the previous and
+	// the one-before-previous training value (NaN before three values).
+	trSig1, trSig2 float64
+	trN            int32
 
 	bestIdx int32 // point of the best smoothed validation value; -1 none
 	best    float64
-	eOpt    float64 // best raw validation value (Prechelt's E_opt)
-	hasOpt  bool
-	gl      Num
+	gl      Num // generalization loss against the best smoothed value
 	pk, pq  Num // as of the last completed strip
 	up      int32
 	pqFired bool // PQ_α fired since the last new best
@@ -113,7 +126,7 @@ type rec struct {
 	since     int // epochs since the best
 	warn      warnSet
 	badSample int32 // first sample of the point with a non-finite metric; -1
-	blowup    bool
+	blowup    blowup
 	overconf  bool
 }
 
@@ -229,8 +242,18 @@ func (t *Tracker) addAux(r *rec, k int, v, beta float64) {
 	}
 }
 
+// blowup says which rule judged a finite training curve diverging.
+type blowup uint8
+
+const (
+	blowNone  blowup = iota
+	blowBack         // climbed back more than half-way from its best to its start
+	blowStart        // above blowupStart times its start
+)
+
 // checkBlowup flags a training curve that climbs far above its best and
-// keeps rising: the loss of a run whose learning rate is too high.
+// keeps rising: the loss of a run whose learning rate is too high. The
+// thresholds and their reasons are with blowupFrac.
 func (t *Tracker) checkBlowup(r *rec) {
 	const bit = uint8(1) << SplitTrain
 	if r.has&bit == 0 || r.bad&bit != 0 {
@@ -240,20 +263,29 @@ func (t *Tracker) checkBlowup(r *rec) {
 	x := r.raw[SplitTrain]
 	if st.trN == 0 {
 		st.trStart, st.trMin = x, x
+		st.trSig1, st.trSig2 = math.NaN(), math.NaN()
 	} else {
 		tol := t.tolerance(st)
+		// The noise before the climb: the estimate as of two training
+		// values ago, which no value of a two-epoch rise has inflated.
+		sigma, known := st.trSig2, finite(st.trSig2)
+		band := tol
+		if known {
+			band = math.Max(tol, blowupSigmas*sigma)
+		}
 		gained := st.trStart - st.trMin
 		back := x - st.trMin
 		rising := st.trN >= 2 && x > st.trPrev && st.trPrev > st.trPrev2
+		clear := rising && back >= band*(1-eps)
 		switch {
-		case rising && gained >= tol && back >= tol && back > blowupFrac*gained:
-			r.blowup = true
-		case rising && st.trStart != 0 && x > st.trStart+math.Abs(st.trStart):
-			// Above twice where it began.
-			r.blowup = true
+		case clear && known && int(st.trN) >= t.cfg.Strip && gained >= tol && back > blowupFrac*gained:
+			r.blowup = blowBack
+		case clear && st.trStart != 0 && x > st.trStart+(blowupStart-1)*math.Abs(st.trStart):
+			r.blowup = blowStart
 		}
 		st.trMin = math.Min(st.trMin, x)
 	}
 	st.trPrev2, st.trPrev = st.trPrev, x
+	st.trSig2, st.trSig1 = st.trSig1, r.nzv[SplitTrain]
 	st.trN++
 }

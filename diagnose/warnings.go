@@ -95,7 +95,7 @@ func (t *Tracker) collectWarnings(i int) {
 	if r.badSample >= 0 || r.bad != 0 {
 		w |= warnNonFinite
 	}
-	if r.blowup {
+	if r.blowup != blowNone {
 		w |= warnBlowup
 	}
 	if t.metric != nil && !t.cfg.BayesErrorGiven && r.comp[AvoidableBias].OK {
@@ -199,8 +199,13 @@ func (t *Tracker) warningTexts(i int) []string {
 		add(w.s(": training has diverged or the inputs hold NaN/Inf"))
 	}
 	if r.warn&warnBlowup != 0 {
-		add(t.text().s("training ").s(name).s(" ").val(r.raw[SplitTrain]).s(" has climbed back more than half-way from its best ").
-			val(st.trMin).s(" to its start ").val(st.trStart).s(" and is rising: diverging"))
+		w := t.text().s("training ").s(name).s(" ").val(r.raw[SplitTrain]).s(" has risen for two epochs to ")
+		if r.blowup == blowStart {
+			w.s("more than twice its start ").val(st.trStart)
+		} else {
+			w.s("more than half-way back from its best ").val(st.trMin).s(" to its start ").val(st.trStart)
+		}
+		add(w.s(", ").gap(r.raw[SplitTrain] - st.trMin).s(" above its best, beyond its epoch-to-epoch noise: diverging"))
 	}
 	if r.warn&warnBayesAssumed != 0 {
 		add(t.text().s("optimal error not given: taken as 0, so the avoidable bias ").gap(r.comp[AvoidableBias].V).

@@ -39,7 +39,7 @@ func (s Summary) Markdown() string {
 	b.WriteString("; gaps measured in " + inline(orDash(s.Metric)) + "\n\n")
 
 	b.WriteString("## Verdict\n\n")
-	b.WriteString("**" + s.Diagnosis + "**")
+	b.WriteString("**" + diagnosisWords(s.Diagnosis) + "**")
 	if s.Focus != diagnose.NoComponent.String() {
 		b.WriteString(" — work on " + words(s.Focus) + " first")
 	}
@@ -50,7 +50,7 @@ func (s Summary) Markdown() string {
 		}
 		b.WriteString(" (high: " + strings.Join(high, ", ") + ")")
 	}
-	b.WriteString(". Validation curve: " + s.Progress + ".\n\n")
+	b.WriteString(". " + progressWords(s.Progress) + ".\n\n")
 
 	b.WriteString("| split | smoothed | logged |\n|---|---:|---:|\n")
 	for _, row := range []struct {
@@ -110,7 +110,7 @@ func (s Summary) Markdown() string {
 		b.WriteString(")")
 	}
 	b.WriteString(".\n" + inline(es.Reason) + ".\n\n")
-	b.WriteString("Prechelt's criteria: GL " + num(es.GL, 2) + "%, P5 " + num(es.P5, 1) + "‰, PQ " + num(es.PQ, 2) +
+	b.WriteString("Prechelt's criteria: GL " + num(es.GL, 2) + "%, P" + strconv.Itoa(s.strip()) + " " + num(es.P5, 1) + "‰, PQ " + num(es.PQ, 2) +
 		", UP " + strconv.Itoa(es.UP) + "; patience " + strconv.Itoa(es.Patience) + " epochs.\n")
 
 	if len(s.Actions) > 0 {
@@ -184,6 +184,41 @@ func num(n diagnose.Num, prec int) string {
 		return strconv.FormatFloat(n.V, 'g', 4, 64)
 	}
 	return strconv.FormatFloat(n.V, 'f', prec, 64)
+}
+
+// diagnosisWords names a diagnosis for people; the JSON keeps the
+// machine name.
+func diagnosisWords(d string) string {
+	switch d {
+	case diagnose.TooEarly.String():
+		return "Too early to judge"
+	case diagnose.Diverging.String():
+		return "Diverging"
+	case diagnose.HighBias.String():
+		return "High bias (underfitting)"
+	case diagnose.HighVariance.String():
+		return "High variance (overfitting)"
+	case diagnose.HighBiasHighVariance.String():
+		return "High bias and high variance"
+	case diagnose.DataMismatch.String():
+		return "Data mismatch"
+	case diagnose.GoodFit.String():
+		return "Good fit"
+	}
+	return inline(d)
+}
+
+// progressWords describes the trend of the validation curve.
+func progressWords(p string) string {
+	switch p {
+	case diagnose.Improving.String():
+		return "The validation curve is still improving"
+	case diagnose.Plateaued.String():
+		return "The validation curve has plateaued"
+	case diagnose.Worsening.String():
+		return "The validation curve is worsening"
+	}
+	return "Too few points for a trend of the validation curve"
 }
 
 // words names a component for people.

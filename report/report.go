@@ -75,6 +75,17 @@ type Summary struct {
 	EarlyStop EarlyStop `json:"early_stop"`
 	Actions   []Action  `json:"actions"`
 	Warnings  []string  `json:"warnings"`
+
+	// stripLen is Prechelt's strip length k of the settings, for naming
+	// P_k in the Markdown (the JSON key stays "p5").
+	stripLen int
+}
+
+func (s Summary) strip() int {
+	if s.stripLen > 0 {
+		return s.stripLen
+	}
+	return diagnose.DefaultStrip
 }
 
 // EarlyStop is the early-stopping part of a Summary.
@@ -131,6 +142,7 @@ func fromJudgement(src Source, j *diagnose.Judgement, cfg diagnose.Config, p *di
 		Focus:        diagnose.NoComponent.String(),
 		Progress:     diagnose.ProgressUnknown.String(),
 		EarlyStop:    EarlyStop{Signal: diagnose.Continue.String(), Patience: cfg.Patience, Reason: "no evaluation point read"},
+		stripLen:     cfg.Strip,
 	}
 	s.BayesError, s.BayesErrorGiven, s.BaselineError = cfg.BayesError, cfg.BayesErrorGiven, cfg.BaselineError
 	for _, w := range src.Warnings {

@@ -184,7 +184,6 @@ func New(opts Options) Model {
 	}
 	in := textinput.New()
 	in.Prompt = "optimal error: "
-	in.Placeholder = "0.04 or 4%"
 	in.CharLimit = 24
 	m := Model{
 		opts:    opts,

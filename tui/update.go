@@ -382,7 +382,7 @@ func (m Model) handleTyping(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m.clampView()
 		m.opts.BayesNote = "typed in"
 		m.rebuild()
-		cmd := m.say(false, "optimal error set to "+formatNum(v, 4)+": verdict recomputed for every epoch")
+		cmd := m.say(false, "optimal error set to "+m.fmtValue(v)+": verdict recomputed for every epoch")
 		return m, cmd
 	}
 	var cmd tea.Cmd

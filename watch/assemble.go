@@ -128,15 +128,6 @@ func (a *assembler) column(name string) int {
 	return i
 }
 
-// columnBytes is column for a name in a byte slice; the map lookup does not
-// allocate when the column is known.
-func (a *assembler) columnBytes(name []byte) int {
-	if i, ok := a.byName[string(name)]; ok {
-		return i
-	}
-	return a.column(string(name))
-}
-
 func (a *assembler) beginRow() {
 	a.rowSeq++
 	a.rowIdx = a.rowIdx[:0]
@@ -234,8 +225,21 @@ func (a *assembler) endRow(line int) {
 		if hasEval || a.onePerEpoch() {
 			a.emit()
 		}
+	case a.g.open && a.g.epochLogged:
+		// A row without its epoch in a log that has one (a summary row,
+		// an evaluation written apart) belongs to the latest epoch.
+		a.merge(line)
+		if hasEval || a.onePerEpoch() {
+			a.emit()
+		}
 	case a.rowHasStep:
 		a.stepRow(int64(a.rowStep), line)
+		a.merge(line)
+		if hasEval {
+			a.emit()
+		}
+	case a.g.open && a.g.step >= 0:
+		// Likewise a row without its step in a step-only log.
 		a.merge(line)
 		if hasEval {
 			a.emit()

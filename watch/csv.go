@@ -45,12 +45,6 @@ func newCSVDecoder(ing *ingester, asm *assembler, delim byte) *csvDecoder {
 	return &csvDecoder{ing: ing, asm: asm, recs: csvRecords{delim: delim}}
 }
 
-func (d *csvDecoder) reset() {
-	d.header, d.names, d.roles, d.colOf = nil, nil, nil, nil
-	d.recs.pending, d.recs.pendingLines = d.recs.pending[:0], 0
-	d.extraNote = false
-}
-
 func (d *csvDecoder) decode(line []byte, n int) {
 	rec, start, st := d.recs.add(line, n)
 	switch st {
@@ -225,6 +219,15 @@ func (d *csvDecoder) record(line []byte, n int) {
 	d.row(line, d.recs.fields, n)
 }
 
+func allNumbers(cells []cell) bool {
+	for _, c := range cells {
+		if !c.ok {
+			return false
+		}
+	}
+	return len(cells) > 0
+}
+
 func anyNumber(cells []cell) bool {
 	for _, c := range cells {
 		if c.ok {
@@ -244,6 +247,23 @@ func blank(fields [][]byte) bool {
 }
 
 func (d *csvDecoder) setHeader(line []byte, fields [][]byte, n int) {
+	if allNumbers(d.recs.cells) && d.names == nil {
+		// No header row (only with --format csv: detection calls such a
+		// line text): name the columns by position and read the row.
+		names := make([][]byte, len(fields))
+		for i := range names {
+			names[i] = []byte("column " + strconv.Itoa(i+1))
+		}
+		d.ing.notice(fmt.Sprintf("line %d: no header row (every field is a number): columns are named \"column 1\"…", n))
+		d.useHeader(nil, names)
+		d.row(line, fields, n)
+		return
+	}
+	d.useHeader(line, fields)
+}
+
+// useHeader makes fields the column names.
+func (d *csvDecoder) useHeader(line []byte, fields [][]byte) {
 	d.header = append(d.header[:0], line...)
 	d.names = make([]string, len(fields))
 	d.roles = make([]cellRole, len(fields))
@@ -273,7 +293,6 @@ func (d *csvDecoder) setHeader(line []byte, fields [][]byte, n int) {
 		}
 	}
 	d.ing.checkRoles(d.names)
-	_ = n
 }
 
 // row reads one data row.

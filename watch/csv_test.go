@@ -287,3 +287,26 @@ func TestFollowReader_BadOption(t *testing.T) {
 		t.Fatalf("batches = %+v", got)
 	}
 }
+
+func TestReadAll_RowWithoutEpoch(t *testing.T) {
+	// A summary row without its epoch belongs to the latest epoch; it must
+	// not start a new run of points.
+	in := "epoch,loss,val_loss,test_acc\n1,0.5,0.6,\n2,0.4,0.5,\n,,,0.81\n"
+	points, _ := readString(t, in, Options{})
+	if got := epochs(points); !reflect.DeepEqual(got, []int{1, 2}) {
+		t.Fatalf("epochs = %v", got)
+	}
+	if v, _ := sample(t, points[1], "test_acc"); v != 0.81 {
+		t.Errorf("test_acc = %v", v)
+	}
+}
+
+func TestReadAll_CSVWithoutHeader(t *testing.T) {
+	points, st := readString(t, "1,0.5\n2,0.4\n", Options{Format: FormatCSV})
+	if len(points) != 2 || st.Skipped != 0 {
+		t.Fatalf("points %+v stats %+v", points, st)
+	}
+	if v, _ := sample(t, points[0], "column 2"); v != 0.5 {
+		t.Errorf("column 2 = %v", v)
+	}
+}

@@ -28,9 +28,8 @@ var utf8BOM = []byte{0xef, 0xbb, 0xbf}
 // lineDecoder reads one format.
 type lineDecoder interface {
 	decode(line []byte, n int)
-	// finish ends a one-shot read (or a segment): report what is open.
+	// finish ends a one-shot read (or a file): report what is open.
 	finish()
-	reset()
 }
 
 // ingester turns the bytes of a log into batches: it cuts lines, detects

@@ -46,8 +46,6 @@ func newJSONDecoder(ing *ingester, asm *assembler) *jsonDecoder {
 	return &jsonDecoder{ing: ing, asm: asm, roleOf: map[string]cellRole{}, colOf: map[string]int{}}
 }
 
-func (d *jsonDecoder) reset() {}
-
 func (d *jsonDecoder) finish() {}
 
 func (d *jsonDecoder) decode(line []byte, n int) {

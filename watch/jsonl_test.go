@@ -246,3 +246,21 @@ func FuzzJSONL(f *testing.F) {
 		checkJSONAgainstReference(t, line)
 	})
 }
+
+// TestReadAll_FractionalEpochs: loggers that write the epoch as a fraction
+// of the way through training (2.37) group by the epoch under way, so the
+// evaluation logged at 3.0 closes epoch 3.
+func TestReadAll_FractionalEpochs(t *testing.T) {
+	in := `{"epoch": 0.5, "loss": 0.9}` + "\n" + `{"epoch": 1.0, "loss": 0.8}` + "\n" + `{"epoch": 1.0, "eval_loss": 0.85}` + "\n" +
+		`{"epoch": 1.5, "loss": 0.7}` + "\n" + `{"epoch": 2.0, "loss": 0.6}` + "\n" + `{"epoch": 2.0, "eval_loss": 0.75}` + "\n"
+	points, _ := readString(t, in, Options{})
+	if got := epochs(points); !reflect.DeepEqual(got, []int{1, 2}) {
+		t.Fatalf("epochs = %v", got)
+	}
+	if v, l := sample(t, points[1], "loss"); !near(v, 0.65) || l != 0.6 {
+		t.Errorf("loss = %v/%v, want mean 0.65 and last 0.6", v, l)
+	}
+	if v, _ := sample(t, points[1], "eval_loss"); v != 0.75 {
+		t.Errorf("eval_loss = %v", v)
+	}
+}

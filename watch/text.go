@@ -64,8 +64,6 @@ func newTextDecoder(ing *ingester, asm *assembler) *textDecoder {
 	return &textDecoder{ing: ing, asm: asm}
 }
 
-func (d *textDecoder) reset() { d.haveEpoch = false }
-
 func (d *textDecoder) finish() { d.asm.closeGroup() }
 
 func (d *textDecoder) decode(line []byte, n int) {

@@ -48,7 +48,7 @@ func commandNames() []string {
 // looksLikeCommand says whether a first argument was probably meant as a
 // command (a bare word) rather than a log path.
 func looksLikeCommand(s string) bool {
-	if s == "" || strings.ContainsAny(s, "./\\") {
+	if s == "" || s[0] < 'a' || s[0] > 'z' || strings.ContainsAny(s, "./\\") {
 		return false
 	}
 	for _, r := range s {

@@ -141,3 +141,18 @@ func TestEditDistance(t *testing.T) {
 		t.Errorf("editDistance(\"\", abc) = %d, want 3", d)
 	}
 }
+
+func TestLooksLikeCommand(t *testing.T) {
+	tests := []struct {
+		arg  string
+		want bool
+	}{
+		{"report", true}, {"reprot", true}, {"train-dev", true},
+		{"-", false}, {"run.csv", false}, {"./report", false}, {"Report", false}, {"", false},
+	}
+	for _, tt := range tests {
+		if got := looksLikeCommand(tt.arg); got != tt.want {
+			t.Errorf("looksLikeCommand(%q) = %v, want %v", tt.arg, got, tt.want)
+		}
+	}
+}
