@@ -37,6 +37,12 @@ type colState struct {
 	rowPos  int
 }
 
+// rowValue is one value of the current row.
+type rowValue struct {
+	col int
+	v   float64
+}
+
 // group is the evaluation point being built.
 type group struct {
 	open        bool
@@ -66,9 +72,14 @@ type group struct {
 //     a one-row-per-epoch log a repeated epoch, mean a run resumed from a
 //     checkpoint: a new segment, and the new point replaces the old ones.
 //   - with a step column and no epoch column, a point closes at each row
-//     with an evaluation value; before the first one the growing period is
-//     handed on provisionally at the end of each read.
+//     with an evaluation value.
 //   - with neither, every row is one point.
+//   - a row without the epoch (or step) of a log that has one belongs to
+//     the latest point.
+//   - until a log shows its first evaluation value (and unless its header
+//     names evaluation columns), the open point is handed on
+//     provisionally at the end of each read, so a training-only log shows
+//     its latest values; the next hand-on replaces it.
 type assembler struct {
 	out     sink
 	roles   roles
@@ -78,8 +89,8 @@ type assembler struct {
 
 	// the current row
 	rowSeq      uint64
-	rowIdx      []int
-	rowVal      []float64
+	row         []rowValue
+	rowEval     bool // the row has a validation, train-dev or test value
 	rowEpoch    float64
 	rowHasEpoch bool
 	rowStep     float64
@@ -108,6 +119,7 @@ type assembler struct {
 	// where a later value of a name replaces the earlier one).
 	replace   bool
 	steps     bool
+	full      bool              // the column table reached maxColumns
 	slab      []diagnose.Sample // shared storage of per-step rows
 	nonFinite int
 }
@@ -116,10 +128,24 @@ func newAssembler(out sink, r roles, steps bool) *assembler {
 	return &assembler{out: out, roles: r, byName: map[string]int{}, segment: 1, steps: steps, lastStep: -1}
 }
 
-// column returns the index of the named column, adding it on first sight.
+// maxColumns bounds the column table: a log that invents a new name on
+// every line (a per-sample key) must not grow memory with its lines. Ten
+// thousand is far above any real metrics log. Unit: columns.
+const maxColumns = 10000
+
+// column returns the index of the named column, adding it on first sight;
+// -1 once the table is full (the values of that name are dropped, and a
+// notice says so once).
 func (a *assembler) column(name string) int {
 	if i, ok := a.byName[name]; ok {
 		return i
+	}
+	if len(a.cols) >= maxColumns {
+		if !a.full {
+			a.full = true
+			a.out.notice(fmt.Sprintf("more than %d distinct column names: values of further names are dropped", maxColumns))
+		}
+		return -1
 	}
 	c := a.roles.column(name)
 	a.cols = append(a.cols, colState{col: c, eval: c.Kind == diagnose.KindMetric && c.Split != diagnose.SplitTrain})
@@ -130,26 +156,30 @@ func (a *assembler) column(name string) int {
 
 func (a *assembler) beginRow() {
 	a.rowSeq++
-	a.rowIdx = a.rowIdx[:0]
-	a.rowVal = a.rowVal[:0]
+	a.row = a.row[:0]
+	a.rowEval = false
 	a.rowHasEpoch, a.rowHasStep = false, false
 	a.rowTime = time.Time{}
 }
 
-// value sets column ci in the current row.
+// value sets column ci in the current row (nothing for -1, a column the
+// full table refused).
 func (a *assembler) value(ci int, v float64) {
+	if ci < 0 {
+		return
+	}
 	if v-v != 0 { // NaN or ±Inf, in one subtraction
 		a.nonFinite++
 	}
 	c := &a.cols[ci]
 	if c.rowMark == a.rowSeq {
-		a.rowVal[c.rowPos] = v
+		a.row[c.rowPos].v = v
 		return
 	}
 	c.rowMark = a.rowSeq
-	c.rowPos = len(a.rowIdx)
-	a.rowIdx = append(a.rowIdx, ci)
-	a.rowVal = append(a.rowVal, v)
+	c.rowPos = len(a.row)
+	a.row = append(a.row, rowValue{ci, v})
+	a.rowEval = a.rowEval || c.eval
 }
 
 // epochValue sets the row's epoch; a value that is not a plausible epoch
@@ -200,21 +230,12 @@ func epochKey(v float64) int {
 	return int(math.Ceil(v))
 }
 
-func (a *assembler) rowHasEvalValue() bool {
-	for _, ci := range a.rowIdx {
-		if a.cols[ci].eval {
-			return true
-		}
-	}
-	return false
-}
-
 // endRow files the current row into a point.
 func (a *assembler) endRow(line int) {
-	if len(a.rowIdx) == 0 && !a.rowHasEpoch && !a.rowHasStep {
+	if len(a.row) == 0 && !a.rowHasEpoch && !a.rowHasStep {
 		return
 	}
-	hasEval := a.rowHasEvalValue()
+	hasEval := a.rowEval
 	if hasEval {
 		a.evalSeen = true
 	}
@@ -319,8 +340,8 @@ func (a *assembler) rowRepeatsGroup() bool {
 	if a.rowHasStep && int64(a.rowStep) > a.g.step {
 		return false
 	}
-	for _, ci := range a.rowIdx {
-		if !a.cols[ci].inGroup {
+	for _, r := range a.row {
+		if !a.cols[r.col].inGroup {
 			return false
 		}
 	}
@@ -334,8 +355,8 @@ func (a *assembler) startGroup(epoch int, logged bool) {
 // merge adds the current row to the open group.
 func (a *assembler) merge(line int) {
 	g := &a.g
-	for k, ci := range a.rowIdx {
-		v := a.rowVal[k]
+	for _, r := range a.row {
+		ci, v := r.col, r.v
 		c := &a.cols[ci]
 		if !c.inGroup {
 			c.inGroup = true
@@ -458,7 +479,7 @@ const stepSlab = 4096
 
 // emitStep hands the current row on as a per-step row.
 func (a *assembler) emitStep() {
-	n := len(a.rowIdx)
+	n := len(a.row)
 	if n == 0 {
 		return
 	}
@@ -466,9 +487,8 @@ func (a *assembler) emitStep() {
 		a.slab = make([]diagnose.Sample, 0, max(stepSlab, n))
 	}
 	start := len(a.slab)
-	for k, ci := range a.rowIdx {
-		v := a.rowVal[k]
-		a.slab = append(a.slab, diagnose.Sample{Column: a.cols[ci].col, Value: v, Last: v})
+	for _, r := range a.row {
+		a.slab = append(a.slab, diagnose.Sample{Column: a.cols[r.col].col, Value: r.v, Last: r.v})
 	}
 	r := diagnose.StepRow{Segment: a.segment, Epoch: a.g.epoch, Step: -1, Samples: a.slab[start:len(a.slab):len(a.slab)]}
 	if a.rowHasStep {

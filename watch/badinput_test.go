@@ -223,7 +223,7 @@ func TestFollow_PermissionDenied(t *testing.T) {
 // never held whole, whichever way it arrives.
 func TestReadAll_LongLine(t *testing.T) {
 	long := strings.Repeat("x", 3<<20)
-	in := "epoch,loss\n1,0.5\n" + long + "\n2,0.4\n"
+	in := "epoch,loss\n1,0.5\n" + long + "\n2,0.4\n" + long
 	for _, size := range []int{len(in), 64 << 10, 4096} {
 		t.Run(fmt.Sprint(size), func(t *testing.T) {
 			g := newIngester("x", Options{}, time.Now)
@@ -239,7 +239,7 @@ func TestReadAll_LongLine(t *testing.T) {
 			if maxCarry > 2*maxLineBytes {
 				t.Errorf("held %d bytes of a long line", maxCarry)
 			}
-			if b.Stats.Skipped != 1 || b.Stats.Lines != 4 || len(b.Points) != 2 {
+			if b.Stats.Skipped != 2 || b.Stats.Lines != 5 || len(b.Points) != 2 {
 				t.Fatalf("stats %+v points %v", b.Stats, epochs(b.Points))
 			}
 			e := b.Stats.Examples[0]

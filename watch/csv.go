@@ -23,7 +23,6 @@ const (
 	cellEpoch
 	cellStep
 	cellTime
-	cellIgnore
 )
 
 // csvDecoder reads a delimited log with a header row.
@@ -95,16 +94,12 @@ func (s recordStatus) reason() string {
 // fields and their numbers are left in fields and cells.
 type csvRecords struct {
 	delim byte
-	// fields and cells are the current record: views of fbuf and cbuf, or
-	// of a prescan.
+	// fields and cells are the current record (views of fbuf and cbuf).
 	fields  [][]byte
 	cells   []cell
 	fbuf    [][]byte
 	cbuf    []cell
 	scratch []byte
-	// pre holds the lines of the chunk being read, already split by a
-	// worker (backlog reading), or is nil.
-	pre *prescan
 
 	pending      []byte
 	pendingLines int
@@ -117,12 +112,6 @@ func (r *csvRecords) add(line []byte, n int) ([]byte, int, recordStatus) {
 	if r.pendingLines == 0 {
 		if len(line) == 0 {
 			return nil, n, recordNone
-		}
-		if r.pre != nil {
-			if fields, cells, ok := r.pre.lookup(line); ok {
-				r.fields, r.cells = fields, cells
-				return line, n, recordDone
-			}
 		}
 		var ok bool
 		r.fbuf, r.cbuf, ok = scanRow(line, r.delim, r.fbuf[:0], r.cbuf[:0])
@@ -287,7 +276,7 @@ func (d *csvDecoder) useHeader(line []byte, fields [][]byte) {
 		default:
 			d.roles[i] = cellValue
 			d.colOf[i] = d.asm.column(name)
-			if d.asm.cols[d.colOf[i]].eval {
+			if ci := d.colOf[i]; ci >= 0 && d.asm.cols[ci].eval {
 				d.asm.evalExpected = true
 			}
 		}
@@ -297,48 +286,47 @@ func (d *csvDecoder) useHeader(line []byte, fields [][]byte) {
 
 // row reads one data row.
 func (d *csvDecoder) row(line []byte, fields [][]byte, n int) {
-	if len(fields) > len(d.roles) && !anyNumber(d.recs.cells) {
-		d.textRow(line, fields, n) // a wider header, or a bad line
-		return
+	cells := d.recs.cells
+	if len(fields) > len(d.roles) {
+		if !anyNumber(cells) {
+			d.textRow(line, fields, n) // a wider header, or a bad line
+			return
+		}
+		d.extraColumns(len(fields), n)
 	}
 	a := d.asm
 	a.beginRow()
 	numeric := 0
-	for i, f := range fields {
-		if i >= len(d.roles) {
-			d.extraColumns(len(fields), n)
+	roles, colOf := d.roles[:len(cells)], d.colOf[:len(cells)]
+	for i, c := range cells {
+		if !c.ok {
+			f := fields[i]
+			if len(f) == 0 {
+				continue // a missing value
+			}
+			if d.recs.delim == ';' {
+				c.v, c.ok = d.decimalComma(f)
+			}
+			if !c.ok {
+				if roles[i] == cellTime {
+					if t, tok := parseTime(f); tok {
+						a.timeValue(t)
+						numeric++
+					}
+				}
+				continue
+			}
 		}
-		if len(f) == 0 {
-			continue
-		}
-		v, ok := d.recs.cells[i].v, d.recs.cells[i].ok
-		if !ok && d.recs.delim == ';' {
-			v, ok = d.decimalComma(f)
-		}
-		switch d.roles[i] {
+		numeric++
+		switch roles[i] {
 		case cellValue:
-			if ok {
-				a.value(d.colOf[i], v)
-				numeric++
-			}
+			a.value(colOf[i], c.v)
 		case cellEpoch:
-			if ok {
-				a.epochValue(v)
-				numeric++
-			}
+			a.epochValue(c.v)
 		case cellStep:
-			if ok {
-				a.stepValue(v)
-				numeric++
-			}
+			a.stepValue(c.v)
 		case cellTime:
-			if ok {
-				a.timeNumber(d.colOf[i], v)
-				numeric++
-			} else if t, tok := parseTime(f); tok {
-				a.timeValue(t)
-				numeric++
-			}
+			a.timeNumber(colOf[i], c.v)
 		}
 	}
 	if numeric > 0 {

@@ -40,10 +40,6 @@ const (
 	// a copytruncate that regrew past our offset before we looked shows up
 	// as a changed head. Unit: bytes.
 	fingerprintBytes = 64
-	// readAheadMin is the backlog above which a CSV is read in two stages
-	// on two cores; below it the second goroutine costs more than it
-	// saves. Unit: bytes.
-	readAheadMin = 4 * readChunk
 )
 
 // Follow reads the log at path and sends batches on the returned channel,
@@ -51,7 +47,9 @@ const (
 // read to its end (one-shot). It returns an error at once for a directory,
 // a file it may not read, or a bad option. A file that does not exist yet
 // is waited for in Follow mode ("waiting for FILE") and is an error in
-// one-shot mode. "-" is not special here: see FollowReader.
+// one-shot mode. A path that is not a regular file (a named pipe, a
+// process substitution) is read as a stream to its end, as FollowReader
+// reads one. "-" is not special here: see FollowReader.
 //
 // In Follow mode the parent directory is watched with inotify and events
 // are filtered by name, so appends, truncation, copytruncate rotation,
@@ -59,6 +57,9 @@ const (
 // stat poll backs it up (Options.Poll). The log is opened read-only and
 // never written, locked, truncated or renamed.
 func Follow(ctx context.Context, path string, opts Options) (<-chan Batch, error) {
+	if fi, err := os.Stat(path); err == nil && !fi.IsDir() && !fi.Mode().IsRegular() {
+		return followStream(ctx, path, opts)
+	}
 	t, err := newTailer(path, opts)
 	if err != nil {
 		return nil, err
@@ -89,6 +90,35 @@ func newTailer(path string, opts Options) (*tailer, error) {
 		return nil, err
 	}
 	return t, nil
+}
+
+// followStream reads a path that is not a regular file (a named pipe,
+// /dev/stdin, a process substitution such as <(python train.py)) as a
+// stream, the way FollowReader reads a pipe: it cannot be re-read or
+// polled, and its end is the end of the run. The open is done in the
+// goroutine, because opening a named pipe waits for its writer.
+func followStream(ctx context.Context, path string, opts Options) (<-chan Batch, error) {
+	if err := opts.validate(); err != nil {
+		return nil, err
+	}
+	out := make(chan Batch, 4)
+	ing := newIngester(path, opts, time.Now)
+	go func() {
+		f, err := os.Open(path)
+		if err != nil {
+			ing.notice(fmt.Sprintf("open log %q: %v", path, unwrapPath(err)))
+			ing.stats.State = StateFinished
+			select {
+			case out <- ing.take():
+			case <-ctx.Done():
+			}
+			close(out)
+			return
+		}
+		defer f.Close()
+		pump(ctx, f, ing, out)
+	}()
+	return out, nil
 }
 
 // openLog opens a log read-only and refuses a directory.
@@ -132,7 +162,6 @@ type tailer struct {
 	head   []byte // the first bytes of the file, for the fingerprint
 	seen   bool   // a file was read under this name before
 	buf    []byte
-	ahead  [2][]byte // buffers of readAhead
 	sent   Stats
 	sentAt time.Time
 }
@@ -207,6 +236,8 @@ func (t *tailer) loop(ctx context.Context, events <-chan fsnotify.Event, errs <-
 			}
 			if errors.Is(err, fsnotify.ErrEventOverflow) {
 				t.ing.notice("file events were lost (queue overflow): checking the file again")
+			} else {
+				t.ing.notice(fmt.Sprintf("file watch: %v (checking every %v)", err, interval))
 			}
 		case <-tick.C:
 		}
@@ -285,10 +316,6 @@ func (t *tailer) read(ctx context.Context) {
 		}
 	}
 	for ctx.Err() == nil {
-		if c := t.ing.fastCSV(); c != nil && t.backlog() > readAheadMin {
-			t.readAhead(ctx, c)
-			break
-		}
 		n, err := t.f.ReadAt(t.buf, t.offset)
 		if n > 0 {
 			if len(t.head) < fingerprintBytes && t.offset < fingerprintBytes {
@@ -308,73 +335,6 @@ func (t *tailer) read(ctx context.Context) {
 		}
 	}
 	t.ing.caughtUp()
-}
-
-// backlog is how many bytes of the file are not read yet.
-func (t *tailer) backlog() int64 {
-	fi, err := t.f.Stat()
-	if err != nil {
-		return 0
-	}
-	return fi.Size() - t.offset
-}
-
-// readAhead reads a CSV backlog to the end of the file in two stages: a
-// worker goroutine prescans chunk k+1 while the ingester files chunk k.
-// The head of the file has been read already (readAheadMin > 0), so the
-// fingerprint is complete.
-func (t *tailer) readAhead(ctx context.Context, c *csvDecoder) {
-	type stage struct {
-		buf  []byte
-		n    int
-		err  error
-		pre  prescan
-		done chan struct{}
-	}
-	if t.ahead[0] == nil {
-		t.ahead[0], t.ahead[1] = make([]byte, readChunk), make([]byte, readChunk)
-	}
-	var st [2]stage
-	for k := range st {
-		st[k].buf = t.ahead[k]
-	}
-	next := t.offset
-	start := func(s *stage) {
-		s.n, s.err = t.f.ReadAt(s.buf, next)
-		next += int64(s.n)
-		s.done = make(chan struct{})
-		go func(chunk []byte) {
-			s.pre.scan(chunk, c.recs.delim)
-			close(s.done)
-		}(s.buf[:s.n])
-	}
-	cur, other := &st[0], &st[1]
-	start(cur)
-	for {
-		if cur.err == nil && ctx.Err() == nil {
-			start(other) // read and prescan the next chunk meanwhile
-		}
-		<-cur.done
-		if cur.n > 0 {
-			t.offset += int64(cur.n)
-			t.ing.feedPrescanned(cur.buf[:cur.n], c, &cur.pre)
-		}
-		if cur.err != nil || ctx.Err() != nil {
-			if cur.err != nil && cur.err != io.EOF {
-				t.ing.notice(fmt.Sprintf("read %s: %v", t.ing.name, unwrapPath(cur.err)))
-			}
-			if other.done != nil && cur.err == nil {
-				<-other.done // ctx ended: let the worker finish with its buffer
-			}
-			return
-		}
-		if t.full() && !t.send(ctx) {
-			<-other.done
-			return
-		}
-		cur.done = nil
-		cur, other = other, cur
-	}
 }
 
 func (t *tailer) restart(why string) {

@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 	"sync"
+	"syscall"
 	"testing"
 	"time"
 
@@ -191,9 +192,7 @@ func TestFollow_AppendAndPartialLine(t *testing.T) {
 	if v, _ := sample(t, f.lastPoint(), "val_loss"); v != 0.55 {
 		t.Errorf("val_loss = %v", v)
 	}
-	if f.stats.State != StateLive {
-		t.Errorf("state = %v", f.stats.State)
-	}
+	f.waitFor(t, "state live", func(f *follower) bool { return f.stats.State == StateLive })
 }
 
 // TestFollow_Coalescing appends from a writer goroutine as fast as it can;
@@ -240,7 +239,7 @@ func TestFollow_Truncation(t *testing.T) {
 	}
 }
 
-// TestFollow_CopyTruncate rotates the way logrotate's copytruncate does:
+// TestFollow_CopyTruncate rotates by copytruncate:
 // copy the log aside, truncate it in place, and the writer goes on.
 func TestFollow_CopyTruncate(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
@@ -423,6 +422,54 @@ func TestFollowReader_Pipe(t *testing.T) {
 	case <-f.done:
 	case <-time.After(waitTimeout):
 		t.Fatal("channel not closed at EOF")
+	}
+	if fmt.Sprint(epochs(f.points)) != "[1 2]" || f.stats.State != StateFinished {
+		t.Errorf("epochs %v state %v", epochs(f.points), f.stats.State)
+	}
+}
+
+// TestFollow_NoticesSanitized: a file name is untrusted text too.
+func TestFollow_NoticesSanitized(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run\x1b[2J\x07.csv")
+	f := startFollow(t, path, Options{})
+	f.waitNotice(t, "waiting for")
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	for _, n := range f.notices {
+		if strings.ContainsAny(n, "\x1b\x07") {
+			t.Errorf("notice not sanitized: %q", n)
+		}
+	}
+	if f.stats.LastWrite != (time.Time{}) {
+		t.Errorf("LastWrite = %v before any byte", f.stats.LastWrite)
+	}
+}
+
+// TestFollow_NamedPipe: a path that is a pipe (mkfifo, or a process
+// substitution) is read as a stream to its end.
+func TestFollow_NamedPipe(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.fifo")
+	if err := syscall.Mkfifo(path, 0o600); err != nil {
+		t.Skipf("mkfifo: %v", err)
+	}
+	ch, err := Follow(context.Background(), path, Options{Follow: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := collectBatches(ch)
+	w, err := os.OpenFile(path, os.O_WRONLY, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fmt.Fprintln(w, header)
+	fmt.Fprintln(w, row(1))
+	f.waitEpochs(t, 1)
+	fmt.Fprintln(w, row(2))
+	w.Close()
+	select {
+	case <-f.done:
+	case <-time.After(waitTimeout):
+		t.Fatal("channel not closed at the pipe's end")
 	}
 	if fmt.Sprint(epochs(f.points)) != "[1 2]" || f.stats.State != StateFinished {
 		t.Errorf("epochs %v state %v", epochs(f.points), f.stats.State)

@@ -71,8 +71,11 @@ func newIngester(name string, opts Options, now func() time.Time) *ingester {
 
 func (g *ingester) point(p diagnose.Point)  { g.batch.Points = append(g.batch.Points, p) }
 func (g *ingester) step(r diagnose.StepRow) { g.batch.Steps = append(g.batch.Steps, r) }
+
+// notice reports a message; it may quote the log's name or an error about
+// it, so it is sanitized whole.
 func (g *ingester) notice(text string) {
-	g.batch.Notices = append(g.batch.Notices, Notice{Time: g.now(), Text: text})
+	g.batch.Notices = append(g.batch.Notices, Notice{Time: g.now(), Text: Sanitize(text)})
 }
 
 // feed reads the next bytes of the source.
@@ -133,9 +136,6 @@ func (g *ingester) hold(p []byte) {
 		return
 	}
 	g.carry = append(g.carry, p...)
-	if cap(g.carry) > 4*maxLineBytes {
-		g.carry = append([]byte(nil), g.carry...)
-	}
 }
 
 func (g *ingester) tooLong(head []byte) {
@@ -240,7 +240,12 @@ func (g *ingester) reset(why string) {
 // endOfInput finishes a source that will not grow: an unterminated last
 // line is read and the open point handed on.
 func (g *ingester) endOfInput() {
-	if len(g.carry) > 0 && !g.skipping {
+	switch {
+	case g.skipping: // an over-long last line, reported already
+		g.skipping = false
+		g.lineNo++
+		g.stats.Lines++
+	case len(g.carry) > 0:
 		line := g.carry
 		g.carry = nil
 		g.line(line)

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"math"
 	"strconv"
-	"unicode/utf16"
 	"unicode/utf8"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -37,19 +36,31 @@ type jsonDecoder struct {
 	i   int
 	key []byte // the flattened key being read
 	tmp []byte // unescaped strings
-	// roles of flattened keys, by name; -1 when not yet seen
-	roleOf map[string]cellRole
-	colOf  map[string]int
+	// keys maps flattened keys to what they feed. Records of one log
+	// repeat their keys in the same order, so seen[k] remembers the k-th
+	// value key of the previous record: a byte comparison instead of a
+	// hash for almost every key.
+	keys map[string]keyRole
+	seen []keyRole
+	nth  int
+}
+
+// keyRole is what a flattened key feeds: a cell role and, for values and
+// time columns, the assembler's column.
+type keyRole struct {
+	key  string
+	role cellRole
+	col  int
 }
 
 func newJSONDecoder(ing *ingester, asm *assembler) *jsonDecoder {
-	return &jsonDecoder{ing: ing, asm: asm, roleOf: map[string]cellRole{}, colOf: map[string]int{}}
+	return &jsonDecoder{ing: ing, asm: asm, keys: map[string]keyRole{}}
 }
 
 func (d *jsonDecoder) finish() {}
 
 func (d *jsonDecoder) decode(line []byte, n int) {
-	d.p, d.i = line, 0
+	d.p, d.i, d.nth = line, 0, 0
 	d.skipSpace()
 	if d.i == len(d.p) {
 		return
@@ -175,7 +186,10 @@ func (d *jsonDecoder) value(depth int) error {
 		if !d.scanNumber() {
 			return errJSONSyntax
 		}
-		v, ok := parseNumber(d.p[start:d.i])
+		v, end, ok := fastFloat(d.p[:d.i], start)
+		if !ok || end != d.i {
+			v, ok = slowNumber(d.p[start:d.i])
+		}
 		if !ok {
 			return errJSONSyntax
 		}
@@ -203,311 +217,46 @@ func (d *jsonDecoder) value(depth int) error {
 	return errJSONSyntax
 }
 
-func (d *jsonDecoder) lit(s string) error {
-	if !d.literal(s) {
-		return errJSONSyntax
-	}
-	return nil
-}
-
-func (d *jsonDecoder) literal(s string) bool {
-	if len(d.p)-d.i < len(s) || string(d.p[d.i:d.i+len(s)]) != s {
-		return false
-	}
-	d.i += len(s)
-	return true
-}
-
-// scanNumber moves over a number with the grammar of RFC 8259 §6.
-func (d *jsonDecoder) scanNumber() bool {
-	p, i := d.p, d.i
-	if i < len(p) && p[i] == '-' {
-		i++
-	}
-	switch {
-	case i < len(p) && p[i] == '0':
-		i++
-	case i < len(p) && p[i] >= '1' && p[i] <= '9':
-		for i < len(p) && p[i] >= '0' && p[i] <= '9' {
-			i++
-		}
-	default:
-		return false
-	}
-	if i < len(p) && p[i] == '.' {
-		i++
-		if i >= len(p) || p[i] < '0' || p[i] > '9' {
-			return false
-		}
-		for i < len(p) && p[i] >= '0' && p[i] <= '9' {
-			i++
-		}
-	}
-	if i < len(p) && (p[i] == 'e' || p[i] == 'E') {
-		i++
-		if i < len(p) && (p[i] == '+' || p[i] == '-') {
-			i++
-		}
-		if i >= len(p) || p[i] < '0' || p[i] > '9' {
-			return false
-		}
-		for i < len(p) && p[i] >= '0' && p[i] <= '9' {
-			i++
-		}
-	}
-	d.i = i
-	return true
-}
-
-// str reads a string at d.i and returns its text: a slice of the line when
-// it has no escapes, else unescaped into d.tmp. Invalid UTF-8 becomes
-// U+FFFD, as encoding/json does.
-func (d *jsonDecoder) str() ([]byte, error) {
-	d.i++ // "
-	start := d.i
-	p := d.p
-	for i := start; i < len(p); i++ {
-		c := p[i]
-		if c == '"' {
-			d.i = i + 1
-			return p[start:i], nil
-		}
-		if c == '\\' || c < 0x20 || c >= utf8.RuneSelf {
-			return d.strSlow(start)
-		}
-	}
-	return nil, errJSONSyntax
-}
-
-func (d *jsonDecoder) strSlow(start int) ([]byte, error) {
-	p := d.p
-	out := d.tmp[:0]
-	i := start
-	for i < len(p) {
-		c := p[i]
-		switch {
-		case c == '"':
-			d.i = i + 1
-			d.tmp = out
-			return out, nil
-		case c < 0x20:
-			return nil, errJSONSyntax
-		case c == '\\':
-			if i+1 >= len(p) {
-				return nil, errJSONSyntax
-			}
-			i++
-			switch p[i] {
-			case '"', '\\', '/':
-				out = append(out, p[i])
-			case 'b':
-				out = append(out, '\b')
-			case 'f':
-				out = append(out, '\f')
-			case 'n':
-				out = append(out, '\n')
-			case 'r':
-				out = append(out, '\r')
-			case 't':
-				out = append(out, '\t')
-			case 'u':
-				r, ok := hex4(p[i+1:])
-				if !ok {
-					return nil, errJSONSyntax
-				}
-				i += 4
-				if utf16.IsSurrogate(r) {
-					r2, ok2 := rune(-1), false
-					if i+6 < len(p) && p[i+1] == '\\' && p[i+2] == 'u' {
-						r2, ok2 = hex4(p[i+3:])
-					}
-					if dec := utf16.DecodeRune(r, r2); ok2 && dec != utf8.RuneError {
-						r = dec
-						i += 6
-					} else {
-						r = utf8.RuneError
-					}
-				}
-				out = utf8.AppendRune(out, r)
-			default:
-				return nil, errJSONSyntax
-			}
-			i++
-		case c < utf8.RuneSelf:
-			out = append(out, c)
-			i++
-		default:
-			r, size := utf8.DecodeRune(p[i:])
-			if r == utf8.RuneError && size == 1 {
-				out = utf8.AppendRune(out, utf8.RuneError)
-			} else {
-				out = append(out, p[i:i+size]...)
-			}
-			i += size
-		}
-	}
-	d.tmp = out
-	return nil, errJSONSyntax
-}
-
-func hex4(p []byte) (rune, bool) {
-	if len(p) < 4 {
-		return 0, false
-	}
-	var r rune
-	for _, c := range p[:4] {
-		switch {
-		case c >= '0' && c <= '9':
-			r = r<<4 | rune(c-'0')
-		case c >= 'a' && c <= 'f':
-			r = r<<4 | rune(c-'a'+10)
-		case c >= 'A' && c <= 'F':
-			r = r<<4 | rune(c-'A'+10)
-		default:
-			return 0, false
-		}
-	}
-	return r, true
-}
-
-// skipArray moves over an array; arrays hold no metric of ours (a list of
-// per-class values is not one value), but must be well formed.
-func (d *jsonDecoder) skipArray(depth int) error {
-	if depth >= maxJSONDepth {
-		return errJSONDepth
-	}
-	d.i++ // [
-	d.skipSpace()
-	if d.i < len(d.p) && d.p[d.i] == ']' {
-		d.i++
-		return nil
-	}
-	saved := len(d.key)
-	for {
-		d.skipSpace()
-		if err := d.skipValue(depth); err != nil {
-			return err
-		}
-		d.key = d.key[:saved]
-		d.skipSpace()
-		if d.i >= len(d.p) {
-			return errJSONSyntax
-		}
-		switch d.p[d.i] {
-		case ',':
-			d.i++
-		case ']':
-			d.i++
-			return nil
-		default:
-			return errJSONSyntax
-		}
-	}
-}
-
-// skipValue moves over a value inside an array without recording it.
-func (d *jsonDecoder) skipValue(depth int) error {
-	if d.i >= len(d.p) {
-		return errJSONSyntax
-	}
-	switch c := d.p[d.i]; {
-	case c == '{':
-		return d.skipObject(depth + 1)
-	case c == '[':
-		return d.skipArray(depth + 1)
-	case c == '"':
-		_, err := d.str()
-		return err
-	case c == '-' || c >= '0' && c <= '9':
-		if c == '-' && d.i+1 < len(d.p) && d.p[d.i+1] == 'I' {
-			d.i++
-			return d.lit("Infinity")
-		}
-		if !d.scanNumber() {
-			return errJSONSyntax
-		}
-		return nil
-	case c == 't':
-		return d.lit("true")
-	case c == 'f':
-		return d.lit("false")
-	case c == 'n':
-		return d.lit("null")
-	case c == 'N':
-		return d.lit("NaN")
-	case c == 'I':
-		return d.lit("Infinity")
-	}
-	return errJSONSyntax
-}
-
-func (d *jsonDecoder) skipObject(depth int) error {
-	if depth >= maxJSONDepth {
-		return errJSONDepth
-	}
-	d.i++
-	d.skipSpace()
-	if d.i < len(d.p) && d.p[d.i] == '}' {
-		d.i++
-		return nil
-	}
-	for {
-		d.skipSpace()
-		if d.i >= len(d.p) || d.p[d.i] != '"' {
-			return errJSONSyntax
-		}
-		if _, err := d.str(); err != nil {
-			return err
-		}
-		d.skipSpace()
-		if d.i >= len(d.p) || d.p[d.i] != ':' {
-			return errJSONSyntax
-		}
-		d.i++
-		d.skipSpace()
-		if err := d.skipValue(depth); err != nil {
-			return err
-		}
-		d.skipSpace()
-		if d.i >= len(d.p) {
-			return errJSONSyntax
-		}
-		switch d.p[d.i] {
-		case ',':
-			d.i++
-		case '}':
-			d.i++
-			return nil
-		default:
-			return errJSONSyntax
-		}
-	}
-}
-
 // role looks up (or learns) what the current key feeds.
 func (d *jsonDecoder) role() (cellRole, int) {
-	if r, ok := d.roleOf[string(d.key)]; ok {
-		return r, d.colOf[string(d.key)]
+	k := d.nth
+	d.nth++
+	if k < len(d.seen) && d.seen[k].key == string(d.key) {
+		return d.seen[k].role, d.seen[k].col
 	}
-	name := string(d.key)
+	kr, ok := d.keys[string(d.key)]
+	if !ok {
+		kr = d.learn(string(d.key))
+	}
+	if k < len(d.seen) {
+		d.seen[k] = kr
+	} else if k == len(d.seen) && k < maxJSONKeys {
+		d.seen = append(d.seen, kr)
+	}
+	return kr.role, kr.col
+}
+
+// maxJSONKeys bounds the remembered key order; a record with more value
+// keys is still read, through the map only. Unit: keys.
+const maxJSONKeys = 1024
+
+func (d *jsonDecoder) learn(name string) keyRole {
 	col := d.asm.roles.column(name)
-	var r cellRole
-	ci := -1
+	kr := keyRole{key: name, col: -1}
 	switch col.Kind {
 	case diagnose.KindEpoch:
-		r = cellEpoch
+		kr.role = cellEpoch
 	case diagnose.KindStep:
-		r = cellStep
+		kr.role = cellStep
 	case diagnose.KindTime:
-		r = cellTime
-		ci = d.asm.column(name)
+		kr.role, kr.col = cellTime, d.asm.column(name)
 	default:
-		r = cellValue
-		ci = d.asm.column(name)
+		kr.role, kr.col = cellValue, d.asm.column(name)
 	}
-	d.roleOf[name] = r
-	d.colOf[name] = ci
-	return r, ci
+	if len(d.keys) < 2*maxColumns { // bounded like the column table
+		d.keys[name] = kr
+	}
+	return kr
 }
 
 func (d *jsonDecoder) number(v float64) {
@@ -533,13 +282,13 @@ func (d *jsonDecoder) stringValue(s []byte) {
 	}
 	// Only a time column reads strings; look it up without learning keys
 	// that hold only text (run names, paths).
-	r, ok := d.roleOf[string(d.key)]
+	kr, ok := d.keys[string(d.key)]
 	if !ok {
 		if c := ParseColumn(string(d.key)); c.Kind == diagnose.KindTime {
-			r, _ = d.role()
-			ok = true
+			kr, ok = d.learn(string(d.key)), true
 		}
 	}
+	r := kr.role
 	if ok && r == cellTime {
 		if t, tok := parseTime(s); tok {
 			d.asm.timeValue(t)

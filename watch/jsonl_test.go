@@ -157,8 +157,8 @@ func decodeJSON(line []byte) (map[string]float64, bool) {
 		return nil, false
 	}
 	out := map[string]float64{}
-	for k, ci := range g.asm.rowIdx {
-		out[g.asm.cols[ci].col.Name] = g.asm.rowVal[k]
+	for _, r := range g.asm.row {
+		out[g.asm.cols[r.col].col.Name] = r.v
 	}
 	return out, true
 }
@@ -262,5 +262,31 @@ func TestReadAll_FractionalEpochs(t *testing.T) {
 	}
 	if v, _ := sample(t, points[1], "eval_loss"); v != 0.75 {
 		t.Errorf("eval_loss = %v", v)
+	}
+}
+
+// TestReadAll_ColumnLimit: a log that invents a name on every line does not
+// grow the column table past maxColumns.
+func TestReadAll_ColumnLimit(t *testing.T) {
+	var b strings.Builder
+	for i := 0; i < maxColumns+50; i++ {
+		b.WriteString(`{"loss": 0.5, "sample_` + strconv.Itoa(i) + `": 1}` + "\n")
+	}
+	var notices []string
+	var points []diagnose.Point
+	for batch := range FollowReader(t.Context(), "x", strings.NewReader(b.String()), Options{}) {
+		for _, n := range batch.Notices {
+			notices = append(notices, n.Text)
+		}
+		for _, p := range batch.Points {
+			points = AppendPoint(points, p)
+		}
+	}
+	if len(notices) != 1 || !strings.Contains(notices[0], "distinct column names") {
+		t.Errorf("notices = %q", notices)
+	}
+	last := points[len(points)-1]
+	if len(last.Samples) != 1 || last.Samples[0].Column.Name != "loss" {
+		t.Errorf("last point = %+v", last.Samples)
 	}
 }

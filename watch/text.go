@@ -106,6 +106,9 @@ func (d *textDecoder) decode(line []byte, n int) {
 	a.beginRow()
 	for _, p := range d.pairs {
 		ci := a.column(p.name)
+		if ci < 0 {
+			continue
+		}
 		switch a.cols[ci].col.Kind {
 		case diagnose.KindEpoch:
 			continue // the marker, already read
@@ -121,14 +124,14 @@ func (d *textDecoder) decode(line []byte, n int) {
 			a.value(ci, v)
 		}
 	}
-	if len(a.rowIdx) == 0 && !a.rowHasStep {
+	if len(a.row) == 0 && !a.rowHasStep {
 		return
 	}
 	if !a.g.open {
 		a.ordinal++
 		a.startGroup(a.ordinal, false)
 	}
-	hasEval := a.rowHasEvalValue()
+	hasEval := a.rowEval
 	if hasEval {
 		a.evalSeen = true
 	}

@@ -78,7 +78,7 @@ func TestReadAll_TextEpochs(t *testing.T) {
 		"10/10 [==>...] - loss: 0.9\r10/10 [=====] - 1s - loss: 0.5 - accuracy: 0.8 - val_loss: 0.6 - val_accuracy: 0.7\n" +
 		"Epoch 2/3\n" +
 		"\x1b[32m10/10\x1b[0m - loss: 0.4 - accuracy: 0.85 - val_loss: 0.55 - val_accuracy: 0.75\n" +
-		"saving checkpoint to ./ckpt/model_2.pt\n" +
+		"saving checkpoint to ./ckpt/model_2.bin\n" +
 		"Epoch 3/3\n" +
 		"10/10 - loss: 0.3\n"
 	points, st := readString(t, in, Options{})
