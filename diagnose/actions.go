@@ -38,7 +38,7 @@ func (t *Tracker) actions(i int) []Action {
 	case Diverging:
 		why := t.text().s("non-finite values at epoch ").n(p.Epoch).done()
 		if r.blowup != blowNone {
-			why = t.text().s("training ").s(name).s(" ").val(r.raw[SplitTrain]).s(" vs best ").val(st.trMin).s(", rising for two epochs").done()
+			why = t.text().s("smoothed training ").s(name).s(" ").val(r.sm[SplitTrain]).s(" vs best ").val(st.trMin).s(", rising for two epochs").done()
 		}
 		if bestEpoch > 0 && st.bestIdx != int32(i) {
 			restore("restore the checkpoint of epoch " + itoa(bestEpoch))

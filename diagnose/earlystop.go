@@ -153,7 +153,7 @@ func (t *Tracker) earlyStop(i int) {
 		r.signal, r.why = Stop, reasonPQ
 	case st.bestIdx >= 0 && 2*r.since >= t.cfg.Patience:
 		r.signal, r.why = Watch, reasonAging
-	case st.up >= 1:
+	case st.up >= 1 && !newBest: // a new best contradicts "rising"
 		r.signal, r.why = Watch, reasonUP
 	case st.gl.OK && st.gl.V > watchGL:
 		r.signal, r.why = Watch, reasonGL

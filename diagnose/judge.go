@@ -107,7 +107,7 @@ func (t *Tracker) reasonText(i int) string {
 		w.s("validation ").s(name).s(" rose over the last ").n(int(st.up)).s(" strip(s) of ").n(t.cfg.Strip)
 	case reasonGL:
 		// GL is measured from the best epoch, the one to restore.
-		w.s("smoothed validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is ").f(st.gl.V, 1).s("% above its best ").
+		w.s("smoothed validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is up ").f(st.gl.V, 1).s("% relative to its best ").
 			val(st.best).s(" at epoch ").n(t.points[st.bestIdx].Epoch).s(" (generalization loss)")
 	case reasonPlateau:
 		w.s("validation ").s(name).s(" has plateaued")

@@ -138,7 +138,7 @@ type EarlyStop struct {
 	BestEpoch       int     `json:"best_epoch"`
 	BestVal         Num     `json:"best_val"`
 	EpochsSinceBest int     `json:"epochs_since_best"`
-	GL              Num     `json:"gl"` // Prechelt generalization loss, percent
+	GL              Num     `json:"gl"` // Prechelt generalization loss, percent, from BestVal (the smoothed value at BestEpoch)
 	PK              Num     `json:"p5"` // Prechelt training progress over a strip, per mille
 	PQ              Num     `json:"pq"` // GL / P_k at strip ends
 	UP              int     `json:"up"` // successive strips with rising validation error

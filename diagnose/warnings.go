@@ -199,13 +199,13 @@ func (t *Tracker) warningTexts(i int) []string {
 		add(w.s(": training has diverged or the inputs hold NaN/Inf"))
 	}
 	if r.warn&warnBlowup != 0 {
-		w := t.text().s("training ").s(name).s(" ").val(r.raw[SplitTrain]).s(" has risen for two epochs to ")
+		w := t.text().s("training ").s(name).s(" has risen for two epochs: smoothed ").val(r.sm[SplitTrain]).s(" is ")
 		if r.blowup == blowStart {
-			w.s("more than twice its start ").val(st.trStart)
+			w.s("more than three times its start ").val(st.trStart)
 		} else {
 			w.s("more than half-way back from its best ").val(st.trMin).s(" to its start ").val(st.trStart)
 		}
-		add(w.s(", ").gap(r.raw[SplitTrain] - st.trMin).s(" above its best, beyond its epoch-to-epoch noise: diverging"))
+		add(w.s(", ").gap(r.sm[SplitTrain] - st.trMin).s(" above its best, beyond its epoch-to-epoch noise: diverging"))
 	}
 	if r.warn&warnBayesAssumed != 0 {
 		add(t.text().s("optimal error not given: taken as 0, so the avoidable bias ").gap(r.comp[AvoidableBias].V).

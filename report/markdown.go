@@ -50,7 +50,12 @@ func (s Summary) Markdown() string {
 		}
 		b.WriteString(" (high: " + strings.Join(high, ", ") + ")")
 	}
-	b.WriteString(". " + progressWords(s.Progress) + ".\n\n")
+	if s.Diagnosis != diagnose.Diverging.String() {
+		// The trend of a diverging run is beside the point (and with a
+		// NaN it is the trend of the values before it).
+		b.WriteString(". " + progressWords(s.Progress))
+	}
+	b.WriteString(".\n\n")
 
 	b.WriteString("| split | smoothed | logged |\n|---|---:|---:|\n")
 	for _, row := range []struct {

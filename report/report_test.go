@@ -192,3 +192,37 @@ func TestSummary_Sanitized(t *testing.T) {
 		t.Errorf("pipe in a metric name is not escaped in the Markdown:\n%s", md)
 	}
 }
+
+// TestMarkdown_Prose checks what the coordinator found: the Markdown ends
+// with exactly one newline (it is printed as is, and files end in one),
+// and its prose names diagnoses and components in words, never by their
+// machine names ("work on avoidable bias first", not "avoidable-bias").
+// Source: common practice (POSIX text files end with a newline).
+func TestMarkdown_Prose(t *testing.T) {
+	machine := []string{"too-early", "high-bias", "high-variance", "data-mismatch", "good-fit", "avoidable-bias", "val-overfit", "high-bias-high-variance"}
+	tests := []struct {
+		name string
+		s    Summary
+	}{
+		{"Overfit", Build(Source{Name: "a.csv", Format: "csv", Points: 40}, overfitRun(diagnose.Config{BayesError: 0.03, BayesErrorGiven: true}, 40))},
+		{"HighBias", BuildAt(Source{Name: "a.csv", Format: "csv", Points: 40}, overfitRun(diagnose.Config{BayesError: 0.03, BayesErrorGiven: true}, 40), 7)},
+		{"Mismatch", Build(Source{Name: "b.tsv", Format: "tsv", Points: 12}, mismatchRun())},
+		{"Diverging", Build(Source{Name: "c.log", Format: "text", Points: 4}, hostileRun())},
+		{"TooEarly", Build(Source{Name: "d.csv"}, overfitRun(diagnose.Config{}, 2))},
+		{"Empty", Build(Source{Name: "e.csv"}, diagnose.New(diagnose.Config{}))},
+		{"Nil", Build(Source{}, nil)},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			md := tc.s.Markdown()
+			if !strings.HasSuffix(md, "\n") || strings.HasSuffix(md, "\n\n") {
+				t.Errorf("Markdown does not end with exactly one newline: %q", md[max(0, len(md)-40):])
+			}
+			for _, m := range machine {
+				if strings.Contains(md, m) {
+					t.Errorf("Markdown uses the machine name %q:\n%s", m, md)
+				}
+			}
+		})
+	}
+}
