@@ -3,6 +3,8 @@ package tui
 import (
 	"math"
 	"strconv"
+
+	"github.com/NimbleMarkets/ntcharts/canvas/runes"
 )
 
 // curve is one series of the main chart, already downsampled.
@@ -36,6 +38,15 @@ type chartSpec struct {
 	cursor     float64 // inspected epoch
 	hasCursor  bool
 	bad        []float64 // epochs with a non-finite value
+	off        []offMark // values outside [ymin, ymax], in curve order
+}
+
+// offMark is a value the y range leaves out: an early epoch far above the
+// rest, kept off the scale so that it does not squash the curves.
+type offMark struct {
+	x, y float64 // epoch, plotted value
+	up   bool    // above the range (else below)
+	cls  class   // the series' class
 }
 
 // Glyphs of the main chart. They are plain ASCII so that they keep their
@@ -46,6 +57,14 @@ const (
 	glyphTrainDev = '+'
 	glyphBest     = '*'
 	glyphBad      = '!'
+	// An arrow at the plot's edge marks a value off the scale. Like the
+	// box-drawing axes, arrows are one column wide except in terminals
+	// set to draw East Asian ambiguous-width characters wide.
+	glyphAbove = '↑'
+	glyphBelow = '↓'
+	// glyphCursor is the inspected epoch's line, on the main chart and in
+	// the sparklines.
+	glyphCursor = runes.LineVertical
 )
 
 // markerSpacing is the distance in columns between two markers of one
@@ -57,7 +76,7 @@ const markerSpacing = 9
 // scratch memory between frames, never data.
 type curveChart struct {
 	grid  cells
-	mask  []uint8 // braille dots per plot cell, all layers
+	mask  []rune  // braille cell per plot cell, all layers merged; 0 when empty
 	owner []class // the layer that last put a dot in the cell
 	lo    []float64
 	hi    []float64
@@ -122,100 +141,63 @@ func (c *curveChart) draw(w, h int, spec *chartSpec, st *Styles) []string {
 		return g.lines(st)
 	}
 	c.legend(spec, ansiLen(spec.title)+2, w)
-
-	W2, H4 := box.pw*2, box.ph*4
-	xspan := spec.xmax - spec.xmin
-	yspan := spec.ymax - spec.ymin
-	dotX := func(x float64) int {
-		if !(xspan > 0) {
-			return W2 / 2
-		}
-		return int(math.Round((x - spec.xmin) / xspan * float64(W2-1)))
-	}
-	dotY := func(y float64) int {
-		if !(yspan > 0) {
-			return H4 / 2
-		}
-		return int(math.Round((spec.ymax - y) / yspan * float64(H4-1)))
-	}
+	pm := newPlotMap(box.pw, box.ph, spec.xmin, spec.xmax, spec.ymin, spec.ymax)
 
 	n := box.pw * box.ph
 	if cap(c.mask) < n {
-		c.mask = make([]uint8, n)
+		c.mask = make([]rune, n)
 		c.owner = make([]class, n)
 	}
 	c.mask, c.owner = c.mask[:n], c.owner[:n]
 	clear(c.mask)
 	clear(c.owner)
-	dot := func(px, py int, cls class) {
-		if px < 0 || py < 0 || px >= W2 || py >= H4 {
-			return
-		}
-		i := (py/4)*box.pw + px/2
-		c.mask[i] |= brailleBit[px&1][py&3]
-		c.owner[i] = cls
-	}
 
+	l := newLayer(pm, c.owner)
 	if spec.band != nil {
-		c.drawBand(spec, box, dotY, dot)
+		l.cls = clsSteps
+		c.drawBand(spec, box, l)
 	}
 	for _, cv := range spec.curves {
-		prevOK := false
-		var px, py int
-		for _, p := range cv.pts {
-			if !isFinite(p.Y) {
-				prevOK = false
-				continue
-			}
-			x, y := dotX(p.X), dotY(p.Y)
-			if prevOK {
-				line(px, py, x, y, func(a, b int) { dot(a, b, cv.cls) })
-			} else {
-				dot(x, y, cv.cls)
-			}
-			px, py, prevOK = x, y, true
-		}
+		l.cls = cv.cls
+		l.polyline(cv.pts)
 	}
+	l.cells(c.mask)
 
 	// Cursor first, so curves and markers stay readable across it.
 	curCol := -1
 	if spec.hasCursor {
-		curCol = dotX(spec.cursor) / 2
+		curCol = pm.dotX(spec.cursor) / 2
 	}
 	for cy := 0; cy < box.ph; cy++ {
 		for cx := 0; cx < box.pw; cx++ {
 			i := cy*box.pw + cx
 			switch {
 			case c.mask[i] != 0:
-				g.set(box.x0+cx, box.y0+cy, rune(0x2800)|rune(c.mask[i]), c.owner[i])
+				g.set(box.x0+cx, box.y0+cy, c.mask[i], c.owner[i])
 			case cx == curCol:
-				g.set(box.x0+cx, box.y0+cy, '│', clsCursor)
+				g.set(box.x0+cx, box.y0+cy, glyphCursor, clsCursor)
 			}
 		}
 	}
 	for _, cv := range spec.curves {
-		c.markers(cv, box, dotX, dotY)
+		c.markers(cv, box, pm)
 	}
+	c.offScale(spec, box, pm)
 	if spec.hasBest && isFinite(spec.best.Y) {
-		g.set(box.x0+dotX(spec.best.X)/2, box.y0+clampInt(dotY(spec.best.Y)/4, 0, box.ph-1), glyphBest, clsBest)
+		g.set(box.x0+pm.dotX(spec.best.X)/2, box.y0+clampInt(pm.dotY(spec.best.Y)/4, 0, box.ph-1), glyphBest, clsBest)
 	}
 	for _, x := range spec.bad {
-		g.set(box.x0+dotX(x)/2, box.y0, glyphBad, clsBad)
+		g.set(box.x0+pm.dotX(x)/2, box.y0, glyphBad, clsBad)
 	}
-	c.axes(spec, box, dotX, dotY, curCol)
+	c.axes(spec, box, pm, curCol)
 	return g.lines(st)
 }
-
-// brailleBit maps a dot inside a braille cell (column 0–1, row 0–3) to its
-// bit in U+2800…U+28FF: dots 1, 2, 3, 7 down the left, 4, 5, 6, 8 down the
-// right (Unicode 15.0, §22.6 "Braille Patterns").
-var brailleBit = [2][4]uint8{{0x01, 0x02, 0x04, 0x40}, {0x08, 0x10, 0x20, 0x80}}
 
 // drawBand draws the per-step series as the envelope of its steps: the min
 // and the max of the steps under each braille column (min/max downsampling
 // keeps the spikes that averaging would hide). Values outside the y range
 // are clipped: the range follows the epoch curves, not per-step noise.
-func (c *curveChart) drawBand(spec *chartSpec, box plotBox, dotY func(float64) int, dot func(int, int, class)) {
+func (c *curveChart) drawBand(spec *chartSpec, box plotBox, l *layer) {
 	b := spec.band
 	W2 := box.pw * 2
 	if len(b.knots) < 2 || len(b.series.steps) == 0 {
@@ -243,7 +225,7 @@ func (c *curveChart) drawBand(spec *chartSpec, box plotBox, dotY func(float64) i
 			continue
 		}
 		l, h = b.conv(l), b.conv(h)
-		if math.IsNaN(l) || math.IsNaN(h) {
+		if !isFinite(l) || !isFinite(h) {
 			continue
 		}
 		if l > h {
@@ -254,30 +236,29 @@ func (c *curveChart) drawBand(spec *chartSpec, box plotBox, dotY func(float64) i
 	// The band's edges: the min and the max of each column, each joined to
 	// the previous column's, so the per-step spread shows as two thin
 	// lines around the epoch curve instead of a block that hides it.
-	pl, ph := -1, -1
+	colX := func(col int) float64 { return spec.xmin + float64(col)*xspan/float64(W2-1) }
 	for col := 0; col < W2; col++ {
 		if math.IsNaN(lo[col]) {
-			pl, ph = -1, -1
 			continue
 		}
-		top, bot := dotY(hi[col]), dotY(lo[col])
-		plot := func(x, y int) { dot(x, y, clsSteps) }
-		if ph >= 0 {
-			line(col-1, ph, col, top, plot)
-			line(col-1, pl, col, bot, plot)
+		x := colX(col)
+		if col > 0 && !math.IsNaN(lo[col-1]) {
+			px := colX(col - 1)
+			l.segment(xy{px, hi[col-1]}, xy{x, hi[col]})
+			l.segment(xy{px, lo[col-1]}, xy{x, lo[col]})
 		} else {
-			dot(col, top, clsSteps)
-			dot(col, bot, clsSteps)
+			l.point(xy{x, hi[col]})
+			l.point(xy{x, lo[col]})
 		}
-		ph, pl = top, bot
 	}
 }
 
 // markers puts a curve's glyph on the curve: on every point when the
 // points are sparse enough to tell apart, else every markerSpacing columns
 // (staggered by class so two curves' markers rarely share a column).
-func (c *curveChart) markers(cv curve, box plotBox, dotX, dotY func(float64) int) {
+func (c *curveChart) markers(cv curve, box plotBox, pm plotMap) {
 	g := &c.grid
+	dotX, dotY := pm.dotX, pm.dotY
 	finite := 0
 	for _, p := range cv.pts {
 		if isFinite(p.Y) {
@@ -324,18 +305,21 @@ func (c *curveChart) markers(cv curve, box plotBox, dotX, dotY func(float64) int
 
 // axes draws the y labels and axis, the x axis with epoch ticks, and the
 // cursor's place on the x axis.
-func (c *curveChart) axes(spec *chartSpec, box plotBox, dotX, dotY func(float64) int, curCol int) {
+func (c *curveChart) axes(spec *chartSpec, box plotBox, pm plotMap, curCol int) {
 	g := &c.grid
+	dotX, dotY := pm.dotX, pm.dotY
 	ax := box.x0 - 1
 	for cy := 0; cy < box.ph; cy++ {
-		g.set(ax, box.y0+cy, '│', clsAxis)
+		g.set(ax, box.y0+cy, runes.LineVertical, clsAxis)
 	}
+	lastRow := -1
 	for i, v := range box.yTicks {
 		cy := dotY(v) / 4
-		if cy < 0 || cy >= box.ph {
-			continue
+		if cy < 0 || cy >= box.ph || cy == lastRow {
+			continue // off the plot, or a row already labelled
 		}
-		g.set(ax, box.y0+cy, '┤', clsAxis)
+		lastRow = cy
+		g.set(ax, box.y0+cy, runes.LineVerticalLeft, clsAxis)
 		l := box.yLabel[i]
 		if len(l) > ax {
 			l = l[len(l)-ax:]
@@ -343,9 +327,9 @@ func (c *curveChart) axes(spec *chartSpec, box plotBox, dotX, dotY func(float64)
 		g.text(ax-len(l), box.y0+cy, l, clsAxis)
 	}
 	axisRow := box.y0 + box.ph
-	g.set(ax, axisRow, '└', clsAxis)
+	g.set(ax, axisRow, runes.LineUpRight, clsAxis)
 	for cx := 0; cx < box.pw; cx++ {
-		g.set(box.x0+cx, axisRow, '─', clsAxis)
+		g.set(box.x0+cx, axisRow, runes.LineHorizontal, clsAxis)
 	}
 	labelRow := axisRow + 1
 	// Epoch ticks: whole epochs, spaced so labels never touch.
@@ -364,14 +348,31 @@ func (c *curveChart) axes(spec *chartSpec, box plotBox, dotX, dotY func(float64)
 		l string
 	}
 	var ts []tick
-	for v := math.Ceil(spec.xmin/step) * step; v <= spec.xmax+1e-9; v += step {
+	put := func(v float64) {
 		cx := dotX(v) / 2
 		if cx < 0 || cx >= box.pw {
-			continue
+			return
 		}
-		g.set(box.x0+cx, axisRow, '┬', clsAxis)
+		g.set(box.x0+cx, axisRow, runes.LineHorizontalDown, clsAxis)
 		l := strconv.Itoa(int(math.Round(v)))
 		ts = append(ts, tick{min(box.x0+cx, g.w-len(l)), l})
+	}
+	lastTick := math.Inf(-1)
+	for v := math.Ceil(spec.xmin/step) * step; v <= spec.xmax+1e-9; v += step {
+		put(v)
+		lastTick = v
+	}
+	// The latest whole epoch gets a tick of its own, so that the axis says
+	// how far the run has come (36, not 35).
+	if last := math.Floor(spec.xmax + 1e-9); last > lastTick+1e-9 && last >= spec.xmin {
+		if n := len(ts); n > 0 {
+			// A tick too close to it gives way: its label could not show.
+			if prev := dotX(lastTick) / 2; dotX(last)/2-prev < len(strconv.Itoa(int(last)))+2 {
+				g.set(box.x0+prev, axisRow, runes.LineHorizontal, clsAxis)
+				ts = ts[:n-1]
+			}
+		}
+		put(last)
 	}
 	limit := g.w
 	if n := len(ts); n > 0 {
@@ -389,7 +390,7 @@ func (c *curveChart) axes(spec *chartSpec, box plotBox, dotX, dotY func(float64)
 		lastEnd = t.x + len(t.l)
 	}
 	if curCol >= 0 && curCol < box.pw {
-		g.set(box.x0+curCol, axisRow, '┴', clsCursor)
+		g.set(box.x0+curCol, axisRow, runes.LineHorizontalUp, clsCursor)
 	}
 }
 
@@ -415,6 +416,9 @@ func (c *curveChart) legend(spec *chartSpec, from, w int) {
 	if len(spec.bad) > 0 {
 		items = append(items, item{glyphBad, clsBad, "not finite"})
 	}
+	if len(spec.off) > 0 {
+		items = append(items, item{glyphAbove, clsAxis, "off scale"})
+	}
 	total := 0
 	for _, it := range items {
 		total += 2 + ansiLen(it.text) + 2
@@ -430,42 +434,6 @@ func (c *curveChart) legend(spec *chartSpec, from, w int) {
 		g.text(x+2, 0, it.text, clsDim)
 		x += need + 2
 	}
-}
-
-// line calls plot for each dot of the line from (x0, y0) to (x1, y1)
-// (Bresenham's algorithm, integer form for all octants).
-func line(x0, y0, x1, y1 int, plot func(int, int)) {
-	dx, dy := absInt(x1-x0), -absInt(y1-y0)
-	sx, sy := 1, 1
-	if x0 > x1 {
-		sx = -1
-	}
-	if y0 > y1 {
-		sy = -1
-	}
-	e := dx + dy
-	for i := 0; i < 1<<20; i++ { // bound: a corrupt coordinate cannot spin forever
-		plot(x0, y0)
-		if x0 == x1 && y0 == y1 {
-			return
-		}
-		e2 := 2 * e
-		if e2 >= dy {
-			e += dy
-			x0 += sx
-		}
-		if e2 <= dx {
-			e += dx
-			y0 += sy
-		}
-	}
-}
-
-func absInt(v int) int {
-	if v < 0 {
-		return -v
-	}
-	return v
 }
 
 func clampInt(v, lo, hi int) int {

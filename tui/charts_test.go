@@ -6,35 +6,139 @@ import (
 	"testing"
 	"unicode/utf8"
 
+	"github.com/NimbleMarkets/ntcharts/canvas"
+	"github.com/NimbleMarkets/ntcharts/canvas/graph"
+
 	"github.com/fitgap/fitgap/diagnose"
 )
 
-func TestLine_ConnectsEndpoints(t *testing.T) {
+// TestPlotMap_MatchesGridPoint checks that our dot mapping, used for the
+// markers and the axes, puts a value on the dot where the chart library's
+// braille grid draws it.
+func TestPlotMap_MatchesGridPoint(t *testing.T) {
 	tests := []struct {
-		name           string
-		x0, y0, x1, y1 int
+		name                   string
+		pw, ph                 int
+		xmin, xmax, ymin, ymax float64
 	}{
-		{"Flat", 0, 0, 9, 0},
-		{"Steep", 0, 0, 2, 11},
-		{"Backwards", 7, 5, -3, -1},
-		{"Point", 4, 4, 4, 4},
+		{"Epochs", 60, 12, 1, 36, 0, 0.55},
+		{"Wide", 197, 55, 1, 10000, 0.031, 0.6},
+		{"Log", 40, 8, 3, 9, -1.7, 0.3},
+		{"OneRow", 4, 1, 0, 1, -1, 1},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			var pts [][2]int
-			line(tt.x0, tt.y0, tt.x1, tt.y1, func(x, y int) { pts = append(pts, [2]int{x, y}) })
-			if pts[0] != [2]int{tt.x0, tt.y0} || pts[len(pts)-1] != [2]int{tt.x1, tt.y1} {
-				t.Fatalf("line does not run from (%d,%d) to (%d,%d): %v", tt.x0, tt.y0, tt.x1, tt.y1, pts)
-			}
-			for i := 1; i < len(pts); i++ {
-				dx, dy := absInt(pts[i][0]-pts[i-1][0]), absInt(pts[i][1]-pts[i-1][1])
-				if dx > 1 || dy > 1 {
-					t.Fatalf("gap between %v and %v", pts[i-1], pts[i])
+			pm := newPlotMap(tt.pw, tt.ph, tt.xmin, tt.xmax, tt.ymin, tt.ymax)
+			g := graph.NewBrailleGrid(tt.pw, tt.ph, tt.xmin, tt.xmax, tt.ymin, tt.ymax)
+			for i := 0; i <= 200; i++ {
+				x := tt.xmin + (tt.xmax-tt.xmin)*float64(i)/200
+				y := tt.ymin + (tt.ymax-tt.ymin)*float64((i*37)%201)/200
+				want := g.GridPoint(canvas.Float64Point{X: x, Y: y})
+				if gx, gy := pm.dotX(x), pm.dotY(y); gx != want.X || gy != want.Y {
+					t.Fatalf("(%g, %g): plotMap gives (%d, %d), GridPoint (%d, %d)", x, y, gx, gy, want.X, want.Y)
 				}
 			}
-			// Bresenham: one dot per step of the longer axis.
-			if want := max(absInt(tt.x1-tt.x0), absInt(tt.y1-tt.y0)) + 1; len(pts) != want {
-				t.Errorf("%d dots, want %d", len(pts), want)
+		})
+	}
+}
+
+// dotsOf returns the dots a layer set, as (x, y) in dots.
+func dotsOf(l *layer) map[[2]int]bool {
+	out := map[[2]int]bool{}
+	for cy, row := range l.grid.BraillePatterns() {
+		for cx, r := range row {
+			for dx := 0; dx < 2; dx++ {
+				for dy := 0; dy < 4; dy++ {
+					if r&brailleDot(dx, dy) != 0 {
+						out[[2]int{cx*2 + dx, cy*4 + dy}] = true
+					}
+				}
+			}
+		}
+	}
+	return out
+}
+
+// brailleDot is the bit of the dot in column dx (0–1), row dy (0–3) of a
+// braille cell: dots 1, 2, 3, 7 down the left, 4, 5, 6, 8 down the right
+// (Unicode 15.0, §22.6 "Braille Patterns").
+func brailleDot(dx, dy int) rune {
+	return [2][4]rune{{0x01, 0x02, 0x04, 0x40}, {0x08, 0x10, 0x20, 0x80}}[dx][dy]
+}
+
+func TestLayer_Segment(t *testing.T) {
+	pm := newPlotMap(10, 5, 0, 19, 0, 19) // one dot per unit: 20×20 dots
+	tests := []struct {
+		name  string
+		a, b  xy
+		dots  int      // dots set
+		ends  [][2]int // dots that must be set (x, y from the top)
+		empty bool
+	}{
+		{"Flat", xy{0, 0}, xy{19, 0}, 20, [][2]int{{0, 19}, {19, 19}}, false},
+		{"Steep", xy{2, 0}, xy{4, 11}, 12, [][2]int{{2, 19}, {4, 8}}, false},
+		{"Backwards", xy{15, 10}, xy{3, 1}, 13, [][2]int{{15, 9}, {3, 18}}, false},
+		// A value far off the scale costs only the dots inside the plot.
+		{"ClippedAbove", xy{0, 1e9}, xy{19, 0}, 20, [][2]int{{19, 19}}, false},
+		{"BothAbove", xy{0, 30}, xy{19, 25}, 0, nil, true},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			l := newLayer(pm, make([]class, 10*5))
+			l.segment(tt.a, tt.b)
+			got := dotsOf(l)
+			if tt.empty {
+				if len(got) != 0 {
+					t.Fatalf("segment %v–%v outside the plot set %d dots", tt.a, tt.b, len(got))
+				}
+				return
+			}
+			if len(got) != tt.dots {
+				t.Errorf("segment %v–%v set %d dots, want %d", tt.a, tt.b, len(got), tt.dots)
+			}
+			for _, e := range tt.ends {
+				if !got[e] {
+					t.Errorf("segment %v–%v: dot %v not set", tt.a, tt.b, e)
+				}
+			}
+			// Connected: every dot has a neighbour (8-connectivity).
+			for d := range got {
+				ok := len(got) == 1
+				for dx := -1; dx <= 1 && !ok; dx++ {
+					for dy := -1; dy <= 1 && !ok; dy++ {
+						ok = (dx != 0 || dy != 0) && got[[2]int{d[0] + dx, d[1] + dy}]
+					}
+				}
+				if !ok {
+					t.Fatalf("dot %v is isolated", d)
+				}
+			}
+		})
+	}
+}
+
+func TestClipSegment(t *testing.T) {
+	tests := []struct {
+		name   string
+		a, b   xy
+		wa, wb xy
+		ok     bool
+	}{
+		{"Inside", xy{1, 1}, xy{2, 2}, xy{1, 1}, xy{2, 2}, true},
+		{"TopEdge", xy{0, 20}, xy{10, 0}, xy{5, 10}, xy{10, 0}, true},
+		{"BothSides", xy{0, -10}, xy{10, 30}, xy{2.5, 0}, xy{5, 10}, true},
+		{"Outside", xy{0, 11}, xy{10, 12}, xy{}, xy{}, false},
+		{"Vertical", xy{3, -5}, xy{3, 15}, xy{3, 0}, xy{3, 10}, true},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			a, b, ok := clipSegment(tt.a, tt.b, 0, 10, 0, 10)
+			if ok != tt.ok {
+				t.Fatalf("clipSegment(%v, %v) ok = %v, want %v", tt.a, tt.b, ok, tt.ok)
+			}
+			near := func(p, q xy) bool { return math.Abs(p.X-q.X) < 1e-9 && math.Abs(p.Y-q.Y) < 1e-9 }
+			if ok && (!near(a, tt.wa) || !near(b, tt.wb)) {
+				t.Errorf("clipSegment(%v, %v) = %v, %v; want %v, %v", tt.a, tt.b, a, b, tt.wa, tt.wb)
 			}
 		})
 	}
@@ -49,18 +153,43 @@ func TestSparkRow(t *testing.T) {
 	}{
 		{"RightAligned", []float64{0, 7}, 4, "  ▁█"},
 		{"Ramp", []float64{0, 1, 2, 3, 4, 5, 6, 7}, 8, "▁▂▃▄▅▆▇█"},
+		// The library clamps negatives to 0: shifted by the minimum they keep their shape.
 		{"NegativesKeepShape", []float64{-7, 0}, 2, "▁█"},
+		{"AllNegative", []float64{-3, -2, -1}, 3, "▁▅█"},
 		{"GapIsBlank", []float64{1, math.NaN(), 2}, 3, "▁ █"},
-		{"FlatIsMid", []float64{3, 3, 3}, 3, "▄▄▄"},
+		{"FlatIsALine", []float64{3, math.NaN(), 3}, 3, "─ ─"},
+		{"AllGaps", []float64{math.NaN(), math.Inf(1)}, 2, "  "},
+		// The range is the window's: a spike that scrolled out no longer flattens the rest.
 		{"KeepsNewest", []float64{0, 0, 9, 1}, 2, "█▁"},
+		{"Huge", []float64{-math.MaxFloat64, math.MaxFloat64}, 2, "──"},
 		{"ZeroWidth", []float64{1}, 0, ""},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			if got := string(sparkRow(tt.vals, tt.w, nil)); got != tt.want {
-				t.Errorf("sparkRow(%v, %d) = %q, want %q", tt.vals, tt.w, got, tt.want)
+			_, got := sparkRow(nil, tt.vals, tt.w, nil)
+			if string(got) != tt.want {
+				t.Errorf("sparkRow(%v, %d) = %q, want %q", tt.vals, tt.w, string(got), tt.want)
 			}
 		})
+	}
+}
+
+// TestSparkRow_ReusedModel draws a spike and then a window without it on
+// one model: the second must not inherit the first's maximum.
+func TestSparkRow_ReusedModel(t *testing.T) {
+	sl, first := sparkRow(nil, []float64{0, 100, 0, 1}, 4, nil)
+	if string(first) != "▁█▁▁" {
+		t.Fatalf("first window = %q", string(first))
+	}
+	sl2, second := sparkRow(sl, []float64{0, 1, 0, 1}, 4, nil)
+	if sl2 != sl {
+		t.Errorf("a model of the right width was not reused")
+	}
+	if string(second) != "▁█▁█" {
+		t.Errorf("second window = %q, want %q", string(second), "▁█▁█")
+	}
+	if _, third := sparkRow(sl, []float64{5, 6}, 3, nil); string(third) != " ▁█" {
+		t.Errorf("after a resize = %q", string(third))
 	}
 }
 

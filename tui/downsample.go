@@ -67,6 +67,29 @@ func lttb(dst, pts []xy, threshold int) []xy {
 	return append(dst, pts[n-1])
 }
 
+// lttbBucket is the output position at which lttb(pts, threshold) puts
+// the point of input index i, for n points (2 < threshold < n): 0 for the
+// first point, threshold−1 for the last, else 1 + the bucket whose index
+// range [⌊b·every⌋+1, ⌊(b+1)·every⌋+1) holds i. Every series of n points
+// maps an index to the same position, whichever point its bucket keeps.
+func lttbBucket(n, threshold, i int) int {
+	switch {
+	case i <= 0:
+		return 0
+	case i >= n-1:
+		return threshold - 1
+	}
+	every := float64(n-2) / float64(threshold-2)
+	b := clampInt(int(float64(i-1)/every), 0, threshold-3)
+	for b > 0 && int(math.Floor(float64(b)*every))+1 > i {
+		b--
+	}
+	for b < threshold-3 && int(math.Floor(float64(b+1)*every))+1 <= i {
+		b++
+	}
+	return b + 1
+}
+
 // lttbRuns downsamples a series that may hold gaps (NaN or ±Inf Y) to about
 // threshold points: each run of finite points between gaps gets a share of
 // the threshold proportional to its length (at least its two ends), so a

@@ -112,3 +112,30 @@ func TestLTTBRuns_KeepsGaps(t *testing.T) {
 		t.Errorf("got %d points for threshold 20", len(got))
 	}
 }
+
+// TestLTTBBucket checks the position lttbBucket gives every index against
+// the buckets lttb itself uses: the point lttb keeps for a position comes
+// from the indices lttbBucket maps there.
+func TestLTTBBucket(t *testing.T) {
+	for _, tc := range [][2]int{{10, 4}, {37, 16}, {100, 7}, {1001, 33}, {50, 49}} {
+		n, th := tc[0], tc[1]
+		pts := make([]xy, n)
+		for i := range pts {
+			pts[i] = xy{X: float64(i), Y: float64((i * 7919) % 13)}
+		}
+		kept := lttb(nil, pts, th)
+		prev := -1
+		for i := 0; i < n; i++ {
+			b := lttbBucket(n, th, i)
+			if b < prev || b < 0 || b >= th {
+				t.Fatalf("n=%d threshold=%d: index %d at position %d after %d", n, th, i, b, prev)
+			}
+			prev = b
+		}
+		for pos, p := range kept {
+			if got := lttbBucket(n, th, int(p.X)); got != pos {
+				t.Errorf("n=%d threshold=%d: lttb keeps index %v at position %d, lttbBucket says %d", n, th, p.X, pos, got)
+			}
+		}
+	}
+}

@@ -45,16 +45,25 @@ func newKeyMap() keyMap {
 }
 
 // ShortHelp is the one-line key help at the bottom of the screen: the
-// same keys with one-word descriptions, so that it fits 80 columns.
+// same keys with one-word descriptions.
 func (k keyMap) ShortHelp() []key.Binding {
+	b, _ := k.shortHelp()
+	return b
+}
+
+// shortHelp returns the short help's bindings and, for each, its rank
+// when the line is too narrow: the highest rank is dropped first. How to
+// quit and where the other keys are listed stay longest.
+func (k keyMap) shortHelp() ([]key.Binding, []int) {
 	short := func(b key.Binding, desc string) key.Binding {
 		return key.NewBinding(key.WithKeys(b.Keys()...), key.WithHelp(b.Help().Key, desc))
 	}
 	inspect := key.NewBinding(key.WithKeys("left", "right"), key.WithHelp("←/→", "inspect"))
 	return []key.Binding{
-		short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"),
-		short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "keys"), short(k.Quit, "quit"),
-	}
+			short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"),
+			short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "keys"), short(k.Quit, "quit"),
+		},
+		[]int{3, 4, 5, 7, 6, 8, 1, 0}
 }
 
 // FullHelp is the key list shown by `?`, in columns.

@@ -39,26 +39,46 @@ func ticks(lo, hi float64, n int) (vals []float64, step float64) {
 	step = niceStep(hi-lo, n)
 	first := math.Ceil(lo/step-1e-9) * step
 	for v := first; v <= hi+step*1e-9 && len(vals) < 64; v += step {
-		// Snap to the step grid to avoid 0.30000000000000004 labels.
-		vals = append(vals, math.Round(v/step)*step)
+		// Snap to the step grid to avoid 0.30000000000000004 labels, and
+		// add 0 so that a tick just below zero reads "0", not "-0".
+		vals = append(vals, math.Round(v/step)*step+0)
 	}
 	return vals, step
 }
 
 // logTicks returns tick values in log10 units for a log axis spanning
-// [lo, hi] (log10 of the data): whole powers of ten when the axis spans at
-// least one decade, else nice linear values mapped to log10. Labels show
-// the values times scale (100 for percent).
+// [lo, hi] (log10 of the data), aiming at about n of them: powers of ten
+// when at least three fall inside; else 1, 2 and 5 times the powers of
+// ten, the usual marks of a logarithmic scale (as on log graph paper), when
+// at least two of those fall inside; else, on an axis shorter than that,
+// nice linear values mapped to log10. Labels show the values times scale
+// (100 for percent).
 func logTicks(lo, hi float64, n int, scale float64) (vals []float64, labels []string) {
-	if hi-lo >= 1 {
-		k0, k1 := math.Ceil(lo-1e-9), math.Floor(hi+1e-9)
-		every := math.Max(1, math.Ceil((k1-k0+1)/float64(max(n, 1))))
+	if !(hi > lo) || math.IsInf(lo, 0) || math.IsInf(hi, 0) {
+		return nil, nil
+	}
+	n = max(n, 1)
+	if k0, k1 := math.Ceil(lo-1e-9), math.Floor(hi+1e-9); k1-k0+1 >= 3 {
+		every := math.Max(1, math.Ceil((k1-k0+1)/float64(n)))
 		for k := k0; k <= k1; k += every {
 			vals = append(vals, k)
 			labels = append(labels, formatNum(math.Pow(10, k)*scale, 0))
 		}
 		return vals, labels
 	}
+	for k := math.Floor(lo); k <= math.Ceil(hi); k++ {
+		for _, f := range [3]float64{1, 2, 5} {
+			v := k + math.Log10(f)
+			if v >= lo-1e-9 && v <= hi+1e-9 {
+				vals = append(vals, v)
+				labels = append(labels, formatNum(f*math.Pow(10, k)*scale, 0))
+			}
+		}
+	}
+	if len(vals) >= 2 {
+		return vals, labels
+	}
+	vals, labels = vals[:0], labels[:0]
 	lin, step := ticks(math.Pow(10, lo), math.Pow(10, hi), n)
 	for _, v := range lin {
 		if v > 0 {
@@ -116,6 +136,29 @@ func formatNum(v float64, digits int) string {
 		s = strings.TrimSuffix(s, ".")
 	}
 	return s
+}
+
+// formatFit prints a value in at most w columns: four significant digits
+// when they fit, fewer when not (0.0003061 becomes 0.000306 in 8 columns).
+func formatFit(v float64, w int) string {
+	s := formatNum(v, 4)
+	for d := 3; d >= 1 && len(s) > w; d-- {
+		s = formatNum(v, d)
+		if len(s) > w {
+			// The exponent form is often the shorter one for small values.
+			if e := strconv.FormatFloat(v, 'e', max(d-1, 0), 64); len(shortExp(e)) < len(s) {
+				s = shortExp(e)
+			}
+		}
+	}
+	return s
+}
+
+// shortExp drops the exponent's plus sign and leading zero: 3.1e-04 → 3.1e-4.
+func shortExp(s string) string {
+	s = strings.Replace(s, "e-0", "e-", 1)
+	s = strings.Replace(s, "e+0", "e", 1)
+	return strings.Replace(s, "e+", "e", 1)
 }
 
 // formatValue prints a metric value for the panels: four significant

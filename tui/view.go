@@ -3,6 +3,7 @@ package tui
 import (
 	"strings"
 
+	"github.com/NimbleMarkets/ntcharts/sparkline"
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -16,15 +17,20 @@ type frame struct {
 	body   string // the lines between the status line and the bottom line
 	bottom string // key help, or a flash message
 
-	chart curveChart
-	spark cells
-	raw   [3][]xy
-	ds    [3][]xy
-	vals  []xy
-	dsv   []xy
-	ys    []float64
-	runes []rune
-	knots []xy
+	chart  curveChart
+	spark  cells
+	raw    [3][]xy
+	ds     [3][]xy
+	vals   []xy
+	dsv    []xy
+	ys     []float64
+	runes  []rune
+	sparks []*sparkline.Model // one per sparkline slot, reused while its width holds
+	knots  []xy
+
+	keyLine   string  // the short key help, for keyLineW columns and keyLineSt
+	keyLineW  int     //
+	keyLineSt *Styles //
 
 	builds int // rebuilds so far (tests check that idle ticks build nothing)
 }
@@ -136,12 +142,31 @@ func (m *Model) wideBody(j diagnose.Judgement, idx int, warns []string, sparks [
 func (m *Model) fullHelpLines(w, h int) []string {
 	hm := m.help
 	hm.ShowAll = true
-	hm.Width = w
+	hm.Width = 0
 	lines := []string{m.st.paint(clsHeading, "keys")}
-	lines = append(lines, strings.Split(hm.FullHelpView(m.keys.FullHelp()), "\n")...)
-	lines = append(lines, "",
-		m.st.paint(clsDim, "Reading goes on while paused or inspecting;"),
-		m.st.paint(clsDim, "space returns to the latest epoch."))
+	cols := hm.FullHelpView(m.keys.FullHelp())
+	if widest(cols) <= w {
+		lines = append(lines, strings.Split(cols, "\n")...)
+	} else {
+		// Too narrow for the columns (the side panel): one key a line, so
+		// none is cut off.
+		kw := 0
+		for _, col := range m.keys.FullHelp() {
+			for _, b := range col {
+				kw = max(kw, ansiLen(b.Help().Key))
+			}
+		}
+		for _, col := range m.keys.FullHelp() {
+			for _, b := range col {
+				k := b.Help().Key
+				lines = append(lines, m.st.paint(clsKey, k)+pad("", kw-ansiLen(k)+2)+m.st.paint(clsDim, b.Help().Desc))
+			}
+		}
+	}
+	lines = append(lines, "")
+	for _, l := range wrap("Reading goes on while paused or inspecting; space returns to the latest epoch.", w) {
+		lines = append(lines, m.st.paint(clsDim, l))
+	}
 	if len(lines) > h {
 		lines = lines[:max(h, 0)]
 	}
@@ -149,6 +174,15 @@ func (m *Model) fullHelpLines(w, h int) []string {
 		lines = append(lines, "")
 	}
 	return lines
+}
+
+// widest is the width of the widest line of s.
+func widest(s string) int {
+	w := 0
+	for _, l := range strings.Split(s, "\n") {
+		w = max(w, ansi.StringWidth(l))
+	}
+	return w
 }
 
 // renderBottom renders the key-help line, or the flash message over it.
@@ -166,13 +200,44 @@ func (m *Model) renderBottom() {
 		hm.Width = m.width
 		f.bottom = fit(hm.ShortHelpView(m.keys.editHelp()), m.width)
 	default:
-		hm := m.help
-		hm.Width = m.width
-		f.bottom = fit(hm.ShortHelpView(m.keys.ShortHelp()), m.width)
+		f.bottom = m.keyLine(m.width)
 	}
 }
 
-// fit cuts a styled line to w columns.
+// keyLine is the short key help in w columns: whole entries only, the
+// least needed dropped first (the help bubble would keep adding entries
+// past its width when its ellipsis does not fit).
+func (m *Model) keyLine(w int) string {
+	f := m.cache
+	if f.keyLine != "" && f.keyLineW == w && f.keyLineSt == m.st {
+		return f.keyLine // it changes only with the width and the styles
+	}
+	f.keyLine, f.keyLineW, f.keyLineSt = m.buildKeyLine(w), w, m.st
+	return f.keyLine
+}
+
+func (m *Model) buildKeyLine(w int) string {
+	binds, rank := m.keys.shortHelp()
+	hm := m.help
+	hm.Width = 0
+	for {
+		line := hm.ShortHelpView(binds)
+		if ansi.StringWidth(line) <= w || len(binds) <= 1 {
+			return fit(line, w)
+		}
+		worst := 0
+		for i := range rank {
+			if rank[i] > rank[worst] {
+				worst = i
+			}
+		}
+		binds = append(binds[:worst:worst], binds[worst+1:]...)
+		rank = append(rank[:worst:worst], rank[worst+1:]...)
+	}
+}
+
+// fit cuts a styled line to w columns, ending it with "…" when it had to
+// cut, so a reader knows that the text goes on.
 func fit(s string, w int) string {
 	if w <= 0 {
 		return ""
@@ -180,7 +245,10 @@ func fit(s string, w int) string {
 	if ansi.StringWidth(s) <= w {
 		return s
 	}
-	return ansi.Truncate(s, w, "")
+	if strings.TrimRight(ansi.Strip(s), " ") != "" && ansi.StringWidth(strings.TrimRight(ansi.Strip(s), " ")) <= w {
+		return ansi.Truncate(s, w, "") // only padding is cut
+	}
+	return ansi.Truncate(s, w, "…")
 }
 
 // pad fills a styled line with spaces to w columns.

@@ -49,7 +49,8 @@ func (m *Model) chartLines(w, h int) []string {
 	// Raw series into our scratch, then downsampled: about two points per
 	// braille column is what the plot can show.
 	threshold := 4 * w
-	lo, hi := math.Inf(1), math.Inf(-1)
+	var rng yRange
+	rng.reset(len(rows))
 	for s := 0; s < 3; s++ {
 		raw := f.raw[s][:0]
 		finite := 0
@@ -58,7 +59,7 @@ func (m *Model) chartLines(w, h int) []string {
 			raw = append(raw, xy{X: float64(rows[i].epoch), Y: v})
 			if isFinite(v) {
 				finite++
-				lo, hi = math.Min(lo, v), math.Max(hi, v)
+				rng.add(i, v)
 			}
 		}
 		f.raw[s] = raw
@@ -76,6 +77,7 @@ func (m *Model) chartLines(w, h int) []string {
 	if len(rows) > 0 {
 		spec.xmin, spec.xmax = float64(rows[0].epoch), float64(rows[len(rows)-1].epoch)
 	}
+	lo, hi := rng.limits()
 	if band := m.band(metric); band != nil {
 		spec.band = band
 		last := band.series.steps[len(band.series.steps)-1]
@@ -113,6 +115,20 @@ func (m *Model) chartLines(w, h int) []string {
 	if !m.logY && lo >= 0 && spec.ymin < 0 {
 		spec.ymin = 0 // errors and losses are not negative: keep 0 as the floor
 	}
+	if rng.clipped() {
+		// Only the first few epochs can fall outside: mark where they are.
+		for _, cv := range spec.curves {
+			for _, p := range f.raw[seriesOf(cv.cls)][:min(rng.skip, len(rows))] {
+				switch {
+				case !isFinite(p.Y):
+				case p.Y > spec.ymax:
+					spec.off = append(spec.off, offMark{x: p.X, y: p.Y, up: true, cls: cv.cls})
+				case p.Y < spec.ymin:
+					spec.off = append(spec.off, offMark{x: p.X, y: p.Y, cls: cv.cls})
+				}
+			}
+		}
+	}
 
 	idx := m.inspected()
 	if idx >= 0 && idx < n {
@@ -141,6 +157,16 @@ var (
 	seriesGlyph = [3]rune{glyphTrain, glyphVal, glyphTrainDev}
 	seriesClass = [3]class{clsTrain, clsVal, clsTrainDev}
 )
+
+// seriesOf is the index of a curve class in the tables above.
+func seriesOf(c class) int {
+	for s, sc := range seriesClass {
+		if sc == c {
+			return s
+		}
+	}
+	return 0
+}
 
 func seriesValue(r *row, s int) float64 {
 	switch s {
@@ -284,16 +310,28 @@ func (m *Model) sparkLines(cols []*column, lay layout) []string {
 			for _, p := range f.dsv {
 				f.ys = append(f.ys, p.Y)
 			}
-			f.runes = sparkRow(f.ys, blocksW, f.runes)
+			for len(f.sparks) <= i {
+				f.sparks = append(f.sparks, nil)
+			}
+			f.sparks[i], f.runes = sparkRow(f.sparks[i], f.ys, blocksW, f.runes)
 			bx := x + nameW + 1
 			hl := -1
 			if m.cursor >= 0 {
-				hl = nearestX(f.dsv, float64(idx)) + blocksW - len(f.dsv)
+				if len(f.dsv) == blocksW && len(vals) > blocksW {
+					// Downsampled without gaps: the column is the bucket that
+					// holds the epoch, the same in every sparkline.
+					hl = lttbBucket(len(vals), blocksW, idx)
+				} else {
+					hl = nearestX(f.dsv, float64(idx)) + blocksW - len(f.dsv)
+				}
 			}
 			for k, r := range f.runes {
 				cls := clsTrain
 				if k == hl {
-					cls = clsCursor
+					// The inspected epoch: the same line as on the main
+					// chart, so it shows without colour; the value at the
+					// right is the one under it.
+					r, cls = glyphCursor, clsCursor
 				}
 				g.set(bx+k, y, r, cls)
 			}
@@ -302,7 +340,7 @@ func (m *Model) sparkLines(cols []*column, lay layout) []string {
 		if idx >= 0 && idx < len(vals) {
 			v = vals[idx]
 		}
-		g.text(x+lay.sparkW-valueW, y, formatNum(v, 4), clsPlain)
+		g.text(x+lay.sparkW-valueW, y, formatFit(v, valueW-1), clsPlain)
 	}
 	if hidden > 0 {
 		i := slots - 1

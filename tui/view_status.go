@@ -187,6 +187,7 @@ func (m *Model) renderStatus() {
 	if name == "" {
 		name = "(no source yet)"
 	}
+	nameAt := len(parts)
 	parts = append(parts, statusPart{name, clsPlain, 0})
 	if m.src.Format != "" {
 		parts = append(parts, statusPart{m.src.Format, clsDim, 5})
@@ -227,9 +228,23 @@ func (m *Model) renderStatus() {
 		parts = append(parts, statusPart{badge, clsPaused, 0})
 	}
 
+	// Too long: drop the least useful parts first; before the epoch and
+	// the age of the last write go, the log's directory does (the file
+	// name is what tells two panes apart); last, the name is cut from the
+	// left, so the state and the badge always stay in view.
+	shortened := false
 	for {
 		line, width := m.joinStatus(parts)
 		if width <= m.width {
+			if shortened && parts[nameAt].text != name {
+				// Dropping parts may have made room for the whole name.
+				short := parts[nameAt].text
+				parts[nameAt].text = name
+				if l, w := m.joinStatus(parts); w <= m.width {
+					line = l
+				}
+				parts[nameAt].text = short
+			}
 			f.status = line
 			return
 		}
@@ -239,12 +254,48 @@ func (m *Model) renderStatus() {
 				worst = i
 			}
 		}
+		if !shortened && (worst < 0 || parts[worst].drop <= statusDropName) {
+			shortened = true
+			if b := baseName(parts[nameAt].text); b != parts[nameAt].text {
+				parts[nameAt].text = "…/" + b
+				continue
+			}
+		}
 		if worst < 0 {
+			parts[nameAt].text = cutLeft(parts[nameAt].text, ansiLen(parts[nameAt].text)-(width-m.width))
+			line, _ = m.joinStatus(parts)
 			f.status = fit(line, m.width)
 			return
 		}
+		if worst < nameAt {
+			nameAt--
+		}
 		parts = append(parts[:worst], parts[worst+1:]...)
 	}
+}
+
+// statusDropName is the drop rank from which the status line shortens the
+// log's path to its file name before dropping more (the age of the last
+// write has rank 2, the epoch 1).
+const statusDropName = 2
+
+// baseName is the last element of a slash-separated path.
+func baseName(p string) string {
+	if i := strings.LastIndexByte(strings.TrimRight(p, "/"), '/'); i >= 0 && i < len(p)-1 {
+		return p[i+1:]
+	}
+	return p
+}
+
+// cutLeft keeps the last w columns of s behind "…" (at least "…" and one
+// character, so something of the name stays).
+func cutLeft(s string, w int) string {
+	r := []rune(s)
+	keep := max(w-1, 1)
+	if len(r) <= keep || ansiLen(s) <= w {
+		return s
+	}
+	return "…" + string(r[len(r)-keep:])
 }
 
 func (m *Model) joinStatus(parts []statusPart) (string, int) {

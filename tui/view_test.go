@@ -50,24 +50,32 @@ var goldenRun = runSpec{epochs: 36, total: 60, stepsPer: 25, turn: 18, trainBase
 
 func TestView_Golden(t *testing.T) {
 	tests := []struct {
-		name string
-		w, h int
-		run  runSpec
-		keys []string
+		name    string
+		w, h    int
+		run     runSpec
+		keys    []string
+		noColor bool // NoColor as well as the Ascii profile of TestMain
+		spike   bool // the first epoch at a uniform guess (spikeRun)
 	}{
-		{"stacked_80x24", 80, 24, goldenRun, nil},
-		{"wide_120x40", 120, 40, runSpec{epochs: 36, total: 60, stepsPer: 25, turn: 18, trainBase: 0.06, valBase: 0.11, trainDev: true}, nil},
-		{"compact_50x14", 50, 14, goldenRun, nil},
-		{"inspect_120x40", 120, 40, goldenRun, []string{"left", "left", "left", "left", "left", "left", "left", "left", "left", "left"}},
-		{"help_100x30", 100, 30, goldenRun, []string{"?"}},
-		{"waiting_80x24", 80, 24, runSpec{}, nil},
+		{"stacked_80x24", 80, 24, goldenRun, nil, false, false},
+		{"wide_120x40", 120, 40, runSpec{epochs: 36, total: 60, stepsPer: 25, turn: 18, trainBase: 0.06, valBase: 0.11, trainDev: true}, nil, false, false},
+		{"compact_50x14", 50, 14, goldenRun, nil, false, false},
+		{"inspect_120x40", 120, 40, goldenRun, []string{"left", "left", "left", "left", "left", "left", "left", "left", "left", "left"}, false, false},
+		{"help_100x30", 100, 30, goldenRun, []string{"?"}, false, false},
+		{"waiting_80x24", 80, 24, runSpec{}, nil, false, false},
+		// Without colour: the first epoch off the scale (arrow and value),
+		// the inspected epoch as a line on the chart and in every sparkline.
+		{"nocolor_offscale_inspect_80x24", 80, 24, goldenRun, []string{"left", "left", "left", "left", "left", "left"}, true, true},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			m := newTestModel(t, tt.w, tt.h, Options{})
-			if tt.run.epochs > 0 {
+			m := newTestModel(t, tt.w, tt.h, Options{NoColor: tt.noColor})
+			switch {
+			case tt.spike:
+				m = spikeRun(t, m)
+			case tt.run.epochs > 0:
 				m = feed(t, m, tt.run)
-			} else {
+			default:
 				m = settle(t, send(t, m, FeedMsg{Source: SourceInfo{Name: "runs/next.csv", State: Waiting}}))
 			}
 			m = press(t, m, tt.keys...)
@@ -120,5 +128,25 @@ func TestView_HostileColumnName(t *testing.T) {
 		if !strings.Contains(v, want) {
 			t.Errorf("screen lacks the sanitized %q", want)
 		}
+	}
+}
+
+func TestStatus_LongNameKeepsState(t *testing.T) {
+	long := "/tmp/fitgap-demo-2114978045/a-rather-long-directory/train-overfit.csv"
+	for _, w := range []int{30, 50, 80, 100} {
+		t.Run(itoa(w), func(t *testing.T) {
+			m := newTestModel(t, w, 24, Options{})
+			src := liveSource(37)
+			src.Name = long
+			m = send(t, m, FeedMsg{Points: goldenRun.points(), Source: src})
+			m = settle(t, press(t, m, "space"))
+			status := strings.SplitN(m.View(), "\n", 2)[0]
+			if !strings.Contains(status, "live") || !strings.Contains(status, "PAUSED") {
+				t.Errorf("width %d: status lost the state or the badge: %q", w, status)
+			}
+			if !strings.Contains(status, "overfit") && w >= 50 {
+				t.Errorf("width %d: status lost the file name: %q", w, status)
+			}
+		})
 	}
 }

@@ -1,37 +1,80 @@
 package tui
 
-import "github.com/fitgap/fitgap/diagnose"
+import (
+	"strings"
 
-// compactBody is the text-only view for small terminals.
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// compactBody is the text-only view for small terminals: a few lines in
+// the order a reader needs them. Each line gets a row (cut with "…" when
+// rows are short); rows left over let the first lines wrap in full.
 func (m *Model) compactBody(j diagnose.Judgement, idx int, warns []string, h int) []string {
 	st := m.st
 	if h <= 0 {
 		return nil
 	}
-	var out []string
+	type entry struct {
+		text string
+		cls  class
+	}
+	var es []entry
+	var head string
 	if idx < 0 {
-		out = append(out, st.paint(clsDim, "no evaluation point yet"))
+		head = st.paint(clsDim, "no evaluation point yet")
 	} else {
-		head, _ := diagnosisWords(j.Diagnosis)
-		out = append(out,
-			st.paint(diagnosisClass(j.Diagnosis), head)+st.paint(clsDim, " · epoch "+itoa(j.Epoch)),
-			m.valuesLine(j),
-			st.paint(signalClass(j.EarlyStop.Signal), signalWords(j.EarlyStop)),
+		words, _ := diagnosisWords(j.Diagnosis)
+		head = st.paint(diagnosisClass(j.Diagnosis), words) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
+		es = append(es,
+			entry{m.valuesLine(j), clsPlain},
+			entry{signalWords(j.EarlyStop), signalClass(j.EarlyStop.Signal)},
 		)
 		if d := m.stopDetails(j.EarlyStop); d != "" {
-			out = append(out, st.paint(clsDim, d))
+			es = append(es, entry{d, clsDim})
 		}
 		line := "error:"
 		for _, c := range components(j) {
 			line += " " + c.short + " " + m.fmtGap(c.val)
 		}
-		out = append(out, line)
+		es = append(es, entry{line, clsPlain})
 		if len(j.Actions) > 0 {
-			out = append(out, "next: "+clean(j.Actions[0].Text))
+			es = append(es, entry{"next: " + clean(j.Actions[0].Text), clsPlain})
 		}
 	}
 	for _, w := range warns {
-		out = append(out, st.paint(clsWarn, "! "+w))
+		es = append(es, entry{"! " + w, clsWarn})
+	}
+	out := []string{head}
+	w := max(m.width, 1)
+	wrapped := make([][]string, len(es))
+	rows := make([]int, len(es)) // rows given to each entry
+	left := h - 1
+	for i := range es {
+		wrapped[i] = wrap(es[i].text, w)
+		if left > 0 {
+			rows[i], left = 1, left-1
+		}
+	}
+	for i := range es {
+		if extra := min(len(wrapped[i])-rows[i], left); rows[i] > 0 && extra > 0 {
+			rows[i], left = rows[i]+extra, left-extra
+		}
+	}
+	for i, e := range es {
+		switch {
+		case rows[i] == 0:
+		case rows[i] >= len(wrapped[i]):
+			for _, l := range wrapped[i] {
+				out = append(out, st.paint(e.cls, l))
+			}
+		default:
+			for _, l := range wrapped[i][:rows[i]-1] {
+				out = append(out, st.paint(e.cls, l))
+			}
+			// The last row given holds the rest, cut.
+			rest := strings.Join(wrapped[i][rows[i]-1:], " ")
+			out = append(out, fit(st.paint(e.cls, rest), w))
+		}
 	}
 	if len(out) > h {
 		out = out[:h]

@@ -87,7 +87,9 @@ func (m *Model) stopNumbers(es diagnose.EarlyStop, short bool) string {
 		}
 	}
 	if es.GL.OK {
-		parts = append(parts, "GL "+formatNum(es.GL.V, 3)+"%")
+		// One decimal: Prechelt's stopping thresholds are whole percents
+		// (GL_1 … GL_5), so 0.00246% says nothing more than 0.0%.
+		parts = append(parts, "GL "+strconv.FormatFloat(es.GL.V, 'f', 1, 64)+"%")
 	}
 	if es.Patience > 0 {
 		parts = append(parts, "patience "+itoa(min(es.EpochsSinceBest, es.Patience))+"/"+itoa(es.Patience))
@@ -275,12 +277,24 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 	decomp := []string{st.paint(clsHeading, "WHERE THE VAL ERROR COMES FROM")}
 	decomp = append(decomp, m.errorBar(comps, w))
 	legend := make([]string, 0, 4)
+	var noteLines []string // the optimal error's note in full, when the legend has no room for it
 	for _, c := range comps {
 		v := m.fmtGap(c.val)
 		note := ""
 		switch {
 		case c.kind == diagnose.NoComponent:
 			note = m.optimalNote(j)
+			if room := w - 25; ansiLen(note) > room {
+				full := note
+				// "known: the demo flips 5% of labels" → "known" here, the
+				// whole note under the legend.
+				if i := strings.IndexByte(note, ':'); i > 0 && i <= room {
+					note = note[:i]
+				}
+				for _, l := range wrap("optimal error "+full, w) {
+					noteLines = append(noteLines, st.paint(clsDim, l))
+				}
+			}
 		case c.kind == diagnose.Mismatch && !c.val.OK:
 			note = "no train-dev"
 		case c.kind != diagnose.NoComponent && c.kind == j.Focus:
@@ -297,6 +311,7 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		legend = append(legend, line)
 	}
 	decomp = append(decomp, legend...)
+	decomp = append(decomp, noteLines...)
 
 	var acts [][]string
 	for i, a := range j.Actions {
@@ -325,7 +340,7 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 			out = append(out, reason...)
 		}
 		out = append(out, "")
-		out = append(out, decomp[:2+legendLines]...)
+		out = append(out, decomp[:min(2+legendLines, len(decomp))]...)
 		if nActs > 0 {
 			out = append(out, "", st.paint(clsHeading, "NEXT"))
 			for _, b := range acts[:nActs] {
@@ -339,9 +354,11 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		return out
 	}
 	nActs := min(len(acts), 3)
+	full := 4 + len(noteLines)
 	tries := []func() []string{
-		func() []string { return build(true, nActs, true, 4) },
-		func() []string { return build(false, nActs, true, 4) },
+		func() []string { return build(true, nActs, true, full) },
+		func() []string { return build(false, nActs, true, full) },
+		func() []string { return build(false, min(nActs, 2), true, full) },
 		func() []string { return build(false, min(nActs, 2), true, 4) },
 		func() []string { return build(false, min(nActs, 1), true, 4) },
 		func() []string { return build(false, min(nActs, 2), false, 4) },

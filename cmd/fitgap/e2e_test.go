@@ -184,6 +184,10 @@ func TestE2E_WatchKeysAndQuit(t *testing.T) {
 	if !strings.Contains(s, "│") {
 		t.Errorf("no cursor line on the chart:\n%s", s)
 	}
+	// The sparklines mark the inspected epoch with a glyph, not only a colour.
+	if !sparkRowHas(s, "lr ", "│") {
+		t.Errorf("the lr sparkline does not mark the inspected epoch:\n%s", s)
+	}
 	p.keys("Space")
 	p.waitScreen("the resume", "epoch 16")
 
@@ -206,6 +210,41 @@ func TestE2E_WatchKeysAndQuit(t *testing.T) {
 	if !strings.Contains(out, "# Training diagnosis") || strings.Contains(out, "\x1b[") {
 		t.Errorf("standard output should hold only the summary, got:\n%.400q", out)
 	}
+}
+
+// sparkRowHas reports whether the screen line that starts with name holds
+// glyph.
+func sparkRowHas(screen, name, glyph string) bool {
+	for _, l := range strings.Split(screen, "\n") {
+		if strings.HasPrefix(l, name) && strings.Contains(l, glyph) {
+			return true
+		}
+	}
+	return false
+}
+
+// TestE2E_FirstEpochOffScale follows a log whose first epoch is a uniform
+// guess over ten classes (accuracy 0.1, loss −ln(1/10) = 2.3026; from
+// memory: CS231n notes, "Neural Networks Part 3", sanity checks): the
+// chart leaves it off the scale, marked with an arrow and its value.
+func TestE2E_FirstEpochOffScale(t *testing.T) {
+	requireTmux(t)
+	dir := t.TempDir()
+	bin := buildBinary(t, dir)
+	log := filepath.Join(dir, "run.csv")
+	body := "epoch,train_loss,val_loss,train_acc,val_acc,lr\n1,2.3026,2.3026,0.1000,0.1000,0.01\n"
+	if err := os.WriteFile(log, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	appendEpochs(t, log, 8, 30) // a run already well under way from its second row
+	p := startPane(t, dir, wrapper(bin, "watch run.csv"), 80, 24)
+	s := p.waitScreen("the chart with the first epoch off the scale", "└", "↑90%", "off scale")
+	if strings.Contains(s, "90%┤") || strings.Contains(s, "80%┤") {
+		t.Errorf("the y axis still reaches the first epoch:\n%s", s)
+	}
+	p.keys("q")
+	waitFile(t, filepath.Join(dir, "rc"))
+	checkRestored(t, p, dir)
 }
 
 func TestE2E_HangupWritesSummary(t *testing.T) {

@@ -1,0 +1,161 @@
+package tui
+
+import "math"
+
+// The y range of the main chart covers every value shown, except that the
+// first few epochs may not stretch it far beyond the rest: a first epoch
+// near the loss of a uniform guess (−ln(1/10) ≈ 2.30 for ten classes, the
+// cross-entropy at a random start; common practice) would otherwise
+// squash a whole run into a few rows. Values left out are marked with an
+// arrow at the edge (offMark).
+const (
+	// earlyEpochsMax is how many leading epochs may be left off the
+	// scale: the steep start from random weights rarely lasts longer
+	// (common practice; our judgement, no source).
+	earlyEpochsMax = 3
+	// earlyRoom is how far, in spans of the later values, the early ones
+	// may stretch the range beyond them: the later values keep at least
+	// 1/(1+1.5) = 40% of the plot height, and an ordinary falling curve
+	// (each epoch a little lower) keeps its first epochs on the scale.
+	earlyRoom = 1.5
+)
+
+// earlyEpochs is how many leading rows of n may be left off the scale:
+// none in a run too short to tell the warm-up from the rest, then one
+// row for every three, up to earlyEpochsMax.
+func earlyEpochs(n int) int {
+	return min(earlyEpochsMax, max(n-1, 0)/3)
+}
+
+// yRange gathers the plotted values of the main chart's curves.
+type yRange struct {
+	skip       int     // leading rows that may be left off the scale
+	lo, hi     float64 // every finite value
+	clo, chi   float64 // the values from row skip on
+	cutLo, cut bool    // limits left values out below / above
+}
+
+func (r *yRange) reset(n int) {
+	*r = yRange{skip: earlyEpochs(n), lo: math.Inf(1), hi: math.Inf(-1), clo: math.Inf(1), chi: math.Inf(-1)}
+}
+
+// add takes the finite value v of row i.
+func (r *yRange) add(i int, v float64) {
+	// Plain comparisons: v is finite, and math.Min's NaN and signed-zero
+	// cases cost a tenth of a rebuild on 30,000 values.
+	if v < r.lo {
+		r.lo = v
+	}
+	if v > r.hi {
+		r.hi = v
+	}
+	if i >= r.skip {
+		if v < r.clo {
+			r.clo = v
+		}
+		if v > r.chi {
+			r.chi = v
+		}
+	}
+}
+
+// limits returns the range to show, before headroom: all values when the
+// early ones stay within earlyRoom spans of the later ones, else the later
+// values and that much room beyond them. Empty (lo > hi) when no value
+// came.
+func (r *yRange) limits() (lo, hi float64) {
+	lo, hi = r.lo, r.hi
+	r.cutLo, r.cut = false, false
+	if !(r.chi >= r.clo) {
+		return lo, hi // no later values: nothing to protect
+	}
+	span := r.chi - r.clo
+	if span <= 0 {
+		// A flat rest: give it the room a flat chart gets (see chartLines).
+		span = math.Max(math.Abs(r.chi)*0.1, 0.05)
+	}
+	room := earlyRoom * span
+	if top := r.chi + room; hi > top {
+		hi, r.cut = top, true
+	}
+	if bottom := r.clo - room; lo < bottom {
+		lo, r.cutLo = bottom, true
+	}
+	return lo, hi
+}
+
+// clipped reports whether the last limits left values out.
+func (r *yRange) clipped() bool { return r.cut || r.cutLo }
+
+// offScale marks each value outside the y range with an arrow at the edge
+// of its column, in its series' colour, and writes the most extreme value
+// each way beside its arrow when the cells there are free: the reader sees
+// that the point exists, where, and how far off it is.
+func (c *curveChart) offScale(spec *chartSpec, box plotBox, pm plotMap) {
+	g := &c.grid
+	top, bottom := -1, -1 // the most extreme mark each way
+	for i, o := range spec.off {
+		cx := pm.dotX(o.x) / 2
+		if cx < 0 || cx >= box.pw {
+			continue
+		}
+		if o.up {
+			g.set(box.x0+cx, box.y0, glyphAbove, o.cls)
+			if top < 0 || o.y > spec.off[top].y {
+				top = i
+			}
+		} else {
+			g.set(box.x0+cx, box.y0+box.ph-1, glyphBelow, o.cls)
+			if bottom < 0 || o.y < spec.off[bottom].y {
+				bottom = i
+			}
+		}
+	}
+	for _, i := range [2]int{top, bottom} {
+		if i < 0 {
+			continue
+		}
+		o := spec.off[i]
+		cy := box.y0
+		if !o.up {
+			cy = box.y0 + box.ph - 1
+		}
+		cx := box.x0 + pm.dotX(o.x)/2
+		text := spec.valueText(o.y)
+		n := len([]rune(text))
+		// Right beside the arrow, else a few cells on past the curve that
+		// leaves it, else on its left.
+		for _, x := range [...]int{cx + 1, cx + 2, cx + 3, cx - n} {
+			if c.blank(x, x+n, cy, box) {
+				g.text(x, cy, text, o.cls)
+				break
+			}
+		}
+	}
+}
+
+// blank reports whether the cells [x0, x1) of row y are empty and inside
+// the plot.
+func (c *curveChart) blank(x0, x1, y int, box plotBox) bool {
+	if x0 < box.x0 || x1 > box.x0+box.pw {
+		return false
+	}
+	for x := x0; x < x1; x++ {
+		if r, _ := c.grid.at(x, y); r != ' ' {
+			return false
+		}
+	}
+	return true
+}
+
+// valueText prints a plotted value in the axis' units.
+func (spec *chartSpec) valueText(y float64) string {
+	v := y
+	if spec.logY {
+		v = math.Pow(10, y)
+	}
+	if spec.percent {
+		return formatNum(v*100, 3) + "%"
+	}
+	return formatNum(v, 3)
+}
