@@ -127,11 +127,13 @@ func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format strin
 
 	trainCtx, stopTraining := context.WithCancel(ctx)
 	trained := make(chan error, 1)
+	writerDone := make(chan struct{})
 	go func() {
 		err := trainer.Run(trainCtx, cfg, f)
 		if cerr := f.Close(); err == nil {
 			err = cerr
 		}
+		close(writerDone)
 		trained <- err
 	}()
 	var once sync.Once
@@ -145,12 +147,13 @@ func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format strin
 	}
 	defer after()
 	err = runScreen(ctx, e, screenSpec{
-		path:      path,
-		opts:      watch.Options{Follow: true},
-		cfg:       demoJudgeConfig(facts),
-		bayesNote: fmt.Sprintf("known: the demo flips %.0f%% of labels", facts.BayesError*100),
-		flags:     scr,
-		after:     after,
+		path:       path,
+		opts:       watch.Options{Follow: true},
+		cfg:        demoJudgeConfig(facts),
+		bayesNote:  fmt.Sprintf("known: the demo flips %.0f%% of labels", facts.BayesError*100),
+		flags:      scr,
+		after:      after,
+		writerDone: writerDone,
 	})
 	var nt *noTerminalError
 	if errors.As(err, &nt) {

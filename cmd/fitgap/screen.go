@@ -75,6 +75,10 @@ type screenSpec struct {
 	// after runs once the screen is closed, before the summary is printed
 	// (the demo stops its trainer there).
 	after func()
+	// writerDone, when not nil, is closed when the process writing the log
+	// has ended (the demo's trainer): the source is then shown finished
+	// rather than quiet, since no more epochs will come.
+	writerDone <-chan struct{}
 }
 
 // runScreen opens the reader, runs the screen until the user quits or a
@@ -98,7 +102,7 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 
 	feed := make(chan tui.FeedMsg, 4)
 	stopErrs := make(chan error, 1)
-	go relay(batches, feed, name, diagnose.New(spec.cfg), stop, stopErrs)
+	go relay(batches, spec.writerDone, feed, name, diagnose.New(spec.cfg), stop, stopErrs)
 
 	summaryPath := spec.flags.summary
 	m := tui.New(tui.Options{
@@ -156,20 +160,42 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 // points itself, with the command line's settings, to act on the stop
 // signal: the stop file must not depend on what the screen shows (paused,
 // or with an optimal error typed in to explore).
-func relay(batches <-chan watch.Batch, feed chan<- tui.FeedMsg, name string, t *diagnose.Tracker, stop *stopFile, errs chan<- error) {
+func relay(batches <-chan watch.Batch, writerDone <-chan struct{}, feed chan<- tui.FeedMsg, name string, t *diagnose.Tracker, stop *stopFile, errs chan<- error) {
 	defer close(feed)
-	for b := range batches {
-		if stop != nil {
-			for _, p := range b.Points {
-				if _, err := stop.observe(t.Add(p)); err != nil {
-					select {
-					case errs <- err:
-					default:
+	var last watch.Stats
+	finished := false
+	for {
+		select {
+		case b, ok := <-batches:
+			if !ok {
+				return
+			}
+			if stop != nil {
+				for _, p := range b.Points {
+					if _, err := stop.observe(t.Add(p)); err != nil {
+						select {
+						case errs <- err:
+						default:
+						}
 					}
 				}
 			}
+			last = b.Stats
+			msg := feedMsg(name, b)
+			if finished && msg.Source.State == tui.Live {
+				msg.Source.State = tui.Finished
+			}
+			feed <- msg
+		case <-writerDone:
+			writerDone, finished = nil, true
+			// The reader may still hand on the last lines; they will be
+			// marked finished too.
+			msg := feedMsg(name, watch.Batch{Stats: last})
+			if msg.Source.State == tui.Live {
+				msg.Source.State = tui.Finished
+			}
+			feed <- msg
 		}
-		feed <- feedMsg(name, b)
 	}
 }
 
