@@ -11,6 +11,31 @@ import (
 	"github.com/fitgap/fitgap/watch"
 )
 
+// logFlags are the flags of every command that reads and judges one log.
+type logFlags struct {
+	src   sourceFlags
+	judge judgeFlags
+}
+
+func (l *logFlags) register(fs *flag.FlagSet) {
+	l.src.register(fs)
+	l.judge.register(fs)
+}
+
+// parse checks the positional arguments (one log) and the flags' values.
+func (l *logFlags) parse(args []string, follow bool) (string, watch.Options, diagnose.Config, error) {
+	path, err := onePath(args)
+	if err != nil {
+		return "", watch.Options{}, diagnose.Config{}, err
+	}
+	opts, err := l.src.options(follow)
+	if err != nil {
+		return "", watch.Options{}, diagnose.Config{}, err
+	}
+	cfg, err := l.judge.config()
+	return path, opts, cfg, err
+}
+
 // sourceFlags are the flags of every command that reads a log.
 type sourceFlags struct {
 	format                     string

@@ -32,27 +32,17 @@ Exit status 0 at the end of a pipe, after --idle-exit or --exit-on-stop;
   python train.py | fitgap follow -`,
 	flags: func(fs *flag.FlagSet) func(context.Context, *env, []string) error {
 		var (
-			src        sourceFlags
-			judge      judgeFlags
+			log        logFlags
 			stopPath   string
 			idleExit   time.Duration
 			exitOnStop bool
 		)
-		src.register(fs)
-		judge.register(fs)
+		log.register(fs)
 		fs.StringVar(&stopPath, "stop-file", "", "create this `file` (JSON: epoch, best_epoch, best_val, reason) when the signal first reaches stop")
 		fs.DurationVar(&idleExit, "idle-exit", 0, "end after this `long` with no new data, e.g. 10m (default: never)")
 		fs.BoolVar(&exitOnStop, "exit-on-stop", false, "end (status 0) once the signal first reaches stop")
 		return func(ctx context.Context, e *env, args []string) error {
-			path, err := onePath(args)
-			if err != nil {
-				return err
-			}
-			opts, err := src.options(true)
-			if err != nil {
-				return err
-			}
-			cfg, err := judge.config()
+			path, opts, cfg, err := log.parse(args, true)
 			if err != nil {
 				return err
 			}

@@ -25,23 +25,13 @@ Exit status 0 after a report; 2 on a usage error or an unreadable or empty log.`
   fitgap report --json --val-size 5000 train.log | jq .diagnosis`,
 	flags: func(fs *flag.FlagSet) func(context.Context, *env, []string) error {
 		var (
-			src    sourceFlags
-			judge  judgeFlags
+			log    logFlags
 			asJSON bool
 		)
-		src.register(fs)
-		judge.register(fs)
+		log.register(fs)
 		fs.BoolVar(&asJSON, "json", false, "print one JSON object instead of Markdown")
 		return func(ctx context.Context, e *env, args []string) error {
-			path, err := onePath(args)
-			if err != nil {
-				return err
-			}
-			opts, err := src.options(false)
-			if err != nil {
-				return err
-			}
-			cfg, err := judge.config()
+			path, opts, cfg, err := log.parse(args, false)
 			if err != nil {
 				return err
 			}

@@ -28,23 +28,13 @@ the SSH link drops (SIGHUP) or on SIGTERM.`,
   python train.py 2>&1 | fitgap -`,
 	flags: func(fs *flag.FlagSet) func(context.Context, *env, []string) error {
 		var (
-			src  sourceFlags
-			judg judgeFlags
-			scr  screenFlags
+			log logFlags
+			scr screenFlags
 		)
-		src.register(fs)
-		judg.register(fs)
+		log.register(fs)
 		scr.register(fs)
 		return func(ctx context.Context, e *env, args []string) error {
-			path, err := onePath(args)
-			if err != nil {
-				return err
-			}
-			opts, err := src.options(true)
-			if err != nil {
-				return err
-			}
-			cfg, err := judg.config()
+			path, opts, cfg, err := log.parse(args, true)
 			if err != nil {
 				return err
 			}
