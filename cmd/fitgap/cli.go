@@ -174,10 +174,16 @@ func (c *command) usage() string {
 		if arg != "" {
 			head += " " + arg
 		}
-		fmt.Fprintf(&b, "%-28s %s", head, text)
 		if f.DefValue != "" && f.DefValue != "false" && f.DefValue != "0" && f.DefValue != "0s" {
-			fmt.Fprintf(&b, " (default %s)", f.DefValue)
+			text += fmt.Sprintf(" (default %s)", f.DefValue)
 		}
+		const indent = 29
+		if len(head) >= indent {
+			fmt.Fprintf(&b, "%s\n%*s", head, indent, "")
+		} else {
+			fmt.Fprintf(&b, "%-*s", indent, head)
+		}
+		b.WriteString(wrap(text, 80-indent, indent))
 		b.WriteByte('\n')
 	}
 	if c.example != "" {
@@ -206,5 +212,24 @@ Commands:
 Run "fitgap COMMAND --help" for a command's flags and an example.
 Try it first: fitgap demo
 `)
+	return b.String()
+}
+
+// wrap breaks text into lines of at most width bytes at spaces, indenting
+// every line after the first.
+func wrap(text string, width, indent int) string {
+	var b strings.Builder
+	line := 0
+	for i, w := range strings.Fields(text) {
+		if i > 0 && line+1+len(w) > width {
+			b.WriteString("\n" + strings.Repeat(" ", indent))
+			line = 0
+		} else if i > 0 {
+			b.WriteByte(' ')
+			line++
+		}
+		b.WriteString(w)
+		line += len(w)
+	}
 	return b.String()
 }

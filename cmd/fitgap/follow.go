@@ -39,7 +39,7 @@ Exit status 0 at the end of a pipe, after --idle-exit or --exit-on-stop;
 		)
 		log.register(fs)
 		fs.StringVar(&stopPath, "stop-file", "", "create this `file` (JSON: epoch, best_epoch, best_val, reason) when the signal first reaches stop")
-		fs.DurationVar(&idleExit, "idle-exit", 0, "end after this `long` with no new data, e.g. 10m (default: never)")
+		fs.DurationVar(&idleExit, "idle-exit", 0, "end after this `duration` with no new data, e.g. 10m (default: never)")
 		fs.BoolVar(&exitOnStop, "exit-on-stop", false, "end (status 0) once the signal first reaches stop")
 		return func(ctx context.Context, e *env, args []string) error {
 			path, opts, cfg, err := log.parse(args, true)
