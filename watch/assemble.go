@@ -117,9 +117,12 @@ type assembler struct {
 
 	// replace makes every column keep its latest value (console text,
 	// where a later value of a name replaces the earlier one).
-	replace   bool
-	steps     bool
-	full      bool              // the column table reached maxColumns
+	replace bool
+	steps   bool
+	full    bool // the column table reached maxColumns
+	// frozen: the column table is shared with the ingester (a worker of
+	// the parallel path) and must not grow; a new name gives up instead.
+	frozen    bool
 	slab      []diagnose.Sample // shared storage of per-step rows
 	nonFinite int
 }
@@ -139,6 +142,10 @@ const maxColumns = 10000
 func (a *assembler) column(name string) int {
 	if i, ok := a.byName[name]; ok {
 		return i
+	}
+	if a.frozen {
+		a.out.notice("new column " + name)
+		return -1
 	}
 	if len(a.cols) >= maxColumns {
 		if !a.full {
@@ -471,28 +478,4 @@ func (a *assembler) newSegment() {
 	a.haveLast = false
 	a.lastStep = -1
 	a.periodSteps = a.periodSteps[:0]
-}
-
-// stepSlab is how many samples one allocation holds for per-step rows:
-// rows share slabs instead of allocating one slice each. Unit: samples.
-const stepSlab = 4096
-
-// emitStep hands the current row on as a per-step row.
-func (a *assembler) emitStep() {
-	n := len(a.row)
-	if n == 0 {
-		return
-	}
-	if cap(a.slab)-len(a.slab) < n {
-		a.slab = make([]diagnose.Sample, 0, max(stepSlab, n))
-	}
-	start := len(a.slab)
-	for _, r := range a.row {
-		a.slab = append(a.slab, diagnose.Sample{Column: a.cols[r.col].col, Value: r.v, Last: r.v})
-	}
-	r := diagnose.StepRow{Segment: a.segment, Epoch: a.g.epoch, Step: -1, Samples: a.slab[start:len(a.slab):len(a.slab)]}
-	if a.rowHasStep {
-		r.Step = int64(a.rowStep)
-	}
-	a.out.step(r)
 }

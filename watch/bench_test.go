@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"runtime"
 	"slices"
 	"testing"
 	"time"
@@ -44,6 +45,48 @@ func BenchmarkReadAll(b *testing.B) {
 				}
 			})
 		}
+	}
+}
+
+// BenchmarkBacklog reads the synthetic per-step CSV from a file, as
+// `fitgap report` does: on one core (the sequential path) and on all of
+// them (the parallel path for backlogs). Lines/s are reported as bytes/s
+// of the file; the whole-process figures are bench/ingest.sh's.
+func BenchmarkBacklog(b *testing.B) {
+	path := filepath.Join(b.TempDir(), "run.csv")
+	f, err := os.Create(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	const lines = 300_000
+	if err := loggen.WriteCSV(f, lines); err != nil {
+		b.Fatal(err)
+	}
+	fi, _ := f.Stat()
+	f.Close()
+	for _, procs := range []int{1, runtime.GOMAXPROCS(0)} {
+		b.Run(fmt.Sprintf("procs=%d", procs), func(b *testing.B) {
+			defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
+			b.SetBytes(fi.Size())
+			b.ReportAllocs()
+			for b.Loop() {
+				points, _, err := ReadAll(path, nil, Options{})
+				if err != nil || len(points) != lines/loggen.StepsPerEpoch {
+					b.Fatalf("%d points, %v", len(points), err)
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkPlainFields cuts and reads one typical per-step row, the
+// innermost loop of reading a CSV log.
+func BenchmarkPlainFields(b *testing.B) {
+	line := []byte("12,11999,0.412345,0.873401,0.001,,")
+	vals := make([]float64, 7)
+	b.ReportAllocs()
+	for b.Loop() {
+		plainFields(line, ',', vals)
 	}
 }
 

@@ -36,8 +36,16 @@ type csvDecoder struct {
 	roles     []cellRole
 	colOf     []int
 	extraNote bool
+	// gen counts changes of the header (names, roles, colOf), so the
+	// parallel path can tell that a chunk was decoded under the header in
+	// force.
+	gen int
 
-	dec []byte // decimal-comma rewrite buffer
+	dec  []byte    // decimal-comma rewrite buffer
+	vals []float64 // fastRow's numbers, by field
+	rows rowPlan   // where plainRow finds the fields, for this header
+	// general turns fastRow off: tests compare it with the general path.
+	general bool
 }
 
 func newCSVDecoder(ing *ingester, asm *assembler, delim byte) *csvDecoder {
@@ -45,6 +53,9 @@ func newCSVDecoder(ing *ingester, asm *assembler, delim byte) *csvDecoder {
 }
 
 func (d *csvDecoder) decode(line []byte, n int) {
+	if d.names != nil && d.recs.pendingLines == 0 && !d.general && d.fastRow(line, n) {
+		return
+	}
 	rec, start, st := d.recs.add(line, n)
 	switch st {
 	case recordDone:
@@ -253,6 +264,7 @@ func (d *csvDecoder) setHeader(line []byte, fields [][]byte, n int) {
 
 // useHeader makes fields the column names.
 func (d *csvDecoder) useHeader(line []byte, fields [][]byte) {
+	d.gen++
 	d.header = append(d.header[:0], line...)
 	d.names = make([]string, len(fields))
 	d.roles = make([]cellRole, len(fields))
@@ -397,6 +409,7 @@ func (d *csvDecoder) extraColumns(count, n int) {
 		d.ing.notice(fmt.Sprintf("line %d has %d fields, the header %d: extra fields read as \"column %d\"…",
 			n, count, len(d.names), len(d.names)+1))
 	}
+	d.gen++
 	for i := len(d.roles); i < count; i++ {
 		name := "column " + strconv.Itoa(i+1)
 		d.names = append(d.names, name)

@@ -10,6 +10,8 @@
 // the source (waiting, truncated, replaced, removed) and cumulative Stats.
 //
 // The decoders are pure functions over bytes; only Follow touches files,
-// and it only opens them read-only. Text from the log is untrusted: every
-// name and example that leaves the package is passed through Sanitize.
+// and it only opens them read-only. A long backlog of a delimited log is
+// read on every core (parallel.go, backlog.go), with exactly the points of
+// the sequential read. Text from the log is untrusted: every name and
+// example that leaves the package is passed through Sanitize.
 package watch

@@ -9,6 +9,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"runtime"
 	"time"
 
 	"github.com/fsnotify/fsnotify"
@@ -40,6 +41,13 @@ const (
 	// a copytruncate that regrew past our offset before we looked shows up
 	// as a changed head. Unit: bytes.
 	fingerprintBytes = 64
+	// headRead is the first read of a long file, enough for its header
+	// line (a few hundred bytes in practice; a longer one takes more
+	// reads). Unit: bytes.
+	headRead = 16 << 10
+	// maxProcs bounds the cores the parallel path uses, and so its
+	// memory (two pieces in flight per core). Unit: cores.
+	maxProcs = 16
 )
 
 // Follow reads the log at path and sends batches on the returned channel,
@@ -73,7 +81,8 @@ func newTailer(path string, opts Options) (*tailer, error) {
 	if err := opts.validate(); err != nil {
 		return nil, err
 	}
-	t := &tailer{path: path, opts: opts, out: make(chan Batch, 4), buf: make([]byte, readChunk)}
+	t := &tailer{path: path, opts: opts, out: make(chan Batch, 4), buf: make([]byte, readChunk),
+		procs: min(runtime.GOMAXPROCS(0), maxProcs)}
 	if abs, err := filepath.Abs(path); err == nil {
 		t.abs = abs
 	} else {
@@ -162,6 +171,7 @@ type tailer struct {
 	head   []byte // the first bytes of the file, for the fingerprint
 	seen   bool   // a file was read under this name before
 	buf    []byte
+	procs  int // cores for the parallel path
 	sent   Stats
 	sentAt time.Time
 }
@@ -307,7 +317,9 @@ func (t *tailer) read(ctx context.Context) {
 	if t.f == nil {
 		return
 	}
+	size := int64(0)
 	if fi, err := t.f.Stat(); err == nil {
+		size = fi.Size()
 		switch {
 		case fi.Size() < t.offset:
 			t.restart(t.ing.name + " truncated: reading from the start")
@@ -316,13 +328,22 @@ func (t *tailer) read(ctx context.Context) {
 		}
 	}
 	for ctx.Err() == nil {
-		n, err := t.f.ReadAt(t.buf, t.offset)
+		if t.parallel(size) && !t.readBacklog(ctx, size) {
+			return
+		}
+		buf := t.buf
+		if t.offset == 0 && t.procs > 1 && size > int64(len(buf)) {
+			// The first read of a long file only needs the header: the
+			// parallel path takes over after it.
+			buf = buf[:headRead]
+		}
+		n, err := t.f.ReadAt(buf, t.offset)
 		if n > 0 {
 			if len(t.head) < fingerprintBytes && t.offset < fingerprintBytes {
-				t.head = append(t.head, t.buf[:min(n, fingerprintBytes-int(t.offset))]...)
+				t.head = append(t.head, buf[:min(n, fingerprintBytes-int(t.offset))]...)
 			}
 			t.offset += int64(n)
-			t.ing.feed(t.buf[:n])
+			t.ing.feed(buf[:n])
 		}
 		if err != nil {
 			if err != io.EOF {

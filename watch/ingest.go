@@ -57,6 +57,18 @@ type ingester struct {
 	lastN    int
 	batch    Batch
 	overrode bool // checkRoles already reported
+
+	// spec marks a worker of the parallel path (parallel.go): it decodes
+	// a chunk ahead of the ingester and gives up (bailed) at the first
+	// notice, which would depend on where the chunk sits in the log.
+	spec   bool
+	bailed bool
+	snap   *parSnap // the last snapshot, whose copies are reused while the header holds
+	// general makes the decoders take their general path (tests).
+	general bool
+	// taken counts the chunks whose workers' results were taken (tests
+	// check that the parallel path is not silently sequential).
+	taken int
 }
 
 func newIngester(name string, opts Options, now func() time.Time) *ingester {
@@ -75,6 +87,10 @@ func (g *ingester) step(r diagnose.StepRow) { g.batch.Steps = append(g.batch.Ste
 // notice reports a message; it may quote the log's name or an error about
 // it, so it is sanitized whole.
 func (g *ingester) notice(text string) {
+	if g.spec {
+		g.bailed = true
+		return
+	}
 	g.batch.Notices = append(g.batch.Notices, Notice{Time: g.now(), Text: Sanitize(text)})
 }
 
@@ -84,7 +100,7 @@ func (g *ingester) feed(p []byte) {
 		return
 	}
 	g.stats.LastWrite = g.now()
-	for len(p) > 0 {
+	for len(p) > 0 && !g.bailed {
 		i := bytes.IndexByte(p, '\n')
 		if i < 0 {
 			g.hold(p)
@@ -182,7 +198,9 @@ func (g *ingester) start(first []byte) {
 	g.asm.replace = false
 	switch f {
 	case FormatCSV, FormatTSV:
-		g.dec = newCSVDecoder(g, g.asm, delim)
+		d := newCSVDecoder(g, g.asm, delim)
+		d.general = g.general
+		g.dec = d
 	case FormatJSONL:
 		g.dec = newJSONDecoder(g, g.asm)
 	default:
@@ -193,7 +211,11 @@ func (g *ingester) start(first []byte) {
 // bad counts a line that cannot be read and keeps it as an example.
 func (g *ingester) bad(n int, reason string, text []byte) {
 	g.stats.Skipped++
-	e := ParseError{Line: n, Reason: reason, Text: sanitizeBytes(text, exampleBytes)}
+	g.keep(ParseError{Line: n, Reason: reason, Text: sanitizeBytes(text, exampleBytes)})
+}
+
+// keep files an example of a skipped line.
+func (g *ingester) keep(e ParseError) {
 	if len(g.first) < examplesFirst {
 		g.first = append(g.first, e)
 		return

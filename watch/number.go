@@ -41,69 +41,87 @@ func parseNumber(b []byte) (float64, bool) {
 // when there is no number there or it needs the slow path (more than 19
 // digits, a mantissa above 2^53, an exponent beyond ±22, a malformed
 // exponent); the caller then falls back to strconv on the whole field.
+//
+// The common shape (digits, a point, digits, no exponent) divides by the
+// power of ten of its fraction digits at once: at most 19, so exact, and
+// no range check. plainFields has the same loop inline for CSV rows.
+// (Reading 4 or 8 digits at a time from one load, the technique of
+// Lemire's "Number parsing at a gigabyte per second", 2021, was tried: on
+// metrics-log fields of 6 digits or fewer it measured slower here.)
 func fastFloat(b []byte, i int) (v float64, end int, ok bool) {
-	n := len(b)
 	neg := false
-	if i < n && (b[i] == '-' || b[i] == '+') {
+	if i < len(b) && (b[i] == '-' || b[i] == '+') {
 		neg = b[i] == '-'
 		i++
 	}
 	start := i
 	var mant uint64
-	for i < n {
+	for ; i < len(b); i++ {
 		c := b[i] - '0'
 		if c > 9 {
 			break
 		}
 		mant = mant*10 + uint64(c)
-		i++
 	}
-	digits := i - start
-	exp := 0
-	if i < n && b[i] == '.' {
+	frac := 0
+	if i < len(b) && b[i] == '.' {
 		i++
-		frac := i
-		for i < n {
+		from := i
+		for ; i < len(b); i++ {
 			c := b[i] - '0'
 			if c > 9 {
 				break
 			}
 			mant = mant*10 + uint64(c)
-			i++
 		}
-		exp = frac - i
-		digits += i - frac
+		frac = i - from
+		start++ // the point is not a digit
 	}
 	// 19 digits cannot overflow uint64; 2^53 keeps the mantissa exact.
-	if digits == 0 || digits > 19 || mant > 1<<53 {
+	if digits := i - start; digits == 0 || digits > 19 || mant > 1<<53 {
 		return 0, i, false
 	}
-	if i < n && (b[i] == 'e' || b[i] == 'E') {
-		i++
-		eneg := false
-		if i < n && (b[i] == '+' || b[i] == '-') {
-			eneg = b[i] == '-'
-			i++
-		}
-		if i >= n || b[i]-'0' > 9 {
-			return 0, i, false
-		}
-		e := 0
-		for i < n {
-			c := b[i] - '0'
-			if c > 9 {
-				break
-			}
-			if e < 10000 {
-				e = e*10 + int(c)
-			}
-			i++
-		}
-		if eneg {
-			e = -e
-		}
-		exp += e
+	if i < len(b) && b[i]|0x20 == 'e' {
+		return withExponent(b, i, mant, -frac, neg)
 	}
+	// Without an exponent the power of ten is the count of fraction
+	// digits, at most 19: exact, no range check needed.
+	v = float64(int64(mant)) / pow10[frac] // mant < 2^53: a signed conversion, no branch
+	if neg {
+		v = -v
+	}
+	return v, i, true
+}
+
+// withExponent finishes fastFloat for a number with an exponent: b[i] is
+// the 'e' or 'E', mant and exp the digits read so far.
+func withExponent(b []byte, i int, mant uint64, exp int, neg bool) (float64, int, bool) {
+	n := len(b)
+	i++
+	eneg := false
+	if i < n && (b[i] == '+' || b[i] == '-') {
+		eneg = b[i] == '-'
+		i++
+	}
+	if i >= n || b[i]-'0' > 9 {
+		return 0, i, false
+	}
+	e := 0
+	for i < n {
+		c := b[i] - '0'
+		if c > 9 {
+			break
+		}
+		if e < 10000 {
+			e = e*10 + int(c)
+		}
+		i++
+	}
+	if eneg {
+		e = -e
+	}
+	exp += e
+	var v float64
 	switch {
 	case mant == 0:
 		v = 0

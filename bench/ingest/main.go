@@ -4,6 +4,7 @@
 //
 //	ingest [-format auto|csv|tsv|jsonl|text] FILE
 //	ingest -follow FILE    follow FILE until interrupted (idle CPU check)
+//	ingest -cpuprofile OUT FILE   also write a CPU profile (go tool pprof)
 package main
 
 import (
@@ -12,6 +13,7 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"runtime/pprof"
 	"syscall"
 
 	"github.com/fitgap/fitgap/watch"
@@ -27,7 +29,19 @@ func main() {
 func run() error {
 	format := flag.String("format", "auto", "log format")
 	follow := flag.Bool("follow", false, "follow the file until interrupted")
+	profile := flag.String("cpuprofile", "", "write a CPU profile to this file")
 	flag.Parse()
+	if *profile != "" {
+		pf, err := os.Create(*profile)
+		if err != nil {
+			return err
+		}
+		defer pf.Close()
+		if err := pprof.StartCPUProfile(pf); err != nil {
+			return err
+		}
+		defer pprof.StopCPUProfile()
+	}
 	if flag.NArg() != 1 {
 		return fmt.Errorf("usage: ingest [-format F] [-follow] FILE")
 	}

@@ -1,0 +1,183 @@
+package watch
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/fitgap/fitgap/bench/loggen"
+)
+
+// TestParallel_ReadAllFile: ReadAll on a file of many pieces gives
+// the same points and counters as reading it from a pipe (the sequential
+// path), also with a resume, a repeated header and bad lines inside.
+func TestParallel_ReadAllFile(t *testing.T) {
+	var gen bytes.Buffer
+	if err := loggen.WriteCSV(&gen, 150_000); err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitAfter(gen.String(), "\n")
+	var mixed strings.Builder
+	for i, l := range lines {
+		switch i {
+		case 40_000:
+			mixed.WriteString("3,1,0.5,0.4,0.3,,\n") // resumed from epoch 3
+		case 70_000:
+			mixed.WriteString(loggen.Header + "\n")
+		case 90_000, 90_500:
+			mixed.WriteString("garbage \"line\n")
+		}
+		mixed.WriteString(l)
+	}
+	for name, data := range map[string]string{"Plain": gen.String(), "Mixed": mixed.String()} {
+		t.Run(name, func(t *testing.T) {
+			path := filepath.Join(t.TempDir(), "run.csv")
+			if err := os.WriteFile(path, []byte(data), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			fromFile, st1, err := ReadAll(path, nil, Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			fromPipe, st2, err := ReadAll(path, strings.NewReader(data), Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			st1.LastWrite, st2.LastWrite = time.Time{}, time.Time{}
+			if d := diffResults(ingestResult{points: fromFile, stats: st1}, ingestResult{points: fromPipe, stats: st2}); d != "" {
+				t.Fatal(d)
+			}
+		})
+	}
+}
+
+// readFileCounting reads path one-shot as ReadAll does and also returns
+// how many pieces were taken from workers.
+func readFileCounting(t *testing.T, path string, opts Options) (ingestResult, int) {
+	t.Helper()
+	tl, err := newTailer(path, opts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	go tl.run(context.Background())
+	var r ingestResult
+	for b := range tl.out {
+		r.points = append(r.points, b.Points...)
+		for _, n := range b.Notices {
+			r.notices = append(r.notices, n.Text)
+		}
+		r.stats = b.Stats
+	}
+	r.stats.LastWrite = time.Time{}
+	return r, tl.ing.taken
+}
+
+// TestParallel_SmallPieces reads files through the parallel path cut into
+// small pieces on 2 to 5 workers, and compares with a sequential read of
+// the same bytes: a clean per-step log, one with CRLF ends and without a
+// final newline, one with junk, a resume, a repeated header and a line
+// longer than pieceSlack (which stops the parallel path there).
+func TestParallel_SmallPieces(t *testing.T) {
+	var gen bytes.Buffer
+	if err := loggen.WriteCSV(&gen, 20_000); err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitAfter(gen.String(), "\n")
+	var mixed strings.Builder
+	for i, l := range lines {
+		switch i {
+		case 3_000:
+			mixed.WriteString("2,1,0.5,0.4,0.3,,\n") // resumed from epoch 2
+		case 7_000:
+			mixed.WriteString(loggen.Header + "\n")
+		case 9_000:
+			mixed.WriteString(strings.Repeat("9", pieceSlack+100) + "\n")
+		case 12_000, 12_001:
+			mixed.WriteString("garbage \"line\n")
+		}
+		mixed.WriteString(l)
+	}
+	crlf := strings.TrimSuffix(strings.ReplaceAll(gen.String(), "\n", "\r\n"), "\r\n")
+	defer func(chunk, procs int) {
+		parChunkBytes = chunk
+		runtime.GOMAXPROCS(procs)
+	}(parChunkBytes, runtime.GOMAXPROCS(0))
+	for name, data := range map[string]string{"Plain": gen.String(), "CRLF": crlf, "Mixed": mixed.String()} {
+		path := filepath.Join(t.TempDir(), "run.csv")
+		if err := os.WriteFile(path, []byte(data), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		g := newIngester(path, Options{}, func() time.Time { return time.Time{} })
+		g.feed([]byte(data))
+		g.endOfInput()
+		want := ingestResult{points: g.batch.Points}
+		for _, n := range g.batch.Notices {
+			want.notices = append(want.notices, n.Text)
+		}
+		want.stats = g.take().Stats
+		want.stats.State = StateFinished
+		for _, chunk := range []int{1 << 10, 4 << 10, 64 << 10} {
+			for _, procs := range []int{2, 3, 5} {
+				t.Run(fmt.Sprintf("%s/%d/%d", name, chunk, procs), func(t *testing.T) {
+					parChunkBytes = chunk
+					runtime.GOMAXPROCS(procs)
+					got, taken := readFileCounting(t, path, Options{})
+					if d := diffResults(got, want); d != "" {
+						t.Fatal(d)
+					}
+					if taken == 0 {
+						t.Fatal("no piece was taken from a worker")
+					}
+				})
+			}
+		}
+	}
+}
+
+// TestParallel_FollowBacklog follows a file with a long backlog (read by
+// the parallel path) and then appends to it (read sequentially): the
+// points are those of a sequential read of the whole file.
+func TestParallel_FollowBacklog(t *testing.T) {
+	var gen bytes.Buffer
+	if err := loggen.WriteCSV(&gen, 60_000); err != nil {
+		t.Fatal(err)
+	}
+	all := gen.Bytes()
+	cut := bytes.Index(all, []byte("\n50,49001,")) + 1 // epochs 1-49 first
+	path := filepath.Join(t.TempDir(), "run.csv")
+	if err := os.WriteFile(path, all[:cut], 0o644); err != nil {
+		t.Fatal(err)
+	}
+	f := startFollow(t, path, Options{})
+	f.waitFor(t, "the backlog", func(f *follower) bool { return len(f.points) == 49 })
+	w, err := os.OpenFile(path, os.O_APPEND|os.O_WRONLY, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer w.Close()
+	rest := all[cut:]
+	for len(rest) > 0 {
+		n := min(len(rest), 100_000)
+		if _, err := w.Write(rest[:n]); err != nil {
+			t.Fatal(err)
+		}
+		rest = rest[n:]
+	}
+	f.waitFor(t, "all lines", func(f *follower) bool { return f.stats.Lines == bytes.Count(all, []byte("\n")) })
+	want, _, err := ReadAll(path, bytes.NewReader(all), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	// The last epoch is still open while following: compare the closed ones.
+	if len(f.points) < 59 || !samePoints(f.points[:59], want[:59]) {
+		t.Fatalf("followed %d points, want %d: %v", len(f.points), len(want), epochs(f.points))
+	}
+}
