@@ -29,7 +29,7 @@ func TestSanitize(t *testing.T) {
 		{"unicode é ✓", "unicode é ✓"},
 		{"\x1b[", ""},
 		{"\x1b]unterminated", ""},
-		{"cr\rlf\n", "crlf"},
+		{"cr\rlf\n", "cr lf "},
 	}
 	for _, tt := range tests {
 		t.Run(strconv.Quote(tt.in), func(t *testing.T) {
