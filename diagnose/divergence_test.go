@@ -91,7 +91,7 @@ func TestTracker_DivergenceNeedsClearEvidence(t *testing.T) {
 		// noStop: no epoch may get the stop signal either.
 		noStop bool
 	}{
-		// The coordinator's report: the demo's overfitting run was judged
+		// Regression: the demo's overfitting run was once judged
 		// diverging at epochs 4, 6 and 9 of its noisy opening.
 		{"NoisyOpeningOfAnOverfittingRun", Config{BayesError: 0.05, BayesErrorGiven: true}, overfitOpeningPoints(), 0, true},
 		// Two rises in the first strip that climb back more than half-way

@@ -21,7 +21,7 @@ func TestTracker_GLFromTheEpochToRestore(t *testing.T) {
 		cfg  Config
 		pts  []Point
 	}{
-		// The coordinator's report: at epoch 7 of the demo's overfitting
+		// Regression: at epoch 7 of the demo's overfitting
 		// run the reason said "12.2% above its best ... restore epoch 7"
 		// with 0 epochs since the best (GL was from the best logged value,
 		// the restore epoch from the best smoothed one).

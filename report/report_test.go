@@ -193,7 +193,7 @@ func TestSummary_Sanitized(t *testing.T) {
 	}
 }
 
-// TestMarkdown_Prose checks what the coordinator found: the Markdown ends
+// TestMarkdown_Prose checks that the Markdown ends
 // with exactly one newline (it is printed as is, and files end in one),
 // and its prose names diagnoses and components in words, never by their
 // machine names ("work on avoidable bias first", not "avoidable-bias").

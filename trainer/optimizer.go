@@ -10,7 +10,7 @@ type optimizer interface {
 
 // Adam's default hyperparameters. Source: Kingma & Ba 2015, Algorithm 1
 // ("Good default settings for the tested machine learning problems are
-// α = 0.001, β1 = 0.9, β2 = 0.999 and ε = 10⁻⁸"; CHECKS.md F4).
+// α = 0.001, β1 = 0.9, β2 = 0.999 and ε = 10⁻⁸").
 const (
 	adamBeta1   = 0.9
 	adamBeta2   = 0.999

@@ -6,7 +6,7 @@ import (
 )
 
 // Adam on f(θ) = θ², θ₀ = 1, α = 0.1, with the paper's β1, β2, ε.
-// Source: Kingma & Ba 2015, Algorithm 1 (CHECKS.md F4), worked by hand and
+// Source: Kingma & Ba 2015, Algorithm 1, worked by hand and
 // checked with 40-digit decimal arithmetic:
 //
 //	t=1: g=2, m=0.2, v=0.004, m̂=2, v̂=4, θ = 1 − 0.1·2/(2+1e−8) = 0.9000000005
@@ -32,7 +32,7 @@ func TestAdam_MatchesAlgorithmOne(t *testing.T) {
 	}
 }
 
-// The defaults are the paper's (Kingma & Ba 2015, Algorithm 1; CHECKS.md F4).
+// The defaults are the paper's (Kingma & Ba 2015, Algorithm 1).
 func TestAdam_Defaults(t *testing.T) {
 	a := newAdam(1)
 	if a.beta1 != 0.9 || a.beta2 != 0.999 || a.eps != 1e-8 {

@@ -34,7 +34,7 @@ func regimeSeeds() []int64 {
 
 // The checks read the logged numbers only, the way the diagnosis will.
 // The components follow Ng, Machine Learning Yearning (2018) ch. 21–22 and
-// 40–41 (CHECKS.md B): avoidable bias = train − optimal, variance =
+// 40–41: avoidable bias = train − optimal, variance =
 // val − train (train-dev − train with a train-dev split), data mismatch =
 // val − train-dev. The margins are the task's design margins around the
 // diagnosis's 2-point threshold (common practice; no published threshold).

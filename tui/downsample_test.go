@@ -26,14 +26,14 @@ func equalFloats(a, b []float64) bool {
 }
 
 func TestLTTB(t *testing.T) {
-	// Source: CHECKS.md table E1 — the zero-area regression case of the
+	// Source: Steinarsson (2013) LTTB; the zero-area regression case of the
 	// Go port's test suite (TestPointSelectionWithZeroArea), reproduced
 	// against a transcription of the author's reference JS: with threshold
 	// 7 only (1302912, 116.3328) is dropped; the bucket whose triangles all
 	// have zero area must still yield a point.
 	e1 := []xy{{0, 0}, {1299456, 116.3707}, {1300320, 116.3752}, {1301184, 116.3648},
 		{1302048, 116.3544}, {1302912, 116.3328}, {1306368, 116.3277}, {1307232, 116.2676}}
-	// Source: CHECKS.md table E2 — worked by hand with the master-branch
+	// Source: Steinarsson (2013) LTTB, flot-downsample reference code, worked by hand with the master-branch
 	// bucket bounds: y = 0,1,5,2,2,8,3,4,0,1 at x = 0..9, threshold 4,
 	// every = 4; bucket [1,5) picks x=2 (area 12.5), bucket [5,9) picks x=5
 	// (area 16.5).
@@ -46,7 +46,7 @@ func TestLTTB(t *testing.T) {
 	}{
 		{"E1ZeroAreaBucketStillPicks", e1, 7, []float64{0, 1299456, 1300320, 1301184, 1302048, 1306368, 1307232}},
 		{"E2HandWorked", e2, 4, []float64{0, 2, 5, 9}},
-		// Source: CHECKS.md table E3 — flot-downsample returns the input
+		// Source: Steinarsson (2013), flot-downsample reference code: returns the input
 		// unchanged when threshold >= n or threshold == 0.
 		{"E3ThresholdAtLength", e2, 10, xs(e2)},
 		{"E3ThresholdAboveLength", e2, 50, xs(e2)},

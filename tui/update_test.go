@@ -135,7 +135,7 @@ func TestModel_NewOptimalError(t *testing.T) {
 			if !after.BayesErrorGiven || after.BayesError != tt.want {
 				t.Errorf("verdict not recomputed: %v given %v", after.BayesError, after.BayesErrorGiven)
 			}
-			// Avoidable bias = train − optimal (CHECKS.md §2, Ng MLY ch.22).
+			// Avoidable bias = train − optimal (Ng, Machine Learning Yearning, ch. 22).
 			if a, b := after.AvoidableBias, before.AvoidableBias; a.OK && b.OK && absF(b.V-a.V-tt.want) > 0.02 {
 				t.Errorf("avoidable bias went from %v to %v with optimal %v", b.V, a.V, tt.want)
 			}

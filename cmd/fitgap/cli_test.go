@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"context"
 	"flag"
+	"fmt"
+	"os"
 	"strings"
 	"testing"
 )
@@ -153,6 +155,29 @@ func TestLooksLikeCommand(t *testing.T) {
 	for _, tt := range tests {
 		if got := looksLikeCommand(tt.arg); got != tt.want {
 			t.Errorf("looksLikeCommand(%q) = %v, want %v", tt.arg, got, tt.want)
+		}
+	}
+}
+
+// TestReadme_DocumentsEveryFlag keeps the README's flag tables in step
+// with the command line.
+func TestReadme_DocumentsEveryFlag(t *testing.T) {
+	b, err := os.ReadFile("../../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	readme := string(b)
+	for _, c := range commands {
+		fs, _ := c.newFlagSet()
+		fs.VisitAll(func(f *flag.Flag) {
+			if !strings.Contains(readme, "`--"+f.Name) {
+				t.Errorf("README.md does not document --%s of fitgap %s", f.Name, c.name)
+			}
+		})
+	}
+	for _, code := range []int{exitOK, exitFailure, exitUsage, exitNoTerminal, exitHangup, exitInterrupted, exitTerminated} {
+		if !strings.Contains(readme, fmt.Sprintf("| %d", code)) && !strings.Contains(readme, fmt.Sprintf(", %d", code)) {
+			t.Errorf("README.md does not document exit status %d", code)
 		}
 	}
 }
