@@ -1,5 +1,7 @@
 package diagnose
 
+import "math"
+
 // The remedies and their order follow Machine Learning Yearning: ch. 23
 // (the simplest remedy first: a bigger model for bias, more data for
 // variance), ch. 25 (bias: bigger model, less regularization, a new
@@ -90,11 +92,14 @@ func (t *Tracker) actions(i int) []Action {
 				add("tune the optimizer and learning rate: the training "+name+" has stopped falling",
 					t.text().s(w).s(", no progress over the last ").n(slopeWindow).s(" epochs").done())
 			}
-			if v := r.comp[Variance]; v.OK && v.V < 0 {
-				add("reduce regularization (dropout, weight decay)",
-					t.text().s("validation beats training by ").gap(-v.V).s(": regularization holds training back").done())
+			// Validation beating training is evidence of training-only
+			// regularization only when the gap is beyond the noise of the
+			// two smoothed values (1.96 standard errors, 95%).
+			if v := r.comp[Variance]; v.OK && v.V < 0 && -v.V > z95*math.Hypot(r.se[SplitVal], r.se[SplitTrain]) {
+				add("reduce regularization (dropout, weight decay), if the model uses any",
+					t.text().s("validation beats training by ").gap(-v.V).s(": training-only regularization holds the training fit back").done())
 			} else {
-				add("reduce regularization (dropout, weight decay)", w)
+				add("reduce regularization (dropout, weight decay), if the model uses any", w)
 			}
 			add("try an architecture suited to the input (convolutions for images, attention or recurrence for sequences)", w)
 		case Variance:
