@@ -95,12 +95,11 @@ func (t *Tracker) actions(i int) []Action {
 			// Validation beating training is evidence of training-only
 			// regularization only when the gap is beyond the noise of the
 			// two smoothed values (1.96 standard errors, 95%).
+			regWhy := w
 			if v := r.comp[Variance]; v.OK && v.V < 0 && -v.V > z95*math.Hypot(r.se[SplitVal], r.se[SplitTrain]) {
-				add("reduce regularization (dropout, weight decay), if the model uses any",
-					t.text().s("validation beats training by ").gap(-v.V).s(": training-only regularization holds the training fit back").done())
-			} else {
-				add("reduce regularization (dropout, weight decay), if the model uses any", w)
+				regWhy = t.text().s("validation beats training by ").gap(-v.V).s(": training-only regularization holds the training fit back").done()
 			}
+			add("reduce regularization (dropout, weight decay), if the model uses any", regWhy)
 			add("try an architecture suited to the input (convolutions for images, attention or recurrence for sequences)", w)
 		case Variance:
 			if r.since > 0 {

@@ -37,35 +37,52 @@ func (t *Tracker) judgeProgress(i int) {
 // trend judges one split's smoothed curve over the last points where the
 // split was logged.
 func (t *Tracker) trend(i int, s Split, tol float64) Progress {
+	bit := uint8(1) << s
+	p, _, _ := t.windowTrend(i, tol, func(r *rec) (float64, bool) {
+		return r.sm[s], r.has&bit != 0 && r.bad&bit == 0
+	})
+	return p
+}
+
+// windowTrend judges a curve from the least-squares slope over the last
+// slopeWindow points at or before i where at gives a value: improving or
+// worsening when the slope, projected over the epochs the window covers,
+// moves the curve by plateauFrac of tol or more, else plateaued. It also
+// returns that move and the mean level of the window (for the
+// overconfidence check).
+func (t *Tracker) windowTrend(i int, tol float64, at func(r *rec) (float64, bool)) (Progress, float64, float64) {
 	var xs, ys [slopeWindow]float64
 	n := 0
-	bit := uint8(1) << s
-	// Look back at most 4 windows of points, so a split logged rarely
+	// Look back at most 4 windows of points, so a series logged rarely
 	// still costs O(1) per point.
 	for j := i; j >= 0 && j > i-4*slopeWindow && n < slopeWindow; j-- {
-		r := t.recs.at(j)
-		if r.has&bit == 0 || r.bad&bit != 0 {
+		v, ok := at(t.recs.at(j))
+		if !ok {
 			continue
 		}
-		xs[n], ys[n] = float64(t.points[j].Epoch), r.sm[s]
+		xs[n], ys[n] = float64(t.points[j].Epoch), v
 		n++
 	}
 	if n < minPoints {
-		return ProgressUnknown
+		return ProgressUnknown, 0, 0
 	}
 	m := slope(xs[:n], ys[:n])
 	if math.IsNaN(m) {
-		return ProgressUnknown
+		return ProgressUnknown, 0, 0
 	}
-	span := xs[0] - xs[n-1] // epochs covered by the window
-	move := m * span
+	level := 0.0
+	for _, y := range ys[:n] {
+		level += y
+	}
+	level /= float64(n)
+	move := m * (xs[0] - xs[n-1]) // xs[0] is the newest epoch
 	switch {
 	case move <= -plateauFrac*tol*(1-eps):
-		return Improving
+		return Improving, move, level
 	case move >= plateauFrac*tol*(1-eps):
-		return Worsening
+		return Worsening, move, level
 	}
-	return Plateaued
+	return Plateaued, move, level
 }
 
 // earlyStop updates the best epoch, Prechelt's criteria and the signal.

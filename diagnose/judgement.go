@@ -59,6 +59,7 @@ var componentNames = [...]string{
 	ValOverfit:    "val-overfit",
 }
 
+// String returns the stable machine name used in JSON ("avoidable-bias").
 func (c Component) String() string {
 	if int(c) < len(componentNames) {
 		return componentNames[c]
@@ -81,6 +82,7 @@ const (
 
 var progressNames = [...]string{"unknown", "improving", "plateaued", "worsening"}
 
+// String returns the stable machine name used in JSON ("plateaued").
 func (p Progress) String() string {
 	if int(p) < len(progressNames) {
 		return progressNames[p]
@@ -88,6 +90,7 @@ func (p Progress) String() string {
 	return "progress(" + strconv.Itoa(int(p)) + ")"
 }
 
+// MarshalText makes a Progress a JSON string.
 func (p Progress) MarshalText() ([]byte, error) { return []byte(p.String()), nil }
 
 // Signal is the early-stopping signal.
@@ -102,6 +105,7 @@ const (
 
 var signalNames = [...]string{"continue", "watch", "stop"}
 
+// String returns the stable machine name used in JSON ("stop").
 func (s Signal) String() string {
 	if int(s) < len(signalNames) {
 		return signalNames[s]
@@ -109,6 +113,7 @@ func (s Signal) String() string {
 	return "signal(" + strconv.Itoa(int(s)) + ")"
 }
 
+// MarshalText makes a Signal a JSON string.
 func (s Signal) MarshalText() ([]byte, error) { return []byte(s.String()), nil }
 
 // Metric names the metric the gaps are measured in.

@@ -21,6 +21,7 @@ const (
 	SplitTest
 )
 
+// String names the split as output writes it ("train-dev").
 func (s Split) String() string {
 	switch s {
 	case SplitTrain:
@@ -46,6 +47,7 @@ const (
 	HigherIsBetter
 )
 
+// String names the direction ("lower-is-better").
 func (d Direction) String() string {
 	switch d {
 	case LowerIsBetter:
@@ -70,6 +72,7 @@ const (
 	KindTime
 )
 
+// String names the kind of column ("metric").
 func (k Kind) String() string {
 	switch k {
 	case KindMetric:
@@ -196,6 +199,7 @@ func (n Num) MarshalJSON() ([]byte, error) {
 	return appendFloat(nil, n.V), nil
 }
 
+// appendFloat appends v in the shortest form that reads back exactly.
 func appendFloat(b []byte, v float64) []byte {
 	return strconv.AppendFloat(b, v, 'g', -1, 64)
 }

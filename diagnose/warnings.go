@@ -50,35 +50,7 @@ func (t *Tracker) overconfident(i int) bool {
 // auxTrend is trend for the two series of the overconfidence check; it
 // also returns the move over the window and the mean level.
 func (t *Tracker) auxTrend(i, k int, tol float64) (Progress, float64, float64) {
-	var xs, ys [slopeWindow]float64
-	n := 0
-	for j := i; j >= 0 && j > i-4*slopeWindow && n < slopeWindow; j-- {
-		if !t.recs.at(j).auxAt(k) {
-			continue
-		}
-		xs[n], ys[n] = float64(t.points[j].Epoch), t.recs.at(j).auxSm[k]
-		n++
-	}
-	if n < minPoints {
-		return ProgressUnknown, 0, 0
-	}
-	m := slope(xs[:n], ys[:n])
-	if math.IsNaN(m) {
-		return ProgressUnknown, 0, 0
-	}
-	level := 0.0
-	for _, y := range ys[:n] {
-		level += y
-	}
-	level /= float64(n)
-	move := m * (xs[0] - xs[n-1])
-	switch {
-	case move <= -plateauFrac*tol:
-		return Improving, move, level
-	case move >= plateauFrac*tol:
-		return Worsening, move, level
-	}
-	return Plateaued, move, level
+	return t.windowTrend(i, tol, func(r *rec) (float64, bool) { return r.auxSm[k], r.auxAt(k) })
 }
 
 // auxAt reports whether aux series k was logged at this point.

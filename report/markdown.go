@@ -115,7 +115,9 @@ func (s Summary) Markdown() string {
 		b.WriteString(")")
 	}
 	b.WriteString(".\n" + inline(es.Reason) + ".\n\n")
-	b.WriteString("Prechelt's criteria: GL " + num(es.GL, 2) + "%, P" + strconv.Itoa(s.strip()) + " " + num(es.P5, 1) + "‰, PQ " + num(es.PQ, 2) +
+	// GL with one decimal, as the screen and the reasons write it:
+	// Prechelt's GL thresholds are whole percents (GL_1 … GL_5).
+	b.WriteString("Prechelt's criteria: GL " + num(es.GL, 1) + "%, P" + strconv.Itoa(s.strip()) + " " + num(es.P5, 1) + "‰, PQ " + num(es.PQ, 2) +
 		", UP " + strconv.Itoa(es.UP) + "; patience " + strconv.Itoa(es.Patience) + " epochs.\n")
 
 	if len(s.Actions) > 0 {
@@ -146,7 +148,7 @@ func (s Summary) value(n diagnose.Num) string {
 	if s.ErrorRate || s.boundedLabel() {
 		return pct(n.V, "%")
 	}
-	return num(n, 4)
+	return sig4(n)
 }
 
 // gap formats a difference: percentage points for rates.
@@ -157,12 +159,14 @@ func (s Summary) gap(n diagnose.Num) string {
 	if s.ErrorRate || s.boundedLabel() {
 		return pct(n.V, " points")
 	}
-	return num(n, 4)
+	return sig4(n)
 }
 
 // boundedLabel recognises a shortfall score (1 − f1), shown in percent.
 func (s Summary) boundedLabel() bool { return strings.HasPrefix(s.Metric, "1 − ") }
 
+// pct formats a rate (a fraction) as 100·v with one decimal, two below
+// one, then unit: "%" for a value, " points" for a difference.
 func pct(v float64, unit string) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "n/a"
@@ -175,7 +179,18 @@ func pct(v float64, unit string) string {
 	return strconv.FormatFloat(p, 'f', prec, 64) + unit
 }
 
+// num formats n with prec decimals ("–" when absent, "n/a" for NaN).
 func num(n diagnose.Num, prec int) string {
+	return numWith(n, 'f', prec)
+}
+
+// sig4 formats a value of a metric in its own units with four significant
+// digits, as the judgement's texts do.
+func sig4(n diagnose.Num) string {
+	return numWith(n, 'g', 4)
+}
+
+func numWith(n diagnose.Num, fmt byte, prec int) string {
 	if !n.OK {
 		return "–"
 	}
@@ -185,10 +200,7 @@ func num(n diagnose.Num, prec int) string {
 	if math.IsInf(n.V, 0) {
 		return "∞"
 	}
-	if prec == 4 {
-		return strconv.FormatFloat(n.V, 'g', 4, 64)
-	}
-	return strconv.FormatFloat(n.V, 'f', prec, 64)
+	return strconv.FormatFloat(n.V, fmt, prec, 64)
 }
 
 // diagnosisWords names a diagnosis for people; the JSON keeps the
@@ -253,9 +265,14 @@ func orDash(s string) string {
 	return s
 }
 
-// inline makes text safe inside one Markdown line or table cell: it is
-// printable already; a pipe would split a table cell and a leading
-// character could start a heading or list, so they are escaped.
+// mdEscaper escapes what would change the meaning of text inside one
+// Markdown line or table cell: a pipe splits a cell, a backtick or an
+// asterisk starts code or emphasis, brackets start a link, angle brackets
+// start HTML. Every line it serves begins with our own text ("- ", "1. ",
+// "| "), so a character at the start of a log's text cannot start a
+// heading or a list.
 var mdEscaper = strings.NewReplacer("|", "\\|", "`", "\\`", "*", "\\*", "[", "\\[", "]", "\\]", "<", "&lt;", ">", "&gt;")
 
+// inline makes text printable (it may come from the log) and escapes it
+// for one Markdown line or table cell.
 func inline(s string) string { return mdEscaper.Replace(diagnose.Printable(s)) }

@@ -19,6 +19,7 @@ const (
 // leakySlope is the negative-side slope of leakyReLU.
 const leakySlope = 0.01
 
+// String names the activation as the log's first line writes it ("leaky ReLU").
 func (a activation) String() string {
 	switch a {
 	case tanhAct:

@@ -12,8 +12,9 @@ const (
 	// a 56-column plot next to a 40-column panel both stay readable.
 	wideW = 100
 	wideH = 20
-	// sideMin and sideMax bound the side panel: the longest fixed label
-	// ("avoidable bias") plus a number and a bar need about 38 columns;
+	// sideMin and sideMax bound the side panel: a legend row of the
+	// decomposition (glyph, "avoidable bias", a gap such as "-12.5 pp" and
+	// the longest note, "no train-dev"; see legendNoteX) takes 38 columns;
 	// beyond 56 the chart gains more from the width than the text does.
 	sideMin = 38
 	sideMax = 56
@@ -38,6 +39,7 @@ const (
 	modeWide                // chart and sparklines left, verdict right
 )
 
+// String names the mode, for test failures.
 func (m mode) String() string {
 	return [...]string{"empty", "compact", "stacked", "wide"}[m]
 }

@@ -39,6 +39,7 @@ const (
 	Finished
 )
 
+// String names the state ("live").
 func (s SourceState) String() string {
 	switch s {
 	case Waiting:
@@ -109,6 +110,7 @@ const (
 	ExitCanceled
 )
 
+// String names the reason ("hangup").
 func (r ExitReason) String() string {
 	switch r {
 	case ExitQuit:

@@ -196,41 +196,33 @@ func (c *stepClock) knots(dst []xy) []xy {
 
 // stepAt maps an epoch position to a step on the knots (both increasing),
 // extrapolating flat beyond the ends.
-func stepAt(knots []xy, x float64) float64 {
-	n := len(knots)
-	if n == 0 {
-		return 0
-	}
-	if x <= knots[0].X {
-		return knots[0].Y
-	}
-	if x >= knots[n-1].X {
-		return knots[n-1].Y
-	}
-	k := sort.Search(n, func(i int) bool { return knots[i].X >= x })
-	a, b := knots[k-1], knots[k]
-	if b.X == a.X {
-		return b.Y
-	}
-	return a.Y + (x-a.X)*(b.Y-a.Y)/(b.X-a.X)
-}
+func stepAt(knots []xy, x float64) float64 { return interpolate(knots, x, false) }
 
 // epochAt maps a step to an epoch position, the inverse of stepAt.
-func epochAt(knots []xy, step float64) float64 {
+func epochAt(knots []xy, step float64) float64 { return interpolate(knots, step, true) }
+
+// interpolate reads the piecewise-linear map through the knots at v: Y at
+// X = v, or with inverse X at Y = v (both coordinates increase, so the map
+// can be read either way), flat beyond the ends.
+func interpolate(knots []xy, v float64, inverse bool) float64 {
 	n := len(knots)
 	if n == 0 {
 		return 0
 	}
-	if step <= knots[0].Y {
-		return knots[0].X
+	in, out := func(p xy) float64 { return p.X }, func(p xy) float64 { return p.Y }
+	if inverse {
+		in, out = out, in
 	}
-	if step >= knots[n-1].Y {
-		return knots[n-1].X
+	if v <= in(knots[0]) {
+		return out(knots[0])
 	}
-	k := sort.Search(n, func(i int) bool { return knots[i].Y >= step })
+	if v >= in(knots[n-1]) {
+		return out(knots[n-1])
+	}
+	k := sort.Search(n, func(i int) bool { return in(knots[i]) >= v })
 	a, b := knots[k-1], knots[k]
-	if b.Y == a.Y {
-		return b.X
+	if in(b) == in(a) {
+		return out(b)
 	}
-	return a.X + (step-a.Y)*(b.X-a.X)/(b.Y-a.Y)
+	return out(a) + (v-in(a))*(out(b)-out(a))/(in(b)-in(a))
 }

@@ -102,7 +102,7 @@ func (m *Model) stackedBody(j diagnose.Judgement, idx int, warns []string, spark
 	if m.fullHelp {
 		out = append(out, m.fullHelpLines(lay.w, lay.chartH)...)
 	} else {
-		out = append(out, m.chartLines(lay.w, lay.chartH)...)
+		out = append(out, m.chartLines(j, lay.w, lay.chartH)...)
 	}
 	out = append(out, m.sparkLines(sparks, lay)...)
 	out = append(out, m.verdictCompact(j, idx, lay.w, lay.verdictRows)...)
@@ -114,7 +114,7 @@ func (m *Model) stackedBody(j diagnose.Judgement, idx int, warns []string, spark
 // the right, with the warnings across the bottom.
 func (m *Model) wideBody(j diagnose.Judgement, idx int, warns []string, sparks []*column) []string {
 	lay := m.cache.lay
-	left := m.chartLines(lay.mainW, lay.chartH)
+	left := m.chartLines(j, lay.mainW, lay.chartH)
 	left = append(left, m.sparkLines(sparks, lay)...)
 	h := lay.chartH + lay.sparkRows
 	var right []string

@@ -27,8 +27,9 @@ func (m *Model) plotted(v float64) float64 {
 	return math.Log10(v)
 }
 
-// chartLines draws the main chart of the rows shown at w×h.
-func (m *Model) chartLines(w, h int) []string {
+// chartLines draws the main chart of the rows shown at w×h; j is the
+// judgement of the inspected row, whose best epoch the chart marks.
+func (m *Model) chartLines(j diagnose.Judgement, w, h int) []string {
 	if h <= 0 || w <= 0 {
 		return nil
 	}
@@ -130,9 +131,7 @@ func (m *Model) chartLines(w, h int) []string {
 		}
 	}
 
-	idx := m.inspected()
-	if idx >= 0 && idx < n {
-		j := m.tracker.At(idx)
+	if idx := m.inspected(); idx >= 0 && idx < n {
 		if es := j.EarlyStop; es.BestVal.OK {
 			if k := rowOfEpoch(rows, es.BestEpoch); k >= 0 {
 				spec.best = xy{X: float64(rows[k].epoch), Y: m.plotted(rows[k].val)}

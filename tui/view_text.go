@@ -29,12 +29,12 @@ func (m *Model) compactBody(j diagnose.Judgement, idx int, warns []string, h int
 			entry{m.valuesLine(j), clsPlain},
 			entry{signalWords(j.EarlyStop), signalClass(j.EarlyStop.Signal)},
 		)
-		if d := m.stopDetails(j.EarlyStop); d != "" {
+		if d := m.stopNumbers(j.EarlyStop, false); d != "" {
 			es = append(es, entry{d, clsDim})
 		}
 		line := "error:"
 		for _, c := range components(j) {
-			line += " " + c.short + " " + m.fmtGap(c.val)
+			line += " " + c.short + " " + m.fmtPart(c)
 		}
 		es = append(es, entry{line, clsPlain})
 		if len(j.Actions) > 0 {

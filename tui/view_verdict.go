@@ -15,7 +15,7 @@ func diagnosisWords(d diagnose.Diagnosis) (head, detail string) {
 	case diagnose.TooEarly:
 		return "too early to judge", "a few more epochs are needed"
 	case diagnose.Diverging:
-		return "diverging", "the loss is blowing up or not finite"
+		return "diverging", "the training curve is blowing up, or a value is not finite"
 	case diagnose.HighBias:
 		return "underfitting", "high avoidable bias: training error well above the optimal error"
 	case diagnose.HighVariance:
@@ -69,13 +69,9 @@ func signalWords(es diagnose.EarlyStop) string {
 	return "CONTINUE"
 }
 
-// stopDetails are the numbers behind the signal.
-func (m *Model) stopDetails(es diagnose.EarlyStop) string {
-	return m.stopNumbers(es, false)
-}
-
-// stopNumbers lists best value, epochs since best, GL, patience and PQ;
-// short drops the words a one-line panel has no room for.
+// stopNumbers are the numbers behind the signal: best value, epochs since
+// best, GL, patience and PQ; short drops the words a one-line panel has no
+// room for.
 func (m *Model) stopNumbers(es diagnose.EarlyStop, short bool) string {
 	var parts []string
 	if es.BestVal.OK {
@@ -134,6 +130,17 @@ const (
 	glyphMismatch = '█'
 )
 
+// Columns of the side panel's legend: a glyph and a space, the name
+// ("avoidable bias", the longest, and a space), the value ("-12.5 pp"),
+// then a space and the note, which gets what is left of the row.
+const (
+	legendNameW  = 15
+	legendValueW = 8
+	legendNoteX  = 2 + legendNameW + legendValueW + 1
+)
+
+// components lists the parts of the validation error in the order the
+// bar draws them: the optimal error, then the gaps above it.
 func components(j diagnose.Judgement) []component {
 	opt := diagnose.Some(j.BayesError)
 	return []component{
@@ -263,9 +270,7 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 
 	var stop []string
 	stop = append(stop, st.paint(signalClass(j.EarlyStop.Signal), signalWords(j.EarlyStop)))
-	for _, l := range wrap(m.stopDetails(j.EarlyStop), w) {
-		stop = append(stop, l)
-	}
+	stop = append(stop, wrap(m.stopNumbers(j.EarlyStop, false), w)...)
 	var reason []string
 	if r := clean(j.EarlyStop.Reason); r != "" {
 		for _, l := range wrap(r, w) {
@@ -279,12 +284,12 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 	legend := make([]string, 0, 4)
 	var noteLines []string // the optimal error's note in full, when the legend has no room for it
 	for _, c := range comps {
-		v := m.fmtGap(c.val)
+		v := m.fmtPart(c)
 		note := ""
 		switch {
 		case c.kind == diagnose.NoComponent:
 			note = m.optimalNote(j)
-			if room := w - 25; ansiLen(note) > room {
+			if room := w - legendNoteX; ansiLen(note) > room {
 				full := note
 				// "known: the demo flips 5% of labels" → "known" here, the
 				// whole note under the legend.
@@ -300,7 +305,7 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		case c.kind != diagnose.NoComponent && c.kind == j.Focus:
 			note = "focus"
 		}
-		line := st.paint(c.cls, string(c.glyph)) + " " + pad(c.name, 15) + pad(v, 7)
+		line := st.paint(c.cls, string(c.glyph)) + " " + pad(c.name, legendNameW) + pad(v, legendValueW)
 		if note != "" {
 			cls := clsDim
 			if c.kind == j.Focus && c.kind != diagnose.NoComponent {
@@ -402,7 +407,7 @@ func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []str
 	barW := clampInt(w/4, 8, 24)
 	l3 := m.errorBar(comps, barW)
 	for _, c := range comps {
-		part := " " + st.paint(c.cls, string(c.glyph)) + c.short + " " + m.fmtGap(c.val)
+		part := " " + st.paint(c.cls, string(c.glyph)) + c.short + " " + m.fmtPart(c)
 		if c.kind == diagnose.NoComponent && !j.BayesErrorGiven {
 			part += "?"
 		}
@@ -426,27 +431,6 @@ func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []str
 		out = out[:rows]
 	}
 	return out
-}
-
-// fmtValue prints a judged value: error rates (and shortfalls of bounded
-// scores) in percent, as practitioners quote them; other metrics in their
-// units.
-func (m *Model) fmtValue(v float64) string {
-	if isRateMetric(m.currentMetric()) && isFinite(v) {
-		return formatNum(v*100, 3) + "%"
-	}
-	return formatNum(v, 4)
-}
-
-// fmtGap prints a component of the decomposition, "–" when absent.
-func (m *Model) fmtGap(n diagnose.Num) string {
-	if !n.OK {
-		return "–"
-	}
-	if isRateMetric(m.currentMetric()) && isFinite(n.V) {
-		return formatNum(n.V*100, 3) + "%"
-	}
-	return formatNum(n.V, 3)
 }
 
 func itoa(i int) string { return strconv.Itoa(i) }
