@@ -16,26 +16,24 @@ import (
 
 // TestParallel_ReadAllFile: ReadAll on a file of many pieces gives
 // the same points and counters as reading it from a pipe (the sequential
-// path), also with a resume, a repeated header and bad lines inside.
+// path), also with a resume, a repeated header and bad lines inside. It
+// runs on two cores at least, or the file would be read sequentially too
+// and the comparison could not fail.
 func TestParallel_ReadAllFile(t *testing.T) {
+	if runtime.GOMAXPROCS(0) < 2 {
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(2))
+	}
 	var gen bytes.Buffer
 	if err := loggen.WriteCSV(&gen, 150_000); err != nil {
 		t.Fatal(err)
 	}
-	lines := strings.SplitAfter(gen.String(), "\n")
-	var mixed strings.Builder
-	for i, l := range lines {
-		switch i {
-		case 40_000:
-			mixed.WriteString("3,1,0.5,0.4,0.3,,\n") // resumed from epoch 3
-		case 70_000:
-			mixed.WriteString(loggen.Header + "\n")
-		case 90_000, 90_500:
-			mixed.WriteString("garbage \"line\n")
-		}
-		mixed.WriteString(l)
-	}
-	for name, data := range map[string]string{"Plain": gen.String(), "Mixed": mixed.String()} {
+	mixed := insertLines(gen.String(), map[int]string{
+		40_000: "3,1,0.5,0.4,0.3,,", // resumed from epoch 3
+		70_000: loggen.Header,
+		90_000: "garbage \"line",
+		90_500: "garbage \"line",
+	})
+	for name, data := range map[string]string{"Plain": gen.String(), "Mixed": mixed} {
 		t.Run(name, func(t *testing.T) {
 			path := filepath.Join(t.TempDir(), "run.csv")
 			if err := os.WriteFile(path, []byte(data), 0o644); err != nil {
@@ -55,6 +53,19 @@ func TestParallel_ReadAllFile(t *testing.T) {
 			}
 		})
 	}
+}
+
+// insertLines returns log with the line at[i] put before its line i
+// (0-based).
+func insertLines(log string, at map[int]string) string {
+	var out strings.Builder
+	for i, l := range strings.SplitAfter(log, "\n") {
+		if extra, ok := at[i]; ok {
+			out.WriteString(extra + "\n")
+		}
+		out.WriteString(l)
+	}
+	return out.String()
 }
 
 // readFileCounting reads path one-shot as ReadAll does and also returns
@@ -88,27 +99,19 @@ func TestParallel_SmallPieces(t *testing.T) {
 	if err := loggen.WriteCSV(&gen, 20_000); err != nil {
 		t.Fatal(err)
 	}
-	lines := strings.SplitAfter(gen.String(), "\n")
-	var mixed strings.Builder
-	for i, l := range lines {
-		switch i {
-		case 3_000:
-			mixed.WriteString("2,1,0.5,0.4,0.3,,\n") // resumed from epoch 2
-		case 7_000:
-			mixed.WriteString(loggen.Header + "\n")
-		case 9_000:
-			mixed.WriteString(strings.Repeat("9", pieceSlack+100) + "\n")
-		case 12_000, 12_001:
-			mixed.WriteString("garbage \"line\n")
-		}
-		mixed.WriteString(l)
-	}
+	mixed := insertLines(gen.String(), map[int]string{
+		3_000:  "2,1,0.5,0.4,0.3,,", // resumed from epoch 2
+		7_000:  loggen.Header,
+		9_000:  strings.Repeat("9", pieceSlack+100),
+		12_000: "garbage \"line",
+		12_001: "garbage \"line",
+	})
 	crlf := strings.TrimSuffix(strings.ReplaceAll(gen.String(), "\n", "\r\n"), "\r\n")
 	defer func(chunk, procs int) {
 		parChunkBytes = chunk
 		runtime.GOMAXPROCS(procs)
 	}(parChunkBytes, runtime.GOMAXPROCS(0))
-	for name, data := range map[string]string{"Plain": gen.String(), "CRLF": crlf, "Mixed": mixed.String()} {
+	for name, data := range map[string]string{"Plain": gen.String(), "CRLF": crlf, "Mixed": mixed} {
 		path := filepath.Join(t.TempDir(), "run.csv")
 		if err := os.WriteFile(path, []byte(data), 0o644); err != nil {
 			t.Fatal(err)

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"runtime"
 	"testing"
 
 	"github.com/fitgap/fitgap/bench/loggen"
@@ -13,8 +14,11 @@ import (
 // TestReadAll_FileSameAsReader: a file read by the tailer in chunks gives
 // exactly the points of the same bytes read through FollowReader, also
 // with CRLF lines, quoted fields, bad lines and a repeated header scattered
-// across chunk borders.
+// across chunk borders. It runs on one core, so that the file is read by
+// the sequential loop, chunk by chunk, whatever the machine: on several
+// cores the parallel path would read it (TestParallel_ReadAllFile).
 func TestReadAll_FileSameAsReader(t *testing.T) {
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(1))
 	var plain bytes.Buffer
 	if err := loggen.WriteCSV(&plain, 60_000); err != nil {
 		t.Fatal(err)

@@ -225,6 +225,12 @@ func newRoles(o Overrides) roles {
 	return r
 }
 
+// forced reports whether an override names this column.
+func (r roles) forced(name string) bool {
+	o := r.o
+	return !o.empty() && (name == o.Train || name == o.Val || name == o.TrainDev || name == o.Test)
+}
+
 // column parses name and applies the overrides.
 func (r roles) column(name string) diagnose.Column {
 	col := ParseColumn(name)

@@ -361,14 +361,7 @@ func (d *csvDecoder) textRow(line []byte, fields [][]byte, n int) {
 		d.setHeader(line, fields, n)
 		return
 	}
-	nonEmpty := false
-	for _, f := range fields {
-		if len(bytes.TrimSpace(f)) > 0 {
-			nonEmpty = true
-			break
-		}
-	}
-	if !nonEmpty {
+	if blank(fields) {
 		return // a row of empty cells holds nothing
 	}
 	reason := "no numeric value"
@@ -434,6 +427,9 @@ func (d *csvDecoder) decimalComma(f []byte) (float64, bool) {
 // (RFC 3339 §5.6 allows it) and without a zone (read as UTC).
 func parseTime(b []byte) (time.Time, bool) {
 	s := string(bytes.TrimSpace(b))
+	// The longest layout below, with nanoseconds and a zone offset, is 35
+	// bytes; 40 leaves room and keeps a long string from being parsed four
+	// times. Unit: bytes.
 	if len(s) < len("2006-01-02T15:04:05") || len(s) > 40 {
 		return time.Time{}, false
 	}

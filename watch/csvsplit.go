@@ -32,7 +32,7 @@ func (s splitStatus) reason() string {
 // quoted field spans them) into fields, following RFC 4180 §2 with the
 // strict quote rules of encoding/csv: a field that starts with a quote is
 // quoted, "" inside it is one quote, and a quote anywhere else is an error.
-// Fields without quotes are slices of rec; unquoted fields are copied into
+// Fields without quotes are slices of rec; quoted fields are unescaped into
 // scratch, which is returned for reuse. A line without any quote takes the
 // fast path: one IndexByte per field.
 func splitCSV(fields [][]byte, rec []byte, delim byte, scratch []byte) ([][]byte, []byte, splitStatus) {

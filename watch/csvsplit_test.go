@@ -109,40 +109,14 @@ func TestCSVRecords_Exhaustive(t *testing.T) {
 	if testing.Short() {
 		maxLen = 5
 	}
-	buf := make([]byte, 0, maxLen)
-	var walk func(depth int)
-	walk = func(depth int) {
-		agreeWithReference(t, string(buf), ',')
-		if depth == maxLen {
-			return
-		}
-		for _, c := range alphabet {
-			buf = append(buf, c)
-			walk(depth + 1)
-			buf = buf[:len(buf)-1]
-		}
-	}
-	walk(0)
+	eachSequence(alphabet, maxLen, func(buf []byte) { agreeWithReference(t, string(buf), ',') })
 }
 
 // TestScanRow_MatchesSplit checks that the one-pass fast path cuts the same
 // fields as splitCSV and reads the same numbers as parseNumber.
 func TestScanRow_MatchesSplit(t *testing.T) {
 	alphabet := []byte{'1', '.', ',', 'e', '-', ' ', 'x', '"'}
-	buf := make([]byte, 0, 6)
-	var walk func(depth int)
-	walk = func(depth int) {
-		checkScanRow(t, buf, ',')
-		if depth == 6 {
-			return
-		}
-		for _, c := range alphabet {
-			buf = append(buf, c)
-			walk(depth + 1)
-			buf = buf[:len(buf)-1]
-		}
-	}
-	walk(0)
+	eachSequence(alphabet, 6, func(buf []byte) { checkScanRow(t, buf, ',') })
 }
 
 func checkScanRow(t *testing.T, line []byte, delim byte) {

@@ -72,24 +72,13 @@ func TestFastRow_ExhaustiveFields(t *testing.T) {
 	} {
 		t.Run(h.name, func(t *testing.T) {
 			delim := string(h.header[strings.IndexAny(h.header, ",;\t")])
-			fields := make([]string, 0, maxFields)
-			var walk func()
-			walk = func() {
+			eachSequence(rowTokens, maxFields, func(fields []string) {
 				if len(fields) > 0 {
 					row := strings.Join(fields, delim)
 					in := h.header + "\n" + h.open + "\n" + row + "\n" + row + "\n" + h.next + "\n"
 					checkFastRow(t, []byte(in), Options{})
 				}
-				if len(fields) == maxFields {
-					return
-				}
-				for _, tok := range rowTokens {
-					fields = append(fields, tok)
-					walk()
-					fields = fields[:len(fields)-1]
-				}
-			}
-			walk()
+			})
 		})
 	}
 }
@@ -102,22 +91,11 @@ func TestFastRow_ExhaustiveRows(t *testing.T) {
 	maxRows := size(3, 4)
 	alphabet := append(append([]string(nil), parSteps...), parLines[5:]...)
 	head := "epoch,step,loss,val_loss,acc\n1,1,0.5,,0.4\n"
-	rows := make([]string, 0, maxRows)
-	var walk func()
-	walk = func() {
+	eachSequence(alphabet, maxRows, func(rows []string) {
 		if len(rows) > 0 {
 			checkFastRow(t, []byte(head+strings.Join(rows, "\n")+"\n"), Options{})
 		}
-		if len(rows) == maxRows {
-			return
-		}
-		for _, r := range alphabet {
-			rows = append(rows, r)
-			walk()
-			rows = rows[:len(rows)-1]
-		}
-	}
-	walk()
+	})
 }
 
 // TestFastRow_OnePerEpochAndSteps: the fast path leaves one-row-per-epoch
@@ -179,20 +157,7 @@ func checkPlainFields(t *testing.T, line []byte, delim byte, nvals int) {
 func TestPlainFields_Exhaustive(t *testing.T) {
 	alphabet := []byte{'0', '7', '.', 'e', '-', '+', ','}
 	maxLen := size(6, 7)
-	buf := make([]byte, 0, maxLen)
-	var walk func()
-	walk = func() {
-		checkPlainFields(t, buf, ',', 3)
-		if len(buf) == maxLen {
-			return
-		}
-		for _, c := range alphabet {
-			buf = append(buf, c)
-			walk()
-			buf = buf[:len(buf)-1]
-		}
-	}
-	walk()
+	eachSequence(alphabet, maxLen, func(buf []byte) { checkPlainFields(t, buf, ',', 3) })
 }
 
 // TestPlainFields_Numbers checks plainFields on numbers of every digit

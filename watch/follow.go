@@ -24,16 +24,21 @@ const (
 	// A stat per second costs nothing measurable. Unit: time.
 	safetyPoll = time.Second
 	// fallbackPoll is the interval when the directory cannot be watched
-	// at all (inotify limit reached, a network filesystem that refuses).
+	// at all (inotify limit reached, a network filesystem that refuses):
+	// a new epoch shows within a quarter of a second, at a stat call per
+	// tick. Unit: time.
 	fallbackPoll = 250 * time.Millisecond
 	// minPoll is the smallest --poll interval accepted: below it polling
-	// is a busy loop.
+	// is a busy loop. Unit: time.
 	minPoll = 10 * time.Millisecond
 	// batchAge and batchPoints cap a batch while data keeps streaming (a
 	// backlog, a fast pipe), so that the screen sees progress without a
 	// message per point; a read that reaches the end of the data hands the
 	// batch on at once whatever its size. 50 ms is the low end of the
 	// 50–100 ms batching the screen is built for (LIBRARIES.md §3).
+	// batchSteps is higher because per-step rows are small and, in a
+	// per-step log, arrive many times as often as points. Units: time,
+	// points, rows.
 	batchAge    = 50 * time.Millisecond
 	batchPoints = 1000
 	batchSteps  = 8192
@@ -371,10 +376,14 @@ func (t *tailer) sameHead() bool {
 }
 
 // full reports a batch that should go now although the read goes on.
-func (t *tailer) full() bool {
-	b := &t.ing.batch
+func (t *tailer) full() bool { return batchFull(&t.ing.batch, t.sentAt) }
+
+// batchFull reports a batch that should go now although data keeps
+// coming: it reached batchPoints or batchSteps, or holds data and the last
+// batch went batchAge ago.
+func batchFull(b *Batch, sentAt time.Time) bool {
 	return len(b.Points) >= batchPoints || len(b.Steps) >= batchSteps ||
-		(len(b.Points) > 0 || len(b.Steps) > 0) && time.Since(t.sentAt) >= batchAge
+		(len(b.Points) > 0 || len(b.Steps) > 0) && time.Since(sentAt) >= batchAge
 }
 
 // send hands the batch on; false when ctx ended first.

@@ -36,6 +36,27 @@ func near(a, b float64) bool {
 	return math.Abs(a-b) <= 1e-12*math.Max(1, math.Abs(b))
 }
 
+// eachSequence calls fn with every sequence of 0 to maxLen elements of
+// alphabet, repetition allowed, each sequence before its extensions: the
+// enumeration of the exhaustive tests. fn must not keep seq, which is
+// reused.
+func eachSequence[T any](alphabet []T, maxLen int, fn func(seq []T)) {
+	seq := make([]T, 0, maxLen)
+	var walk func()
+	walk = func() {
+		fn(seq)
+		if len(seq) == maxLen {
+			return
+		}
+		for _, a := range alphabet {
+			seq = append(seq, a)
+			walk()
+			seq = seq[:len(seq)-1]
+		}
+	}
+	walk()
+}
+
 // epochs lists the Epoch of each point.
 func epochs(points []diagnose.Point) []int {
 	out := make([]int, len(points))
@@ -44,5 +65,3 @@ func epochs(points []diagnose.Point) []int {
 	}
 	return out
 }
-
-func stringsReader(s string) *strings.Reader { return strings.NewReader(s) }

@@ -43,6 +43,10 @@ type jsonDecoder struct {
 	keys map[string]keyRole
 	seen []keyRole
 	nth  int
+	// textKeys are keys that held only strings and are no time column
+	// (run names, paths): ParseColumn said so once, not on every line.
+	// Bounded like keys.
+	textKeys map[string]struct{}
 }
 
 // keyRole is what a flattened key feeds: a cell role and, for values and
@@ -54,7 +58,7 @@ type keyRole struct {
 }
 
 func newJSONDecoder(ing *ingester, asm *assembler) *jsonDecoder {
-	return &jsonDecoder{ing: ing, asm: asm, keys: map[string]keyRole{}}
+	return &jsonDecoder{ing: ing, asm: asm, keys: map[string]keyRole{}, textKeys: map[string]struct{}{}}
 }
 
 func (d *jsonDecoder) finish() {}
@@ -281,17 +285,30 @@ func (d *jsonDecoder) stringValue(s []byte) {
 		return
 	}
 	// Only a time column reads strings; look it up without learning keys
-	// that hold only text (run names, paths).
+	// that hold only text (run names, paths) as columns.
 	kr, ok := d.keys[string(d.key)]
 	if !ok {
-		if c := ParseColumn(string(d.key)); c.Kind == diagnose.KindTime {
-			kr, ok = d.learn(string(d.key)), true
-		}
+		kr, ok = d.timeKey()
 	}
-	r := kr.role
-	if ok && r == cellTime {
+	if ok && kr.role == cellTime {
 		if t, tok := parseTime(s); tok {
 			d.asm.timeValue(t)
 		}
 	}
+}
+
+// timeKey learns the current key when its name is a time column's, and
+// remembers it as text otherwise.
+func (d *jsonDecoder) timeKey() (keyRole, bool) {
+	if _, text := d.textKeys[string(d.key)]; text {
+		return keyRole{}, false
+	}
+	name := string(d.key)
+	if ParseColumn(name).Kind == diagnose.KindTime {
+		return d.learn(name), true
+	}
+	if len(d.textKeys) < 2*maxColumns {
+		d.textKeys[name] = struct{}{}
+	}
+	return keyRole{}, false
 }

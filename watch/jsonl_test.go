@@ -16,6 +16,10 @@ import (
 	"github.com/fitgap/fitgap/diagnose"
 )
 
+// TestReadAll_JSONL reads nested keys, the bare non-finite tokens and a
+// time stamp. The tokens NaN, Infinity and -Infinity are not JSON (RFC 8259
+// §6 has no syntax for them) but common JSON writers emit them for
+// non-finite floats: common practice. The time stamp is RFC 3339 §5.6.
 func TestReadAll_JSONL(t *testing.T) {
 	in := `{"epoch": 1, "train": {"loss": 0.5, "acc": 0.8}, "val": {"loss": 0.6}, "run": "exp-a", "ok": true}` + "\n" +
 		`{"epoch": 2, "train": {"loss": 0.4}, "val": {"loss": NaN}, "time": "2024-03-01T10:00:00Z", "hist": [1, 2, {"x": 3}]}` + "\n" +
@@ -45,6 +49,11 @@ func TestReadAll_JSONL(t *testing.T) {
 	}
 }
 
+// TestReadAll_JSONLBadLines: lines that are not one JSON object are
+// skipped with their reason.
+// Source: RFC 8259 §2 (a JSON text is one value, so text after it is
+// trailing data), §6 (no leading zeros: "01" is invalid), §7 (the escapes a
+// string may hold: "\q" is not one). The depth bound is ours (maxJSONDepth).
 func TestReadAll_JSONLBadLines(t *testing.T) {
 	tests := []struct {
 		name, line, reason string

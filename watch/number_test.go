@@ -55,20 +55,7 @@ func TestParseNumber_Table(t *testing.T) {
 // string of up to 6 bytes over the bytes numbers are made of.
 func TestParseNumber_Exhaustive(t *testing.T) {
 	alphabet := []byte{'0', '1', '9', '.', 'e', '-', '+'}
-	buf := make([]byte, 0, 6)
-	var walk func(depth int)
-	walk = func(depth int) {
-		checkNumber(t, string(buf))
-		if depth == 6 {
-			return
-		}
-		for _, c := range alphabet {
-			buf = append(buf, c)
-			walk(depth + 1)
-			buf = buf[:len(buf)-1]
-		}
-	}
-	walk(0)
+	eachSequence(alphabet, 6, func(buf []byte) { checkNumber(t, string(buf)) })
 }
 
 func FuzzParseNumber(f *testing.F) {

@@ -152,29 +152,14 @@ var parLines = []string{
 func TestParallel_ExhaustiveSmall(t *testing.T) {
 	head := []byte("epoch,step,loss,val_loss,acc\n")
 	maxRows := size(3, 4)
-	rows := make([]int, 0, maxRows)
 	logs, taken := 0, 0
-	var walk func()
-	walk = func() {
+	eachSequence(parLines, maxRows, func(rows []string) {
 		if len(rows) > 0 {
-			var body bytes.Buffer
-			for _, r := range rows {
-				body.WriteString(parLines[r])
-				body.WriteByte('\n')
-			}
-			taken += checkSplits(t, head, body.Bytes(), Options{}, 2)
+			body := strings.Join(rows, "\n") + "\n"
+			taken += checkSplits(t, head, []byte(body), Options{}, 2)
 			logs++
 		}
-		if len(rows) == maxRows {
-			return
-		}
-		for r := range parLines {
-			rows = append(rows, r)
-			walk()
-			rows = rows[:len(rows)-1]
-		}
-	}
-	walk()
+	})
 	t.Logf("%d logs, %d chunks taken from workers", logs, taken)
 	if taken == 0 {
 		t.Fatal("no chunk was taken from a worker: the parallel path is not tested")
@@ -203,29 +188,14 @@ var parSteps = []string{
 func TestParallel_ExhaustiveSteps(t *testing.T) {
 	head := []byte("epoch,step,loss,val_loss,acc\n1,1,0.5,,0.4\n1,2,0.45,,0.45\n")
 	maxRows := size(4, 5)
-	rows := make([]int, 0, maxRows)
 	logs, taken := 0, 0
-	var walk func()
-	walk = func() {
+	eachSequence(parSteps, maxRows, func(rows []string) {
 		if len(rows) > 0 {
-			var body bytes.Buffer
-			for _, r := range rows {
-				body.WriteString(parSteps[r])
-				body.WriteByte('\n')
-			}
-			taken += checkSplits(t, head, body.Bytes(), Options{}, 2)
+			body := strings.Join(rows, "\n") + "\n"
+			taken += checkSplits(t, head, []byte(body), Options{}, 2)
 			logs++
 		}
-		if len(rows) == maxRows {
-			return
-		}
-		for r := range parSteps {
-			rows = append(rows, r)
-			walk()
-			rows = rows[:len(rows)-1]
-		}
-	}
-	walk()
+	})
 	t.Logf("%d logs, %d chunks taken from workers", logs, taken)
 	if taken < logs {
 		t.Fatalf("only %d chunks taken from workers for %d logs", taken, logs)

@@ -102,7 +102,6 @@ func pump(ctx context.Context, r io.Reader, ing *ingester, out chan<- Batch) {
 				send()
 				return
 			}
-			b := &ing.batch
 			switch {
 			case !full && len(chunks) == 0:
 				// The writer paused: everything there is has been read.
@@ -110,8 +109,7 @@ func pump(ctx context.Context, r io.Reader, ing *ingester, out chan<- Batch) {
 				if ing.pending(sent) && !send() {
 					return
 				}
-			case len(b.Points) >= batchPoints || len(b.Steps) >= batchSteps ||
-				(len(b.Points) > 0 || len(b.Steps) > 0) && time.Since(sentAt) >= batchAge:
+			case batchFull(&ing.batch, sentAt):
 				if !send() {
 					return
 				}

@@ -38,25 +38,41 @@ type textDecoder struct {
 
 	epoch     int
 	haveEpoch bool
-	// kinds caches what ParseColumn makes of the names seen, including
-	// names that turn out to be noise (which never become columns).
-	kinds map[string]diagnose.Kind
+	names     nameKinds
 }
 
 // maxKinds bounds the cache of names: prose can hold endless distinct
 // words before a colon. Unit: names.
 const maxKinds = 4096
 
-func (d *textDecoder) kind(name string) diagnose.Kind {
-	if k, ok := d.kinds[name]; ok {
+// nameKinds caches what ParseColumn makes of the console names seen,
+// including names that turn out to be noise (which never become columns),
+// so that a name is parsed once, not on every line. It starts afresh when
+// it holds maxKinds names. A nil cache parses every name.
+type nameKinds struct{ m map[string]diagnose.Kind }
+
+func (c *nameKinds) kind(name string) diagnose.Kind {
+	if c == nil {
+		return ParseColumn(name).Kind
+	}
+	if k, ok := c.m[name]; ok {
 		return k
 	}
-	if d.kinds == nil || len(d.kinds) >= maxKinds {
-		d.kinds = make(map[string]diagnose.Kind)
+	if c.m == nil || len(c.m) >= maxKinds {
+		c.m = make(map[string]diagnose.Kind)
 	}
-	k := d.asm.roles.column(name).Kind
-	d.kinds[name] = k
+	k := ParseColumn(name).Kind
+	c.m[name] = k
 	return k
+}
+
+// kind is the Kind of the column a name makes (roles.column's), from the
+// cache: an overridden name is a metric whatever it says.
+func (d *textDecoder) kind(name string) diagnose.Kind {
+	if d.asm.roles.forced(name) {
+		return diagnose.KindMetric
+	}
+	return d.names.kind(name)
 }
 
 func newTextDecoder(ing *ingester, asm *assembler) *textDecoder {
@@ -75,7 +91,7 @@ func (d *textDecoder) decode(line []byte, n int) {
 	}
 	s := Sanitize(string(line))
 	epoch, total, marked := findEpochMarker(s)
-	d.pairs = scanPairs(d.pairs[:0], s)
+	d.pairs = scanPairs(d.pairs[:0], s, &d.names)
 	a := d.asm
 	// A line counts when it marks an epoch or carries a recognised value;
 	// lines of prose with an incidental number ("Using device cuda: 0")
@@ -241,9 +257,11 @@ func readFraction(s string, i int) (n, total, end int, ok bool) {
 	return n, 0, end, true
 }
 
+// readInt reads a decimal integer of at most maxIntDigits digits at i; a
+// longer run of digits is no epoch, step count or total.
 func readInt(s string, i int) (n, end int, ok bool) {
 	j := i
-	for j < len(s) && s[j] >= '0' && s[j] <= '9' && j-i < 9 {
+	for j < len(s) && s[j] >= '0' && s[j] <= '9' && j-i < maxIntDigits {
 		n = n*10 + int(s[j]-'0')
 		j++
 	}
@@ -252,6 +270,11 @@ func readInt(s string, i int) (n, end int, ok bool) {
 	}
 	return n, j, true
 }
+
+// maxIntDigits bounds the integers of markers and ratios: nine digits
+// hold every epoch below maxEpoch (1e9) and cannot overflow an int.
+// Unit: digits.
+const maxIntDigits = 9
 
 // isSeparator reports the bytes that end a "name value" segment.
 func isSeparator(c byte) bool {
@@ -262,8 +285,9 @@ func isSeparator(c byte) bool {
 	return false
 }
 
-// scanPairs finds the name/value pairs of a sanitized line.
-func scanPairs(dst []textPair, s string) []textPair {
+// scanPairs finds the name/value pairs of a sanitized line; names (which
+// may be nil) caches what the names of "name value" segments are.
+func scanPairs(dst []textPair, s string, names *nameKinds) []textPair {
 	seg := 0 // start of the current segment
 	for i := 0; i < len(s); i++ {
 		c := s[i]
@@ -284,18 +308,18 @@ func scanPairs(dst []textPair, s string) []textPair {
 			seg = end
 			i = end - 1
 		case isSeparator(c) || c == '-' && i > 0 && s[i-1] == ' ' && i+1 < len(s) && s[i+1] == ' ':
-			dst = segmentPair(dst, s[seg:i])
+			dst = segmentPair(dst, s[seg:i], names)
 			seg = i + 1
 		}
 	}
-	return segmentPair(dst, s[seg:])
+	return segmentPair(dst, s[seg:], names)
 }
 
 // segmentPair reads a whole segment of the form "name value". Without a
 // colon or an equals sign the pairing is weak evidence, so the name must be
 // one ParseColumn recognises ("loss 0.41", "epoch 3"), not any word before
 // a number ("from 0.5 to 0.4").
-func segmentPair(dst []textPair, seg string) []textPair {
+func segmentPair(dst []textPair, seg string, names *nameKinds) []textPair {
 	seg = strings.TrimSpace(seg)
 	k := strings.LastIndexByte(seg, ' ')
 	if k < 0 {
@@ -305,11 +329,16 @@ func segmentPair(dst []textPair, seg string) []textPair {
 	if !ok || end != len(seg) {
 		return dst
 	}
-	if name, nok := cleanName(seg[:k]); nok && ParseColumn(name).Kind != diagnose.KindOther {
+	if name, nok := cleanName(seg[:k]); nok && names.kind(name) != diagnose.KindOther {
 		dst = append(dst, textPair{name: name, value: v, total: total})
 	}
 	return dst
 }
+
+// maxUnitBytes is the longest unit readValue lets follow a number ("s",
+// "ms", "it/s", "MiB/s"): a longer word run into a number is prose or an
+// identifier, not a value. Unit: bytes.
+const maxUnitBytes = 6
 
 // readValue reads a number at i: a decimal, "nan"/"inf" in any case, or a
 // fraction "3/50"; a unit or percent sign may follow ("12.3s", "84%",
@@ -365,7 +394,7 @@ func readValue(s string, i int) (v float64, total, end int, ok bool) {
 	for k < len(s) && (s[k] >= 'a' && s[k] <= 'z' || s[k] >= 'A' && s[k] <= 'Z' || s[k] == '%' || s[k] == '/') {
 		k++
 	}
-	if k-j > 6 {
+	if k-j > maxUnitBytes {
 		return 0, 0, i, false
 	}
 	if k < len(s) {

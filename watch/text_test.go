@@ -4,11 +4,15 @@ import (
 	"math"
 	"reflect"
 	"strconv"
+	"strings"
 	"testing"
 
 	"github.com/fitgap/fitgap/diagnose"
 )
 
+// TestFindEpochMarker reads the epoch markers of console logs.
+// Source: the marker shapes training scripts commonly print (common
+// practice; the lines are invented, their shapes written from memory).
 func TestFindEpochMarker(t *testing.T) {
 	tests := []struct {
 		line         string
@@ -40,6 +44,10 @@ func TestFindEpochMarker(t *testing.T) {
 	}
 }
 
+// TestScanPairs reads the name/value pairs of console lines.
+// Source: the pair shapes of console logs ("name: value", "name=value",
+// " - " and "|" separators, progress-bar prefixes, percent and ratio
+// values) are common practice; the lines are invented, from memory.
 func TestScanPairs(t *testing.T) {
 	tests := []struct {
 		line string
@@ -60,7 +68,7 @@ func TestScanPairs(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(strconv.Quote(tt.line), func(t *testing.T) {
-			got := scanPairs(nil, tt.line)
+			got := scanPairs(nil, tt.line, nil)
 			if len(got) != len(tt.want) {
 				t.Fatalf("scanPairs(%q) = %+v, want %+v", tt.line, got, tt.want)
 			}
@@ -105,7 +113,7 @@ func TestReadAll_TextEpochs(t *testing.T) {
 
 func TestReadAll_TextMergesLines(t *testing.T) {
 	in := "epoch 1\ntrain loss: 0.9\ntrain loss: 0.8\nval loss: 0.85\nval acc: 0.7\nepoch 2\ntrain loss: 0.6\n"
-	ch := FollowReader(t.Context(), "x", stringsReader(in), Options{})
+	ch := FollowReader(t.Context(), "x", strings.NewReader(in), Options{})
 	var all []diagnose.Point
 	for b := range ch {
 		all = append(all, b.Points...)

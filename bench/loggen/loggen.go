@@ -1,6 +1,7 @@
 // Package loggen writes synthetic metrics logs of an invented training run,
-// for tests and benchmarks: a per-step log with a validation row every
-// StepsPerEpoch steps, as CSV or as JSON Lines with the same values.
+// for tests and benchmarks: a per-step log with validation values every
+// StepsPerEpoch steps, as CSV, as JSON Lines or as console text with the
+// same values.
 package loggen
 
 import (
@@ -67,14 +68,25 @@ func (r *Run) Next() (Row, bool) {
 
 func round6(v float64) float64 { return math.Round(v*1e6) / 1e6 }
 
-// WriteCSV writes the header and n rows.
-func WriteCSV(w io.Writer, n int) error {
+// writeRows writes head, then each of the n rows of the run as appendRow
+// makes it: the loop, buffering and error handling of the three formats.
+func writeRows(w io.Writer, n int, head string, appendRow func(b []byte, row Row) []byte) error {
 	bw := bufio.NewWriterSize(w, 1<<16)
-	bw.WriteString(Header + "\n")
+	bw.WriteString(head) // an error stays in bw and is returned by Flush
 	var b []byte
 	r := NewRun(n)
 	for row, ok := r.Next(); ok; row, ok = r.Next() {
-		b = b[:0]
+		b = appendRow(b[:0], row)
+		if _, err := bw.Write(b); err != nil {
+			return err
+		}
+	}
+	return bw.Flush()
+}
+
+// WriteCSV writes the header and n rows.
+func WriteCSV(w io.Writer, n int) error {
+	return writeRows(w, n, Header+"\n", func(b []byte, row Row) []byte {
 		b = strconv.AppendInt(b, int64(row.Epoch), 10)
 		b = append(b, ',')
 		b = strconv.AppendInt(b, int64(row.Step), 10)
@@ -90,22 +102,15 @@ func WriteCSV(w io.Writer, n int) error {
 		if row.HasVal {
 			b = strconv.AppendFloat(b, row.ValAcc, 'g', -1, 64)
 		}
-		b = append(b, '\n')
-		if _, err := bw.Write(b); err != nil {
-			return err
-		}
-	}
-	return bw.Flush()
+		return append(b, '\n')
+	})
 }
 
 // WriteJSONL writes the same rows as JSON Lines, one object per step, with
 // the validation values nested under "val" on the rows that have them.
 func WriteJSONL(w io.Writer, n int) error {
-	bw := bufio.NewWriterSize(w, 1<<16)
-	var b []byte
-	r := NewRun(n)
-	for row, ok := r.Next(); ok; row, ok = r.Next() {
-		b = append(b[:0], `{"epoch":`...)
+	return writeRows(w, n, "", func(b []byte, row Row) []byte {
+		b = append(b, `{"epoch":`...)
 		b = strconv.AppendInt(b, int64(row.Epoch), 10)
 		b = append(b, `,"step":`...)
 		b = strconv.AppendInt(b, int64(row.Step), 10)
@@ -122,23 +127,15 @@ func WriteJSONL(w io.Writer, n int) error {
 			b = strconv.AppendFloat(b, row.ValAcc, 'g', -1, 64)
 			b = append(b, '}')
 		}
-		b = append(b, "}\n"...)
-		if _, err := bw.Write(b); err != nil {
-			return err
-		}
-	}
-	return bw.Flush()
+		return append(b, "}\n"...)
+	})
 }
 
 // WriteText writes the same rows as console output: one line per step,
 // and the validation values on a line of their own at each epoch's end,
 // with an epoch marker line before each epoch.
 func WriteText(w io.Writer, n int) error {
-	bw := bufio.NewWriterSize(w, 1<<16)
-	var b []byte
-	r := NewRun(n)
-	for row, ok := r.Next(); ok; row, ok = r.Next() {
-		b = b[:0]
+	return writeRows(w, n, "", func(b []byte, row Row) []byte {
 		if row.Step%StepsPerEpoch == 1 {
 			b = append(b, "Epoch "...)
 			b = strconv.AppendInt(b, int64(row.Epoch), 10)
@@ -160,9 +157,6 @@ func WriteText(w io.Writer, n int) error {
 			b = strconv.AppendFloat(b, row.ValAcc, 'g', -1, 64)
 			b = append(b, '\n')
 		}
-		if _, err := bw.Write(b); err != nil {
-			return err
-		}
-	}
-	return bw.Flush()
+		return b
+	})
 }
