@@ -1,6 +1,7 @@
 package diagnose
 
 import (
+	"math"
 	"strings"
 	"testing"
 )
@@ -42,5 +43,53 @@ func TestActions_NegativeVarianceNeedsEvidence(t *testing.T) {
 				t.Errorf("cites validation beating training = %v, want %v (variance %v, actions %+v)", evidence, tt.wantEvidence, j.Variance, j.Actions)
 			}
 		})
+	}
+}
+
+// TestMetric_Fraction: error rates and shortfalls of bounded scores are
+// fractions (shown in percent, gaps in points); a loss is in its own units.
+func TestMetric_Fraction(t *testing.T) {
+	f1 := func(split Split, v float64) Sample {
+		return Sample{Column: col("f1", split, false, HigherIsBetter), Value: v, Last: v}
+	}
+	tests := []struct {
+		name   string
+		sample func(Split, float64) Sample
+		metric string
+		want   bool
+	}{
+		{"AccuracyAsError", acc, "acc", true},
+		{"ShortfallOfF1", f1, "f1", true},
+		{"Loss", loss, "loss", false},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			tr := New(Config{Metric: tt.metric})
+			var j Judgement
+			for e := 1; e <= 4; e++ {
+				j = tr.Add(metricPoint(e, tt.sample(SplitTrain, 0.8), tt.sample(SplitVal, 0.7)))
+			}
+			if j.Metric.Fraction != tt.want {
+				t.Errorf("%s judged as %q: Fraction = %v, want %v", tt.metric, j.Metric.Label, j.Metric.Fraction, tt.want)
+			}
+		})
+	}
+}
+
+// TestPercent: rates and gaps of rates, as practitioners quote them
+// (common practice: one decimal; two below one point so small gaps stay
+// visible; no negative zero).
+func TestPercent(t *testing.T) {
+	tests := []struct {
+		v    float64
+		want string
+	}{
+		{0.151, "15.1"}, {0.02, "2.0"}, {0.004, "0.40"}, {-0.0226, "-2.3"},
+		{-0.00001, "0.00"}, {0, "0.0"}, {1, "100.0"}, {math.NaN(), "NaN"}, {math.Inf(-1), "-Inf"},
+	}
+	for _, tt := range tests {
+		if got := Percent(tt.v); got != tt.want {
+			t.Errorf("Percent(%v) = %q, want %q", tt.v, got, tt.want)
+		}
 	}
 }

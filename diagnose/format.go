@@ -60,18 +60,43 @@ func (w *text) gap(v float64) *text {
 	return w.s(" points")
 }
 
-// pct appends 100·v with one decimal (two below one percent).
+// pct appends 100·v as AppendPercent does.
 func (w *text) pct(v float64) *text {
+	w.b = AppendPercent(w.b, v)
+	return w
+}
+
+// AppendPercent appends 100·v, the way every output of fitgap prints a
+// rate (in percent) and a difference of two rates (in percentage points):
+// one decimal, two below one so that a 0.4-point gap does not read as 0,
+// never "-0.0"; NaN and ±Inf are written as such. The caller adds the unit.
+func AppendPercent(b []byte, v float64) []byte {
 	if !finite(v) {
-		return w.s(nonFinite(v))
+		return append(b, nonFinite(v)...)
 	}
 	p := v * 100
 	prec := 1
 	if math.Abs(p) < 1 && p != 0 {
 		prec = 2
 	}
-	w.b = strconv.AppendFloat(w.b, p, 'f', prec, 64)
-	return w
+	start := len(b)
+	b = strconv.AppendFloat(b, p, 'f', prec, 64)
+	if b[start] == '-' && allZeroDigits(b[start+1:]) {
+		b = append(b[:start], b[start+1:]...)
+	}
+	return b
+}
+
+// Percent is AppendPercent as a string.
+func Percent(v float64) string { return string(AppendPercent(nil, v)) }
+
+func allZeroDigits(b []byte) bool {
+	for _, c := range b {
+		if c != '0' && c != '.' {
+			return false
+		}
+	}
+	return true
 }
 
 func (w *text) plain(v float64) *text {

@@ -125,6 +125,10 @@ type Metric struct {
 	Error bool `json:"error_rate"`
 	// Label is how output names it: "error (1 − acc)", "loss".
 	Label string `json:"label"`
+	// Fraction is true when the judged values are fractions in [0, 1]: an
+	// error rate, or the shortfall 1 − score of a bounded score (F1, AUC).
+	// Output shows them in percent and their gaps in points.
+	Fraction bool `json:"fraction"`
 }
 
 // Estimate is one split's value of the judged metric at a point.

@@ -77,12 +77,13 @@ func metricOf(b *baseInfo) Metric {
 	m := Metric{Base: name, Label: name}
 	switch b.kind {
 	case kindErrorRate:
-		m.Error = true
+		m.Error, m.Fraction = true, true
 		if b.dir == HigherIsBetter {
 			m.Label = "error (1 − " + name + ")"
 		}
 	case kindShortfall:
 		m.Label = "1 − " + name
+		m.Fraction = true
 	}
 	return m
 }

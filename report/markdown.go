@@ -145,7 +145,7 @@ func (s Summary) value(n diagnose.Num) string {
 	if !n.OK {
 		return "–"
 	}
-	if s.ErrorRate || s.boundedLabel() {
+	if s.fraction {
 		return pct(n.V, "%")
 	}
 	return sig4(n)
@@ -156,14 +156,11 @@ func (s Summary) gap(n diagnose.Num) string {
 	if !n.OK {
 		return "–"
 	}
-	if s.ErrorRate || s.boundedLabel() {
+	if s.fraction {
 		return pct(n.V, " points")
 	}
 	return sig4(n)
 }
-
-// boundedLabel recognises a shortfall score (1 − f1), shown in percent.
-func (s Summary) boundedLabel() bool { return strings.HasPrefix(s.Metric, "1 − ") }
 
 // pct formats a rate (a fraction) as 100·v with one decimal, two below
 // one, then unit: "%" for a value, " points" for a difference.
@@ -171,12 +168,7 @@ func pct(v float64, unit string) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "n/a"
 	}
-	p := v * 100
-	prec := 1
-	if math.Abs(p) < 1 && p != 0 {
-		prec = 2
-	}
-	return strconv.FormatFloat(p, 'f', prec, 64) + unit
+	return diagnose.Percent(v) + unit
 }
 
 // num formats n with prec decimals ("–" when absent, "n/a" for NaN).

@@ -43,6 +43,9 @@ type Summary struct {
 	Metric     string `json:"metric"`      // label: "error (1 − acc)", "loss"
 	MetricBase string `json:"metric_base"` // base metric of the log: "acc"
 	ErrorRate  bool   `json:"error_rate"`  // the judged values are error rates
+	// fraction: the judged values are fractions (error rates or 1 − score),
+	// printed in percent; not a JSON key (error_rate and metric say it).
+	fraction bool
 
 	Train       diagnose.Num `json:"train"`
 	Val         diagnose.Num `json:"val"`
@@ -159,6 +162,7 @@ func fromJudgement(src Source, j *diagnose.Judgement, cfg diagnose.Config, p *di
 	}
 	s.BayesError, s.BayesErrorGiven = j.BayesError, j.BayesErrorGiven
 	s.Metric, s.MetricBase, s.ErrorRate = j.Metric.Label, j.Metric.Base, j.Metric.Error
+	s.fraction = j.Metric.Fraction
 	s.Train, s.Val, s.TrainDev, s.Test = j.Train.Smooth, j.Val.Smooth, j.TrainDev.Smooth, j.Test.Smooth
 	s.TrainRaw, s.ValRaw, s.TrainDevRaw, s.TestRaw = j.Train.Raw, j.Val.Raw, j.TrainDev.Raw, j.Test.Raw
 	s.Tolerance = j.Tolerance

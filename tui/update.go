@@ -347,7 +347,7 @@ func (m *Model) optimalPrompt() string {
 // isRateMetric reports whether the judged values are fractions in [0, 1]:
 // an error rate, or the shortfall 1 − score of a bounded score.
 func isRateMetric(mt diagnose.Metric) bool {
-	return mt.Error || strings.HasPrefix(mt.Label, "1 − ")
+	return mt.Fraction
 }
 
 func (m Model) handleTyping(msg tea.KeyMsg) (tea.Model, tea.Cmd) {

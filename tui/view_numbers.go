@@ -1,12 +1,6 @@
 package tui
 
-import (
-	"math"
-	"strconv"
-	"strings"
-
-	"github.com/fitgap/fitgap/diagnose"
-)
+import "github.com/fitgap/fitgap/diagnose"
 
 // Numbers of the judged metric as the panels print them. A rate's value
 // is a percent ("19.2%"); a difference of two rates is in percentage
@@ -50,16 +44,5 @@ func (m *Model) fmtPart(c component) string {
 }
 
 // formatPoints prints the difference v of two rates (fractions) in
-// percentage points: one decimal, two below one point, and no "-0.0".
-func formatPoints(v float64) string {
-	p := v * 100
-	prec := 1
-	if math.Abs(p) < 1 && p != 0 {
-		prec = 2
-	}
-	s := strconv.FormatFloat(p, 'f', prec, 64)
-	if strings.Trim(s, "-0.") == "" {
-		return strings.TrimPrefix(s, "-")
-	}
-	return s
-}
+// percentage points, by the project's one rule (diagnose.Percent).
+func formatPoints(v float64) string { return diagnose.Percent(v) }

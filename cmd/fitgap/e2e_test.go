@@ -40,15 +40,18 @@ func requireTmux(t *testing.T) {
 	}
 }
 
-// buildBinary builds fitgap once per test into dir.
-func buildBinary(t *testing.T, dir string) string {
+// e2eHeader is the header of the logs the end-to-end tests write.
+const e2eHeader = "epoch,train_loss,val_loss,train_acc,val_acc,lr\n"
+
+// newLog writes run.csv in dir: the header, then epochs from..to.
+func newLog(t *testing.T, dir string, from, to int) string {
 	t.Helper()
-	bin := filepath.Join(dir, "fitgap")
-	out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput()
-	if err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
+	log := filepath.Join(dir, "run.csv")
+	if err := os.WriteFile(log, []byte(e2eHeader), 0o644); err != nil {
+		t.Fatal(err)
 	}
-	return bin
+	appendEpochs(t, log, from, to)
+	return log
 }
 
 // startPane runs script (a bash script) in a new detached tmux session of
@@ -160,13 +163,9 @@ sleep 60
 func TestE2E_WatchKeysAndQuit(t *testing.T) {
 	requireTmux(t)
 	dir := t.TempDir()
-	bin := buildBinary(t, dir)
-	log := filepath.Join(dir, "run.csv")
-	if err := os.WriteFile(log, []byte("epoch,train_loss,val_loss,train_acc,val_acc,lr\n"), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	appendEpochs(t, log, 1, 6)
-	p := startPane(t, dir, wrapper(bin, "watch run.csv"), 100, 30)
+
+	log := newLog(t, dir, 1, 6)
+	p := startPane(t, dir, wrapper(binPath, "watch run.csv"), 100, 30)
 
 	// The chart's axis corner shows the chart was drawn, not only the status.
 	p.waitScreen("the first screen", "run.csv", "epoch 6", "└", "VERDICT")
@@ -230,14 +229,14 @@ func sparkRowHas(screen, name, glyph string) bool {
 func TestE2E_FirstEpochOffScale(t *testing.T) {
 	requireTmux(t)
 	dir := t.TempDir()
-	bin := buildBinary(t, dir)
+
 	log := filepath.Join(dir, "run.csv")
-	body := "epoch,train_loss,val_loss,train_acc,val_acc,lr\n1,2.3026,2.3026,0.1000,0.1000,0.01\n"
+	body := e2eHeader + "1,2.3026,2.3026,0.1000,0.1000,0.01\n"
 	if err := os.WriteFile(log, []byte(body), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	appendEpochs(t, log, 8, 30) // a run already well under way from its second row
-	p := startPane(t, dir, wrapper(bin, "watch run.csv"), 80, 24)
+	p := startPane(t, dir, wrapper(binPath, "watch run.csv"), 80, 24)
 	s := p.waitScreen("the chart with the first epoch off the scale", "└", "↑90%", "off scale")
 	if strings.Contains(s, "90%┤") || strings.Contains(s, "80%┤") {
 		t.Errorf("the y axis still reaches the first epoch:\n%s", s)
@@ -250,13 +249,9 @@ func TestE2E_FirstEpochOffScale(t *testing.T) {
 func TestE2E_HangupWritesSummary(t *testing.T) {
 	requireTmux(t)
 	dir := t.TempDir()
-	bin := buildBinary(t, dir)
-	log := filepath.Join(dir, "run.csv")
-	if err := os.WriteFile(log, []byte("epoch,train_loss,val_loss,train_acc,val_acc,lr\n"), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	appendEpochs(t, log, 1, 12)
-	p := startPane(t, dir, wrapper(bin, "watch --summary summary.json run.csv"), 100, 30)
+
+	newLog(t, dir, 1, 12)
+	p := startPane(t, dir, wrapper(binPath, "watch --summary summary.json run.csv"), 100, 30)
 	p.waitScreen("the first screen", "epoch 12", "└")
 
 	pid := fitgapPID(t, p)
@@ -324,15 +319,11 @@ func readFile(t *testing.T, path string) string {
 func TestE2E_PipeKeys(t *testing.T) {
 	requireTmux(t)
 	dir := t.TempDir()
-	bin := buildBinary(t, dir)
-	log := filepath.Join(dir, "run.csv")
-	if err := os.WriteFile(log, []byte("epoch,train_loss,val_loss,train_acc,val_acc,lr\n"), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	appendEpochs(t, log, 1, 9)
+
+	newLog(t, dir, 1, 9)
 	// The writer stays alive after the lines, like a training script (the
 	// shell waits for it after fitgap quits, so not for long).
-	p := startPane(t, dir, wrapper("(cat run.csv; sleep 4) | "+bin, "-"), 100, 30)
+	p := startPane(t, dir, wrapper("(cat run.csv; sleep 4) | "+binPath, "-"), 100, 30)
 	p.waitScreen("the piped epochs", "epoch 9", "└")
 	p.keys("Space")
 	p.waitScreen("the pause key", "PAUSED")
