@@ -3,6 +3,8 @@ package tui
 import (
 	"math"
 	"testing"
+
+	"github.com/fitgap/fitgap/diagnose"
 )
 
 // TestFormatPoints: differences of rates are printed in percentage points
@@ -40,5 +42,20 @@ func TestLegend_FitsNarrowestPanel(t *testing.T) {
 	}
 	if w := ansiLen("-12.5 pp"); w > legendValueW {
 		t.Errorf("a gap of %d columns does not fit the value column of %d", w, legendValueW)
+	}
+}
+
+// TestValuesLine_ShowsJudgedValues: the verdict's values are the smoothed
+// ones the decomposition and actions are computed from, so the panel never
+// shows two different "train" numbers; the logged value stands in only
+// while no smoothed one exists.
+func TestValuesLine_ShowsJudgedValues(t *testing.T) {
+	m := New(Options{})
+	j := diagnose.Judgement{
+		Train: diagnose.Estimate{Raw: diagnose.Some(0.1), Smooth: diagnose.Some(0.12)},
+		Val:   diagnose.Estimate{Raw: diagnose.Some(0.3)},
+	}
+	if got, want := m.valuesLine(j), "train 0.12 · val 0.3"; got != want {
+		t.Errorf("valuesLine = %q, want %q", got, want)
 	}
 }

@@ -230,11 +230,17 @@ func (m *Model) optimalNote(j diagnose.Judgement) string {
 	return "given"
 }
 
-// valuesLine lists the judged values of the inspected point.
+// valuesLine lists the judged values of the inspected point: the smoothed
+// ones, which the decomposition and the actions are computed from (the
+// logged values are on the chart), else the logged value while no smoothed
+// one exists.
 func (m *Model) valuesLine(j diagnose.Judgement) string {
 	parts := []string{}
 	add := func(name string, e diagnose.Estimate) {
-		if e.Raw.OK {
+		switch {
+		case e.Smooth.OK:
+			parts = append(parts, name+" "+m.fmtValue(e.Smooth.V))
+		case e.Raw.OK:
 			parts = append(parts, name+" "+m.fmtValue(e.Raw.V))
 		}
 	}
