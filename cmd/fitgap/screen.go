@@ -92,7 +92,7 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 
 	feed := make(chan tui.FeedMsg, 4)
 	stopErrs := make(chan error, 1)
-	go relay(batches, spec.writerDone, feed, name, diagnose.New(spec.cfg), stop, stopErrs)
+	go relay(ctx, batches, spec.writerDone, feed, name, diagnose.New(spec.cfg), stop, stopErrs)
 
 	summaryPath := spec.flags.summary
 	m := tui.New(tui.Options{
@@ -150,8 +150,18 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 // points itself, with the command line's settings, to act on the stop
 // signal: the stop file must not depend on what the screen shows (paused,
 // or with an optimal error typed in to explore).
-func relay(batches <-chan watch.Batch, writerDone <-chan struct{}, feed chan<- tui.FeedMsg, name string, t *diagnose.Tracker, stop *stopFile, errs chan<- error) {
+func relay(ctx context.Context, batches <-chan watch.Batch, writerDone <-chan struct{}, feed chan<- tui.FeedMsg, name string, t *diagnose.Tracker, stop *stopFile, errs chan<- error) {
 	defer close(feed)
+	// send gives up once the screen is gone (ctx ends when it closes), so
+	// the relay never blocks on a feed nobody reads.
+	send := func(m tui.FeedMsg) bool {
+		select {
+		case feed <- m:
+			return true
+		case <-ctx.Done():
+			return false
+		}
+	}
 	var last watch.Stats
 	finished := false
 	for {
@@ -175,7 +185,9 @@ func relay(batches <-chan watch.Batch, writerDone <-chan struct{}, feed chan<- t
 			if finished && msg.Source.State == tui.Live {
 				msg.Source.State = tui.Finished
 			}
-			feed <- msg
+			if !send(msg) {
+				return
+			}
 		case <-writerDone:
 			writerDone, finished = nil, true
 			// The reader may still hand on the last lines; they will be
@@ -184,7 +196,9 @@ func relay(batches <-chan watch.Batch, writerDone <-chan struct{}, feed chan<- t
 			if msg.Source.State == tui.Live {
 				msg.Source.State = tui.Finished
 			}
-			feed <- msg
+			if !send(msg) {
+				return
+			}
 		}
 	}
 }

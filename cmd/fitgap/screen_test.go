@@ -1,11 +1,13 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"testing"
+	"time"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/tui"
@@ -37,7 +39,7 @@ func TestRelay_StopFileAndFinished(t *testing.T) {
 	errs := make(chan error, 1)
 	cfg := diagnose.DefaultConfig()
 	cfg.BayesError, cfg.BayesErrorGiven = 0.05, true
-	go relay(batches, writerDone, feed, logPath, diagnose.New(cfg), stop, errs)
+	go relay(context.Background(), batches, writerDone, feed, logPath, diagnose.New(cfg), stop, errs)
 
 	stats.State = watch.StateLive
 	for _, p := range points {
@@ -69,5 +71,25 @@ func TestRelay_StopFileAndFinished(t *testing.T) {
 	var body stopFileBody
 	if err := json.Unmarshal(b, &body); err != nil || body.BestEpoch < 1 || body.BestEpoch >= body.Epoch {
 		t.Errorf("stop file %q (%v): want an earlier best epoch than the stop", b, err)
+	}
+}
+
+// TestRelay_EndsWhenTheScreenIsGone: once the screen has closed (its
+// context ends) nobody reads the feed; the relay must not block on it.
+func TestRelay_EndsWhenTheScreenIsGone(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	batches := make(chan watch.Batch, 1)
+	feed := make(chan tui.FeedMsg) // never read
+	done := make(chan struct{})
+	go func() {
+		relay(ctx, batches, nil, feed, "run.csv", diagnose.New(diagnose.DefaultConfig()), nil, make(chan error, 1))
+		close(done)
+	}()
+	batches <- watch.Batch{}
+	cancel()
+	select {
+	case <-done:
+	case <-time.After(5 * time.Second):
+		t.Fatal("relay still blocked on the feed after the screen closed")
 	}
 }
