@@ -6,36 +6,6 @@ import (
 	"time"
 )
 
-// Split says which data a metric was measured on. The names follow the
-// practice of holding out a validation (dev) set, optionally a train-dev set
-// drawn from the training distribution, and a test set touched last.
-type Split uint8
-
-const (
-	// SplitNone marks a column that is not a metric of a data split:
-	// epoch, step, time, learning rate and other bookkeeping.
-	SplitNone Split = iota
-	SplitTrain
-	SplitVal
-	SplitTrainDev
-	SplitTest
-)
-
-// String names the split as output writes it ("train-dev").
-func (s Split) String() string {
-	switch s {
-	case SplitTrain:
-		return "train"
-	case SplitVal:
-		return "val"
-	case SplitTrainDev:
-		return "train-dev"
-	case SplitTest:
-		return "test"
-	}
-	return "none"
-}
-
 // Direction says whether smaller or larger values of a metric are better.
 type Direction int8
 

@@ -1,9 +1,8 @@
 package tui
 
 import (
-	"fmt"
+	"errors"
 	"math"
-	"strconv"
 	"strings"
 	"time"
 
@@ -391,25 +390,18 @@ func (m Model) handleTyping(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	return m, cmd
 }
 
-// parseOptimal reads a typed optimal error: a rate as 0.04 or 4% for an
-// error-rate metric, else a non-negative number in the metric's units.
+// parseOptimal reads a typed optimal error by the rules of every typed
+// level (diagnose.ParseLevel), knowing whether the judged metric is a
+// rate; an empty line gets the hint of what to type instead.
 func parseOptimal(s string, rate bool) (float64, error) {
 	if strings.TrimSpace(s) == "" {
-		return 0, fmt.Errorf("type an optimal error such as 0.04 or 4%%, or esc to cancel")
+		return 0, errors.New("type an optimal error such as 0.04 or 4%, or esc to cancel")
 	}
+	scale := diagnose.ScaleUnits
 	if rate {
-		v, err := diagnose.ParseRate(s)
-		if err != nil {
-			return 0, fmt.Errorf("optimal error: %w", err)
-		}
-		return v, nil
+		scale = diagnose.ScaleFraction
 	}
-	t := strings.TrimSpace(s)
-	v, err := strconv.ParseFloat(t, 64)
-	if err != nil || !isFinite(v) || v < 0 {
-		return 0, fmt.Errorf("optimal value %q: want a number ≥ 0 in the metric's units", clean(t))
-	}
-	return v, nil
+	return diagnose.ParseLevel("optimal error", s, scale)
 }
 
 // save builds the summary now and writes it off the event loop.
