@@ -16,12 +16,20 @@ func benchPoints(n int) []Point {
 	return pts
 }
 
-// benchPoint is epoch e of the run benchPoints makes.
+// benchPoint is epoch e of the run benchPoints makes, its values printed
+// with six decimals and read back, as a log holds them.
 func benchPoint(e int) Point {
 	tr := 0.5/float64(e) + 0.01
 	va := 0.12 + 0.3/float64(e) + 0.004*wiggle(e) + 0.00001*float64(e)
-	return metricPoint(e, acc(SplitTrain, 1-tr), acc(SplitVal, 1-va), loss(SplitTrain, 3*tr), loss(SplitVal, 3*va),
+	return metricPoint(e, acc(SplitTrain, printed(1-tr)), acc(SplitVal, printed(1-va)), loss(SplitTrain, printed(3*tr)), loss(SplitVal, printed(3*va)),
 		Sample{Column: Column{Name: "lr", Kind: KindOther}, Value: 0.001})
+}
+
+// printed is v as a script prints it with six decimals and a reader
+// parses it back.
+func printed(v float64) float64 {
+	p, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'f', 6, 64), 64)
+	return p
 }
 
 // BenchmarkTrackerAdd measures one Add (the update and the full judgement

@@ -150,8 +150,11 @@ func (c Component) Short() string { return components.short(c) }
 // MarshalText makes a Component a JSON string ("none" for NoComponent).
 func (c Component) MarshalText() ([]byte, error) { return []byte(c.String()), nil }
 
-// Components lists every Component, for documentation and schemas.
-func Components() []Component { return components.values() }
+// Components lists the values a judgement's focus and problems take, for
+// documentation and schemas: NoComponent and the four measured gaps
+// (OptimalError, the base of the decomposition, is the optimal error
+// itself, never a problem).
+func Components() []Component { return components.values()[:OptimalError] }
 
 // Progress is the recent trend of the smoothed validation curve.
 type Progress uint8

@@ -1,7 +1,6 @@
 package diagnose
 
 import (
-	"math"
 	"strconv"
 	"time"
 )
@@ -159,15 +158,6 @@ func Some(v float64) Num { return Num{V: v, OK: true} }
 
 // None is the absent Num.
 var None = Num{}
-
-// MarshalJSON writes the value, or null when absent or not finite
-// (JSON has no NaN).
-func (n Num) MarshalJSON() ([]byte, error) {
-	if !n.OK || math.IsNaN(n.V) || math.IsInf(n.V, 0) {
-		return []byte("null"), nil
-	}
-	return appendFloat(nil, n.V), nil
-}
 
 // appendFloat appends v in the shortest form that reads back exactly.
 func appendFloat(b []byte, v float64) []byte {

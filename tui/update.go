@@ -2,7 +2,6 @@ package tui
 
 import (
 	"errors"
-	"math"
 	"strings"
 	"time"
 
@@ -83,10 +82,7 @@ func (m Model) handleResize(msg tea.WindowSizeMsg) (tea.Model, tea.Cmd) {
 func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 	m.batches++
 	now := m.now()
-	metric := diagnose.Metric{}
-	if n := len(m.data.rows); n > 0 {
-		metric = m.tracker.At(n - 1).Metric
-	}
+	revision := m.tracker.Revision()
 	for _, p := range msg.Points {
 		j := m.tracker.Add(p)
 		m.data.add(j, p, now, m.batches)
@@ -94,8 +90,10 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 			m.newPaused++
 		}
 	}
-	if len(msg.Points) > 0 {
-		m.checkReplay(metric)
+	if m.tracker.Revision() != revision {
+		// The Tracker judged its earlier points again (it chose another
+		// metric, or learned that a rate is written in percent).
+		m.data.rejudge(m.tracker)
 	}
 	for _, s := range msg.Steps {
 		m.data.addStep(s)
@@ -114,27 +112,6 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 	cmd := tea.Batch(m.waitFeed(), m.frameTick())
 	return m, cmd
 }
-
-// checkReplay notices when the Tracker judged its earlier points again
-// (it chose another metric, or learned that a rate is written in percent)
-// and refreshes the stored rows; the check reads one old judgement.
-func (m *Model) checkReplay(before diagnose.Metric) {
-	n := len(m.data.rows)
-	if n == 0 {
-		return
-	}
-	last := m.tracker.At(n - 1)
-	stale := last.Metric != before && before != (diagnose.Metric{})
-	if !stale && n > 1 {
-		r := rowOf(m.tracker.At(0), m.tracker.Points()[0])
-		stale = !sameValue(r.train, m.data.rows[0].train) || !sameValue(r.val, m.data.rows[0].val)
-	}
-	if stale {
-		m.data.rejudge(m.tracker)
-	}
-}
-
-func sameValue(a, b float64) bool { return a == b || (math.IsNaN(a) && math.IsNaN(b)) }
 
 // mergeSource takes the reader's latest view of the source. A message with
 // no source information (only points) keeps the previous one.
