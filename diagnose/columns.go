@@ -188,11 +188,7 @@ func (ch *floatChunk) widen() {
 
 // truncate keeps the first n positions: later ones read as absent again.
 func (c *floatColumn) truncate(n int) {
-	k := (n + chunkLen - 1) / chunkLen
-	if k < len(c.chunks) {
-		clear(c.chunks[k:])
-		c.chunks = c.chunks[:k]
-	}
+	c.chunks = keepChunks(c.chunks, n)
 	if n%chunkLen == 0 || n/chunkLen >= len(c.chunks) {
 		return
 	}
@@ -264,10 +260,15 @@ func (ch *intChunk) widen() {
 }
 
 // truncate keeps the first n positions.
-func (c *intColumn) truncate(n int) {
+func (c *intColumn) truncate(n int) { c.chunks = keepChunks(c.chunks, n) }
+
+// keepChunks drops the chunks that hold no position below n, letting
+// their memory go.
+func keepChunks[C any](chunks []C, n int) []C {
 	k := (n + chunkLen - 1) / chunkLen
-	if k < len(c.chunks) {
-		clear(c.chunks[k:])
-		c.chunks = c.chunks[:k]
+	if k < len(chunks) {
+		clear(chunks[k:])
+		chunks = chunks[:k]
 	}
+	return chunks
 }

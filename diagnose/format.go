@@ -22,7 +22,7 @@ type text struct {
 func (t *verdict) text() *text {
 	t.buf.b = t.buf.b[:0]
 	t.buf.rated = t.metric != nil && t.metric.kind.bounded()
-	return &t.buf
+	return t.buf
 }
 
 // s appends literal text.

@@ -9,13 +9,17 @@ type verdict struct {
 	i   int
 	r   *rec
 	st  *state
-	buf text // scratch for the texts, one per verdict: readers share nothing
+	buf *text // scratch for the texts
 }
 
 // judgement assembles the Judgement of point i from its record r and the
-// state st after it.
-func (t *Tracker) judgement(i int, r *rec, st *state) Judgement {
-	v := verdict{Tracker: t, i: i, r: r, st: st}
+// state st after it. buf is scratch for the texts: the Tracker's own on the
+// writer's path (Add), nil for a reader (At), which then shares nothing.
+func (t *Tracker) judgement(i int, r *rec, st *state, buf *text) Judgement {
+	if buf == nil {
+		buf = new(text)
+	}
+	v := verdict{Tracker: t, i: i, r: r, st: st, buf: buf}
 	return v.judgement()
 }
 

@@ -54,6 +54,7 @@ type Tracker struct {
 	// after Add return it without building the texts again.
 	last      Judgement
 	lastValid bool
+	scratch   text // the texts of Add's judgements are built here
 }
 
 // New returns a Tracker judging with cfg (zero settings take the defaults).
@@ -117,7 +118,7 @@ func (t *Tracker) Metrics() []string {
 // itself: p may be reused afterwards.
 func (t *Tracker) Add(p Point) Judgement {
 	t.Push(p)
-	t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur)
+	t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
 	t.lastValid = true
 	return t.last
 }
@@ -180,7 +181,7 @@ func (t *Tracker) At(i int) Judgement {
 		if t.lastValid {
 			return t.last
 		}
-		return t.judgement(i, &t.lastRec, &t.cur)
+		return t.judgement(i, &t.lastRec, &t.cur, nil)
 	}
 	// Judge again from the state copy at or before i: the same inputs in
 	// the same order give the same record, bit for bit.
@@ -190,7 +191,7 @@ func (t *Tracker) At(i int) Judgement {
 	for k := c * ckptEvery; k <= i; k++ {
 		t.step(&st, k, &r)
 	}
-	return t.judgement(i, &r, &st)
+	return t.judgement(i, &r, &st, nil)
 }
 
 func (t *Tracker) check(i int) {
@@ -214,7 +215,7 @@ func (t *Tracker) Reconfigure(cfg Config) {
 	t.choose()
 	t.replay()
 	if t.hist.n > 0 {
-		t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur)
+		t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
 		t.lastValid = true
 	}
 }
