@@ -15,7 +15,9 @@ import "math"
 // bits at once. Epochs and line numbers are kept as int32 offsets from the
 // first value of their chunk, widened the same way.
 
-// chunkLen is how many values a chunk holds.
+// chunkLen is how many values a chunk holds: 4 or 8 KiB, so a short run
+// costs little more than its values and a long one a short list of chunks
+// (design choice).
 const chunkLen = 1024
 
 // maxScale is the largest power of ten a decimal chunk divides by: 10⁹ is
