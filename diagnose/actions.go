@@ -12,17 +12,15 @@ import "math"
 // §8.3.1 and §8.2.4 (gradient clipping); calibration follows Guo et al.
 // (2017).
 
-// actions builds the ranked next actions of point i.
-func (t *Tracker) actions(i int) []Action {
-	r := t.recs.at(i)
-	p := &t.points[i]
-	st := &r.snap
+// actions builds the ranked next actions of the point.
+func (t *verdict) actions() []Action {
+	r, st, i := t.r, t.st, t.i
 	name := t.metricName()
 	out := make([]Action, 0, 7)
 	add := func(text, why string) { out = append(out, Action{Text: text, Why: why}) }
 	bestEpoch := 0
 	if st.bestIdx >= 0 {
-		bestEpoch = t.points[st.bestIdx].Epoch
+		bestEpoch = st.bestEpoch
 	}
 	restore := func(text string) {
 		if st.bestIdx < 0 {
@@ -38,11 +36,11 @@ func (t *Tracker) actions(i int) []Action {
 	}
 	switch r.diag {
 	case Diverging:
-		why := t.text().s("non-finite values at epoch ").n(p.Epoch).done()
+		why := t.text().s("non-finite values at epoch ").n(t.hist.epoch(i)).done()
 		if r.blowup != blowNone {
 			why = t.text().s("smoothed training ").s(name).s(" ").val(r.sm[SplitTrain]).s(" vs best ").val(st.trMin).s(", rising for two epochs").done()
 		}
-		if bestEpoch > 0 && st.bestIdx != int32(i) {
+		if bestEpoch > 0 && st.bestIdx != i {
 			restore("restore the checkpoint of epoch " + itoa(bestEpoch))
 		}
 		add("lower the learning rate (a factor of 3 to 10)", why)

@@ -39,8 +39,7 @@ func (t *Tracker) tolerance(st *state) float64 {
 // bias: the model fits noise of its training set, MLY ch. 22 footnote),
 // only the part of the gap above the optimal error is avoidable, so the
 // variance is judged from the optimal error instead of the training error.
-func (t *Tracker) classify(r *rec) {
-	st := &t.cur
+func (t *Tracker) classify(st *state, r *rec) {
 	r.tol = t.tolerance(st)
 	var have [nSplits]bool
 	for s := SplitTrain; s <= SplitTest; s++ {
@@ -105,7 +104,7 @@ func (t *Tracker) classify(r *rec) {
 		r.focus = r.problems[0]
 	}
 
-	bad := r.bad != 0 || r.badSample >= 0 || r.blowup != blowNone
+	bad := r.bad != 0 || r.badPoint || r.blowup != blowNone
 	switch {
 	case bad:
 		r.diag = Diverging

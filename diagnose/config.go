@@ -1,11 +1,6 @@
 package diagnose
 
-import (
-	"fmt"
-	"math"
-	"strconv"
-	"strings"
-)
+import "math"
 
 // Defaults of the judgement. Each has its unit and reason.
 const (
@@ -150,60 +145,4 @@ func (c Config) beta() float64 {
 		return 0
 	}
 	return c.Smoothing
-}
-
-// ParseBayesError reads an optimal-error estimate as given on the command
-// line: "4%" is the rate 0.04; a plain number is in the units of the
-// judged metric (a fraction for error rates, the metric's own units for a
-// loss or RMSE), and must be finite and not negative. A rate judged with a
-// plain number above 1 takes it as a percent, and says so.
-func ParseBayesError(s string) (float64, error) {
-	t := strings.TrimSpace(s)
-	if strings.HasSuffix(t, "%") {
-		return ParseRate(s)
-	}
-	if t == "" {
-		return 0, fmt.Errorf("parse optimal error %q: empty", Printable(s))
-	}
-	v, err := strconv.ParseFloat(t, 64)
-	switch {
-	case err != nil:
-		return 0, fmt.Errorf("parse optimal error %q: not a number", Printable(s))
-	case math.IsNaN(v) || math.IsInf(v, 0):
-		return 0, fmt.Errorf("parse optimal error %q: not a finite number", Printable(s))
-	case v < 0:
-		return 0, fmt.Errorf("parse optimal error %q: negative", Printable(s))
-	}
-	return v, nil
-}
-
-// ParseRate reads an error rate given as a fraction ("0.04") or a percent
-// ("4%", "4 %"), for --bayes-error and --baseline-error. The result is a
-// fraction in [0, 1].
-func ParseRate(s string) (float64, error) {
-	t := strings.TrimSpace(s)
-	percent := strings.HasSuffix(t, "%")
-	if percent {
-		t = strings.TrimSpace(strings.TrimSuffix(t, "%"))
-	}
-	if t == "" {
-		return 0, fmt.Errorf("parse rate %q: empty", Printable(s))
-	}
-	v, err := strconv.ParseFloat(t, 64)
-	if err != nil {
-		return 0, fmt.Errorf("parse rate %q: not a number", Printable(s))
-	}
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("parse rate %q: not a finite number", Printable(s))
-	}
-	if percent {
-		v /= 100
-	}
-	if v < 0 || v > 1 {
-		if percent {
-			return 0, fmt.Errorf("parse rate %q: outside 0%%–100%%", Printable(s))
-		}
-		return 0, fmt.Errorf("parse rate %q: outside 0–1 (write %s%% for a percent)", Printable(s), Printable(t))
-	}
-	return v, nil
 }

@@ -24,43 +24,31 @@ const (
 // judgeProgress sets the trend of the smoothed validation curve (the
 // training curve when no validation value is logged) and of the training
 // curve, from the least-squares slope over the last slopeWindow points.
-func (t *Tracker) judgeProgress(i int) {
-	r := t.recs.at(i)
-	s := SplitVal
-	if t.cur.seen&(1<<SplitVal) == 0 {
-		s = SplitTrain
+func (t *Tracker) judgeProgress(st *state, i int, r *rec) {
+	w := &st.trend[trendVal]
+	if st.seen&(1<<SplitVal) == 0 {
+		w = &st.trend[trendTrain]
 	}
-	r.progress = t.trend(i, s, r.tol)
-	r.trainProg = t.trend(i, SplitTrain, r.tol)
+	r.progress, _, _ = t.windowTrend(i, r.tol, w)
+	r.trainProg, _, _ = t.windowTrend(i, r.tol, &st.trend[trendTrain])
 }
 
-// trend judges one split's smoothed curve over the last points where the
-// split was logged.
-func (t *Tracker) trend(i int, s Split, tol float64) Progress {
-	bit := uint8(1) << s
-	p, _, _ := t.windowTrend(i, tol, func(r *rec) (float64, bool) {
-		return r.sm[s], r.has&bit != 0 && r.bad&bit == 0
-	})
-	return p
-}
-
-// windowTrend judges a curve from the least-squares slope over the last
-// slopeWindow points at or before i where at gives a value: improving or
-// worsening when the slope, projected over the epochs the window covers,
-// moves the curve by plateauFrac of tol or more, else plateaued. It also
-// returns that move and the mean level of the window (for the
-// overconfidence check).
-func (t *Tracker) windowTrend(i int, tol float64, at func(r *rec) (float64, bool)) (Progress, float64, float64) {
+// windowTrend judges a curve from the least-squares slope over its last
+// slopeWindow values at or before point i, looking back at most 4 windows
+// of points (so a series logged rarely still costs O(1) per point):
+// improving or worsening when the slope, projected over the epochs the
+// window covers, moves the curve by plateauFrac of tol or more, else
+// plateaued. It also returns that move and the mean level of the window
+// (for the overconfidence check).
+func (t *Tracker) windowTrend(i int, tol float64, w *window) (Progress, float64, float64) {
 	var xs, ys [slopeWindow]float64
 	n := 0
-	// Look back at most 4 windows of points, so a series logged rarely
-	// still costs O(1) per point.
-	for j := i; j >= 0 && j > i-4*slopeWindow && n < slopeWindow; j-- {
-		v, ok := at(t.recs.at(j))
-		if !ok {
-			continue
+	for k := 0; k < int(w.n); k++ {
+		j, v := w.at(k)
+		if j <= i-4*slopeWindow {
+			break
 		}
-		xs[n], ys[n] = float64(t.points[j].Epoch), v
+		xs[n], ys[n] = float64(t.hist.epoch(j)), v
 		n++
 	}
 	if n < minPoints {
@@ -107,10 +95,8 @@ func (t *Tracker) windowTrend(i int, tol float64, at func(r *rec) (float64, bool
 // patience, the validation value rose over the last strip, GL exceeds
 // watchGL, or the curve has plateaued. A run judged high-bias that is
 // still improving is never stopped: training longer is one of its remedies.
-func (t *Tracker) earlyStop(i int) {
-	r := t.recs.at(i)
-	st := &t.cur
-	p := &t.points[i]
+func (t *Tracker) earlyStop(st *state, i int, r *rec) {
+	epoch := t.hist.epoch(i)
 	const valBit = uint8(1) << SplitVal
 	hasVal := r.has&valBit != 0 && r.bad&valBit == 0
 
@@ -118,13 +104,13 @@ func (t *Tracker) earlyStop(i int) {
 	if hasVal {
 		v := r.sm[SplitVal]
 		if st.bestIdx < 0 || v < st.best-t.cfg.MinDelta {
-			st.best, st.bestIdx, st.pqFired = v, int32(i), false
+			st.best, st.bestIdx, st.bestEpoch, st.pqFired = v, i, epoch, false
 			newBest = true
 		}
 		st.gl = generalizationLoss(v, st.best)
 	}
 	if st.bestIdx >= 0 {
-		r.since = p.Epoch - t.points[st.bestIdx].Epoch
+		r.since = epoch - st.bestEpoch
 	}
 
 	k := t.cfg.Strip
@@ -144,8 +130,9 @@ func (t *Tracker) earlyStop(i int) {
 				st.pqFired = true
 			}
 		}
-		if j := i - k; j >= 0 && hasVal && t.recs.at(j).has&valBit != 0 && t.recs.at(j).bad&valBit == 0 {
-			if r.sm[SplitVal] > t.recs.at(j).sm[SplitVal] {
+		// The strip before this one ended k points ago.
+		if hasVal && st.stripValOK {
+			if r.sm[SplitVal] > st.stripVal {
 				st.up++
 			} else {
 				st.up = 0
@@ -153,6 +140,7 @@ func (t *Tracker) earlyStop(i int) {
 		} else {
 			st.up = 0
 		}
+		st.stripVal, st.stripValOK = r.sm[SplitVal], hasVal
 	}
 
 	improving := r.progress == Improving || (r.diag == HighBias && r.trainProg == Improving)
@@ -209,18 +197,25 @@ func generalizationLoss(eva, eopt float64) Num {
 // per mille, or None when a training value is missing or the minimum is
 // not positive.
 func (t *Tracker) trainingProgress(i, k int) Num {
-	const bit = uint8(1) << SplitTrain
+	if t.metric == nil {
+		return None
+	}
+	train := t.metric.series[SplitTrain]
 	sum, lo := 0.0, math.Inf(1)
 	for j := i - k + 1; j <= i; j++ {
 		if j < 0 {
 			return None
 		}
-		r := t.recs.at(j)
-		if r.has&bit == 0 || r.bad&bit != 0 {
+		v, ok := t.hist.value(train, j)
+		if !ok {
 			return None
 		}
-		sum += r.raw[SplitTrain]
-		lo = math.Min(lo, r.raw[SplitTrain])
+		v = judgedValue(t.metric, v)
+		if !finite(v) {
+			return None
+		}
+		sum += v
+		lo = math.Min(lo, v)
 	}
 	if !(lo > 0) {
 		return None

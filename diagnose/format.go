@@ -19,10 +19,10 @@ type text struct {
 	rated bool // the judged metric is shown in percent
 }
 
-func (t *Tracker) text() *text {
+func (t *verdict) text() *text {
 	t.buf.b = t.buf.b[:0]
 	t.buf.rated = t.metric != nil && t.metric.kind.bounded()
-	return &t.buf
+	return t.buf
 }
 
 // s appends literal text.

@@ -3,6 +3,7 @@ package diagnose
 import (
 	"encoding/binary"
 	"encoding/json"
+	"fmt"
 	"math"
 	"testing"
 )
@@ -10,7 +11,9 @@ import (
 // FuzzTracker feeds points decoded from arbitrary bytes (epochs that jump
 // and go back, NaN, Inf, huge and negative values, percent and fractions,
 // splits coming and going) and checks that the Tracker never panics, keeps
-// strictly increasing epochs, and that every judgement marshals to JSON.
+// strictly increasing epochs, that every judgement marshals to JSON, and
+// that every judgement rebuilt from the compact history (At) is the one
+// Add returned, unless the points were judged again since (Revision).
 func FuzzTracker(f *testing.F) {
 	f.Add([]byte{1, 0, 0, 0, 0, 0, 0xe0, 0x3f, 2, 1, 0, 0, 0, 0, 0, 0, 0xf8, 0x7f})
 	f.Add(make([]byte, 90))
@@ -30,6 +33,11 @@ func fuzzBody(t *testing.T, data []byte) {
 		cfg.BayesError, cfg.BayesErrorGiven = 0.2, true
 	}
 	tr := New(cfg)
+	type made struct {
+		j        Judgement
+		revision uint64
+	}
+	var history []made
 	epoch := 0
 	for len(data) >= 9 {
 		head := data[0]
@@ -48,6 +56,7 @@ func fuzzBody(t *testing.T, data []byte) {
 			}
 		}
 		j := tr.Add(p)
+		history = append(history[:j.Index], made{j, tr.Revision()})
 		if _, err := json.Marshal(j); err != nil {
 			t.Fatalf("marshal: %v", err)
 		}
@@ -57,14 +66,17 @@ func fuzzBody(t *testing.T, data []byte) {
 			}
 		}
 	}
-	pts := tr.Points()
-	for i := 1; i < len(pts); i++ {
-		if pts[i].Epoch <= pts[i-1].Epoch {
-			t.Fatalf("epochs not increasing: %d then %d", pts[i-1].Epoch, pts[i].Epoch)
-		}
+	if tr.Len() != len(history) {
+		t.Fatalf("Len = %d, want %d", tr.Len(), len(history))
 	}
 	for i := 0; i < tr.Len(); i++ {
-		_ = tr.At(i)
+		got := tr.At(i)
+		if i > 0 && tr.Epoch(i) <= tr.Epoch(i-1) {
+			t.Fatalf("epochs not increasing: %d then %d", tr.Epoch(i-1), tr.Epoch(i))
+		}
+		if h := history[i]; h.revision == tr.Revision() && fmt.Sprintf("%+v", got) != fmt.Sprintf("%+v", h.j) {
+			t.Fatalf("At(%d) rebuilt\n%+v\nAdd returned\n%+v", i, got, h.j)
+		}
 	}
 	if len(tr.Metrics()) > 0 {
 		tr.Reconfigure(Config{Metric: tr.Metrics()[0]})

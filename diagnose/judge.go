@@ -2,18 +2,38 @@ package diagnose
 
 import "math"
 
-// judgement assembles the Judgement of point i from its record.
-func (t *Tracker) judgement(i int) Judgement {
-	r := t.recs.at(i)
-	p := &t.points[i]
-	st := &r.snap
+// verdict is what the Judgement of one point is built from: its record,
+// the state after it, and the Tracker for the settings and the inputs.
+type verdict struct {
+	*Tracker
+	i   int
+	r   *rec
+	st  *state
+	buf *text // scratch for the texts
+}
+
+// judgement assembles the Judgement of point i from its record r and the
+// state st after it. buf is scratch for the texts: the Tracker's own on the
+// writer's path (Add), nil for a reader (At), which then shares nothing.
+func (t *Tracker) judgement(i int, r *rec, st *state, buf *text) Judgement {
+	if buf == nil {
+		buf = new(text)
+	}
+	v := verdict{Tracker: t, i: i, r: r, st: st, buf: buf}
+	return v.judgement()
+}
+
+func (t *verdict) judgement() Judgement {
+	i, r, st := t.i, t.r, t.st
 	j := Judgement{
 		Index:           i,
-		Epoch:           p.Epoch,
-		Segment:         p.Segment,
+		Epoch:           t.hist.epoch(i),
+		Line:            t.hist.line(i),
+		Segment:         t.hist.segment(i),
 		Metric:          t.desc,
 		BayesError:      t.bayes,
 		BayesErrorGiven: t.cfg.BayesErrorGiven,
+		BaselineError:   t.cfg.BaselineError,
 		Tolerance:       r.tol,
 		AvoidableBias:   r.comp[AvoidableBias],
 		Variance:        r.comp[Variance],
@@ -63,24 +83,23 @@ func (t *Tracker) judgement(i int) Judgement {
 		UP:       int(st.up),
 		Patience: t.cfg.Patience,
 		MinDelta: t.cfg.MinDelta,
+		Strip:    t.cfg.Strip,
 	}
 	if st.bestIdx >= 0 {
-		j.EarlyStop.BestEpoch = t.points[st.bestIdx].Epoch
+		j.EarlyStop.BestEpoch = st.bestEpoch
 		j.EarlyStop.BestVal = Some(st.best)
 		j.EarlyStop.EpochsSinceBest = r.since
 	}
-	j.EarlyStop.Reason = t.reasonText(i)
-	j.Actions = t.actions(i)
-	j.Warnings = t.warningTexts(i)
+	j.EarlyStop.Reason = t.reasonText()
+	j.Actions = t.actions()
+	j.Warnings = t.warningTexts()
 	return j
 }
 
-// reasonText explains the early-stopping signal of point i, naming the
+// reasonText explains the early-stopping signal of the point, naming the
 // epoch to restore.
-func (t *Tracker) reasonText(i int) string {
-	r := t.recs.at(i)
-	st := &r.snap
-	p := &t.points[i]
+func (t *verdict) reasonText() string {
+	r, st := t.r, t.st
 	name := t.metricName()
 	w := t.text()
 	switch r.why {
@@ -89,7 +108,7 @@ func (t *Tracker) reasonText(i int) string {
 	case reasonTooEarly:
 		w.s("too early: ").n(int(st.judged)).s(" of ").n(minPoints).s(" points")
 	case reasonDiverged:
-		w.s("diverged at epoch ").n(p.Epoch)
+		w.s("diverged at epoch ").n(t.hist.epoch(t.i))
 	case reasonPatience:
 		w.s("no improvement of the smoothed validation ").s(name)
 		if t.cfg.MinDelta > 0 {
@@ -108,7 +127,7 @@ func (t *Tracker) reasonText(i int) string {
 	case reasonGL:
 		// GL is measured from the best epoch, the one to restore.
 		w.s("smoothed validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is up ").f(st.gl.V, 1).s("% relative to its best ").
-			val(st.best).s(" at epoch ").n(t.points[st.bestIdx].Epoch).s(" (generalization loss)")
+			val(st.best).s(" at epoch ").n(st.bestEpoch).s(" (generalization loss)")
 	case reasonPlateau:
 		w.s("validation ").s(name).s(" has plateaued")
 	case reasonNewBest:
@@ -117,7 +136,7 @@ func (t *Tracker) reasonText(i int) string {
 		w.s("validation ").s(name).s(" still improving")
 	}
 	if st.bestIdx >= 0 {
-		w.s("; restore epoch ").n(t.points[st.bestIdx].Epoch)
+		w.s("; restore epoch ").n(st.bestEpoch)
 	}
 	return w.done()
 }

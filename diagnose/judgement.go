@@ -1,209 +1,162 @@
 package diagnose
 
-import "strconv"
-
-// Diagnosis is the regime the run is judged to be in at one point.
-type Diagnosis uint8
-
-const (
-	TooEarly Diagnosis = iota
-	Diverging
-	HighBias
-	HighVariance
-	HighBiasHighVariance
-	DataMismatch
-	GoodFit
-)
-
-var diagnosisNames = [...]string{
-	TooEarly:             "too-early",
-	Diverging:            "diverging",
-	HighBias:             "high-bias",
-	HighVariance:         "high-variance",
-	HighBiasHighVariance: "high-bias-high-variance",
-	DataMismatch:         "data-mismatch",
-	GoodFit:              "good-fit",
-}
-
-// String returns the stable machine name used in JSON ("high-bias").
-func (d Diagnosis) String() string {
-	if int(d) < len(diagnosisNames) {
-		return diagnosisNames[d]
-	}
-	return "diagnosis(" + strconv.Itoa(int(d)) + ")"
-}
-
-// MarshalText makes a Diagnosis a JSON string.
-func (d Diagnosis) MarshalText() ([]byte, error) { return []byte(d.String()), nil }
-
-// Component is one part of the decomposition of the validation error.
-type Component uint8
-
-const (
-	NoComponent Component = iota
-	// AvoidableBias = train − optimal.
-	AvoidableBias
-	// Variance = val − train, or train-dev − train when a train-dev split exists.
-	Variance
-	// Mismatch = val − train-dev (data mismatch).
-	Mismatch
-	// ValOverfit = test − val: overfitting to the validation set.
-	ValOverfit
-)
-
-var componentNames = [...]string{
-	NoComponent:   "none",
-	AvoidableBias: "avoidable-bias",
-	Variance:      "variance",
-	Mismatch:      "data-mismatch",
-	ValOverfit:    "val-overfit",
-}
-
-// String returns the stable machine name used in JSON ("avoidable-bias").
-func (c Component) String() string {
-	if int(c) < len(componentNames) {
-		return componentNames[c]
-	}
-	return "component(" + strconv.Itoa(int(c)) + ")"
-}
-
-// MarshalText makes a Component a JSON string ("none" for NoComponent).
-func (c Component) MarshalText() ([]byte, error) { return []byte(c.String()), nil }
-
-// Progress is the recent trend of the smoothed validation curve.
-type Progress uint8
-
-const (
-	ProgressUnknown Progress = iota
-	Improving
-	Plateaued
-	Worsening
-)
-
-var progressNames = [...]string{"unknown", "improving", "plateaued", "worsening"}
-
-// String returns the stable machine name used in JSON ("plateaued").
-func (p Progress) String() string {
-	if int(p) < len(progressNames) {
-		return progressNames[p]
-	}
-	return "progress(" + strconv.Itoa(int(p)) + ")"
-}
-
-// MarshalText makes a Progress a JSON string.
-func (p Progress) MarshalText() ([]byte, error) { return []byte(p.String()), nil }
-
-// Signal is the early-stopping signal.
-type Signal uint8
-
-const (
-	Continue Signal = iota
-	// Watch: a stopping criterion is close, or the best epoch is aging.
-	Watch
-	Stop
-)
-
-var signalNames = [...]string{"continue", "watch", "stop"}
-
-// String returns the stable machine name used in JSON ("stop").
-func (s Signal) String() string {
-	if int(s) < len(signalNames) {
-		return signalNames[s]
-	}
-	return "signal(" + strconv.Itoa(int(s)) + ")"
-}
-
-// MarshalText makes a Signal a JSON string.
-func (s Signal) MarshalText() ([]byte, error) { return []byte(s.String()), nil }
-
 // Metric names the metric the gaps are measured in.
 type Metric struct {
 	// Base is the base metric of the log ("acc", "loss").
-	Base string `json:"base"`
+	Base string
 	// Error is true when the judged value is an error rate: a logged error
 	// column, or 1 − accuracy derived from an accuracy column.
-	Error bool `json:"error_rate"`
+	Error bool
 	// Label is how output names it: "error (1 − acc)", "loss".
-	Label string `json:"label"`
+	Label string
 	// Fraction is true when the judged values are fractions in [0, 1]: an
 	// error rate, or the shortfall 1 − score of a bounded score (F1, AUC).
 	// Output shows them in percent and their gaps in points.
-	Fraction bool `json:"fraction"`
+	Fraction bool
 }
 
 // Estimate is one split's value of the judged metric at a point.
 type Estimate struct {
 	// Raw is the value logged at this point, converted to the judged
 	// metric (an error rate when Metric.Error).
-	Raw Num `json:"raw"`
+	Raw Num
 	// Smooth is the debiased exponential moving average up to this point.
-	Smooth Num `json:"smooth"`
+	Smooth Num
 }
 
 // EarlyStop is the early-stopping state at one point.
 type EarlyStop struct {
-	Signal Signal `json:"signal"`
-	// BestEpoch is the epoch to restore: the best smoothed validation value.
-	BestEpoch       int     `json:"best_epoch"`
-	BestVal         Num     `json:"best_val"`
-	EpochsSinceBest int     `json:"epochs_since_best"`
-	GL              Num     `json:"gl"` // Prechelt generalization loss, percent, from BestVal (the smoothed value at BestEpoch)
-	PK              Num     `json:"p5"` // Prechelt training progress over a strip, per mille
-	PQ              Num     `json:"pq"` // GL / P_k at strip ends
-	UP              int     `json:"up"` // successive strips with rising validation error
-	Reason          string  `json:"reason"`
-	Patience        int     `json:"patience"`
-	MinDelta        float64 `json:"min_delta"`
+	Signal Signal
+	// BestEpoch is the epoch to restore: the best smoothed validation
+	// value. BestVal.OK says whether there is one; without it BestEpoch
+	// and EpochsSinceBest are 0.
+	BestEpoch       int
+	BestVal         Num
+	EpochsSinceBest int
+	GL              Num // Prechelt generalization loss, percent, from BestVal (the smoothed value at BestEpoch)
+	PK              Num // Prechelt training progress P_k over the last strip of Strip points, per mille
+	PQ              Num // GL / P_k at strip ends
+	UP              int // successive strips with rising validation error
+	Reason          string
+	Patience        int
+	MinDelta        float64
+	Strip           int // Prechelt's strip length k, in points
 }
 
 // Action is one suggested next step with the numbers behind it.
 type Action struct {
-	Text string `json:"text"`
-	Why  string `json:"why"`
+	Text string `json:"text"` // what to do
+	Why  string `json:"why"`  // the numbers behind it
 }
 
 // Judgement is the whole verdict at one evaluation point, as it was judged
-// when that point arrived. The Tracker keeps one per point.
+// when that point arrived (in the Tracker's current terms: another metric
+// or optimal error judges every point again). A Tracker rebuilds any past
+// one on demand (At). Its JSON form is JudgementJSON.
 type Judgement struct {
-	Index   int `json:"index"` // 0-based position in the history
-	Epoch   int `json:"epoch"`
-	Segment int `json:"segment"`
+	// Index is the 0-based position in the history; -1 for the judgement
+	// of a run with no point (NoJudgement).
+	Index int
+	Epoch int
+	// Line is the 1-based log line of the point's last row; 0 when unknown.
+	Line    int
+	Segment int
 
-	Metric   Metric   `json:"metric"`
-	Train    Estimate `json:"train"`
-	Val      Estimate `json:"val"`
-	TrainDev Estimate `json:"train_dev"`
-	Test     Estimate `json:"test"`
+	Metric   Metric
+	Train    Estimate
+	Val      Estimate
+	TrainDev Estimate
+	Test     Estimate
 
-	BayesError      float64 `json:"bayes_error"`
-	BayesErrorGiven bool    `json:"bayes_error_given"`
+	BayesError      float64
+	BayesErrorGiven bool
+	// BaselineError is the majority-class error, when given.
+	BaselineError Num
 
 	// Tolerance is the gap a component must reach to be judged high, in
 	// the units of the judged metric (absolute for rates; for other
 	// metrics Config.RelTolerance times the metric's scale).
-	Tolerance float64 `json:"tolerance"`
+	Tolerance float64
 
-	AvoidableBias Num `json:"avoidable_bias"`
-	Variance      Num `json:"variance"`
-	DataMismatch  Num `json:"data_mismatch"`
-	ValOverfit    Num `json:"val_overfit"`
+	AvoidableBias Num
+	Variance      Num
+	DataMismatch  Num
+	ValOverfit    Num
 
 	// Noise is the estimated standard deviation of the per-epoch validation
 	// values around their local trend (from pseudo-residuals of three
 	// consecutive values; see stats.go).
-	Noise Num `json:"noise"`
+	Noise Num
 	// ValLow, ValHigh: Wilson score interval of the validation error (95%),
 	// when the validation set size is known.
-	ValLow  Num `json:"val_low"`
-	ValHigh Num `json:"val_high"`
+	ValLow  Num
+	ValHigh Num
 	// GapSE is the standard error of the train/validation gap, when known.
-	GapSE Num `json:"gap_se"`
+	GapSE Num
 
-	Diagnosis Diagnosis   `json:"diagnosis"`
-	Problems  []Component `json:"problems"`
-	Focus     Component   `json:"focus"`
-	Progress  Progress    `json:"progress"`
-	EarlyStop EarlyStop   `json:"early_stop"`
-	Actions   []Action    `json:"actions"`
-	Warnings  []string    `json:"warnings"`
+	Diagnosis Diagnosis
+	Problems  []Component
+	Focus     Component
+	Progress  Progress
+	EarlyStop EarlyStop
+	Actions   []Action
+	Warnings  []string
+}
+
+// Judged reports whether j judges a point (not NoJudgement).
+func (j Judgement) Judged() bool { return j.Index >= 0 }
+
+// Estimate returns the values of split s (train to test).
+func (j Judgement) Estimate(s Split) Estimate {
+	switch s {
+	case SplitTrain:
+		return j.Train
+	case SplitVal:
+		return j.Val
+	case SplitTrainDev:
+		return j.TrainDev
+	case SplitTest:
+		return j.Test
+	}
+	return Estimate{}
+}
+
+// Component returns the size of component c of the decomposition of the
+// validation error (OptimalError is the optimal error itself).
+func (j Judgement) Component(c Component) Num {
+	switch c {
+	case AvoidableBias:
+		return j.AvoidableBias
+	case Variance:
+		return j.Variance
+	case Mismatch:
+		return j.DataMismatch
+	case ValOverfit:
+		return j.ValOverfit
+	case OptimalError:
+		return Some(j.BayesError)
+	}
+	return None
+}
+
+// noPointReason is the early-stopping reason of a run with no point.
+const noPointReason = "no evaluation point read"
+
+// NoJudgement is the judgement of a run with no evaluation point under
+// cfg: too early, continue, nothing measured.
+func NoJudgement(cfg Config) Judgement {
+	c := cfg.normalized()
+	return Judgement{
+		Index:           -1,
+		BayesError:      c.BayesError,
+		BayesErrorGiven: c.BayesErrorGiven,
+		BaselineError:   c.BaselineError,
+		Diagnosis:       TooEarly,
+		Focus:           NoComponent,
+		Progress:        ProgressUnknown,
+		EarlyStop: EarlyStop{
+			Signal: Continue, Reason: noPointReason,
+			Patience: c.Patience, MinDelta: c.MinDelta, Strip: c.Strip,
+		},
+	}
 }

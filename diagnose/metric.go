@@ -27,7 +27,12 @@ type baseInfo struct {
 	// percent is set once a value above 1 shows that a rate or score is
 	// written in percent: a fraction cannot exceed 1.
 	percent bool
+	// series[s] is the history's series of this base on split s; -1 until
+	// one is logged.
+	series [nSplits]int
 }
+
+var noSeries = [nSplits]int{-1, -1, -1, -1, -1}
 
 func kindOf(c Column) metricKind {
 	switch {

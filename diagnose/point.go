@@ -1,40 +1,9 @@
 package diagnose
 
 import (
-	"math"
 	"strconv"
 	"time"
 )
-
-// Split says which data a metric was measured on. The names follow the
-// practice of holding out a validation (dev) set, optionally a train-dev set
-// drawn from the training distribution, and a test set touched last.
-type Split uint8
-
-const (
-	// SplitNone marks a column that is not a metric of a data split:
-	// epoch, step, time, learning rate and other bookkeeping.
-	SplitNone Split = iota
-	SplitTrain
-	SplitVal
-	SplitTrainDev
-	SplitTest
-)
-
-// String names the split as output writes it ("train-dev").
-func (s Split) String() string {
-	switch s {
-	case SplitTrain:
-		return "train"
-	case SplitVal:
-		return "val"
-	case SplitTrainDev:
-		return "train-dev"
-	case SplitTest:
-		return "test"
-	}
-	return "none"
-}
 
 // Direction says whether smaller or larger values of a metric are better.
 type Direction int8
@@ -189,15 +158,6 @@ func Some(v float64) Num { return Num{V: v, OK: true} }
 
 // None is the absent Num.
 var None = Num{}
-
-// MarshalJSON writes the value, or null when absent or not finite
-// (JSON has no NaN).
-func (n Num) MarshalJSON() ([]byte, error) {
-	if !n.OK || math.IsNaN(n.V) || math.IsInf(n.V, 0) {
-		return []byte("null"), nil
-	}
-	return appendFloat(nil, n.V), nil
-}
 
 // appendFloat appends v in the shortest form that reads back exactly.
 func appendFloat(b []byte, v float64) []byte {

@@ -75,7 +75,12 @@ type series struct {
 	nz  noise
 }
 
-// state is everything the next point needs from the points before it.
+// state is everything the next point needs from the points before it:
+// the running averages and noise estimates, the values carried while a
+// split is absent, the recent smoothed values the trends are fitted to,
+// the best epoch and Prechelt's strip state. The state after a point and
+// the point's inputs give its judgement, so the history keeps inputs and a
+// copy of the state every ckptEvery points, never a judgement.
 type state struct {
 	run  [nSplits]series
 	seen uint8 // splits with a smoothed value so far
@@ -87,6 +92,17 @@ type state struct {
 	judged   int32   // points where the judged metric had a finite value
 	start    float64 // first finite smoothed train (else val) value
 	hasStart bool
+
+	// sm, se, nzv: the latest smoothed value of each split, its standard
+	// error and the split's noise (NaN before three values), carried over
+	// points where the split is absent; auxSm likewise for aux.
+	sm, se, nzv [nSplits]float64
+	auxSm       [2]float64
+
+	// trend holds the last smoothed values each trend is fitted to: the
+	// training and validation curves of the judged metric (where logged and
+	// finite) and the two series of the overconfidence check.
+	trend [nTrends]window
 
 	// trStart, trMin: first and lowest smoothed training value, and
 	// trPrev, trPrev2 the last two logged ones, for divergence.
@@ -101,37 +117,70 @@ type state struct {
 	trSlow ema
 	trN    int32
 
-	bestIdx int32 // point of the best smoothed validation value; -1 none
-	best    float64
-	gl      Num // generalization loss against the best smoothed value
-	pk, pq  Num // as of the last completed strip
-	up      int32
-	pqFired bool // PQ_α fired since the last new best
+	bestIdx   int // point of the best smoothed validation value; -1 none
+	bestEpoch int // its epoch
+	best      float64
+	gl        Num // generalization loss against the best smoothed value
+	pk, pq    Num // as of the last completed strip
+	up        int32
+	pqFired   bool // PQ_α fired since the last new best
+	// stripVal is the smoothed validation value at the last strip end,
+	// when it had one (UP compares strip ends).
+	stripVal   float64
+	stripValOK bool
 }
 
-// snapshot holds the parts of the state after a point that its
-// judgement shows.
-type snapshot struct {
-	seen           uint8
-	judged         int32
-	bestIdx        int32
-	up             int32
-	best           float64
-	trMin, trStart float64
-	gl, pk, pq     Num
+// newState is the state before the first point.
+func newState() state {
+	st := state{bestIdx: -1}
+	for s := range st.nzv {
+		st.nzv[s] = math.NaN()
+	}
+	return st
 }
 
-// ckptEvery is how many points apart the full state is kept. A rewind
-// restores the checkpoint at or before the point it goes back to and
-// judges at most ckptEvery−1 points again; the records stay small
-// (design choice: resumes are rare, long logs are not).
-const ckptEvery = 32
+// The trends fitted over a window of recent points.
+const (
+	trendTrain = iota // smoothed training values of the judged metric
+	trendVal          // smoothed validation values
+	trendLoss         // smoothed validation loss (overconfidence check)
+	trendRate         // smoothed validation error rate (same)
+	nTrends
+)
 
-// rec is the record of one point: what later points look back at, and its
-// verdict in compact form.
+// window holds the last slopeWindow values of one curve, with the points
+// they came from, newest at head.
+type window struct {
+	idx  [slopeWindow]int
+	val  [slopeWindow]float64
+	head uint8
+	n    uint8
+}
+
+func (w *window) push(i int, v float64) {
+	w.head = (w.head + 1) % slopeWindow
+	w.idx[w.head], w.val[w.head] = i, v
+	w.n = min(w.n+1, slopeWindow)
+}
+
+// at returns the k-th newest entry (k < n).
+func (w *window) at(k int) (int, float64) {
+	p := (int(w.head) - k + slopeWindow) % slopeWindow
+	return w.idx[p], w.val[p]
+}
+
+// ckptEvery is how many points apart a copy of the state is kept. Asking
+// for a past judgement restores the copy at or before the point and judges
+// at most ckptEvery−1 points again, and so does a rewind. A state copy is
+// about 1.3 kB, so this costs about 10 bytes per point (design choice:
+// rebuilding a judgement stays near 20 µs, far inside the 1 ms an
+// inspection may take).
+const ckptEvery = 128
+
+// rec is the verdict on one point, built by step from the state before
+// it and the point's inputs; judgement turns it into a Judgement. It is
+// not kept: a past one is rebuilt from the nearest state copy.
 type rec struct {
-	snap snapshot
-
 	has uint8 // splits logged at this point (finite or not)
 	bad uint8 // splits whose logged value is NaN or ±Inf
 	raw [nSplits]float64
@@ -155,7 +204,7 @@ type rec struct {
 	why       reason
 	since     int // epochs since the best
 	warn      warnSet
-	badSample int32 // first sample of the point with a non-finite metric; -1
+	badPoint  bool // a metric value of the point is NaN or ±Inf
 	blowup    blowup
 	overconf  bool
 }
@@ -165,60 +214,38 @@ const (
 	auxRate = 1
 )
 
-// step computes record i from record i−1 (or a fresh state).
-func (t *Tracker) step(i int) {
-	if i%ckptEvery == 0 {
-		if i == 0 {
-			t.cur = state{bestIdx: -1}
-		}
-		t.ckpts = append(t.ckpts[:i/ckptEvery], t.cur)
-	}
-	r := t.recs.at(i)
-	if i > 0 {
-		prev := t.recs.at(i - 1)
-		r.sm = prev.sm
-		r.se = prev.se
-		r.nzv = prev.nzv
-		r.auxSm = prev.auxSm
-	} else {
-		for s := range r.nzv {
-			r.nzv[s] = math.NaN()
-		}
-	}
-	st := &t.cur
-	p := &t.points[i]
+// step judges point i: it fills r from st, the state before the point,
+// and the point's inputs, and leaves st as the state after it. It reads
+// the Tracker and changes nothing of it, so rebuilding a past judgement
+// is safe beside other readers.
+func (t *Tracker) step(st *state, i int, r *rec) {
+	*r = rec{sm: st.sm, se: st.se, nzv: st.nzv, auxSm: st.auxSm}
 	beta := t.cfg.beta()
 
 	// Read the point.
-	r.badSample = -1
-	for k := range p.Samples {
-		smp := &p.Samples[k]
-		c := &smp.Column
-		if c.Kind != KindMetric {
-			continue
-		}
-		if !finite(smp.Value) && r.badSample < 0 {
-			r.badSample = int32(k)
-		}
-		if c.Split == SplitNone || c.Split > SplitTest {
-			continue
-		}
-		if t.metric != nil && c.Base == t.metric.name {
-			bit := uint8(1) << c.Split
+	_, _, r.badPoint = t.hist.badAt(i)
+	if m := t.metric; m != nil {
+		for s := SplitTrain; s <= SplitTest; s++ {
+			v, ok := t.hist.value(m.series[s], i)
+			if !ok {
+				continue
+			}
+			bit := uint8(1) << s
 			r.has |= bit
-			v := judgedValue(t.metric, smp.Value)
-			r.raw[c.Split] = v
-			if !finite(v) {
+			r.raw[s] = judgedValue(m, v)
+			if !finite(r.raw[s]) {
 				r.bad |= bit
 			}
 		}
-		if c.Split == SplitVal && finite(smp.Value) {
-			if t.loss != nil && c.Base == t.loss.name {
-				t.addAux(r, auxLoss, smp.Value, beta)
-			}
-			if t.rate != nil && c.Base == t.rate.name {
-				t.addAux(r, auxRate, judgedValue(t.rate, smp.Value), beta)
-			}
+	}
+	if t.loss != nil {
+		if v, ok := t.hist.value(t.loss.series[SplitVal], i); ok && finite(v) {
+			addAux(st, r, auxLoss, v, beta)
+		}
+	}
+	if t.rate != nil {
+		if v, ok := t.hist.value(t.rate.series[SplitVal], i); ok && finite(v) {
+			addAux(st, r, auxRate, judgedValue(t.rate, v), beta)
 		}
 	}
 
@@ -250,19 +277,27 @@ func (t *Tracker) step(i int) {
 			st.start, st.hasStart = r.sm[SplitVal], true
 		}
 	}
-	t.checkBlowup(r)
-	t.classify(r)
-	t.judgeProgress(i)
-	t.earlyStop(i)
-	t.collectWarnings(i)
-	r.snap = snapshot{
-		seen: st.seen, judged: st.judged, bestIdx: st.bestIdx, up: st.up, best: st.best,
-		trMin: st.trMin, trStart: st.trStart, gl: st.gl, pk: st.pk, pq: st.pq,
+	if r.has&^r.bad&trainBit != 0 {
+		st.trend[trendTrain].push(i, r.sm[SplitTrain])
 	}
+	if r.has&^r.bad&valBit != 0 {
+		st.trend[trendVal].push(i, r.sm[SplitVal])
+	}
+	for k := range 2 {
+		if r.auxAt(k) {
+			st.trend[trendLoss+k].push(i, r.auxSm[k])
+		}
+	}
+	st.sm, st.se, st.nzv, st.auxSm = r.sm, r.se, r.nzv, r.auxSm
+
+	t.checkBlowup(st, r)
+	t.classify(st, r)
+	t.judgeProgress(st, i, r)
+	t.earlyStop(st, i, r)
+	t.collectWarnings(st, i, r)
 }
 
-func (t *Tracker) addAux(r *rec, k int, v, beta float64) {
-	st := &t.cur
+func addAux(st *state, r *rec, k int, v, beta float64) {
 	st.aux[k].add(v, beta)
 	r.auxSm[k] = st.aux[k].value()
 	r.auxHit |= 1 << k
@@ -284,12 +319,11 @@ const (
 // checkBlowup flags a training curve that climbs far above its best and
 // keeps rising: the loss of a run whose learning rate is too high. The
 // thresholds and their reasons are with blowupFrac.
-func (t *Tracker) checkBlowup(r *rec) {
+func (t *Tracker) checkBlowup(st *state, r *rec) {
 	const bit = uint8(1) << SplitTrain
 	if r.has&bit == 0 || r.bad&bit != 0 {
 		return
 	}
-	st := &t.cur
 	x, sm := r.raw[SplitTrain], r.sm[SplitTrain]
 	if st.trN == 0 {
 		st.trStart, st.trMin = sm, sm

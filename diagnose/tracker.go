@@ -2,30 +2,38 @@ package diagnose
 
 import "sort"
 
-// Tracker judges a stream of evaluation points incrementally and keeps the
-// judgement made at every point. It is not safe for concurrent use.
+// Tracker judges a stream of evaluation points incrementally and can give
+// the judgement made at any point. It is not safe for concurrent use,
+// except that At, Latest, Len, Metrics, Config and Revision may be called
+// concurrently with each other (not with Add, Push or Reconfigure).
 //
 // Add appends a point. A point whose Epoch is not above the last one
 // replaces the judgements from that epoch on (a run resumed from a
 // checkpoint, or a reader refining a point it already handed on).
 //
-// Cost: each point stores one fixed-size record (the running state after
-// it: moving averages, noise, best epoch, Prechelt's strip state, and the
-// verdict in compact form), so Add does O(1) work from the previous record
-// plus two short look-backs (the slope window and one strip), and a rewind
-// just drops records. The texts of actions and warnings are built from a
-// record when a Judgement is asked for (by Add, At or Latest).
+// Cost: the Tracker keeps the inputs of each point compactly (its epoch,
+// its line and the values of each judgeable series: about 48 bytes for a
+// log of train and validation loss and accuracy) and a copy of its running
+// state every ckptEvery points (about 10 bytes per point), never a Point
+// or a judgement. Add does O(1) work from the state of the previous point
+// plus one strip of look-back at strip ends; At(i) restores the copy at or
+// before i and judges at most ckptEvery−1 points again (tens of µs); a
+// rewind does the same at the point it goes back to.
 //
 // The judged metric: Config.Metric, or when it is empty the best candidate
 // seen so far (see Metrics). When a better candidate appears, or a rate
 // turns out to be written in percent, every point is judged again in the
-// new terms; that happens at most a few times per log.
+// new terms (Revision counts it); that happens at most a few times per
+// log.
 type Tracker struct {
-	cfg    Config // normalized
-	points []Point
-	recs   records
-	cur    state   // the state after the last point
-	ckpts  []state // ckpts[c]: the state before point c·ckptEvery
+	cfg   Config // normalized
+	hist  history
+	cur   state    // the state after the last point
+	ckpts []*state // ckpts[c]: the state before point c·ckptEvery
+	// lastRec is the record of the last point (cur is the state after it).
+	lastRec rec
+	// revision counts the times every kept point was judged again.
+	revision uint64
 
 	bases map[string]*baseInfo
 	order []*baseInfo // bases in order of first appearance
@@ -46,13 +54,12 @@ type Tracker struct {
 	// after Add return it without building the texts again.
 	last      Judgement
 	lastValid bool
-
-	buf text // scratch for building texts
+	scratch   text // the texts of Add's judgements are built here
 }
 
 // New returns a Tracker judging with cfg (zero settings take the defaults).
 func New(cfg Config) *Tracker {
-	t := &Tracker{cfg: cfg.normalized(), bases: make(map[string]*baseInfo)}
+	t := &Tracker{cfg: cfg.normalized(), bases: make(map[string]*baseInfo), cur: newState()}
 	t.choose()
 	return t
 }
@@ -61,11 +68,36 @@ func New(cfg Config) *Tracker {
 func (t *Tracker) Config() Config { return t.cfg }
 
 // Len returns the number of points kept.
-func (t *Tracker) Len() int { return t.recs.n }
+func (t *Tracker) Len() int { return t.hist.n }
 
-// Points returns the points kept, oldest first. The slice is shared with
-// the Tracker: read it, do not modify it; it is valid until the next Add.
-func (t *Tracker) Points() []Point { return t.points[:len(t.points):len(t.points)] }
+// Revision counts the times the Tracker judged every kept point again:
+// another metric was chosen, a rate turned out to be written in percent,
+// or Reconfigure. A reader that keeps values from earlier judgements
+// refreshes them when it changes. (A rewind drops points but does not
+// change the judgements before them.)
+func (t *Tracker) Revision() uint64 { return t.revision }
+
+// Epoch returns the epoch of point i (0 <= i < Len), without rebuilding
+// its judgement.
+func (t *Tracker) Epoch(i int) int {
+	t.check(i)
+	return t.hist.epoch(i)
+}
+
+// Logged returns the value logged at point i on split s, converted to the
+// judged metric: what At(i).Estimate(s).Raw holds, without rebuilding the
+// judgement (for redrawing a whole curve after a Revision).
+func (t *Tracker) Logged(i int, s Split) Num {
+	t.check(i)
+	if t.metric == nil || s < SplitTrain || s > SplitTest {
+		return None
+	}
+	v, ok := t.hist.value(t.metric.series[s], i)
+	if !ok {
+		return None
+	}
+	return Some(judgedValue(t.metric, v))
+}
 
 // Metrics returns the judgeable base metrics seen (error rates, scores,
 // lower-is-better metrics), in order of first appearance, for cycling
@@ -80,12 +112,13 @@ func (t *Tracker) Metrics() []string {
 	return out
 }
 
-// Add judges p, keeps it, and returns its judgement. A point whose Epoch
-// is not above the last kept one first drops the points from that epoch
-// on. The Tracker keeps p as it is: do not modify p.Samples afterwards.
+// Add judges p, keeps what judging it again needs, and returns its
+// judgement. A point whose Epoch is not above the last kept one first
+// drops the points from that epoch on. The Tracker keeps nothing of p
+// itself: p may be reused afterwards.
 func (t *Tracker) Add(p Point) Judgement {
 	t.Push(p)
-	t.last = t.judgement(t.recs.n - 1)
+	t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
 	t.lastValid = true
 	return t.last
 }
@@ -96,36 +129,83 @@ func (t *Tracker) Add(p Point) Judgement {
 func (t *Tracker) Push(p Point) {
 	t.lastValid = false
 	changed := t.learn(&p)
-	if n := len(t.points); n > 0 && p.Epoch <= t.points[n-1].Epoch {
+	if n := t.hist.n; n > 0 && p.Epoch <= t.hist.epoch(n-1) {
 		t.truncate(p.Epoch)
 	}
-	t.points = append(t.points, p)
+	t.hist.add(&p, t.keep)
 	if changed {
 		t.replay()
 	} else {
-		t.recs.push()
-		t.step(t.recs.n - 1)
+		t.advance(t.hist.n - 1)
 	}
+}
+
+// keep returns the series that holds metric column c, or -1 when its base
+// cannot be judged (learn has seen every base of the point).
+func (t *Tracker) keep(c *Column) int {
+	if c.Split == SplitNone || c.Split > SplitTest {
+		return -1
+	}
+	b := t.bases[c.Base]
+	if b == nil || b.kind == kindNone {
+		return -1
+	}
+	if b.series[c.Split] < 0 {
+		b.series[c.Split] = t.hist.seriesOf(b.name, c.Split)
+	}
+	return b.series[c.Split]
+}
+
+// advance judges point i from the current state, keeping a copy of the
+// state before it every ckptEvery points.
+func (t *Tracker) advance(i int) {
+	if i%ckptEvery == 0 {
+		c := i / ckptEvery
+		if c < len(t.ckpts) {
+			*t.ckpts[c] = t.cur
+			t.ckpts = t.ckpts[:c+1]
+		} else {
+			st := t.cur
+			t.ckpts = append(t.ckpts, &st)
+		}
+	}
+	t.step(&t.cur, i, &t.lastRec)
 }
 
 // At returns the judgement as it was made at point i (0 <= i < Len).
 // It panics when i is out of range, like a slice index.
 func (t *Tracker) At(i int) Judgement {
-	if i == t.recs.n-1 && t.lastValid {
-		return t.last
+	t.check(i)
+	n := t.hist.n
+	if i == n-1 {
+		if t.lastValid {
+			return t.last
+		}
+		return t.judgement(i, &t.lastRec, &t.cur, nil)
 	}
-	if i < 0 || i >= t.recs.n {
-		panic("diagnose: At(" + itoa(i) + ") out of range [0, " + itoa(t.recs.n) + ")")
+	// Judge again from the state copy at or before i: the same inputs in
+	// the same order give the same record, bit for bit.
+	c := i / ckptEvery
+	st := *t.ckpts[c]
+	var r rec
+	for k := c * ckptEvery; k <= i; k++ {
+		t.step(&st, k, &r)
 	}
-	return t.judgement(i)
+	return t.judgement(i, &r, &st, nil)
+}
+
+func (t *Tracker) check(i int) {
+	if i < 0 || i >= t.hist.n {
+		panic("diagnose: point " + itoa(i) + " out of range [0, " + itoa(t.hist.n) + ")")
+	}
 }
 
 // Latest returns the judgement of the last point, if any.
 func (t *Tracker) Latest() (Judgement, bool) {
-	if t.recs.n == 0 {
+	if t.hist.n == 0 {
 		return Judgement{}, false
 	}
-	return t.At(t.recs.n - 1), true
+	return t.At(t.hist.n - 1), true
 }
 
 // Reconfigure judges every kept point again with cfg: a new estimate of
@@ -134,8 +214,8 @@ func (t *Tracker) Reconfigure(cfg Config) {
 	t.cfg = cfg.normalized()
 	t.choose()
 	t.replay()
-	if t.recs.n > 0 {
-		t.last = t.judgement(t.recs.n - 1)
+	if t.hist.n > 0 {
+		t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
 		t.lastValid = true
 	}
 }
@@ -143,40 +223,41 @@ func (t *Tracker) Reconfigure(cfg Config) {
 // truncate drops the points whose epoch is at or above epoch. Kept epochs
 // are strictly increasing, so a binary search finds the first to drop.
 func (t *Tracker) truncate(epoch int) {
-	n := sort.Search(len(t.points), func(i int) bool { return t.points[i].Epoch >= epoch })
-	clear(t.points[n:]) // let the dropped samples be collected
-	t.points = t.points[:n]
+	n := sort.Search(t.hist.n, func(i int) bool { return t.hist.epoch(i) >= epoch })
+	t.hist.truncate(n)
 	t.lastValid = false
-	// Restore the state after point n−1: the checkpoint before point
+	// Restore the state after point n−1: the copy before point
 	// c·ckptEvery <= n, then judge the points from there to n−1 again
 	// (same inputs, same records).
 	c := n / ckptEvery
-	t.cur = t.ckpts[c]
-	t.ckpts = t.ckpts[:c]
-	t.recs.n = c * ckptEvery
+	if c < len(t.ckpts) {
+		t.cur = *t.ckpts[c]
+		t.ckpts = t.ckpts[:c]
+	}
 	for i := c * ckptEvery; i < n; i++ {
-		t.recs.push()
-		t.step(i)
+		t.advance(i)
 	}
 }
 
 // replay judges every kept point from scratch.
 func (t *Tracker) replay() {
-	t.recs.n = 0
+	t.cur = newState()
 	t.ckpts = t.ckpts[:0]
-	for i := range t.points {
-		t.recs.push()
-		t.step(i)
+	for i := 0; i < t.hist.n; i++ {
+		t.advance(i)
 	}
 	t.lastValid = false
+	t.revision++
 }
 
 // learn records the base metrics of p and reports whether the earlier
-// points must be judged again: another metric is chosen, or a value above 1
+// points must be judged again: another metric is chosen, a value above 1
 // shows that a rate in use is written in percent (a fraction cannot exceed
-// 1), so the earlier values were read on the wrong scale.
+// 1), so the earlier values were read on the wrong scale, or a judgeable
+// metric appears while the one asked for is missing (every point's warning
+// lists the judgeable ones).
 func (t *Tracker) learn(p *Point) bool {
-	grew, flipped := false, false
+	grew, flipped, listed := false, false, false
 	for i := range p.Samples {
 		s := &p.Samples[i]
 		c := &s.Column
@@ -185,10 +266,11 @@ func (t *Tracker) learn(p *Point) bool {
 		}
 		b := t.bases[c.Base]
 		if b == nil {
-			b = &baseInfo{name: c.Base, order: len(t.order), kind: kindOf(*c), dir: c.Dir}
+			b = &baseInfo{name: c.Base, order: len(t.order), kind: kindOf(*c), dir: c.Dir, series: noSeries}
 			t.bases[c.Base] = b
 			t.order = append(t.order, b)
 			grew = true
+			listed = listed || t.missing && b.kind != kindNone
 		}
 		if bit := uint8(1) << c.Split; b.splits&bit == 0 {
 			b.splits |= bit
@@ -204,7 +286,7 @@ func (t *Tracker) learn(p *Point) bool {
 		t.choose()
 		grew = t.metric != m || t.loss != l || t.rate != r || t.missing != miss
 	}
-	return grew || flipped
+	return grew || flipped || listed && t.missing
 }
 
 // choose picks the judged metric and the two series of the
@@ -249,26 +331,4 @@ func (t *Tracker) choose() {
 			t.rate = b
 		}
 	}
-}
-
-// recChunk is how many records are allocated together: growing the
-// history never copies records (a 10 000-point run would otherwise move
-// megabytes at each doubling).
-const recChunk = 128
-
-// records is the per-point history, in chunks of recChunk.
-type records struct {
-	chunks []*[recChunk]rec
-	n      int
-}
-
-func (s *records) at(i int) *rec { return &s.chunks[i/recChunk][i%recChunk] }
-
-// push appends a zero record.
-func (s *records) push() {
-	if s.n/recChunk == len(s.chunks) {
-		s.chunks = append(s.chunks, new([recChunk]rec))
-	}
-	*s.at(s.n) = rec{}
-	s.n++
 }

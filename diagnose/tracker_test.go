@@ -6,6 +6,7 @@ import (
 	"reflect"
 	"slices"
 	"strings"
+	"sync"
 	"testing"
 )
 
@@ -374,4 +375,67 @@ func TestConfig_Normalized(t *testing.T) {
 	if New(Config{Smoothing: SmoothingOff}).Config().beta() != 0 {
 		t.Error("SmoothingOff does not switch smoothing off")
 	}
+}
+
+// TestTracker_HistoryReaders: Epoch and Logged read the compact history
+// as At would, and Revision counts the times every point was judged again
+// (not a rewind, which keeps the judgements before it).
+func TestTracker_HistoryReaders(t *testing.T) {
+	pts := curve(1, 3*ckptEvery, 0)
+	tr, _ := run(Config{}, pts)
+	for i := 0; i < tr.Len(); i++ {
+		j := tr.At(i)
+		if tr.Epoch(i) != j.Epoch {
+			t.Fatalf("Epoch(%d) = %d, At says %d", i, tr.Epoch(i), j.Epoch)
+		}
+		for s := SplitNone; s <= SplitTest+1; s++ {
+			if got, want := tr.Logged(i, s), j.Estimate(s).Raw; got != want {
+				t.Fatalf("Logged(%d, %v) = %v, At says %v", i, s, got, want)
+			}
+		}
+	}
+	rev := tr.Revision()
+	tr.Add(pts[10]) // a rewind to epoch 11
+	if tr.Revision() != rev || tr.Len() != 11 {
+		t.Errorf("a rewind: revision %d → %d, Len %d", rev, tr.Revision(), tr.Len())
+	}
+	tr.Reconfigure(Config{BayesError: 0.05, BayesErrorGiven: true})
+	if tr.Revision() != rev+1 {
+		t.Errorf("Reconfigure: revision %d → %d, want one more", rev, tr.Revision())
+	}
+	// A value above 1 shows the accuracy is in percent: every point is
+	// judged again.
+	tr.Add(metricPoint(12, acc(SplitTrain, 95), acc(SplitVal, 90)))
+	if tr.Revision() != rev+2 {
+		t.Errorf("percent found: revision %d → %d, want one more", rev+1, tr.Revision())
+	}
+	defer func() {
+		if recover() == nil {
+			t.Error("Epoch out of range did not panic")
+		}
+	}()
+	tr.Epoch(tr.Len())
+}
+
+// TestTracker_ConcurrentReaders: At, Latest and the history readers share
+// nothing mutable, so several readers may inspect past epochs at once
+// (run with -race).
+func TestTracker_ConcurrentReaders(t *testing.T) {
+	tr, want := run(Config{}, curve(1, 2*ckptEvery+17, 0))
+	var wg sync.WaitGroup
+	for g := range 4 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := g; i < tr.Len(); i += 3 {
+				if got := tr.At(i); !reflect.DeepEqual(got, want[i]) {
+					t.Errorf("reader %d: At(%d) differs", g, i)
+					return
+				}
+				_ = tr.Logged(i, SplitVal)
+				_, _ = tr.Latest()
+			}
+		}()
+	}
+	wg.Wait()
 }

@@ -31,40 +31,32 @@ const (
 // over the slope window, the error must not be worsening, and the error's
 // relative rise must be under a quarter of the loss's: when both rise in
 // proportion the run is simply overfitting (design choice).
-func (t *Tracker) overconfident(i int) bool {
-	if t.loss == nil || t.rate == nil || t.loss == t.rate || t.cur.auxSeen != 3 {
+func (t *Tracker) overconfident(st *state, i int) bool {
+	if t.loss == nil || t.rate == nil || t.loss == t.rate || st.auxSeen != 3 {
 		return false
 	}
-	lossTol := t.cfg.RelTolerance * math.Abs(t.cur.auxStart[auxLoss])
+	lossTol := t.cfg.RelTolerance * math.Abs(st.auxStart[auxLoss])
 	if !(lossTol > 0) {
 		return false
 	}
-	l, lMove, lLevel := t.auxTrend(i, auxLoss, lossTol)
-	e, eMove, eLevel := t.auxTrend(i, auxRate, t.cfg.Tolerance)
+	l, lMove, lLevel := t.windowTrend(i, lossTol, &st.trend[trendLoss])
+	e, eMove, eLevel := t.windowTrend(i, t.cfg.Tolerance, &st.trend[trendRate])
 	if l != Worsening || e == Worsening || e == ProgressUnknown || !(lLevel > 0) || !(eLevel > 0) {
 		return false
 	}
 	return eMove/eLevel < lMove/lLevel/4
 }
 
-// auxTrend is trend for the two series of the overconfidence check; it
-// also returns the move over the window and the mean level.
-func (t *Tracker) auxTrend(i, k int, tol float64) (Progress, float64, float64) {
-	return t.windowTrend(i, tol, func(r *rec) (float64, bool) { return r.auxSm[k], r.auxAt(k) })
-}
-
 // auxAt reports whether aux series k was logged at this point.
 func (r *rec) auxAt(k int) bool { return r.auxHit&(1<<k) != 0 }
 
 // collectWarnings sets the warning bits of point i.
-func (t *Tracker) collectWarnings(i int) {
-	r := t.recs.at(i)
-	st := &t.cur
+func (t *Tracker) collectWarnings(st *state, i int, r *rec) {
 	var w warnSet
 	if t.metric == nil {
 		w |= warnNoMetric
 	}
-	if r.badSample >= 0 || r.bad != 0 {
+	if r.badPoint || r.bad != 0 {
 		w |= warnNonFinite
 	}
 	if r.blowup != blowNone {
@@ -107,7 +99,7 @@ func (t *Tracker) collectWarnings(i int) {
 			w |= warnBaseline
 		}
 	}
-	if t.overconfident(i) {
+	if t.overconfident(st, i) {
 		r.overconf = true
 		w |= warnOverconfident
 	}
@@ -129,14 +121,12 @@ func (t *Tracker) collectWarnings(i int) {
 	r.warn = w
 }
 
-// warningTexts builds the texts of the warnings of point i.
-func (t *Tracker) warningTexts(i int) []string {
-	r := t.recs.at(i)
+// warningTexts builds the texts of the warnings of the point.
+func (t *verdict) warningTexts() []string {
+	r, st := t.r, t.st
 	if r.warn == 0 {
 		return nil
 	}
-	p := &t.points[i]
-	st := &r.snap
 	name := t.metricName()
 	out := make([]string, 0, 3)
 	add := func(w *text) { out = append(out, w.done()) }
@@ -152,14 +142,13 @@ func (t *Tracker) warningTexts(i int) []string {
 		}
 	}
 	if r.warn&warnNonFinite != 0 {
-		w := t.text().s("non-finite value at epoch ").n(p.Epoch)
-		if p.Line > 0 {
-			w.s(" (line ").n(p.Line).s(")")
+		w := t.text().s("non-finite value at epoch ").n(t.hist.epoch(t.i))
+		if line := t.hist.line(t.i); line > 0 {
+			w.s(" (line ").n(line).s(")")
 		}
 		w.s(": ")
-		if r.badSample >= 0 && int(r.badSample) < len(p.Samples) {
-			smp := &p.Samples[r.badSample]
-			w.s(quote(smp.Column.Name)).s(" = ").s(nonFinite(smp.Value))
+		if col, v, ok := t.hist.badAt(t.i); ok {
+			w.s(quote(col)).s(" = ").s(nonFinite(v))
 		} else {
 			for s := SplitTrain; s <= SplitTest; s++ {
 				if r.bad&(1<<s) != 0 {
@@ -220,7 +209,7 @@ func (t *Tracker) warningTexts(i int) []string {
 }
 
 // metricName is how texts name the judged metric.
-func (t *Tracker) metricName() string {
+func (t *verdict) metricName() string {
 	return t.desc.Label
 }
 

@@ -4,125 +4,125 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"github.com/fitgap/fitgap/diagnose"
 )
 
 // Markdown renders the summary for people: a heading, the verdict, the
 // values by split, the decomposition, the early-stopping state, the ranked
-// actions with their evidence, and the warnings.
+// actions with their evidence, and the warnings. The words for each
+// diagnosis, component, trend and signal are diagnose's.
 func (s Summary) Markdown() string {
 	var b strings.Builder
+	src, j := s.Source, s.Judgement
 	b.WriteString("# Training diagnosis: ")
-	b.WriteString(inline(orDash(s.Source)))
+	b.WriteString(inline(orDash(src.Name)))
 	b.WriteString("\n\n")
 
 	b.WriteString("- Log: ")
-	b.WriteString(inline(orDash(s.Source)))
-	if s.Format != "" {
-		b.WriteString(" (" + inline(s.Format) + ")")
+	b.WriteString(inline(orDash(src.Name)))
+	if src.Format != "" {
+		b.WriteString(" (" + inline(src.Format) + ")")
 	}
-	b.WriteString(", " + plural(s.Points, "evaluation point", "evaluation points"))
-	if s.SkippedLines > 0 {
-		b.WriteString(", " + plural(s.SkippedLines, "line skipped", "lines skipped"))
+	b.WriteString(", " + plural(src.Points, "evaluation point", "evaluation points"))
+	if src.SkippedLines > 0 {
+		b.WriteString(", " + plural(src.SkippedLines, "line skipped", "lines skipped"))
 	}
 	b.WriteString("\n")
-	if s.Epoch == nil {
+	if !j.Judged() {
 		b.WriteString("- No evaluation point to judge yet.\n")
 		s.writeWarnings(&b)
 		return b.String()
 	}
-	b.WriteString("- Epoch " + strconv.Itoa(*s.Epoch))
-	if s.Line != nil {
-		b.WriteString(" (line " + strconv.Itoa(*s.Line) + ")")
+	b.WriteString("- Epoch " + strconv.Itoa(j.Epoch))
+	if j.Line > 0 {
+		b.WriteString(" (line " + strconv.Itoa(j.Line) + ")")
 	}
-	b.WriteString("; gaps measured in " + inline(orDash(s.Metric)) + "\n\n")
+	b.WriteString("; gaps measured in " + inline(orDash(j.Metric.Label)) + "\n\n")
 
 	b.WriteString("## Verdict\n\n")
-	b.WriteString("**" + diagnosisWords(s.Diagnosis) + "**")
-	if s.Focus != diagnose.NoComponent.String() {
-		b.WriteString(" — work on " + words(s.Focus) + " first")
+	b.WriteString("**" + sentence(j.Diagnosis.Phrase()) + "** (" + j.Diagnosis.Description() + ")")
+	if j.Focus != diagnose.NoComponent {
+		b.WriteString(" — work on " + j.Focus.Phrase() + " first")
 	}
-	if len(s.Problems) > 0 {
-		high := make([]string, len(s.Problems))
-		for i, p := range s.Problems {
-			high[i] = words(p)
+	if len(j.Problems) > 0 {
+		high := make([]string, len(j.Problems))
+		for i, p := range j.Problems {
+			high[i] = p.Phrase()
 		}
 		b.WriteString(" (high: " + strings.Join(high, ", ") + ")")
 	}
-	if s.Diagnosis != diagnose.Diverging.String() {
+	if j.Diagnosis != diagnose.Diverging {
 		// The trend of a diverging run is beside the point (and with a
 		// NaN it is the trend of the values before it).
-		b.WriteString(". " + progressWords(s.Progress))
+		b.WriteString(". " + sentence(j.Progress.Description()))
 	}
 	b.WriteString(".\n\n")
 
+	v := values{fraction: j.Metric.Fraction}
 	b.WriteString("| split | smoothed | logged |\n|---|---:|---:|\n")
-	for _, row := range []struct {
-		name    string
-		sm, raw diagnose.Num
-	}{
-		{"train", s.Train, s.TrainRaw},
-		{"train-dev", s.TrainDev, s.TrainDevRaw},
-		{"val", s.Val, s.ValRaw},
-		{"test", s.Test, s.TestRaw},
-	} {
-		if !row.sm.OK && !row.raw.OK {
+	for _, sp := range []diagnose.Split{diagnose.SplitTrain, diagnose.SplitTrainDev, diagnose.SplitVal, diagnose.SplitTest} {
+		e := j.Estimate(sp)
+		if !e.Smooth.OK && !e.Raw.OK {
 			continue
 		}
-		b.WriteString("| " + row.name + " | " + s.value(row.sm) + " | " + s.value(row.raw) + " |\n")
+		b.WriteString("| " + sp.String() + " | " + v.value(e.Smooth) + " | " + v.value(e.Raw) + " |\n")
 	}
 	b.WriteString("\n| estimate | value |\n|---|---:|\n")
-	opt := s.value(diagnose.Some(s.BayesError))
-	if !s.BayesErrorGiven {
+	opt := v.value(diagnose.Some(j.BayesError))
+	if !j.BayesErrorGiven {
 		opt += " (not given: taken as 0)"
 	}
-	b.WriteString("| optimal error | " + opt + " |\n")
-	bias := s.gap(s.AvoidableBias)
-	if !s.BayesErrorGiven && s.AvoidableBias.OK {
+	b.WriteString("| " + diagnose.OptimalError.Phrase() + " | " + opt + " |\n")
+	bias := v.gap(j.AvoidableBias)
+	if !j.BayesErrorGiven && j.AvoidableBias.OK {
 		bias += " (upper bound)"
 	}
-	b.WriteString("| avoidable bias | " + bias + " |\n")
-	b.WriteString("| variance | " + s.gap(s.Variance) + " |\n")
-	if s.DataMismatch.OK {
-		b.WriteString("| data mismatch | " + s.gap(s.DataMismatch) + " |\n")
+	b.WriteString("| " + diagnose.AvoidableBias.Phrase() + " | " + bias + " |\n")
+	b.WriteString("| " + diagnose.Variance.Phrase() + " | " + v.gap(j.Variance) + " |\n")
+	if j.DataMismatch.OK {
+		b.WriteString("| " + diagnose.Mismatch.Phrase() + " | " + v.gap(j.DataMismatch) + " |\n")
 	}
-	if s.ValOverfit.OK {
-		b.WriteString("| overfitting to val (test − val) | " + s.gap(s.ValOverfit) + " |\n")
+	if j.ValOverfit.OK {
+		c := diagnose.ValOverfit
+		b.WriteString("| " + c.Phrase() + " (" + c.Description() + ") | " + v.gap(j.ValOverfit) + " |\n")
 	}
-	b.WriteString("| tolerance | " + s.gap(diagnose.Some(s.Tolerance)) + " |\n")
-	if s.Noise.OK {
-		b.WriteString("| noise of val per epoch (s.d.) | " + s.gap(s.Noise) + " |\n")
+	b.WriteString("| tolerance | " + v.gap(diagnose.Some(j.Tolerance)) + " |\n")
+	if j.Noise.OK {
+		b.WriteString("| noise of val per epoch (s.d.) | " + v.gap(j.Noise) + " |\n")
 	}
-	if s.ValLow.OK && s.ValHigh.OK {
-		b.WriteString("| val 95% interval (Wilson) | " + s.value(s.ValLow) + " – " + s.value(s.ValHigh) + " |\n")
+	if j.ValLow.OK && j.ValHigh.OK {
+		b.WriteString("| val 95% interval (Wilson) | " + v.value(j.ValLow) + " – " + v.value(j.ValHigh) + " |\n")
 	}
-	if s.GapSE.OK {
-		b.WriteString("| standard error of the gap | " + s.gap(s.GapSE) + " |\n")
+	if j.GapSE.OK {
+		b.WriteString("| standard error of the gap | " + v.gap(j.GapSE) + " |\n")
 	}
-	if s.BaselineError.OK {
-		b.WriteString("| majority-class baseline | " + s.value(s.BaselineError) + " |\n")
+	if j.BaselineError.OK {
+		b.WriteString("| majority-class baseline | " + v.value(j.BaselineError) + " |\n")
 	}
 
-	es := s.EarlyStop
+	es := j.EarlyStop
 	b.WriteString("\n## Early stopping\n\n")
-	b.WriteString("**" + es.Signal + "**")
-	if es.BestEpoch != nil {
-		b.WriteString(" — restore epoch " + strconv.Itoa(*es.BestEpoch) + " (best smoothed val " + s.value(es.BestVal))
-		if es.EpochsSinceBest != nil {
-			b.WriteString(", " + plural(*es.EpochsSinceBest, "epoch ago", "epochs ago"))
-		}
-		b.WriteString(")")
+	b.WriteString("**" + es.Signal.Phrase() + "**")
+	if es.BestVal.OK {
+		b.WriteString(" — restore epoch " + strconv.Itoa(es.BestEpoch) + " (best smoothed val " + v.value(es.BestVal))
+		b.WriteString(", " + plural(es.EpochsSinceBest, "epoch ago", "epochs ago") + ")")
 	}
 	b.WriteString(".\n" + inline(es.Reason) + ".\n\n")
 	// GL with one decimal, as the screen and the reasons write it:
 	// Prechelt's GL thresholds are whole percents (GL_1 … GL_5).
-	b.WriteString("Prechelt's criteria: GL " + num(es.GL, 1) + "%, P" + strconv.Itoa(s.strip()) + " " + num(es.P5, 1) + "‰, PQ " + num(es.PQ, 2) +
+	strip := es.Strip
+	if strip <= 0 {
+		strip = diagnose.DefaultStrip
+	}
+	b.WriteString("Prechelt's criteria: GL " + num(es.GL, 1) + "%, P" + strconv.Itoa(strip) + " " + num(es.PK, 1) + "‰, PQ " + num(es.PQ, 2) +
 		", UP " + strconv.Itoa(es.UP) + "; patience " + strconv.Itoa(es.Patience) + " epochs.\n")
 
-	if len(s.Actions) > 0 {
+	if len(j.Actions) > 0 {
 		b.WriteString("\n## Next actions\n\n")
-		for i, a := range s.Actions {
+		for i, a := range j.Actions {
 			b.WriteString(strconv.Itoa(i+1) + ". " + inline(a.Text) + " — " + inline(a.Why) + "\n")
 		}
 	}
@@ -131,32 +131,37 @@ func (s Summary) Markdown() string {
 }
 
 func (s Summary) writeWarnings(b *strings.Builder) {
-	if len(s.Warnings) == 0 {
+	if len(s.Source.Warnings)+len(s.Judgement.Warnings) == 0 {
 		return
 	}
 	b.WriteString("\n## Warnings\n\n")
-	for _, w := range s.Warnings {
-		b.WriteString("- " + inline(w) + "\n")
+	for _, ws := range [][]string{s.Source.Warnings, s.Judgement.Warnings} {
+		for _, w := range ws {
+			b.WriteString("- " + inline(w) + "\n")
+		}
 	}
 }
 
-// value formats a value of the judged metric: percent for rates.
-func (s Summary) value(n diagnose.Num) string {
+// values formats values of the judged metric: percent for fractions.
+type values struct{ fraction bool }
+
+// value formats a value of the judged metric.
+func (v values) value(n diagnose.Num) string {
 	if !n.OK {
 		return "–"
 	}
-	if s.fraction {
+	if v.fraction {
 		return pct(n.V, "%")
 	}
 	return sig4(n)
 }
 
-// gap formats a difference: percentage points for rates.
-func (s Summary) gap(n diagnose.Num) string {
+// gap formats a difference: percentage points for fractions.
+func (v values) gap(n diagnose.Num) string {
 	if !n.OK {
 		return "–"
 	}
-	if s.fraction {
+	if v.fraction {
 		return pct(n.V, " points")
 	}
 	return sig4(n)
@@ -195,52 +200,13 @@ func numWith(n diagnose.Num, fmt byte, prec int) string {
 	return strconv.FormatFloat(n.V, fmt, prec, 64)
 }
 
-// diagnosisWords names a diagnosis for people; the JSON keeps the
-// machine name.
-func diagnosisWords(d string) string {
-	switch d {
-	case diagnose.TooEarly.String():
-		return "Too early to judge"
-	case diagnose.Diverging.String():
-		return "Diverging"
-	case diagnose.HighBias.String():
-		return "High bias (underfitting)"
-	case diagnose.HighVariance.String():
-		return "High variance (overfitting)"
-	case diagnose.HighBiasHighVariance.String():
-		return "High bias and high variance"
-	case diagnose.DataMismatch.String():
-		return "Data mismatch"
-	case diagnose.GoodFit.String():
-		return "Good fit"
+// sentence starts a phrase with a capital letter.
+func sentence(s string) string {
+	if s == "" {
+		return s
 	}
-	return inline(d)
-}
-
-// progressWords describes the trend of the validation curve.
-func progressWords(p string) string {
-	switch p {
-	case diagnose.Improving.String():
-		return "The validation curve is still improving"
-	case diagnose.Plateaued.String():
-		return "The validation curve has plateaued"
-	case diagnose.Worsening.String():
-		return "The validation curve is worsening"
-	}
-	return "Too few points for a trend of the validation curve"
-}
-
-// words names a component for people.
-func words(component string) string {
-	switch component {
-	case diagnose.AvoidableBias.String():
-		return "avoidable bias"
-	case diagnose.Mismatch.String():
-		return "data mismatch"
-	case diagnose.ValOverfit.String():
-		return "overfitting to the validation set"
-	}
-	return component
+	r, n := utf8.DecodeRuneInString(s)
+	return string(unicode.ToUpper(r)) + s[n:]
 }
 
 func plural(n int, one, many string) string {

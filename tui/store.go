@@ -111,35 +111,49 @@ func (s *store) add(j diagnose.Judgement, p diagnose.Point, arrived time.Time, b
 	}
 }
 
-// rejudge refreshes the judged values of every row after the Tracker was
-// reconfigured (another metric, another optimal error), keeping arrival
-// times, which only the screen knows.
+// rejudge refreshes the judged values of every row after the Tracker
+// judged its points again (another metric, another optimal error),
+// keeping what only the screen knows (arrival, batch) and the point's own
+// facts (announced total, time column). It reads the logged values from
+// the Tracker's history, without rebuilding a judgement per point.
 func (s *store) rejudge(t *diagnose.Tracker) {
-	pts := t.Points()
-	n := min(t.Len(), len(pts))
+	n := t.Len()
 	old := s.rows
 	s.rows = make([]row, 0, n)
 	for i := 0; i < n; i++ {
-		r := rowOf(t.At(i), pts[i])
+		r := row{
+			epoch:    t.Epoch(i),
+			train:    loggedValue(t.Logged(i, diagnose.SplitTrain)),
+			val:      loggedValue(t.Logged(i, diagnose.SplitVal)),
+			trainDev: loggedValue(t.Logged(i, diagnose.SplitTrainDev)),
+		}
+		for _, sp := range []diagnose.Split{diagnose.SplitTrain, diagnose.SplitVal, diagnose.SplitTrainDev, diagnose.SplitTest} {
+			if v := t.Logged(i, sp); v.OK && !isFinite(v.V) {
+				r.bad = true
+			}
+		}
 		if i < len(old) {
 			r.arrived, r.batch = old[i].arrived, old[i].batch
+			r.total, r.logged = old[i].total, old[i].logged
 		}
 		s.rows = append(s.rows, r)
 	}
 }
 
-func rowOf(j diagnose.Judgement, p diagnose.Point) row {
-	val := func(e diagnose.Estimate) float64 {
-		if !e.Raw.OK {
-			return math.NaN()
-		}
-		return e.Raw.V
+// loggedValue is a row's value: NaN when absent.
+func loggedValue(n diagnose.Num) float64 {
+	if !n.OK {
+		return math.NaN()
 	}
+	return n.V
+}
+
+func rowOf(j diagnose.Judgement, p diagnose.Point) row {
 	r := row{
 		epoch:    p.Epoch,
-		train:    val(j.Train),
-		val:      val(j.Val),
-		trainDev: val(j.TrainDev),
+		train:    loggedValue(j.Train.Raw),
+		val:      loggedValue(j.Val.Raw),
+		trainDev: loggedValue(j.TrainDev.Raw),
 		total:    p.Total,
 		logged:   p.Time,
 	}

@@ -1,9 +1,7 @@
 package tui
 
 import (
-	"fmt"
-	"math"
-	"strconv"
+	"errors"
 	"strings"
 	"time"
 
@@ -84,10 +82,7 @@ func (m Model) handleResize(msg tea.WindowSizeMsg) (tea.Model, tea.Cmd) {
 func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 	m.batches++
 	now := m.now()
-	metric := diagnose.Metric{}
-	if n := len(m.data.rows); n > 0 {
-		metric = m.tracker.At(n - 1).Metric
-	}
+	revision := m.tracker.Revision()
 	for _, p := range msg.Points {
 		j := m.tracker.Add(p)
 		m.data.add(j, p, now, m.batches)
@@ -95,8 +90,10 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 			m.newPaused++
 		}
 	}
-	if len(msg.Points) > 0 {
-		m.checkReplay(metric)
+	if m.tracker.Revision() != revision {
+		// The Tracker judged its earlier points again (it chose another
+		// metric, or learned that a rate is written in percent).
+		m.data.rejudge(m.tracker)
 	}
 	for _, s := range msg.Steps {
 		m.data.addStep(s)
@@ -115,27 +112,6 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 	cmd := tea.Batch(m.waitFeed(), m.frameTick())
 	return m, cmd
 }
-
-// checkReplay notices when the Tracker judged its earlier points again
-// (it chose another metric, or learned that a rate is written in percent)
-// and refreshes the stored rows; the check reads one old judgement.
-func (m *Model) checkReplay(before diagnose.Metric) {
-	n := len(m.data.rows)
-	if n == 0 {
-		return
-	}
-	last := m.tracker.At(n - 1)
-	stale := last.Metric != before && before != (diagnose.Metric{})
-	if !stale && n > 1 {
-		r := rowOf(m.tracker.At(0), m.tracker.Points()[0])
-		stale = !sameValue(r.train, m.data.rows[0].train) || !sameValue(r.val, m.data.rows[0].val)
-	}
-	if stale {
-		m.data.rejudge(m.tracker)
-	}
-}
-
-func sameValue(a, b float64) bool { return a == b || (math.IsNaN(a) && math.IsNaN(b)) }
 
 // mergeSource takes the reader's latest view of the source. A message with
 // no source information (only points) keeps the previous one.
@@ -391,25 +367,18 @@ func (m Model) handleTyping(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	return m, cmd
 }
 
-// parseOptimal reads a typed optimal error: a rate as 0.04 or 4% for an
-// error-rate metric, else a non-negative number in the metric's units.
+// parseOptimal reads a typed optimal error by the rules of every typed
+// level (diagnose.ParseLevel), knowing whether the judged metric is a
+// rate; an empty line gets the hint of what to type instead.
 func parseOptimal(s string, rate bool) (float64, error) {
 	if strings.TrimSpace(s) == "" {
-		return 0, fmt.Errorf("type an optimal error such as 0.04 or 4%%, or esc to cancel")
+		return 0, errors.New("type an optimal error such as 0.04 or 4%, or esc to cancel")
 	}
+	scale := diagnose.ScaleUnits
 	if rate {
-		v, err := diagnose.ParseRate(s)
-		if err != nil {
-			return 0, fmt.Errorf("optimal error: %w", err)
-		}
-		return v, nil
+		scale = diagnose.ScaleFraction
 	}
-	t := strings.TrimSpace(s)
-	v, err := strconv.ParseFloat(t, 64)
-	if err != nil || !isFinite(v) || v < 0 {
-		return 0, fmt.Errorf("optimal value %q: want a number ≥ 0 in the metric's units", clean(t))
-	}
-	return v, nil
+	return diagnose.ParseLevel("optimal error", s, scale)
 }
 
 // save builds the summary now and writes it off the event loop.

@@ -78,7 +78,7 @@ func TestModel_CursorShowsJudgementOfThen(t *testing.T) {
 	if je.EarlyStop.Signal == last.EarlyStop.Signal && je.Diagnosis == last.Diagnosis {
 		t.Fatalf("fixture: epoch 5 judged like the last epoch (%v, %v); the test cannot tell them apart", je.Diagnosis, je.EarlyStop.Signal)
 	}
-	head, _ := diagnosisWords(je.Diagnosis)
+	head := je.Diagnosis.Phrase()
 	if v := early.View(); !strings.Contains(v, head) {
 		t.Errorf("inspecting epoch 5 does not show its diagnosis %q:\n%s", head, v)
 	}

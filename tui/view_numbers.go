@@ -34,7 +34,7 @@ func (m *Model) fmtGap(n diagnose.Num) string {
 // fmtPart prints one entry of the decomposition: the optimal error is a
 // level of the metric (a percent for rates), the others are gaps.
 func (m *Model) fmtPart(c component) string {
-	if c.kind == diagnose.NoComponent {
+	if c.kind == diagnose.OptimalError {
 		if !c.val.OK {
 			return "–"
 		}

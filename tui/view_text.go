@@ -23,8 +23,7 @@ func (m *Model) compactBody(j diagnose.Judgement, idx int, warns []string, h int
 	if idx < 0 {
 		head = st.paint(clsDim, "no evaluation point yet")
 	} else {
-		words, _ := diagnosisWords(j.Diagnosis)
-		head = st.paint(diagnosisClass(j.Diagnosis), words) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
+		head = st.paint(diagnosisClass(j.Diagnosis), j.Diagnosis.Phrase()) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
 		es = append(es,
 			entry{m.valuesLine(j), clsPlain},
 			entry{signalWords(j.EarlyStop), signalClass(j.EarlyStop.Signal)},
@@ -34,7 +33,7 @@ func (m *Model) compactBody(j diagnose.Judgement, idx int, warns []string, h int
 		}
 		line := "error:"
 		for _, c := range components(j) {
-			line += " " + c.short + " " + m.fmtPart(c)
+			line += " " + c.kind.Short() + " " + m.fmtPart(c)
 		}
 		es = append(es, entry{line, clsPlain})
 		if len(j.Actions) > 0 {

@@ -8,28 +8,6 @@ import (
 	"github.com/fitgap/fitgap/diagnose"
 )
 
-// diagnosisWords names a diagnosis the way practitioners say it, with the
-// bias/variance term beside it.
-func diagnosisWords(d diagnose.Diagnosis) (head, detail string) {
-	switch d {
-	case diagnose.TooEarly:
-		return "too early to judge", "a few more epochs are needed"
-	case diagnose.Diverging:
-		return "diverging", "the training curve is blowing up, or a value is not finite"
-	case diagnose.HighBias:
-		return "underfitting", "high avoidable bias: training error well above the optimal error"
-	case diagnose.HighVariance:
-		return "overfitting", "high variance: validation error well above training error"
-	case diagnose.HighBiasHighVariance:
-		return "underfitting and overfitting", "high avoidable bias and high variance"
-	case diagnose.DataMismatch:
-		return "data mismatch", "train-dev close to training, validation worse"
-	case diagnose.GoodFit:
-		return "near the optimal error", "little avoidable bias or variance left"
-	}
-	return clean(d.String()), ""
-}
-
 func diagnosisClass(d diagnose.Diagnosis) class {
 	switch d {
 	case diagnose.Diverging:
@@ -52,21 +30,18 @@ func signalClass(s diagnose.Signal) class {
 	return clsContinue
 }
 
-// signalWords is the early-stopping signal in one short phrase.
+// signalWords is the early-stopping signal in one short phrase: the
+// signal in capitals, so it reads without colour, and the epoch it points
+// to.
 func signalWords(es diagnose.EarlyStop) string {
-	switch es.Signal {
-	case diagnose.Stop:
-		if es.BestVal.OK {
-			return "STOP · restore epoch " + itoa(es.BestEpoch)
-		}
-		return "STOP"
-	case diagnose.Watch:
-		return "WATCH · best epoch " + itoa(es.BestEpoch)
+	s := strings.ToUpper(es.Signal.Phrase())
+	switch {
+	case es.Signal == diagnose.Stop && es.BestVal.OK:
+		return s + " · restore epoch " + itoa(es.BestEpoch)
+	case es.Signal == diagnose.Watch || es.BestVal.OK:
+		return s + " · best epoch " + itoa(es.BestEpoch)
 	}
-	if es.BestVal.OK {
-		return "CONTINUE · best epoch " + itoa(es.BestEpoch)
-	}
-	return "CONTINUE"
+	return s
 }
 
 // stopNumbers are the numbers behind the signal: best value, epochs since
@@ -111,10 +86,9 @@ func (m *Model) epochHeading(j diagnose.Judgement, idx int) string {
 	return s
 }
 
-// component is one part of the validation error's decomposition.
+// component is one part of the validation error's decomposition, as the
+// bar draws it.
 type component struct {
-	name  string
-	short string
 	glyph rune
 	cls   class
 	val   diagnose.Num
@@ -142,13 +116,16 @@ const (
 // components lists the parts of the validation error in the order the
 // bar draws them: the optimal error, then the gaps above it.
 func components(j diagnose.Judgement) []component {
-	opt := diagnose.Some(j.BayesError)
-	return []component{
-		{"optimal", "opt", glyphOptimal, clsOptimal, opt, diagnose.NoComponent},
-		{"avoidable bias", "bias", glyphBias, clsBias, j.AvoidableBias, diagnose.AvoidableBias},
-		{"variance", "var", glyphVariance, clsVariance, j.Variance, diagnose.Variance},
-		{"data mismatch", "mismatch", glyphMismatch, clsMismatch, j.DataMismatch, diagnose.Mismatch},
+	parts := []component{
+		{glyphOptimal, clsOptimal, diagnose.None, diagnose.OptimalError},
+		{glyphBias, clsBias, diagnose.None, diagnose.AvoidableBias},
+		{glyphVariance, clsVariance, diagnose.None, diagnose.Variance},
+		{glyphMismatch, clsMismatch, diagnose.None, diagnose.Mismatch},
 	}
+	for i := range parts {
+		parts[i].val = j.Component(parts[i].kind)
+	}
+	return parts
 }
 
 // errorBar draws the decomposition as one bar of w cells: each positive
@@ -261,7 +238,7 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		out := []string{st.paint(clsHeading, "VERDICT"), st.paint(clsDim, "no evaluation point yet")}
 		return out
 	}
-	head, detail := diagnosisWords(j.Diagnosis)
+	head, detail := j.Diagnosis.Phrase(), j.Diagnosis.Description()
 	var verdict []string
 	verdict = append(verdict, st.paint(clsHeading, m.epochHeading(j, idx)))
 	verdict = append(verdict, st.paint(diagnosisClass(j.Diagnosis), head))
@@ -270,7 +247,7 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 	}
 	vl := m.valuesLine(j)
 	if p := j.Progress; p != diagnose.ProgressUnknown {
-		vl += " · " + p.String()
+		vl += " · " + p.Phrase()
 	}
 	verdict = append(verdict, wrap(clean(vl), w)...)
 
@@ -293,7 +270,7 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		v := m.fmtPart(c)
 		note := ""
 		switch {
-		case c.kind == diagnose.NoComponent:
+		case c.kind == diagnose.OptimalError:
 			note = m.optimalNote(j)
 			if room := w - legendNoteX; ansiLen(note) > room {
 				full := note
@@ -302,19 +279,19 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 				if i := strings.IndexByte(note, ':'); i > 0 && i <= room {
 					note = note[:i]
 				}
-				for _, l := range wrap("optimal error "+full, w) {
+				for _, l := range wrap(diagnose.OptimalError.Phrase()+" "+full, w) {
 					noteLines = append(noteLines, st.paint(clsDim, l))
 				}
 			}
 		case c.kind == diagnose.Mismatch && !c.val.OK:
 			note = "no train-dev"
-		case c.kind != diagnose.NoComponent && c.kind == j.Focus:
+		case c.kind == j.Focus:
 			note = "focus"
 		}
-		line := st.paint(c.cls, string(c.glyph)) + " " + pad(c.name, legendNameW) + pad(v, legendValueW)
+		line := st.paint(c.cls, string(c.glyph)) + " " + pad(c.kind.Phrase(), legendNameW) + pad(v, legendValueW)
 		if note != "" {
 			cls := clsDim
-			if c.kind == j.Focus && c.kind != diagnose.NoComponent {
+			if c.kind == j.Focus {
 				cls = clsHeading
 			}
 			line += " " + st.paint(cls, note)
@@ -399,7 +376,7 @@ func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []str
 	if idx < 0 {
 		return append([]string{st.paint(clsDim, "verdict: no evaluation point yet")}, make([]string, rows-1)...)
 	}
-	head, _ := diagnosisWords(j.Diagnosis)
+	head := j.Diagnosis.Phrase()
 	l1 := st.paint(diagnosisClass(j.Diagnosis), head) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
 	if m.cursor >= 0 {
 		l1 += st.paint(clsDim, " as judged then")
@@ -413,11 +390,11 @@ func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []str
 	barW := clampInt(w/4, 8, 24)
 	l3 := m.errorBar(comps, barW)
 	for _, c := range comps {
-		part := " " + st.paint(c.cls, string(c.glyph)) + c.short + " " + m.fmtPart(c)
-		if c.kind == diagnose.NoComponent && !j.BayesErrorGiven {
+		part := " " + st.paint(c.cls, string(c.glyph)) + c.kind.Short() + " " + m.fmtPart(c)
+		if c.kind == diagnose.OptimalError && !j.BayesErrorGiven {
 			part += "?"
 		}
-		if c.kind != diagnose.NoComponent && c.kind == j.Focus {
+		if c.kind == j.Focus {
 			part = st.paint(clsHeading, part+"◂")
 		}
 		l3 += part

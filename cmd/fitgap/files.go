@@ -130,28 +130,13 @@ func checkStopFile(path string) (*stopFile, error) {
 	return &stopFile{path: path}, nil
 }
 
-// stopBody is what the stop file holds.
-type stopBody struct {
-	Epoch     int          `json:"epoch"`
-	BestEpoch int          `json:"best_epoch"`
-	BestVal   diagnose.Num `json:"best_val"`
-	Metric    string       `json:"metric"`
-	Reason    string       `json:"reason"`
-}
-
 // observe creates the stop file the first time j says stop. It reports
 // whether it created the file now.
 func (s *stopFile) observe(j diagnose.Judgement) (bool, error) {
 	if s == nil || s.created || j.EarlyStop.Signal != diagnose.Stop {
 		return false, nil
 	}
-	b, err := json.Marshal(stopBody{
-		Epoch:     j.Epoch,
-		BestEpoch: j.EarlyStop.BestEpoch,
-		BestVal:   j.EarlyStop.BestVal,
-		Metric:    j.Metric.Label,
-		Reason:    j.EarlyStop.Reason,
-	})
+	b, err := json.Marshal(j.StopForm())
 	if err != nil {
 		return false, err
 	}

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"flag"
 	"fmt"
 	"strconv"
@@ -71,11 +70,11 @@ func (s *sourceFlags) options(follow bool) (watch.Options, error) {
 // judgeFlags are the flags that set the diagnosis.
 type judgeFlags struct {
 	metric        string
-	bayes         rateFlag
-	baseline      rateFlag
-	tolerance     numberFlag
+	bayes         levelFlag
+	baseline      levelFlag
+	tolerance     levelFlag
 	patience      int
-	minDelta      float64
+	minDelta      levelFlag
 	valSize       int
 	trainSize     int
 	smoothing     float64
@@ -86,13 +85,17 @@ func (j *judgeFlags) register(fs *flag.FlagSet) {
 	d := diagnose.DefaultConfig()
 	j.defaultConfig = d
 	fs.StringVar(&j.metric, "metric", "", "the base `metric` to judge, e.g. acc or loss (default: an error rate when one is logged, else a loss)")
+	// Every typed level goes through diagnose.ParseLevel, the screen's b
+	// key too: one set of rules for 4%, 0.04 and a loss value.
 	j.bayes.parse = diagnose.ParseBayesError
 	j.baseline.parse = diagnose.ParseRate
+	j.tolerance.parse = levelIn("tolerance")
+	j.minDelta.parse = levelIn("min-delta")
 	fs.Var(&j.bayes, "bayes-error", "the optimal (Bayes) error, estimated from expert or human error or the label-noise rate, in the units of the judged metric: `value` as 0.04 or 4% (default: taken as 0, so the bias figure is an upper bound)")
 	fs.Var(&j.baseline, "baseline-error", "the error of always predicting the most common class: `rate` as 0.05 or 5%")
 	fs.Var(&j.tolerance, "tolerance", fmt.Sprintf("a gap counts as a problem from this `size` on: error-rate points as a fraction (0.02 = 2 points), relative to the scale for other metrics (default %g for error rates, %g relative for losses)", d.Tolerance, d.RelTolerance))
 	fs.IntVar(&j.patience, "patience", d.Patience, "`epochs` without improvement of the smoothed validation value before the signal says stop")
-	fs.Float64Var(&j.minDelta, "min-delta", d.MinDelta, "the smallest `change` that counts as an improvement")
+	fs.Var(&j.minDelta, "min-delta", "the smallest `change` that counts as an improvement, in the judged metric's units (0.001 or 0.1% for a rate)")
 	fs.IntVar(&j.valSize, "val-size", 0, "number of validation `examples`: gives the validation error a confidence interval")
 	fs.IntVar(&j.trainSize, "train-size", 0, "number of training `examples` (with --val-size: the standard error of the gap)")
 	fs.Float64Var(&j.smoothing, "smoothing", d.Smoothing, "`beta` of the debiased moving average the judgement smooths with (0 = no smoothing)")
@@ -112,8 +115,6 @@ func (j *judgeFlags) config() (diagnose.Config, error) {
 		return c, usageErrorf("--tolerance: must be positive, got %g", j.tolerance.v)
 	case j.patience < 1:
 		return c, usageErrorf("--patience: must be at least 1, got %d", j.patience)
-	case j.minDelta < 0:
-		return c, usageErrorf("--min-delta: must not be negative, got %g", j.minDelta)
 	case j.valSize < 0 || j.trainSize < 0:
 		return c, usageErrorf("--val-size and --train-size: must not be negative")
 	case j.smoothing < 0 || j.smoothing >= 1:
@@ -123,7 +124,7 @@ func (j *judgeFlags) config() (diagnose.Config, error) {
 		c.SetTolerance(j.tolerance.v)
 	}
 	c.Patience = j.patience
-	c.MinDelta = j.minDelta
+	c.MinDelta = j.minDelta.v
 	c.ValSize = j.valSize
 	c.TrainSize = j.trainSize
 	c.Smoothing = j.smoothing
@@ -133,48 +134,32 @@ func (j *judgeFlags) config() (diagnose.Config, error) {
 	return c, nil
 }
 
-// rateFlag is an error rate written as a fraction or a percentage.
-type rateFlag struct {
+// levelFlag is a level of the judged metric (diagnose.ParseLevel). set
+// tells a value given from the default, which may depend on what is
+// judged.
+type levelFlag struct {
 	v     float64
 	set   bool
 	parse func(string) (float64, error)
 }
 
-func (r *rateFlag) String() string {
+// levelIn parses a level of a metric not known yet, named what in errors.
+func levelIn(what string) func(string) (float64, error) {
+	return func(s string) (float64, error) { return diagnose.ParseLevel(what, s, diagnose.ScaleUnknown) }
+}
+
+func (r *levelFlag) String() string {
 	if r == nil || !r.set {
 		return ""
 	}
 	return strconv.FormatFloat(r.v, 'g', -1, 64)
 }
 
-func (r *rateFlag) Set(s string) error {
+func (r *levelFlag) Set(s string) error {
 	v, err := r.parse(s)
 	if err != nil {
 		return err
 	}
 	r.v, r.set = v, true
-	return nil
-}
-
-// numberFlag is a number whose default depends on what is judged, so the
-// command line must know whether it was given.
-type numberFlag struct {
-	v   float64
-	set bool
-}
-
-func (n *numberFlag) String() string {
-	if n == nil || !n.set {
-		return ""
-	}
-	return strconv.FormatFloat(n.v, 'g', -1, 64)
-}
-
-func (n *numberFlag) Set(s string) error {
-	v, err := strconv.ParseFloat(s, 64)
-	if err != nil {
-		return errors.New("not a number")
-	}
-	n.v, n.set = v, true
 	return nil
 }

@@ -55,23 +55,33 @@ func onePath(args []string) (string, error) {
 	return "", usageErrorf("one log at a time, got %d: %s", len(args), strings.Join(args, " "))
 }
 
-// judgeWholeLog reads a finished log (or a pipe to its end) and judges it.
+// judgeWholeLog reads a finished log (or a pipe to its end) and judges it,
+// handing each batch's points to the Tracker as they are read: memory
+// follows the Tracker's compact history, not the log's points.
 func judgeWholeLog(path string, stdin io.Reader, opts watch.Options, cfg diagnose.Config) (report.Summary, error) {
-	var r io.Reader
+	opts.Follow = false
 	name := path
+	var batches <-chan watch.Batch
 	if path == "-" {
-		r, name = stdin, "standard input"
-	}
-	points, stats, err := watch.ReadAll(name, r, opts)
-	if err != nil {
-		return report.Summary{}, readError(name, err)
-	}
-	if len(points) == 0 {
-		return report.Summary{}, emptyLogError(name, stats)
+		name = "standard input"
+		batches = watch.FollowReader(context.Background(), name, stdin, opts)
+	} else {
+		b, err := watch.Follow(context.Background(), path, opts)
+		if err != nil {
+			return report.Summary{}, readError(name, err)
+		}
+		batches = b
 	}
 	t := diagnose.New(cfg)
-	for _, p := range points {
-		t.Push(p) // the summary needs only the last judgement
+	var stats watch.Stats
+	for b := range batches {
+		for _, p := range b.Points {
+			t.Push(p) // the summary needs only the last judgement
+		}
+		stats = b.Stats
+	}
+	if t.Len() == 0 {
+		return report.Summary{}, emptyLogError(name, stats)
 	}
 	return report.Build(sourceOf(name, stats, t.Len()), t), nil
 }

@@ -1,0 +1,276 @@
+package diagnose
+
+import "math"
+
+// Columns of the history, stored exactly in about half the bytes of their
+// plain form when the values allow it.
+//
+// A log prints its values as short decimals ("0.549255"), and a float64
+// parsed from a decimal d·10⁻ᵏ is the correctly rounded quotient of two
+// exact doubles, d / 10ᵏ: so a chunk whose values are all such decimals,
+// with |d| < 2³¹ and a common k ≤ maxScale, keeps d as an int32 and reads
+// back the very same bits. Each value is checked when it is stored (the
+// quotient must give back its bits, -0 and NaN payloads included), and a
+// chunk that meets a value that does not fit is widened to plain float64
+// bits at once. Epochs and line numbers are kept as int32 offsets from the
+// first value of their chunk, widened the same way.
+
+// chunkLen is how many values a chunk holds: 4 or 8 KiB, so a short run
+// costs little more than its values and a long one a short list of chunks
+// (design choice).
+const chunkLen = 1024
+
+// maxScale is the largest power of ten a decimal chunk divides by: 10⁹ is
+// exact in float64, and nine decimals cover what logs print.
+const maxScale = 9
+
+var pow10 = [maxScale + 1]float64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9}
+
+// The int32 codes of a decimal chunk that are not decimals.
+const (
+	codeAbsent = math.MinInt32 + iota
+	codeNaN
+	codePosInf
+	codeNegInf
+	minDecimal // the smallest decimal mantissa
+)
+
+// floatColumn holds float64 values by position; a position never set
+// reads as absent.
+type floatColumn struct {
+	chunks []floatChunk
+}
+
+type floatChunk struct {
+	dec  *decimalChunk      // values as decimals; nil once widened
+	wide *[chunkLen]float64 // values as they are; absentValue where unset
+}
+
+type decimalChunk struct {
+	m     [chunkLen]int32
+	scale uint8 // values are m / 10^scale
+}
+
+// absentValue marks an unset position of a widened chunk: a NaN whose
+// payload no parser or arithmetic produces (stored NaNs are canonical).
+var absentValue = math.Float64frombits(0x7ff4_0000_fa57_0001)
+
+// at returns the value at i, and false where none was set.
+func (c *floatColumn) at(i int) (float64, bool) {
+	k := i / chunkLen
+	if k >= len(c.chunks) {
+		return 0, false
+	}
+	ch := &c.chunks[k]
+	switch {
+	case ch.dec != nil:
+		m := ch.dec.m[i%chunkLen]
+		switch m {
+		case codeAbsent:
+			return 0, false
+		case codeNaN:
+			return math.NaN(), true
+		case codePosInf:
+			return math.Inf(1), true
+		case codeNegInf:
+			return math.Inf(-1), true
+		}
+		return float64(m) / pow10[ch.dec.scale], true
+	case ch.wide != nil:
+		v := ch.wide[i%chunkLen]
+		if math.Float64bits(v) == math.Float64bits(absentValue) {
+			return 0, false
+		}
+		return v, true
+	}
+	return 0, false
+}
+
+// set stores v at i. A NaN is stored as math.NaN(): the judgement does not
+// tell NaNs apart.
+func (c *floatColumn) set(i int, v float64) {
+	if v != v {
+		v = math.NaN()
+	}
+	k := i / chunkLen
+	for len(c.chunks) <= k {
+		c.chunks = append(c.chunks, floatChunk{})
+	}
+	ch := &c.chunks[k]
+	if ch.dec == nil && ch.wide == nil {
+		ch.dec = new(decimalChunk)
+		for j := range ch.dec.m {
+			ch.dec.m[j] = codeAbsent
+		}
+	}
+	if ch.dec != nil && !ch.dec.put(i%chunkLen, v) {
+		ch.widen()
+	}
+	if ch.wide != nil {
+		ch.wide[i%chunkLen] = v
+	}
+}
+
+// put stores v as a decimal at j, raising the chunk's scale when v needs
+// more decimals; it reports false when v or the rescaled chunk does not
+// fit.
+func (d *decimalChunk) put(j int, v float64) bool {
+	switch {
+	case v != v:
+		d.m[j] = codeNaN
+		return true
+	case math.IsInf(v, 1):
+		d.m[j] = codePosInf
+		return true
+	case math.IsInf(v, -1):
+		d.m[j] = codeNegInf
+		return true
+	}
+	for s := d.scale; s <= maxScale; s++ {
+		m, ok := decimal(v, s)
+		if !ok {
+			continue
+		}
+		if s > d.scale && !d.rescale(s) {
+			return false
+		}
+		d.m[j] = m
+		return true
+	}
+	return false
+}
+
+// decimal returns m with m / 10^s == v to the bit, when there is one that
+// fits.
+func decimal(v float64, s uint8) (int32, bool) {
+	f := math.Round(v * pow10[s])
+	if !(f >= minDecimal && f <= math.MaxInt32) {
+		return 0, false
+	}
+	m := int32(f)
+	return m, math.Float64bits(float64(m)/pow10[s]) == math.Float64bits(v)
+}
+
+// rescale multiplies the chunk's decimals up to scale s, when they fit
+// (the values stay the same: m·10^(s−scale) / 10^s is still exact).
+func (d *decimalChunk) rescale(s uint8) bool {
+	f := int64(pow10[s-d.scale])
+	for _, m := range d.m {
+		if m >= minDecimal {
+			if x := int64(m) * f; x < minDecimal || x > math.MaxInt32 {
+				return false
+			}
+		}
+	}
+	for j, m := range d.m {
+		if m >= minDecimal {
+			d.m[j] = int32(int64(m) * f)
+		}
+	}
+	d.scale = s
+	return true
+}
+
+// widen turns a decimal chunk into plain values.
+func (ch *floatChunk) widen() {
+	w := new([chunkLen]float64)
+	for j := range w {
+		w[j] = absentValue
+	}
+	if d := ch.dec; d != nil {
+		col := floatColumn{chunks: []floatChunk{{dec: d}}}
+		for j := range w {
+			if v, ok := col.at(j); ok {
+				w[j] = v
+			}
+		}
+	}
+	ch.dec, ch.wide = nil, w
+}
+
+// truncate keeps the first n positions: later ones read as absent again.
+func (c *floatColumn) truncate(n int) {
+	c.chunks = keepChunks(c.chunks, n)
+	if n%chunkLen == 0 || n/chunkLen >= len(c.chunks) {
+		return
+	}
+	ch := &c.chunks[n/chunkLen]
+	for j := n % chunkLen; j < chunkLen; j++ {
+		switch {
+		case ch.dec != nil:
+			ch.dec.m[j] = codeAbsent
+		case ch.wide != nil:
+			ch.wide[j] = absentValue
+		}
+	}
+}
+
+// intColumn holds integers by position (epochs, line numbers). Only the
+// positions set are read.
+type intColumn struct {
+	chunks []intChunk
+}
+
+type intChunk struct {
+	base int
+	off  *[chunkLen]int32 // values as offsets from base; nil once widened
+	wide *[chunkLen]int
+}
+
+func (c *intColumn) at(i int) int {
+	k := i / chunkLen
+	if k >= len(c.chunks) {
+		return 0
+	}
+	ch := &c.chunks[k]
+	switch {
+	case ch.off != nil:
+		return ch.base + int(ch.off[i%chunkLen])
+	case ch.wide != nil:
+		return ch.wide[i%chunkLen]
+	}
+	return 0
+}
+
+func (c *intColumn) set(i, v int) {
+	k := i / chunkLen
+	for len(c.chunks) <= k {
+		c.chunks = append(c.chunks, intChunk{})
+	}
+	ch := &c.chunks[k]
+	if ch.off == nil && ch.wide == nil {
+		ch.base, ch.off = v, new([chunkLen]int32)
+	}
+	if ch.off != nil {
+		if d := v - ch.base; d >= math.MinInt32 && d <= math.MaxInt32 && (v >= ch.base) == (d >= 0) {
+			ch.off[i%chunkLen] = int32(d)
+			return
+		}
+		ch.widen()
+	}
+	ch.wide[i%chunkLen] = v
+}
+
+func (ch *intChunk) widen() {
+	w := new([chunkLen]int)
+	if ch.off != nil {
+		for j, d := range ch.off {
+			w[j] = ch.base + int(d)
+		}
+	}
+	ch.off, ch.wide = nil, w
+}
+
+// truncate keeps the first n positions.
+func (c *intColumn) truncate(n int) { c.chunks = keepChunks(c.chunks, n) }
+
+// keepChunks drops the chunks that hold no position below n, letting
+// their memory go.
+func keepChunks[C any](chunks []C, n int) []C {
+	k := (n + chunkLen - 1) / chunkLen
+	if k < len(chunks) {
+		clear(chunks[k:])
+		chunks = chunks[:k]
+	}
+	return chunks
+}

@@ -1,0 +1,175 @@
+package diagnose
+
+import (
+	"encoding/binary"
+	"math"
+	"strconv"
+	"testing"
+)
+
+// same reports whether two stored values are the same to the bit (any NaN
+// is stored as math.NaN()).
+func same(a, b float64) bool {
+	if a != a && b != b {
+		return true
+	}
+	return math.Float64bits(a) == math.Float64bits(b)
+}
+
+// TestFloatColumn_Exact stores values of every kind and reads each back to
+// the bit, and checks which chunks stay decimal (4 bytes a value).
+func TestFloatColumn_Exact(t *testing.T) {
+	parse := func(s string) float64 {
+		v, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return v
+	}
+	tests := []struct {
+		name    string
+		vals    []float64
+		decimal bool // the chunk stays decimal
+	}{
+		{"PrintedDecimals", []float64{parse("0.549255"), parse("2.3"), parse("0.1"), parse("1e-6"), parse("-0.25"), 0, 17}, true},
+		{"NonFiniteStayDecimal", []float64{parse("0.5"), math.NaN(), math.Inf(1), math.Inf(-1)}, true},
+		{"ScaleRisesForMoreDecimals", []float64{1, 2, parse("0.123456789")}, true},
+		{"ATwoThirdWidens", []float64{parse("0.5"), 2.0 / 3}, false},
+		{"NegativeZeroWidens", []float64{parse("0.5"), math.Copysign(0, -1)}, false},
+		{"TooManyDigitsWidens", []float64{parse("123456.789012")}, false},
+		{"RescaleOverflowWidens", []float64{300_000_000, parse("0.5")}, false},
+		{"HugeWidens", []float64{1e300, -math.MaxFloat64, math.SmallestNonzeroFloat64}, false},
+		{"NaNPayloadIsCanonical", []float64{math.Float64frombits(0x7ff8_0000_0000_0abc)}, true},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var c floatColumn
+			for i, v := range tc.vals {
+				c.set(2*i, v) // odd positions stay absent
+			}
+			for i, v := range tc.vals {
+				got, ok := c.at(2 * i)
+				if !ok || !same(got, v) {
+					t.Errorf("at(%d) = %v (%#x), %v; want %v (%#x)", 2*i, got, math.Float64bits(got), ok, v, math.Float64bits(v))
+				}
+				if _, ok := c.at(2*i + 1); ok {
+					t.Errorf("at(%d) is set; nothing was stored there", 2*i+1)
+				}
+			}
+			if dec := c.chunks[0].dec != nil; dec != tc.decimal {
+				t.Errorf("decimal chunk %v, want %v", dec, tc.decimal)
+			}
+		})
+	}
+}
+
+// TestFloatColumn_AllPrintedDecimals: every value a script prints with up
+// to six decimals in [-1000, 1000] is kept as a decimal and read back to
+// the bit (a sample of 200 000 of them, and the edges).
+func TestFloatColumn_AllPrintedDecimals(t *testing.T) {
+	var c floatColumn
+	n := 0
+	check := func(d int64) {
+		v, err := strconv.ParseFloat(strconv.FormatFloat(float64(d)/1e6, 'f', 6, 64), 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		c.set(n%chunkLen, v)
+		if got, ok := c.at(n % chunkLen); !ok || !same(got, v) {
+			t.Fatalf("%d·10⁻⁶: got %v, want %v", d, got, v)
+		}
+		if c.chunks[0].dec == nil {
+			t.Fatalf("%d·10⁻⁶ widened the chunk", d)
+		}
+		n++
+	}
+	for d := int64(-1_000_000_000); d <= 1_000_000_000; d += 10_007 {
+		check(d)
+	}
+	for _, d := range []int64{-2_147_483_000, -1, 0, 1, 999_999, 2_147_483_647} {
+		check(d)
+	}
+}
+
+func TestFloatColumn_Truncate(t *testing.T) {
+	for _, n := range []int{0, 1, chunkLen - 1, chunkLen, chunkLen + 1, 3 * chunkLen} {
+		var c floatColumn
+		for i := 0; i < 3*chunkLen; i++ {
+			v := float64(i) / 4
+			if i%7 == 0 {
+				v = 1.0 / 3 // some chunks widen
+			}
+			c.set(i, v)
+		}
+		c.truncate(n)
+		for i := 0; i < 3*chunkLen; i++ {
+			if _, ok := c.at(i); ok != (i < n) {
+				t.Fatalf("truncate(%d): at(%d) set = %v", n, i, ok)
+			}
+		}
+	}
+}
+
+// FuzzFloatColumn stores values from arbitrary bytes at arbitrary places,
+// with truncations, and compares every read with a plain map.
+func FuzzFloatColumn(f *testing.F) {
+	f.Add([]byte{0, 0, 0, 0, 0, 0, 0, 0xe0, 0x3f, 1, 0, 0, 0, 0, 0, 0, 0xf8, 0x7f})
+	f.Add([]byte{2, 0x9a, 0x99, 0x99, 0x99, 0x99, 0x99, 0xb9, 0x3f, 0xff})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		var c floatColumn
+		want := map[int]float64{}
+		for len(data) >= 9 {
+			i := int(data[0]) * 37 % (3 * chunkLen)
+			v := math.Float64frombits(binary.LittleEndian.Uint64(data[1:9]))
+			data = data[9:]
+			if cut := len(data) > 0 && data[0] == 0xff; cut {
+				c.truncate(i)
+				for k := range want {
+					if k >= i {
+						delete(want, k)
+					}
+				}
+				continue
+			}
+			c.set(i, v)
+			want[i] = v
+		}
+		for i := 0; i < 3*chunkLen; i++ {
+			got, ok := c.at(i)
+			w, wok := want[i]
+			if ok != wok || ok && !same(got, w) {
+				t.Fatalf("at(%d) = %v %v, want %v %v", i, got, ok, w, wok)
+			}
+		}
+	})
+}
+
+func TestIntColumn(t *testing.T) {
+	tests := []struct {
+		name string
+		vals []int
+		off  bool // the chunk stays in offsets
+	}{
+		{"Epochs", []int{1, 2, 3, 5, 8}, true},
+		{"LinesGoBack", []int{1000, 2000, 2, 3}, true},
+		{"FarApartWidens", []int{0, math.MaxInt32 + 1}, false},
+		{"ExtremesWiden", []int{math.MaxInt, math.MinInt}, false},
+		{"NegativeEpochs", []int{-5, -4, -3}, true},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var c intColumn
+			for i, v := range tc.vals {
+				c.set(i, v)
+			}
+			for i, v := range tc.vals {
+				if got := c.at(i); got != v {
+					t.Errorf("at(%d) = %d, want %d", i, got, v)
+				}
+			}
+			if off := c.chunks[0].off != nil; off != tc.off {
+				t.Errorf("offsets kept %v, want %v", off, tc.off)
+			}
+		})
+	}
+}

@@ -1,0 +1,249 @@
+package diagnose
+
+import "strconv"
+
+// The enumerations of a judgement. Each has one table, beside its type,
+// holding for every value its machine name (JSON, stable) and its human
+// wording (a short phrase and a longer description): report and the screen
+// render these, they do not restate them.
+
+// wording is one value's entry in its enumeration's table.
+type wording struct {
+	// name is the stable machine name used in JSON ("high-variance").
+	name string
+	// phrase is how people say it, in lower case ("overfitting").
+	phrase string
+	// about is the phrase in more words ("high variance: validation error
+	// well above training error").
+	about string
+	// short is a label of a few letters for one-line summaries ("var").
+	short string
+}
+
+// table is the wording of an enumeration E, indexed by value.
+type table[E ~uint8] struct {
+	kind  string // names an out-of-range value: "diagnosis(9)"
+	words []wording
+}
+
+func (t table[E]) of(e E) (wording, bool) {
+	if int(e) < len(t.words) {
+		return t.words[e], true
+	}
+	return wording{}, false
+}
+
+func (t table[E]) name(e E) string {
+	if w, ok := t.of(e); ok {
+		return w.name
+	}
+	return t.kind + "(" + strconv.Itoa(int(e)) + ")"
+}
+
+func (t table[E]) phrase(e E) string {
+	if w, ok := t.of(e); ok {
+		return w.phrase
+	}
+	return t.name(e)
+}
+
+func (t table[E]) about(e E) string {
+	if w, ok := t.of(e); ok {
+		return w.about
+	}
+	return ""
+}
+
+func (t table[E]) short(e E) string {
+	if w, ok := t.of(e); ok && w.short != "" {
+		return w.short
+	}
+	return t.phrase(e)
+}
+
+func (t table[E]) values() []E {
+	out := make([]E, len(t.words))
+	for i := range out {
+		out[i] = E(i)
+	}
+	return out
+}
+
+// Diagnosis is the regime the run is judged to be in at one point.
+type Diagnosis uint8
+
+const (
+	TooEarly Diagnosis = iota
+	Diverging
+	HighBias
+	HighVariance
+	HighBiasHighVariance
+	DataMismatch
+	GoodFit
+)
+
+var diagnoses = table[Diagnosis]{kind: "diagnosis", words: []wording{
+	TooEarly:             {"too-early", "too early to judge", "a few more epochs are needed", ""},
+	Diverging:            {"diverging", "diverging", "the training curve is blowing up, or a value is not finite", ""},
+	HighBias:             {"high-bias", "underfitting", "high avoidable bias: training error well above the optimal error", ""},
+	HighVariance:         {"high-variance", "overfitting", "high variance: validation error well above training error", ""},
+	HighBiasHighVariance: {"high-bias-high-variance", "underfitting and overfitting", "high avoidable bias and high variance", ""},
+	DataMismatch:         {"data-mismatch", "data mismatch", "train-dev close to training, validation worse", ""},
+	GoodFit:              {"good-fit", "near the optimal error", "little avoidable bias or variance left", ""},
+}}
+
+// String returns the stable machine name used in JSON ("high-variance").
+func (d Diagnosis) String() string { return diagnoses.name(d) }
+
+// Phrase is how people say it: "overfitting".
+func (d Diagnosis) Phrase() string { return diagnoses.phrase(d) }
+
+// Description says it with the bias/variance terms: "high variance:
+// validation error well above training error".
+func (d Diagnosis) Description() string { return diagnoses.about(d) }
+
+// MarshalText makes a Diagnosis a JSON string.
+func (d Diagnosis) MarshalText() ([]byte, error) { return []byte(d.String()), nil }
+
+// Diagnoses lists every Diagnosis, for documentation and schemas.
+func Diagnoses() []Diagnosis { return diagnoses.values() }
+
+// Component is one part of the decomposition of the validation error.
+type Component uint8
+
+const (
+	NoComponent Component = iota
+	// AvoidableBias = train − optimal.
+	AvoidableBias
+	// Variance = val − train, or train-dev − train when a train-dev split exists.
+	Variance
+	// Mismatch = val − train-dev (data mismatch).
+	Mismatch
+	// ValOverfit = test − val: overfitting to the validation set.
+	ValOverfit
+	// OptimalError is the unavoidable part, the optimal (Bayes) error
+	// itself: the base of the decomposition, never a problem or a focus.
+	OptimalError
+)
+
+var components = table[Component]{kind: "component", words: []wording{
+	NoComponent:   {"none", "none", "no component", "none"},
+	AvoidableBias: {"avoidable-bias", "avoidable bias", "train − optimal error", "bias"},
+	Variance:      {"variance", "variance", "val − train, or train-dev − train with a train-dev split", "var"},
+	Mismatch:      {"data-mismatch", "data mismatch", "val − train-dev", "mismatch"},
+	ValOverfit:    {"val-overfit", "overfitting to the validation set", "test − val", "val fit"},
+	OptimalError:  {"optimal-error", "optimal error", "the error no model can avoid on these data", "opt"},
+}}
+
+// String returns the stable machine name used in JSON ("avoidable-bias").
+func (c Component) String() string { return components.name(c) }
+
+// Phrase is how people say it: "avoidable bias".
+func (c Component) Phrase() string { return components.phrase(c) }
+
+// Description says how the part is measured: "val − train-dev".
+func (c Component) Description() string { return components.about(c) }
+
+// Short is a label of a few letters for a one-line summary: "bias".
+func (c Component) Short() string { return components.short(c) }
+
+// MarshalText makes a Component a JSON string ("none" for NoComponent).
+func (c Component) MarshalText() ([]byte, error) { return []byte(c.String()), nil }
+
+// Components lists the values a judgement's focus and problems take, for
+// documentation and schemas: NoComponent and the four measured gaps
+// (OptimalError, the base of the decomposition, is the optimal error
+// itself, never a problem).
+func Components() []Component { return components.values()[:OptimalError] }
+
+// Progress is the recent trend of the smoothed validation curve.
+type Progress uint8
+
+const (
+	ProgressUnknown Progress = iota
+	Improving
+	Plateaued
+	Worsening
+)
+
+var progresses = table[Progress]{kind: "progress", words: []wording{
+	ProgressUnknown: {"unknown", "no trend yet", "too few points for a trend of the validation curve", ""},
+	Improving:       {"improving", "improving", "the validation curve is still improving", ""},
+	Plateaued:       {"plateaued", "plateaued", "the validation curve has plateaued", ""},
+	Worsening:       {"worsening", "worsening", "the validation curve is worsening", ""},
+}}
+
+// String returns the stable machine name used in JSON ("plateaued").
+func (p Progress) String() string { return progresses.name(p) }
+
+// Phrase is the trend in a word or two: "plateaued".
+func (p Progress) Phrase() string { return progresses.phrase(p) }
+
+// Description is the trend as a clause: "the validation curve has plateaued".
+func (p Progress) Description() string { return progresses.about(p) }
+
+// MarshalText makes a Progress a JSON string.
+func (p Progress) MarshalText() ([]byte, error) { return []byte(p.String()), nil }
+
+// Progresses lists every Progress, for documentation and schemas.
+func Progresses() []Progress { return progresses.values() }
+
+// Signal is the early-stopping signal.
+type Signal uint8
+
+const (
+	Continue Signal = iota
+	// Watch: a stopping criterion is close, or the best epoch is aging.
+	Watch
+	Stop
+)
+
+var signals = table[Signal]{kind: "signal", words: []wording{
+	Continue: {"continue", "continue", "keep training", ""},
+	Watch:    {"watch", "watch", "a stopping criterion is close, or the best epoch is aging", ""},
+	Stop:     {"stop", "stop", "stop training and restore the best epoch", ""},
+}}
+
+// String returns the stable machine name used in JSON ("stop").
+func (s Signal) String() string { return signals.name(s) }
+
+// Phrase is the signal as people say it: "stop".
+func (s Signal) Phrase() string { return signals.phrase(s) }
+
+// Description says what the signal asks for: "keep training".
+func (s Signal) Description() string { return signals.about(s) }
+
+// MarshalText makes a Signal a JSON string.
+func (s Signal) MarshalText() ([]byte, error) { return []byte(s.String()), nil }
+
+// Signals lists every Signal, for documentation and schemas.
+func Signals() []Signal { return signals.values() }
+
+// Split says which data a metric was measured on. The names follow the
+// practice of holding out a validation (dev) set, optionally a train-dev set
+// drawn from the training distribution, and a test set touched last.
+type Split uint8
+
+const (
+	// SplitNone marks a column that is not a metric of a data split:
+	// epoch, step, time, learning rate and other bookkeeping.
+	SplitNone Split = iota
+	SplitTrain
+	SplitVal
+	SplitTrainDev
+	SplitTest
+)
+
+var splits = table[Split]{kind: "split", words: []wording{
+	SplitNone:     {"none", "no split", "not a metric of a data split", ""},
+	SplitTrain:    {"train", "training", "the data the model is trained on", ""},
+	SplitVal:      {"val", "validation", "held-out data from the distribution that matters, for choosing settings", ""},
+	SplitTrainDev: {"train-dev", "train-dev", "held-out data from the training distribution", ""},
+	SplitTest:     {"test", "test", "held-out data touched once, at the end", ""},
+}}
+
+// String names the split as output writes it ("train-dev").
+func (s Split) String() string { return splits.name(s) }
+
+// Phrase names the split in words: "validation".
+func (s Split) Phrase() string { return splits.phrase(s) }
