@@ -1,0 +1,124 @@
+"""Shared pieces of the fixture generators: the digits split, the MLP and its
+epoch loop, and the plain CSV writer. Not run on its own.
+
+Rerun any generator with Debian's packages (bookworm), from this directory:
+    /usr/bin/python3 <script>.py
+Ran with python3 3.11.2, python3-torch 1.13.1+dfsg-4, python3-sklearn
+1.2.1+dfsg-1, python3-numpy 1.24.2, python3-xgboost 1.7.4-1,
+python3-tqdm 4.64.1-1. Outputs land in ../frameworks, ../runs, ../curves.
+"""
+import csv
+import os
+
+import numpy as np
+from sklearn.datasets import load_digits
+from sklearn.model_selection import train_test_split
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+OUT = os.path.normpath(os.path.join(HERE, ".."))
+
+
+def split(seed=0):
+    """The digits data (1,797 8x8 images, 10 classes) as a stratified
+    1,437/360 train/validation split, pixels scaled to [0, 1]."""
+    X, y = load_digits(return_X_y=True)
+    X = (X / 16.0).astype(np.float32)
+    return train_test_split(X, y, test_size=0.2, random_state=seed, stratify=y)
+
+
+def subset(X, y, n, seed):
+    """The first n examples of a seeded permutation of (X, y)."""
+    idx = np.random.RandomState(seed).permutation(len(X))[:n]
+    return X[idx], y[idx]
+
+
+def flip_labels(y, rate, seed, classes=10):
+    """A copy of y with a fraction `rate` of the labels replaced by a
+    different class drawn uniformly (symmetric label noise)."""
+    rng = np.random.RandomState(seed)
+    y = y.copy()
+    pick = rng.rand(len(y)) < rate
+    y[pick] = (y[pick] + rng.randint(1, classes, pick.sum())) % classes
+    return y
+
+
+def torch_setup(seed):
+    import torch
+    torch.set_num_threads(1)
+    torch.manual_seed(seed)
+    return torch
+
+
+def mlp(torch, hidden, dropout=0.0):
+    layers, width = [], 64
+    for h in hidden:
+        layers += [torch.nn.Linear(width, h), torch.nn.ReLU()]
+        if dropout:
+            layers.append(torch.nn.Dropout(dropout))
+        width = h
+    layers.append(torch.nn.Linear(width, 10))
+    return torch.nn.Sequential(*layers)
+
+
+def evaluate(torch, model, X, y):
+    """Mean cross-entropy and accuracy of model on (X, y), in eval mode."""
+    model.eval()
+    with torch.no_grad():
+        out = model(torch.from_numpy(X))
+        t = torch.from_numpy(y).long()
+        loss = torch.nn.functional.cross_entropy(out, t).item()
+        acc = (out.argmax(1) == t).float().mean().item()
+    model.train()
+    return loss, acc
+
+
+def train_epoch(torch, model, opt, X, y, batch, gen, on_batch=None, clip=None):
+    """One pass over (X, y) in shuffled mini-batches. Returns the mean of the
+    batch losses and the accuracy on the batches as trained (the running
+    training metrics a loop would log). on_batch(i, n_batches, loss) is
+    called after each step; it may change the learning rate."""
+    model.train()
+    perm = torch.randperm(len(X), generator=gen)
+    Xt, yt = torch.from_numpy(X), torch.from_numpy(y).long()
+    losses, correct, nb = [], 0, (len(X) + batch - 1) // batch
+    for i in range(nb):
+        idx = perm[i * batch:(i + 1) * batch]
+        out = model(Xt[idx])
+        loss = torch.nn.functional.cross_entropy(out, yt[idx])
+        opt.zero_grad()
+        loss.backward()
+        if clip:
+            torch.nn.utils.clip_grad_norm_(model.parameters(), clip)
+        opt.step()
+        losses.append(loss.item() * len(idx))
+        correct += (out.argmax(1) == yt[idx]).sum().item()
+        if on_batch:
+            on_batch(i, nb, loss.item())
+    return sum(losses) / len(X), correct / len(X)
+
+
+PLAIN = ["epoch", "train_loss", "val_loss", "train_acc", "val_acc"]
+
+
+def write_csv(path, header, rows, digits=6):
+    """Write rows (dicts) as a CSV with the given columns; floats rounded to
+    `digits` significant digits, missing values left empty."""
+    def cell(v):
+        if v is None:
+            return ""
+        if isinstance(v, float):
+            return f"{v:.{digits}g}"
+        return str(v)
+    os.makedirs(os.path.dirname(path), exist_ok=True)
+    with open(path, "w", newline="") as f:
+        w = csv.writer(f, lineterminator="\n")
+        w.writerow(header)
+        for r in rows:
+            w.writerow([cell(r.get(h)) for h in header])
+
+
+def write_plain(path, rows):
+    """The plain-CSV twin of a captured run: only the columns of PLAIN that
+    the captured layout carries, in PLAIN's order, with its numbers."""
+    header = [h for h in PLAIN if any(r.get(h) is not None for r in rows)]
+    write_csv(path, header, rows, digits=10)
