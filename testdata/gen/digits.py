@@ -122,3 +122,33 @@ def write_plain(path, rows):
     the captured layout carries, in PLAIN's order, with its numbers."""
     header = [h for h in PLAIN if any(r.get(h) is not None for r in rows)]
     write_csv(path, header, rows, digits=10)
+
+
+def save_twin(base, rows):
+    """In a capturing child: hand the run's numbers to the parent (base is
+    the output path without its extension)."""
+    import json
+    with open(base + ".twin.json", "w") as f:
+        json.dump(rows, f)
+
+
+def capture(script, args, base, ext=".log", pty_cols=None):
+    """Run `script args` as a child process and keep its merged, unbuffered
+    stdout and stderr as base+ext, byte for byte; then write the plain-CSV
+    twin the child saved with save_twin. With pty_cols the child runs on a
+    pseudo-terminal of that width through util-linux `script`, so programs
+    that look for a terminal draw as they would on one."""
+    import json
+    import shlex
+    import subprocess
+    import sys
+    cmd = [sys.executable, "-u", script] + [str(a) for a in args]
+    if pty_cols:
+        inner = f"stty cols {pty_cols} rows 30; exec {shlex.join(cmd)}"
+        cmd = ["script", "-q", "-e", "-c", inner, "/dev/null"]
+    with open(base + ext, "wb") as f:
+        subprocess.run(cmd, stdout=f, stderr=subprocess.STDOUT, check=True,
+                       stdin=subprocess.DEVNULL)
+    with open(base + ".twin.json") as f:
+        write_plain(base + ".plain.csv", json.load(f))
+    os.remove(base + ".twin.json")

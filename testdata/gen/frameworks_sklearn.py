@@ -9,12 +9,9 @@ the captured file, exactly as a console would get them. The plain-CSV twin
 comes from the fitted model's own loss_curve_ and validation_scores_, rounded
 as sklearn prints them (loss %.8f, score %f), not from parsing the log.
 """
-import json
-import os
-import subprocess
 import sys
 
-from digits import OUT, split, subset, write_plain
+from digits import OUT, capture, save_twin, split, subset
 
 RUNS = {
     # 200 of the 1,437 training examples, half of them held out by sklearn
@@ -43,20 +40,12 @@ def child(name):
     rows = [dict(epoch=i + 1, train_loss=float(f"{l:.8f}"),
                  val_acc=float(f"{scores[i]:f}") if scores else None)
             for i, l in enumerate(clf.loss_curve_)]
-    with open(f"{OUT}/frameworks/{name}.plain.csv.json", "w") as f:
-        json.dump(rows, f)
+    save_twin(f"{OUT}/frameworks/{name}", rows)
 
 
 def main():
     for name in RUNS:
-        with open(f"{OUT}/frameworks/{name}.log", "wb") as f:
-            subprocess.run([sys.executable, "-u", __file__, name], stdout=f,
-                           stderr=subprocess.STDOUT, check=True)
-        side = f"{OUT}/frameworks/{name}.plain.csv.json"
-        with open(side) as f:
-            rows = json.load(f)
-        write_plain(f"{OUT}/frameworks/{name}.plain.csv", rows)
-        os.remove(side)
+        capture(__file__, [name], f"{OUT}/frameworks/{name}")
 
 
 if __name__ == "__main__":

@@ -10,12 +10,9 @@ file. The plain-CSV twin comes from the booster's evals_result(), rounded to
 the 5 decimals xgboost prints; accuracy = 1 - merror; epoch = the round
 number as printed (counting from 0); thinned files keep only printed rounds.
 """
-import json
-import os
-import subprocess
 import sys
 
-from digits import OUT, split, subset, write_plain
+from digits import OUT, capture, save_twin, split, subset
 
 ROUNDS = {"overfit": 150, "good": 200}
 PARAMS = {
@@ -71,20 +68,13 @@ def child(api, kind, every):
                  val_loss=r5(va["mlogloss"][i]),
                  train_acc=r5(1 - r5(tr["merror"][i])),
                  val_acc=r5(1 - r5(va["merror"][i]))) for i in shown]
-    with open(f"{OUT}/frameworks/{name(api, kind, every)}.json", "w") as f:
-        json.dump(rows, f)
+    save_twin(f"{OUT}/frameworks/{name(api, kind, every)}", rows)
 
 
 def main():
     for api, kind, every in runs():
-        base = f"{OUT}/frameworks/{name(api, kind, every)}"
-        with open(base + ".log", "wb") as f:
-            subprocess.run([sys.executable, "-u", __file__, api, kind,
-                            str(every)], stdout=f, stderr=subprocess.STDOUT,
-                           check=True)
-        with open(base + ".json") as f:
-            write_plain(base + ".plain.csv", json.load(f))
-        os.remove(base + ".json")
+        capture(__file__, [api, kind, every],
+                f"{OUT}/frameworks/{name(api, kind, every)}")
 
 
 if __name__ == "__main__":
