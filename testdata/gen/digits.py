@@ -97,17 +97,77 @@ def train_epoch(torch, model, opt, X, y, batch, gen, on_batch=None, clip=None):
     return sum(losses) / len(X), correct / len(X)
 
 
+def fit(cfg, on_batch=None, on_epoch=None):
+    """Train an MLP on the digits split as cfg says, one thread, seeded.
+
+    cfg keys: n (training images, default all 1,437), hidden (widths),
+    opt ('adam' or 'sgd'), lr, momentum, wd (weight decay), dropout, epochs,
+    batch, noise (fraction of flipped training labels), clip (gradient norm),
+    seed, and schedule(t) -> learning rate at t = fractional epochs done.
+    on_batch(epoch, i, n_batches, loss, lr) runs after every step;
+    on_epoch(epoch, m) after every epoch, m holding train_loss, train_acc
+    (running, on the labels as trained), val_loss, val_acc, lr, seconds.
+    Returns the list of the m dicts, with their epoch."""
+    import time
+    seed = cfg.get("seed", 1)
+    torch = torch_setup(seed)
+    Xtr, Xva, ytr, yva = split()
+    n = cfg.get("n", len(Xtr))
+    if n < len(Xtr):
+        Xtr, ytr = subset(Xtr, ytr, n, seed)
+    if cfg.get("noise"):
+        ytr = flip_labels(ytr, cfg["noise"], seed)
+    model = mlp(torch, cfg["hidden"], cfg.get("dropout", 0.0))
+    if cfg.get("opt", "adam") == "adam":
+        opt = torch.optim.Adam(model.parameters(), lr=cfg["lr"],
+                               weight_decay=cfg.get("wd", 0.0))
+    else:
+        opt = torch.optim.SGD(model.parameters(), lr=cfg["lr"],
+                              momentum=cfg.get("momentum", 0.0),
+                              weight_decay=cfg.get("wd", 0.0))
+    schedule = cfg.get("schedule") or (lambda t: cfg["lr"])
+    gen = torch.Generator().manual_seed(seed)
+    history = []
+    for epoch in range(1, cfg["epochs"] + 1):
+        start = time.time()
+
+        def step(i, nb, loss, epoch=epoch):
+            lr = opt.param_groups[0]["lr"]
+            if on_batch:
+                on_batch(epoch, i, nb, loss, lr)
+            for g in opt.param_groups:  # the rate of the next step
+                g["lr"] = schedule(epoch - 1 + (i + 1) / nb)
+
+        for g in opt.param_groups:
+            g["lr"] = schedule(epoch - 1)
+        lr = opt.param_groups[0]["lr"]
+        tl, ta = train_epoch(torch, model, opt, Xtr, ytr, cfg["batch"], gen,
+                             on_batch=step, clip=cfg.get("clip"))
+        val_start = time.time()
+        vl, va = evaluate(torch, model, Xva, yva)
+        end = time.time()
+        m = dict(epoch=epoch, train_loss=tl, train_acc=ta, val_loss=vl,
+                 val_acc=va, lr=lr, seconds=end - start,
+                 val_seconds=end - val_start, n_train=len(Xtr),
+                 n_val=len(Xva), batches=(len(Xtr) + cfg["batch"] - 1)
+                 // cfg["batch"])
+        history.append(m)
+        if on_epoch:
+            on_epoch(epoch, m)
+    return history
+
+
 PLAIN = ["epoch", "train_loss", "val_loss", "train_acc", "val_acc"]
 
 
 def write_csv(path, header, rows, digits=6):
     """Write rows (dicts) as a CSV with the given columns; floats rounded to
-    `digits` significant digits, missing values left empty."""
+    `digits` significant digits (None: exactly), missing values empty."""
     def cell(v):
         if v is None:
             return ""
         if isinstance(v, float):
-            return f"{v:.{digits}g}"
+            return repr(v) if digits is None else f"{v:.{digits}g}"
         return str(v)
     os.makedirs(os.path.dirname(path), exist_ok=True)
     with open(path, "w", newline="") as f:
@@ -119,9 +179,10 @@ def write_csv(path, header, rows, digits=6):
 
 def write_plain(path, rows):
     """The plain-CSV twin of a captured run: only the columns of PLAIN that
-    the captured layout carries, in PLAIN's order, with its numbers."""
+    the captured layout carries, in PLAIN's order, with its numbers exactly
+    (Python's shortest repr of each float)."""
     header = [h for h in PLAIN if any(r.get(h) is not None for r in rows)]
-    write_csv(path, header, rows, digits=10)
+    write_csv(path, header, rows, digits=None)
 
 
 def save_twin(base, rows):
@@ -149,6 +210,12 @@ def capture(script, args, base, ext=".log", pty_cols=None):
     with open(base + ext, "wb") as f:
         subprocess.run(cmd, stdout=f, stderr=subprocess.STDOUT, check=True,
                        stdin=subprocess.DEVNULL)
+    finish_twin(base)
+
+
+def finish_twin(base):
+    """Turn the numbers a child saved with save_twin into base.plain.csv."""
+    import json
     with open(base + ".twin.json") as f:
         write_plain(base + ".plain.csv", json.load(f))
     os.remove(base + ".twin.json")
