@@ -2,8 +2,9 @@
 """Real PyTorch trainings on digits, printed by our own loops in layouts
 people use: the classic example's console lines, a tqdm bar over the epochs
 (raw bytes to a file, and through a pseudo-terminal), Python dict lines with
-the JSON state document they come with, dicts of numpy scalars, and a TSV
-with '#' comment lines. One overfitting and one good run each.
+the JSON state document they come with, dicts of numpy scalars, a TSV
+with '#' comment lines, and `epoch 3 train_loss=… val_loss=… val_acc=…`
+lines. One overfitting and one good run each.
 
 Rerun: cd testdata/gen && /usr/bin/python3 frameworks_torch.py
 Ran with python3-torch 1.13.1+dfsg-4, python3-tqdm 4.64.1-1,
@@ -201,12 +202,29 @@ def tsv(kind):
     return rows
 
 
+def keyvalue(kind):
+    """The most common hand-written line, `epoch 3 train_loss=0.4100
+    val_loss=0.5200 val_acc=0.8300`: loss on both splits, accuracy on
+    validation only."""
+    rows = []
+
+    def on_epoch(epoch, m):
+        vals = {k: round(m[k], 4) for k in ("train_loss", "val_loss",
+                                            "val_acc")}
+        print(f"epoch {epoch} " + " ".join(f"{k}={v:.4f}"
+                                           for k, v in vals.items()))
+        rows.append(dict(epoch=epoch, **vals))
+    fit(RUNS[kind], on_epoch=on_epoch)
+    return rows
+
+
 LAYOUTS = {  # layout -> (function, file name prefix, extension)
     "classic": (classic, "torch-classic", ".log"),
     "bar": (bar, "tqdm-epochs", ".log"),
     "dict": (dictlines, "dictlines", ".log"),
     "numpy": (numpy_dicts, "numpy-dict", ".log"),
     "tsv": (tsv, "comments", ".tsv"),
+    "keyvalue": (keyvalue, "keyvalue", ".log"),
 }
 
 

@@ -2,6 +2,9 @@
 """Capture xgboost's own round lines, from the native xgb.train(evals=...)
 and from the sklearn-API XGBClassifier.fit(eval_set=...), each printed every
 round and thinned (every 10th round), on an overfitting and a good run.
+The native runs' numbers are also written in another boosting library's
+round-line layout, `[1]\ttraining's multi_logloss: 1.39068\tvalid_1's …`
+(rounds from 1, values %g), from memory: that library is not in Debian 12.
 
 Rerun: cd testdata/gen && /usr/bin/python3 frameworks_xgboost.py
 Ran with python3-xgboost 1.7.4-1, python3-sklearn 1.2.1+dfsg-1 (Debian 12).
@@ -12,7 +15,7 @@ number as printed (counting from 0); thinned files keep only printed rounds.
 """
 import sys
 
-from digits import OUT, capture, save_twin, split, subset
+from digits import OUT, capture, save_twin, split, subset, write_plain
 
 ROUNDS = {"overfit": 150, "good": 200}
 PARAMS = {
@@ -69,6 +72,26 @@ def child(api, kind, every):
                  train_acc=r5(1 - r5(tr["merror"][i])),
                  val_acc=r5(1 - r5(va["merror"][i]))) for i in shown]
     save_twin(f"{OUT}/frameworks/{name(api, kind, every)}", rows)
+    if api == "train" and every == 1:
+        other_library(kind, tr, va)
+
+
+def other_library(kind, tr, va):
+    """The same rounds as `[N]\tname's metric: value` pairs (from memory)."""
+    base = f"{OUT}/frameworks/lightgbm-style-{kind}"
+    g = lambda v: float(f"{v:g}")
+    rows = []
+    with open(base + ".log", "w") as f:
+        for i in range(len(tr["mlogloss"])):
+            pairs = [("training", tr), ("valid_1", va)]
+            f.write(f"[{i + 1}]\t" + "\t".join(
+                f"{who}'s multi_{m}: {g(res['m' + m][i]):g}"
+                for who, res in pairs for m in ("logloss", "error")) + "\n")
+            rows.append(dict(epoch=i + 1, train_loss=g(tr["mlogloss"][i]),
+                             val_loss=g(va["mlogloss"][i]),
+                             train_acc=round(1 - g(tr["merror"][i]), 10),
+                             val_acc=round(1 - g(va["merror"][i]), 10)))
+    write_plain(base + ".plain.csv", rows)
 
 
 def main():
