@@ -6,44 +6,17 @@ small training sets, slow learners, lr schedules and healthy runs. Writes
 table of ../runs/README.md from the numbers.
 
 Rerun: cd testdata/gen && /usr/bin/python3 runs.py [name ...]
+(`runs.py --table` only rewrites the README table from the files.)
 Ran with python3-torch 1.13.1+dfsg-4, python3-sklearn 1.2.1+dfsg-1,
 python3-numpy 1.24.2 (Debian 12), one thread; a run takes seconds to a
 minute. Training metrics are running means over the epoch's batches, on the
 labels as trained (flipped ones included); lr is the rate at the epoch's
 first step.
 """
-import math
-import os
 import sys
 
-from digits import OUT, fit, write_csv
-
-COLUMNS = ["epoch", "train_loss", "val_loss", "train_acc", "val_acc", "lr"]
-
-
-def grow(lr0, factor):
-    """A range test left running: the rate times factor per epoch."""
-    return lambda t: lr0 * factor ** t
-
-
-def warmup(peak, epochs):
-    """Linear warm-up from 0 to peak over `epochs`, then held."""
-    return lambda t: peak * min(1.0, (t + 0.02) / epochs)
-
-
-def steps(lr0, at, factor=0.1):
-    """The rate times factor at each epoch in `at`."""
-    return lambda t: lr0 * factor ** sum(t >= a for a in at)
-
-
-def cosine(lr0, epochs, warm=0):
-    """Optional linear warm-up, then cosine decay to 0 at `epochs`."""
-    def rate(t):
-        if t < warm:
-            return lr0 * (t + 0.02) / warm
-        return 0.5 * lr0 * (1 + math.cos(math.pi * (t - warm) / (epochs - warm)))
-    return rate
-
+from digits import OUT
+from evalset import cosine, generate, grow, steps, warmup
 
 SGD = dict(opt="sgd", momentum=0.9, batch=64)
 ADAM = dict(opt="adam", batch=64)
@@ -112,62 +85,5 @@ RUNS = [  # (name, what the run did, config)
 ]
 
 
-def facts(rows):
-    """What happened, in numbers: best and final validation error (%),
-    final training error, the training loss's minimum and last value, and
-    whether the run ended at chance (validation error ≥ 80 %; chance is
-    90 % for 10 classes) or printed a non-finite value."""
-    err = [100 * (1 - r["val_acc"]) for r in rows]
-    best = min(range(len(err)), key=err.__getitem__)
-    tl = [r["train_loss"] for r in rows]
-    finite = all(math.isfinite(v) for r in rows for v in r.values())
-    vmin = min(range(len(rows)), key=lambda i: rows[i]["val_loss"])
-    return (f"{err[best]:.1f} @ {rows[best]['epoch']} | {err[-1]:.1f} | "
-            f"{100 * (1 - rows[-1]['train_acc']):.1f} | "
-            f"{rows[vmin]['val_loss']:.3g} @ {rows[vmin]['epoch']} → "
-            f"{rows[-1]['val_loss']:.3g} | {min(tl):.3g} → {tl[-1]:.3g} | "
-            + ("**yes**" if err[-1] >= 80 else "no")
-            + ("" if finite else ", non-finite"))
-
-
-def readme(results):
-    path = f"{OUT}/runs/README.md"
-    with open(path) as f:
-        head = f.read().split("<!-- table -->")[0]
-    lines = [head + "<!-- table -->\n",
-             "| file | what the run did | seed | best val error % @ epoch | "
-             "final val error % | final train error % | val loss min @ "
-             "epoch → final | train loss min → final | at chance |",
-             "|---|---|---|---|---|---|---|---|---|"]
-    for name, what, cfg in RUNS:
-        if name in results:
-            lines.append(f"| `{name}.csv` | {what} | {cfg.get('seed', 1)} | "
-                         + results[name] + " |")
-    with open(path, "w") as f:
-        f.write("\n".join(lines) + "\n")
-
-
-def main(names):
-    results = {}
-    for name, what, cfg in RUNS:
-        path = f"{OUT}/runs/{name}.csv"
-        if names and name not in names:
-            if os.path.exists(path):
-                results[name] = facts(read(path))
-            continue
-        rows = [dict((k, m[k]) for k in COLUMNS) for m in fit(cfg)]
-        write_csv(path, COLUMNS, rows, digits=6)
-        results[name] = facts(read(path))
-        print(name, results[name], flush=True)
-    readme(results)
-
-
-def read(path):
-    import csv
-    with open(path) as f:
-        return [{k: int(v) if k == "epoch" else float(v) for k, v in
-                 r.items()} for r in csv.DictReader(f)]
-
-
 if __name__ == "__main__":
-    main(set(sys.argv[1:]))
+    generate(RUNS, f"{OUT}/runs", set(sys.argv[1:]))
