@@ -89,7 +89,8 @@ def generate(runs, outdir, names, extra=None):
     lines = [head + "<!-- table -->", HEADER]
     for name, what, cfg in runs:
         if name in results:
-            lines.append(f"| `{name}.csv` | {what} | {cfg.get('seed', 1)} | "
+            seed = cfg.get("seed", 1)
+            lines.append(f"| `{name}.csv` | {what} | {seed} | "
                          + results[name] + " |")
     with open(f"{outdir}/README.md", "w") as f:
         f.write("\n".join(lines) + "\n")

@@ -71,7 +71,8 @@ def bar(kind):
         pbar.set_postfix(loss=vals["train_loss"], acc=vals["train_acc"],
                          val_loss=vals["val_loss"], val_acc=vals["val_acc"])
         pbar.update(1)
-        rows.append(dict(epoch=epoch, **{k: float(v) for k, v in shown.items()}))
+        rows.append(dict(epoch=epoch,
+                         **{k: float(v) for k, v in shown.items()}))
     fit(cfg, on_epoch=on_epoch)
     pbar.close()
     return rows

@@ -26,22 +26,28 @@ NOISY_ADAM = dict(ADAM, hidden=(256, 256), lr=1e-3, epochs=100)
 RUNS = [  # (name, what the run did, config)
     ("mlp-lrrange-sgd", "range test left running: SGD momentum 0.9, "
      "hidden (128, 128), lr 1e-3 growing ×1.2 per epoch (per step)",
-     dict(SGD, hidden=(128, 128), lr=1e-3, epochs=60, schedule=grow(1e-3, 1.2))),
+     dict(SGD, hidden=(128, 128), lr=1e-3, epochs=60,
+          schedule=grow(1e-3, 1.2))),
     ("mlp-lrrange-sgd-x1.1", "range test left running, slower: SGD "
      "momentum 0.9, hidden (128, 128), lr 1e-3 ×1.1 per epoch",
-     dict(SGD, hidden=(128, 128), lr=1e-3, epochs=110, schedule=grow(1e-3, 1.1))),
+     dict(SGD, hidden=(128, 128), lr=1e-3, epochs=110,
+          schedule=grow(1e-3, 1.1))),
     ("mlp-lrrange-adam", "range test left running: Adam, hidden (128, 128), "
      "lr 1e-5 ×1.2 per epoch",
-     dict(ADAM, hidden=(128, 128), lr=1e-5, epochs=60, schedule=grow(1e-5, 1.2))),
+     dict(ADAM, hidden=(128, 128), lr=1e-5, epochs=60,
+          schedule=grow(1e-5, 1.2))),
     ("mlp-warmup-too-high-sgd", "linear warm-up over 20 epochs to a "
      "too-high peak lr 1.0, then held: SGD momentum 0.9, hidden (128, 128)",
-     dict(SGD, hidden=(128, 128), lr=1.0, epochs=40, schedule=warmup(1.0, 20))),
+     dict(SGD, hidden=(128, 128), lr=1.0, epochs=40,
+          schedule=warmup(1.0, 20))),
     ("mlp-warmup-too-high-adam", "linear warm-up over 10 epochs to a "
      "too-high peak lr 0.5, then held: Adam, hidden (128, 128)",
-     dict(ADAM, hidden=(128, 128), lr=0.5, epochs=40, schedule=warmup(0.5, 10))),
+     dict(ADAM, hidden=(128, 128), lr=0.5, epochs=40,
+          schedule=warmup(0.5, 10))),
     ("mlp-warmup-cosine-ok", "healthy contrast: 5 warm-up epochs to lr 0.1, "
      "cosine to 0 at 60: SGD momentum 0.9, hidden (128, 128)",
-     dict(SGD, hidden=(128, 128), lr=0.1, epochs=60, schedule=cosine(0.1, 60, 5))),
+     dict(SGD, hidden=(128, 128), lr=0.1, epochs=60,
+          schedule=cosine(0.1, 60, 5))),
 ] + [
     (f"mlp-labelnoise{p}-{o}", f"{p} % of the training labels flipped to "
      "another class; " + ("fast: Adam lr 1e-3, 100 epochs" if o == "adam"
@@ -66,10 +72,12 @@ RUNS = [  # (name, what the run did, config)
           schedule=steps(0.3, (20, 40)))),
     ("mlp-cosine-sgd", "cosine schedule: SGD momentum 0.9 lr 0.05 to 0 at "
      "80, hidden (128, 128)",
-     dict(SGD, hidden=(128, 128), lr=0.05, epochs=80, schedule=cosine(0.05, 80))),
+     dict(SGD, hidden=(128, 128), lr=0.05, epochs=80,
+          schedule=cosine(0.05, 80))),
     ("mlp-cosine-adam", "cosine schedule: Adam lr 3e-3 to 0 at 60, hidden "
      "(256,), weight decay 1e-4",
-     dict(ADAM, hidden=(256,), lr=3e-3, wd=1e-4, epochs=60, schedule=cosine(3e-3, 60))),
+     dict(ADAM, hidden=(256,), lr=3e-3, wd=1e-4, epochs=60,
+          schedule=cosine(3e-3, 60))),
 ] + [
     (f"mlp-healthy-adam-seed{s}", "healthy: Adam lr 1e-3, hidden (128,), "
      "weight decay 1e-4, 40 epochs",
