@@ -219,3 +219,22 @@ def finish_twin(base):
     with open(base + ".twin.json") as f:
         write_plain(base + ".plain.csv", json.load(f))
     os.remove(base + ".twin.json")
+
+
+def layouts_main(script, layouts, kinds, outdir, after=None):
+    """The command line of a layout generator. layouts maps a layout to
+    (function(kind) -> twin rows, file name prefix, extension). With no
+    arguments: capture every layout of every run kind as
+    outdir/<prefix>-<kind><ext> with its twin, then call after(). As the
+    child `script layout kind prefix`: train, print, save the twin."""
+    import sys
+    if len(sys.argv) > 1:
+        layout, kind, prefix = sys.argv[1:4]
+        save_twin(f"{outdir}/{prefix}-{kind}", layouts[layout][0](kind))
+        return
+    for layout, (_, prefix, ext) in layouts.items():
+        for kind in kinds:
+            capture(script, [layout, kind, prefix],
+                    f"{outdir}/{prefix}-{kind}", ext)
+    if after:
+        after()

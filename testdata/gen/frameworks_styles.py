@@ -9,13 +9,12 @@ Rerun: cd testdata/gen && /usr/bin/python3 frameworks_styles.py
 Ran with python3-torch 1.13.1+dfsg-4, python3-numpy 1.24.2,
 python3-sklearn 1.2.1+dfsg-1 (Debian 12).
 """
-import sys
 import time
 from datetime import datetime, timedelta
 
 import numpy as np
 
-from digits import OUT, capture, fit
+from digits import OUT, fit, layouts_main
 from frameworks_torch import RUNS
 
 FW = f"{OUT}/frameworks"
@@ -131,17 +130,5 @@ LAYOUTS = {  # layout -> (function, file name prefix, extension)
 }
 
 
-def main():
-    for layout, (_, prefix, ext) in LAYOUTS.items():
-        for kind in RUNS:
-            capture(__file__, [layout, kind], f"{FW}/{prefix}-{kind}", ext)
-
-
 if __name__ == "__main__":
-    if len(sys.argv) > 1:
-        from digits import save_twin
-        layout, kind = sys.argv[1:3]
-        func, prefix, _ = LAYOUTS[layout]
-        save_twin(f"{FW}/{prefix}-{kind}", func(kind))
-    else:
-        main()
+    layouts_main(__file__, LAYOUTS, RUNS, FW)

@@ -14,13 +14,12 @@ digits.py) and the plain-CSV twin the loop saved with the numbers it printed.
 """
 import json
 import shutil
-import sys
 from collections import defaultdict
 from statistics import mean
 
 import numpy as np
 
-from digits import OUT, capture, finish_twin, fit, save_twin
+from digits import OUT, capture, finish_twin, fit, layouts_main, save_twin
 
 RUNS = {
     # 150 of the 1,437 training images, two wide layers, no weight decay.
@@ -229,11 +228,9 @@ LAYOUTS = {  # layout -> (function, file name prefix, extension)
 }
 
 
-def main():
-    for layout, (_, prefix, ext) in LAYOUTS.items():
-        for kind in RUNS:
-            capture(__file__, [layout, kind, prefix], f"{FW}/{prefix}-{kind}",
-                    ext)
+def pty_and_copies():
+    """The bar again on a pseudo-terminal; the numpy 2 twins; the state
+    document's twin (the dict lines' run)."""
     for kind in RUNS:
         finish_twin(f"{FW}/numpy2-dict-{kind}")
         capture(__file__, ["bar", kind, "tqdm-epochs-pty"],
@@ -243,8 +240,4 @@ def main():
 
 
 if __name__ == "__main__":
-    if len(sys.argv) > 1:
-        layout, kind, prefix = sys.argv[1:4]
-        save_twin(f"{FW}/{prefix}-{kind}", LAYOUTS[layout][0](kind))
-    else:
-        main()
+    layouts_main(__file__, LAYOUTS, RUNS, FW, after=pty_and_copies)
