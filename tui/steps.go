@@ -3,6 +3,8 @@ package tui
 import (
 	"math"
 	"sort"
+
+	"github.com/fitgap/fitgap/tui/chart"
 )
 
 // stepBlock is the number of per-step samples summarised by one min/max
@@ -164,16 +166,16 @@ func (c *stepClock) observe(epoch int, step int64) {
 // knots returns the piecewise-linear map as (epoch position, step) pairs:
 // the start of the first epoch, then the end of each epoch. The end of the
 // last epoch is extrapolated from the pace of the one before it.
-func (c *stepClock) knots(dst []xy) []xy {
+func (c *stepClock) knots(dst []chart.Point) []chart.Point {
 	dst = dst[:0]
 	n := len(c.ends)
 	if n == 0 {
 		return dst
 	}
 	e0 := c.ends[0]
-	dst = append(dst, xy{X: float64(e0.epoch - 1), Y: float64(c.first - 1)})
+	dst = append(dst, chart.Point{X: float64(e0.epoch - 1), Y: float64(c.first - 1)})
 	for i := 0; i < n-1; i++ {
-		dst = append(dst, xy{X: float64(c.ends[i].epoch), Y: float64(c.ends[i].step)})
+		dst = append(dst, chart.Point{X: float64(c.ends[i].epoch), Y: float64(c.ends[i].step)})
 	}
 	last := c.ends[n-1]
 	prev := dst[len(dst)-1]
@@ -187,29 +189,29 @@ func (c *stepClock) knots(dst []xy) []xy {
 	span := float64(last.epoch) - prev.X
 	if pace <= 0 || float64(last.step)-prev.Y > pace*span {
 		// First epoch, or the epoch is longer than the last one: it ends at its last step.
-		dst = append(dst, xy{X: float64(last.epoch), Y: float64(last.step)})
+		dst = append(dst, chart.Point{X: float64(last.epoch), Y: float64(last.step)})
 	} else {
-		dst = append(dst, xy{X: float64(last.epoch), Y: prev.Y + pace*span})
+		dst = append(dst, chart.Point{X: float64(last.epoch), Y: prev.Y + pace*span})
 	}
 	return dst
 }
 
 // stepAt maps an epoch position to a step on the knots (both increasing),
 // extrapolating flat beyond the ends.
-func stepAt(knots []xy, x float64) float64 { return interpolate(knots, x, false) }
+func stepAt(knots []chart.Point, x float64) float64 { return interpolate(knots, x, false) }
 
 // epochAt maps a step to an epoch position, the inverse of stepAt.
-func epochAt(knots []xy, step float64) float64 { return interpolate(knots, step, true) }
+func epochAt(knots []chart.Point, step float64) float64 { return interpolate(knots, step, true) }
 
 // interpolate reads the piecewise-linear map through the knots at v: Y at
 // X = v, or with inverse X at Y = v (both coordinates increase, so the map
 // can be read either way), flat beyond the ends.
-func interpolate(knots []xy, v float64, inverse bool) float64 {
+func interpolate(knots []chart.Point, v float64, inverse bool) float64 {
 	n := len(knots)
 	if n == 0 {
 		return 0
 	}
-	in, out := func(p xy) float64 { return p.X }, func(p xy) float64 { return p.Y }
+	in, out := func(p chart.Point) float64 { return p.X }, func(p chart.Point) float64 { return p.Y }
 	if inverse {
 		in, out = out, in
 	}

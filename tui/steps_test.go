@@ -3,6 +3,8 @@ package tui
 import (
 	"math"
 	"testing"
+
+	"github.com/fitgap/fitgap/tui/chart"
 )
 
 // naiveMinMax is the reference for stepSeries.minMax: a plain scan.
@@ -79,7 +81,7 @@ func TestStepClock_Knots(t *testing.T) {
 		c.observe(int((st-1)/100)+1, st)
 	}
 	k := c.knots(nil)
-	want := []xy{{0, 0}, {1, 100}, {2, 200}, {3, 300}}
+	want := []chart.Point{{X: 0, Y: 0}, {X: 1, Y: 100}, {X: 2, Y: 200}, {X: 3, Y: 300}}
 	if len(k) != len(want) {
 		t.Fatalf("knots = %v, want %v", k, want)
 	}
