@@ -8,10 +8,6 @@ import (
 	"github.com/fitgap/fitgap/tui/chart"
 )
 
-// yHeadroom is the share of the y span added above and below the data, so
-// the extreme points do not sit on the frame.
-const yHeadroom = 0.04
-
 // maxBadMarks caps the '!' marks of non-finite values: one per column is
 // all a chart can show.
 const maxBadMarks = 512
@@ -105,18 +101,7 @@ func (m *Model) chartLines(j diagnose.Judgement, w, h int) []string {
 	if !(hi >= lo) {
 		return m.emptyChart(w, h, title)
 	}
-	if hi == lo {
-		d := math.Max(math.Abs(lo)*0.1, 0.05)
-		if m.logY {
-			d = 0.5
-		}
-		lo, hi = lo-d, hi+d
-	}
-	pad := (hi - lo) * yHeadroom
-	spec.YMin, spec.YMax = lo-pad, hi+pad
-	if !m.logY && lo >= 0 && spec.YMin < 0 {
-		spec.YMin = 0 // errors and losses are not negative: keep 0 as the floor
-	}
+	spec.YMin, spec.YMax = chart.YAxis(lo, hi, m.logY)
 	if rng.Clipped() {
 		// Only the first few epochs can fall outside: mark where they are.
 		for _, cv := range spec.Curves {

@@ -9,8 +9,8 @@
 // escape sequences. The pieces:
 //
 //   - Chart.Draw renders a Spec at a size into reused scratch memory.
-//   - YRange picks the y range, leaving a steep first few epochs off the
-//     scale so they do not squash the rest.
+//   - YRange and YAxis pick the y range, leaving a steep first few epochs
+//     off the scale so they do not squash the rest.
 //   - LTTB, LTTBRuns and LTTBBucket downsample a series to about what the
 //     plot can show (largest-triangle-three-buckets, keeping gaps).
 //   - Sparkline draws a one-row column chart of a window of values.

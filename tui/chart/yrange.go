@@ -73,9 +73,8 @@ func (r *YRange) Limits() (lo, hi float64) {
 	}
 	span := r.chi - r.clo
 	if span <= 0 {
-		// A flat rest: give it the room a flat chart gets (the caller pads
-		// a flat range by a tenth of its value, at least 0.05).
-		span = math.Max(math.Abs(r.chi)*0.1, 0.05)
+		// A flat rest: give it the room a flat chart gets (see YAxis).
+		span = flatRoom(r.chi)
 	}
 	room := earlyRoom * span
 	if top := r.chi + room; hi > top {
@@ -85,6 +84,36 @@ func (r *YRange) Limits() (lo, hi float64) {
 		lo, r.cutLo = bottom, true
 	}
 	return lo, hi
+}
+
+// yHeadroom is the share of the y span added above and below the data, so
+// the extreme points do not sit on the frame.
+const yHeadroom = 0.04
+
+// flatRoom is how far a flat range at v is widened each way on a linear
+// axis: a tenth of the value, at least 0.05, so a constant error or loss
+// sits mid-plot with round ticks around it.
+func flatRoom(v float64) float64 { return math.Max(math.Abs(v)*0.1, 0.05) }
+
+// YAxis returns the y axis' range for values spanning [lo, hi] (plotted
+// units, lo ≤ hi): a flat range widened by flatRoom (half a decade each
+// way on a log axis), then yHeadroom of the span added each way, except
+// below 0 when no value is negative on a linear axis: errors and losses
+// are not negative, so 0 stays the floor.
+func YAxis(lo, hi float64, logY bool) (ymin, ymax float64) {
+	if hi == lo {
+		d := flatRoom(lo)
+		if logY {
+			d = 0.5
+		}
+		lo, hi = lo-d, hi+d
+	}
+	pad := (hi - lo) * yHeadroom
+	ymin, ymax = lo-pad, hi+pad
+	if !logY && lo >= 0 && ymin < 0 {
+		ymin = 0
+	}
+	return ymin, ymax
 }
 
 // Skip is how many leading rows Limits may leave off the scale.

@@ -57,3 +57,33 @@ func TestYRange_Limits(t *testing.T) {
 		})
 	}
 }
+
+func TestYAxis(t *testing.T) {
+	tests := []struct {
+		name       string
+		lo, hi     float64
+		logY       bool
+		ymin, ymax float64
+	}{
+		// 4% headroom of the span each way.
+		{"Headroom", 0.2, 0.7, false, 0.18, 0.72},
+		// Errors and losses are not negative: 0 stays the floor.
+		{"FloorAtZero", 0.01, 0.51, false, 0, 0.53},
+		{"NegativeValues", -1, 1, false, -1.08, 1.08},
+		// A flat range: a tenth of the value each way, at least 0.05.
+		{"FlatLarge", 2, 2, false, 1.8 - 0.016, 2.2 + 0.016},
+		{"FlatSmall", 0.1, 0.1, false, 0.05 - 0.004, 0.15 + 0.004},
+		// On a log axis a flat range gets half a decade each way, and the
+		// floor does not apply (log10 of a value below 1 is negative).
+		{"FlatLog", -1, -1, true, -1.54, -0.46},
+		{"Log", -2, 0, true, -2.08, 0.08},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			ymin, ymax := YAxis(tt.lo, tt.hi, tt.logY)
+			if math.Abs(ymin-tt.ymin) > 1e-12 || math.Abs(ymax-tt.ymax) > 1e-12 {
+				t.Errorf("YAxis(%g, %g, log %v) = [%g, %g], want [%g, %g]", tt.lo, tt.hi, tt.logY, ymin, ymax, tt.ymin, tt.ymax)
+			}
+		})
+	}
+}
