@@ -78,11 +78,11 @@ func (m *Model) chartLines(j diagnose.Judgement, w, h int) []string {
 	lo, hi := rng.Limits()
 	if band := m.band(metric); band != nil {
 		spec.Band, spec.BandLabel = band, "per step"
-		last := band.series.steps[len(band.series.steps)-1]
+		last := band.series.lastStep()
 		endX := epochAt(band.knots, float64(last))
 		if len(rows) == 0 {
 			spec.XMin, spec.XMax = band.knots[0].X, endX
-			if bl, bh, ok := band.series.minMax(0, len(band.series.steps)); ok {
+			if bl, bh, ok := band.series.minMax(0, len(band.series.blocks)); ok {
 				a, b := band.conv(bl), band.conv(bh)
 				lo, hi = math.Min(a, b), math.Max(a, b)
 			}
