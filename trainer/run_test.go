@@ -362,14 +362,12 @@ func TestRun_StopsOnContext(t *testing.T) {
 }
 
 // A training epoch and its measurement allocate nothing: the buffers are
-// made once per run.
+// made once per run (at test scale: the sizes do not change the code path).
 func TestTrainer_EpochAllocatesNothing(t *testing.T) {
 	for _, sc := range []Scenario{Overfit, Mismatch} {
 		t.Run(sc.String(), func(t *testing.T) {
-			tr, err := newTrainer(Config{Scenario: sc, Epochs: 5})
-			if err != nil {
-				t.Fatal(err)
-			}
+			r, cfg := scaled(t, Config{Scenario: sc, Epochs: 5})
+			tr := newTrainerWith(cfg, r)
 			var rec epochRecord
 			allocs := testing.AllocsPerRun(2, func() {
 				tr.epoch(1)
