@@ -31,4 +31,4 @@ bench:
 
 # Regenerate the golden files of the screen and the summaries.
 golden:
-	$(GO) test ./tui ./report -update
+	$(GO) test ./tui ./tui/chart ./report -update

@@ -2,7 +2,6 @@ package trainer
 
 import (
 	"bytes"
-	"context"
 	"encoding/csv"
 	"math"
 	"strconv"
@@ -52,15 +51,12 @@ func parseCSVLog(t *testing.T, b []byte) metricsLog {
 	return l
 }
 
-// runCSV trains cfg at full speed and returns its CSV log.
+// runCSV trains cfg at its test scale (see testScales) and returns its
+// CSV log.
 func runCSV(t *testing.T, cfg Config) metricsLog {
 	t.Helper()
 	cfg.Format = CSV
-	var buf bytes.Buffer
-	if err := Run(context.Background(), cfg, &buf); err != nil {
-		t.Fatalf("Run(%+v): %v", cfg, err)
-	}
-	return parseCSVLog(t, buf.Bytes())
+	return parseCSVLog(t, runScaled(t, cfg))
 }
 
 // tailMean is the mean of the last n values: the end of a curve with the

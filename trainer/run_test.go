@@ -15,16 +15,6 @@ import (
 	"time"
 )
 
-// runLog trains cfg at full speed and returns the log bytes.
-func runLog(t *testing.T, cfg Config) []byte {
-	t.Helper()
-	var buf bytes.Buffer
-	if err := Run(context.Background(), cfg, &buf); err != nil {
-		t.Fatalf("Run(%+v): %v", cfg, err)
-	}
-	return buf.Bytes()
-}
-
 // secondsField matches the measured epoch_seconds value in every format.
 var secondsField = regexp.MustCompile(`(epoch_seconds"?: ?)[0-9.]+|,[0-9.]+$`)
 
@@ -38,7 +28,8 @@ func withoutSeconds(b []byte) string {
 }
 
 // The same seed writes the same log, apart from the measured seconds; the
-// diverge runs include the non-finite values.
+// diverge runs include the non-finite values. The runs are at test scale:
+// the code path is the demo's, only the sizes are smaller.
 func TestRun_Deterministic(t *testing.T) {
 	for _, f := range []LogFormat{CSV, JSONL, Text} {
 		for _, sc := range Scenarios() {
@@ -48,12 +39,12 @@ func TestRun_Deterministic(t *testing.T) {
 				if sc == Diverge {
 					cfg.Epochs = 0 // all the way to the NaNs
 				}
-				a, b := withoutSeconds(runLog(t, cfg)), withoutSeconds(runLog(t, cfg))
+				a, b := withoutSeconds(runScaled(t, cfg)), withoutSeconds(runScaled(t, cfg))
 				if a != b {
 					t.Errorf("two runs of %+v differ:\n%s\n---\n%s", cfg, a, b)
 				}
 				cfg.Seed = 6
-				if c := withoutSeconds(runLog(t, cfg)); c == a {
+				if c := withoutSeconds(runScaled(t, cfg)); c == a {
 					t.Errorf("seeds 5 and 6 wrote the same log:\n%s", c)
 				}
 			})
@@ -99,7 +90,7 @@ var (
 )
 
 // Every format parses with an ordinary reader of that format, names the
-// same columns, and carries the same numbers as the others.
+// same columns, and carries the same numbers as the others (at test scale).
 func TestRun_EveryFormatParses(t *testing.T) {
 	for _, sc := range []Scenario{Diverge, Mismatch, Balanced} {
 		t.Run(sc.String(), func(t *testing.T) {
@@ -109,7 +100,7 @@ func TestRun_EveryFormatParses(t *testing.T) {
 				cfg.Epochs = 0
 			}
 			cfg.Format = CSV
-			csvLog := parseCSVLog(t, runLog(t, cfg))
+			csvLog := parseCSVLog(t, runScaled(t, cfg))
 			wantCols := []string{"epoch", "loss", "acc", "val_loss", "val_acc", "lr", "epoch_seconds"}
 			if sc == Mismatch {
 				wantCols = []string{"epoch", "loss", "acc", "train_dev_loss", "train_dev_acc", "val_loss", "val_acc", "lr", "epoch_seconds"}
@@ -120,7 +111,7 @@ func TestRun_EveryFormatParses(t *testing.T) {
 
 			cfg.Format = JSONL
 			var jsonRows []map[string]float64
-			for i, line := range strings.Split(strings.TrimSuffix(string(runLog(t, cfg)), "\n"), "\n") {
+			for i, line := range strings.Split(strings.TrimSuffix(string(runScaled(t, cfg)), "\n"), "\n") {
 				row, err := decodeJSONLine(line)
 				if err != nil {
 					t.Fatalf("JSONL line %d %q: %v", i+1, line, err)
@@ -132,7 +123,7 @@ func TestRun_EveryFormatParses(t *testing.T) {
 			}
 
 			cfg.Format = Text
-			lines := strings.Split(strings.TrimSuffix(string(runLog(t, cfg)), "\n"), "\n")
+			lines := strings.Split(strings.TrimSuffix(string(runScaled(t, cfg)), "\n"), "\n")
 			if !strings.HasPrefix(lines[0], "Training a ") || strings.Contains(lines[0], ":") {
 				t.Errorf("text intro %q: want a prose line without name: value pairs", lines[0])
 			}
@@ -371,14 +362,12 @@ func TestRun_StopsOnContext(t *testing.T) {
 }
 
 // A training epoch and its measurement allocate nothing: the buffers are
-// made once per run.
+// made once per run (at test scale: the sizes do not change the code path).
 func TestTrainer_EpochAllocatesNothing(t *testing.T) {
 	for _, sc := range []Scenario{Overfit, Mismatch} {
 		t.Run(sc.String(), func(t *testing.T) {
-			tr, err := newTrainer(Config{Scenario: sc, Epochs: 5})
-			if err != nil {
-				t.Fatal(err)
-			}
+			r, cfg := scaled(t, Config{Scenario: sc, Epochs: 5})
+			tr := newTrainerWith(cfg, r)
 			var rec epochRecord
 			allocs := testing.AllocsPerRun(2, func() {
 				tr.epoch(1)

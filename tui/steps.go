@@ -3,119 +3,117 @@ package tui
 import (
 	"math"
 	"sort"
+
+	"github.com/fitgap/fitgap/tui/chart"
 )
 
-// stepBlock is the number of per-step samples summarised by one min/max
-// block. With 64, a 1,000,000-step series has 15,625 blocks, and the min and
-// max over any step range cost at most 2×64 raw reads plus one read per
-// block: the chart rebuild stays well under a millisecond per series at
-// 400 braille columns (measured in BenchmarkRebuild).
-const stepBlock = 64
+// maxStepBlocks bounds the summary of one per-step series. Samples go into
+// blocks of width consecutive steps, each keeping only its first and last
+// step and the least and greatest finite value; when every block is full,
+// neighbours merge pairwise and width doubles. Memory stays at most
+// maxStepBlocks × 32 B = 128 KiB a series however long the run, and a
+// chart 200 columns wide (400 braille dot columns) still draws its band
+// from at least 2048/400 ≈ 5 blocks a dot column over a whole run. Below
+// maxStepBlocks samples a block holds one sample and the band is exact.
+const maxStepBlocks = 4096
 
-// stepSeries is one per-step column in our own store: the raw values in
-// step order and a min/max per block of stepBlock samples, so the chart can
-// take the min and max of any step range without walking every sample.
-// float32 halves the memory of a million-step run; a curve drawn on a few
-// hundred rows cannot show the difference.
+// stepBlock summarises width (or, for the last one, fewer) consecutive
+// samples of a per-step series.
+type stepBlock struct {
+	first, last int64   // steps of the block's first and last sample
+	lo, hi      float32 // least and greatest finite value; +Inf and −Inf when none
+	n           int32   // samples
+}
+
+// stepSeries is one per-step column in the screen's store, downsampled as
+// it arrives: the chart only ever asks for the min and max of the samples
+// under a braille column, so the raw values are not kept. float32 is
+// plenty for a curve drawn on a few hundred rows.
 type stepSeries struct {
-	steps []int64
-	vals  []float32
-	bmin  []float32 // per full or partial block; NaN-free (NaN samples are skipped)
-	bmax  []float32
-	bany  []bool // the block holds at least one finite value
+	width  int32 // samples a full block holds: a power of two, 1 at first
+	blocks []stepBlock
 }
 
 // add appends one sample. A step not above the last one replaces the samples
 // from that step on: the run was resumed from a checkpoint, and the old
 // future did not happen.
 func (s *stepSeries) add(step int64, v float64) {
-	if n := len(s.steps); n > 0 && step <= s.steps[n-1] {
-		s.truncate(sort.Search(n, func(i int) bool { return s.steps[i] >= step }))
+	if n := len(s.blocks); n > 0 && step <= s.blocks[n-1].last {
+		s.truncate(step)
 	}
-	s.steps = append(s.steps, step)
-	f := float32(v)
-	s.vals = append(s.vals, f)
-	i := len(s.vals) - 1
-	if i%stepBlock == 0 {
-		s.bmin = append(s.bmin, float32(math.Inf(1)))
-		s.bmax = append(s.bmax, float32(math.Inf(-1)))
-		s.bany = append(s.bany, false)
+	if s.width == 0 {
+		s.width = 1
 	}
-	if isFinite(v) && !math.IsInf(float64(f), 0) {
-		b := i / stepBlock
-		if f < s.bmin[b] {
-			s.bmin[b] = f
+	if n := len(s.blocks); n == 0 || s.blocks[n-1].n >= s.width {
+		if n == maxStepBlocks {
+			s.halve()
 		}
-		if f > s.bmax[b] {
-			s.bmax[b] = f
-		}
-		s.bany[b] = true
+		s.blocks = append(s.blocks, stepBlock{first: step, lo: float32(math.Inf(1)), hi: float32(math.Inf(-1))})
+	}
+	b := &s.blocks[len(s.blocks)-1]
+	b.last = step
+	b.n++
+	if f := float32(v); isFinite(v) && !math.IsInf(float64(f), 0) {
+		b.lo = min(b.lo, f)
+		b.hi = max(b.hi, f)
 	}
 }
 
-// truncate keeps the first n samples and recomputes the last block.
-func (s *stepSeries) truncate(n int) {
-	if n >= len(s.steps) {
-		return
-	}
-	s.steps = s.steps[:n]
-	s.vals = s.vals[:n]
-	nb := (n + stepBlock - 1) / stepBlock
-	s.bmin, s.bmax, s.bany = s.bmin[:nb], s.bmax[:nb], s.bany[:nb]
-	if nb == 0 {
-		return
-	}
-	b := nb - 1
-	s.bmin[b], s.bmax[b], s.bany[b] = float32(math.Inf(1)), float32(math.Inf(-1)), false
-	for i := b * stepBlock; i < n; i++ {
-		f := s.vals[i]
-		if isFinite(float64(f)) {
-			s.bmin[b] = min(s.bmin[b], f)
-			s.bmax[b] = max(s.bmax[b], f)
-			s.bany[b] = true
+// halve merges the blocks, all full, pairwise: width doubles.
+func (s *stepSeries) halve() {
+	k := 0
+	for i := 0; i < len(s.blocks); i += 2 {
+		b := s.blocks[i]
+		if i+1 < len(s.blocks) {
+			c := s.blocks[i+1]
+			b.last, b.n = c.last, b.n+c.n
+			b.lo, b.hi = min(b.lo, c.lo), max(b.hi, c.hi)
 		}
+		s.blocks[k] = b
+		k++
 	}
+	s.blocks = s.blocks[:k]
+	s.width *= 2
 }
 
-// indexRange returns the sample indices [i, j) whose steps lie in [lo, hi).
+// truncate drops the samples from step on. A block that began before step
+// and went on past it mixes samples that stay with samples that did not
+// happen, and its min and max cannot be taken apart: it goes too (at most
+// width−1 kept samples lost from the band, where an abandoned stretch is
+// often the one that diverged). With one sample a block, none is lost.
+func (s *stepSeries) truncate(step int64) {
+	k := sort.Search(len(s.blocks), func(i int) bool { return s.blocks[i].first >= step })
+	if k > 0 && s.blocks[k-1].last >= step {
+		k--
+	}
+	s.blocks = s.blocks[:k]
+}
+
+// empty reports whether the series holds no sample.
+func (s *stepSeries) empty() bool { return len(s.blocks) == 0 }
+
+// lastStep is the step of the latest sample; the series must not be empty.
+func (s *stepSeries) lastStep() int64 { return s.blocks[len(s.blocks)-1].last }
+
+// indexRange returns the blocks [i, j) whose first steps lie in [lo, hi):
+// each block belongs to the range its first sample falls in.
 func (s *stepSeries) indexRange(lo, hi int64) (int, int) {
-	i := sort.Search(len(s.steps), func(k int) bool { return s.steps[k] >= lo })
-	j := i + sort.Search(len(s.steps)-i, func(k int) bool { return s.steps[i+k] >= hi })
+	i := sort.Search(len(s.blocks), func(k int) bool { return s.blocks[k].first >= lo })
+	j := i + sort.Search(len(s.blocks)-i, func(k int) bool { return s.blocks[i+k].first >= hi })
 	return i, j
 }
 
-// minMax returns the minimum and maximum finite value of samples [i, j),
-// reading whole blocks from the summary. ok is false when there is none.
+// minMax returns the least and greatest finite value of blocks [i, j) (of
+// the whole series with 0, len). ok is false when there is none.
 func (s *stepSeries) minMax(i, j int) (lo, hi float64, ok bool) {
 	l, h := float32(math.Inf(1)), float32(math.Inf(-1))
-	scan := func(a, b int) {
-		for k := a; k < b; k++ {
-			f := s.vals[k]
-			if f == f && !math.IsInf(float64(f), 0) {
-				if f < l {
-					l = f
-				}
-				if f > h {
-					h = f
-				}
-				ok = true
-			}
-		}
+	for _, b := range s.blocks[i:j] {
+		l, h = min(l, b.lo), max(h, b.hi)
 	}
-	for i < j && i%stepBlock != 0 {
-		scan(i, i+1)
-		i++
+	if l > h {
+		return 0, 0, false
 	}
-	for ; i+stepBlock <= j; i += stepBlock {
-		b := i / stepBlock
-		if s.bany[b] {
-			l = min(l, s.bmin[b])
-			h = max(h, s.bmax[b])
-			ok = true
-		}
-	}
-	scan(i, j)
-	return float64(l), float64(h), ok
+	return float64(l), float64(h), true
 }
 
 // epochEnd is the last step seen in one epoch of the per-step rows: the
@@ -164,16 +162,16 @@ func (c *stepClock) observe(epoch int, step int64) {
 // knots returns the piecewise-linear map as (epoch position, step) pairs:
 // the start of the first epoch, then the end of each epoch. The end of the
 // last epoch is extrapolated from the pace of the one before it.
-func (c *stepClock) knots(dst []xy) []xy {
+func (c *stepClock) knots(dst []chart.Point) []chart.Point {
 	dst = dst[:0]
 	n := len(c.ends)
 	if n == 0 {
 		return dst
 	}
 	e0 := c.ends[0]
-	dst = append(dst, xy{X: float64(e0.epoch - 1), Y: float64(c.first - 1)})
+	dst = append(dst, chart.Point{X: float64(e0.epoch - 1), Y: float64(c.first - 1)})
 	for i := 0; i < n-1; i++ {
-		dst = append(dst, xy{X: float64(c.ends[i].epoch), Y: float64(c.ends[i].step)})
+		dst = append(dst, chart.Point{X: float64(c.ends[i].epoch), Y: float64(c.ends[i].step)})
 	}
 	last := c.ends[n-1]
 	prev := dst[len(dst)-1]
@@ -187,29 +185,29 @@ func (c *stepClock) knots(dst []xy) []xy {
 	span := float64(last.epoch) - prev.X
 	if pace <= 0 || float64(last.step)-prev.Y > pace*span {
 		// First epoch, or the epoch is longer than the last one: it ends at its last step.
-		dst = append(dst, xy{X: float64(last.epoch), Y: float64(last.step)})
+		dst = append(dst, chart.Point{X: float64(last.epoch), Y: float64(last.step)})
 	} else {
-		dst = append(dst, xy{X: float64(last.epoch), Y: prev.Y + pace*span})
+		dst = append(dst, chart.Point{X: float64(last.epoch), Y: prev.Y + pace*span})
 	}
 	return dst
 }
 
 // stepAt maps an epoch position to a step on the knots (both increasing),
 // extrapolating flat beyond the ends.
-func stepAt(knots []xy, x float64) float64 { return interpolate(knots, x, false) }
+func stepAt(knots []chart.Point, x float64) float64 { return interpolate(knots, x, false) }
 
 // epochAt maps a step to an epoch position, the inverse of stepAt.
-func epochAt(knots []xy, step float64) float64 { return interpolate(knots, step, true) }
+func epochAt(knots []chart.Point, step float64) float64 { return interpolate(knots, step, true) }
 
 // interpolate reads the piecewise-linear map through the knots at v: Y at
 // X = v, or with inverse X at Y = v (both coordinates increase, so the map
 // can be read either way), flat beyond the ends.
-func interpolate(knots []xy, v float64, inverse bool) float64 {
+func interpolate(knots []chart.Point, v float64, inverse bool) float64 {
 	n := len(knots)
 	if n == 0 {
 		return 0
 	}
-	in, out := func(p xy) float64 { return p.X }, func(p xy) float64 { return p.Y }
+	in, out := func(p chart.Point) float64 { return p.X }, func(p chart.Point) float64 { return p.Y }
 	if inverse {
 		in, out = out, in
 	}

@@ -3,47 +3,134 @@ package tui
 import (
 	"math"
 	"testing"
+
+	"github.com/fitgap/fitgap/tui/chart"
 )
 
-// naiveMinMax is the reference for stepSeries.minMax: a plain scan.
-func naiveMinMax(vals []float32, i, j int) (float64, float64, bool) {
-	lo, hi, ok := math.Inf(1), math.Inf(-1), false
-	for k := i; k < j; k++ {
-		v := float64(vals[k])
-		if isFinite(v) {
-			lo, hi, ok = math.Min(lo, v), math.Max(hi, v), true
+// naiveMinMax is the reference for stepSeries.minMax: a plain scan of the
+// values whose steps lie in [lo, hi].
+func naiveMinMax(steps []int64, vals []float64, lo, hi int64) (float64, float64, bool) {
+	l, h, ok := math.Inf(1), math.Inf(-1), false
+	for k, st := range steps {
+		if v := float64(float32(vals[k])); st >= lo && st <= hi && isFinite(v) {
+			l, h, ok = math.Min(l, v), math.Max(h, v), true
 		}
 	}
-	return lo, hi, ok
+	return l, h, ok
 }
 
-// TestStepSeries_MinMaxMatchesScan checks the block summary against a
-// plain scan on every range of a series that spans several blocks, with
-// gaps and a rewind.
-func TestStepSeries_MinMaxMatchesScan(t *testing.T) {
+// stepWave is the value of a test series at step k: a wave, with a NaN
+// now and then.
+func stepWave(k int) float64 {
+	if k%29 == 5 {
+		return math.NaN()
+	}
+	return math.Sin(float64(k) * 0.61)
+}
+
+// TestStepSeries_ExactBelowTheCap: while a block holds one sample, every
+// range's min and max are those of a plain scan, across a rewind.
+func TestStepSeries_ExactBelowTheCap(t *testing.T) {
 	var s stepSeries
-	for k := 0; k < 3*stepBlock+17; k++ {
-		v := math.Sin(float64(k) * 0.61)
-		if k%29 == 5 {
-			v = math.NaN()
+	var steps []int64
+	var vals []float64
+	add := func(st int64, v float64) {
+		s.add(st, v)
+		k := len(steps)
+		for k > 0 && steps[k-1] >= st {
+			k--
 		}
-		s.add(int64(k*2), v)
+		steps, vals = append(steps[:k], st), append(vals[:k], v)
+	}
+	for k := 0; k < 300; k++ {
+		add(int64(k*2), stepWave(k))
 	}
 	// A resume from step 150 drops the later samples.
-	s.add(150, 9)
-	s.add(152, -9)
-	if got := s.steps[len(s.steps)-1]; got != 152 {
-		t.Fatalf("last step %d after rewind, want 152", got)
+	add(150, 9)
+	add(152, -9)
+	if got := s.lastStep(); got != 152 || len(s.blocks) != len(steps) {
+		t.Fatalf("after the rewind: last step %d, %d blocks; want 152 and %d", got, len(s.blocks), len(steps))
 	}
-	n := len(s.vals)
-	for i := 0; i <= n; i++ {
-		for j := i; j <= n; j++ {
+	for i := 0; i <= len(steps); i++ {
+		for j := i; j <= len(steps); j++ {
 			gl, gh, gok := s.minMax(i, j)
-			wl, wh, wok := naiveMinMax(s.vals, i, j)
+			var wl, wh float64
+			wok := false
+			if j > i {
+				wl, wh, wok = naiveMinMax(steps, vals, steps[i], steps[j-1])
+			}
 			if gok != wok || (gok && (gl != wl || gh != wh)) {
 				t.Fatalf("minMax(%d,%d) = %v %v %v, want %v %v %v", i, j, gl, gh, gok, wl, wh, wok)
 			}
 		}
+	}
+}
+
+// TestStepSeries_BoundedAndTrue: a million steps fit in maxStepBlocks
+// blocks, and each block's min and max are those of the steps it covers.
+func TestStepSeries_BoundedAndTrue(t *testing.T) {
+	const n = 1_000_000
+	var s stepSeries
+	steps := make([]int64, n)
+	vals := make([]float64, n)
+	for k := range n {
+		steps[k], vals[k] = int64(k+1), stepWave(k)
+		s.add(steps[k], vals[k])
+	}
+	if len(s.blocks) > maxStepBlocks || len(s.blocks) < maxStepBlocks/2 {
+		t.Fatalf("%d blocks for %d steps, want between %d and %d", len(s.blocks), n, maxStepBlocks/2, maxStepBlocks)
+	}
+	if s.lastStep() != n {
+		t.Errorf("last step %d, want %d", s.lastStep(), n)
+	}
+	total := int64(0)
+	for i, b := range s.blocks {
+		total += int64(b.n)
+		if i > 0 && b.first != s.blocks[i-1].last+1 {
+			t.Fatalf("block %d starts at step %d after one that ended at %d", i, b.first, s.blocks[i-1].last)
+		}
+		gl, gh, gok := s.minMax(i, i+1)
+		wl, wh, wok := naiveMinMax(steps[b.first-1:b.last], vals[b.first-1:b.last], b.first, b.last)
+		if gok != wok || gl != wl || gh != wh {
+			t.Fatalf("block %d (steps %d–%d): %v %v %v, want %v %v %v", i, b.first, b.last, gl, gh, gok, wl, wh, wok)
+		}
+	}
+	if total != n {
+		t.Errorf("blocks hold %d samples, want %d", total, n)
+	}
+}
+
+// TestStepSeries_RewindDropsAbandonedSteps: a resume drops every block
+// from the resumed step on, and a merged block that straddles it, so no
+// value of the abandoned stretch stays in the band.
+func TestStepSeries_RewindDropsAbandonedSteps(t *testing.T) {
+	// After 3·maxStepBlocks samples a block holds 4; the resumed step falls
+	// inside one, so that block mixes kept and abandoned samples.
+	const resume = 2*maxStepBlocks + 103
+	var s stepSeries
+	for k := 1; k <= 3*maxStepBlocks; k++ {
+		v := 0.5
+		if k >= resume {
+			v = 1e6 // the stretch that diverged
+		}
+		s.add(int64(k), v)
+	}
+	if s.width != 4 {
+		t.Fatalf("width %d, want 4", s.width)
+	}
+	s.add(resume, 0.25) // resumed from a checkpoint
+	if _, hi, _ := s.minMax(0, len(s.blocks)); hi > 1 {
+		t.Errorf("the band still holds %g from the abandoned steps", hi)
+	}
+	if got := s.lastStep(); got != resume {
+		t.Errorf("last step %d, want %d", got, resume)
+	}
+	kept := 0
+	for _, b := range s.blocks[:len(s.blocks)-1] {
+		kept += int(b.n)
+	}
+	if lost := resume - 1 - kept; lost != 2 {
+		t.Errorf("%d kept samples lost, want the 2 before the resumed step in its block", lost)
 	}
 }
 
@@ -79,7 +166,7 @@ func TestStepClock_Knots(t *testing.T) {
 		c.observe(int((st-1)/100)+1, st)
 	}
 	k := c.knots(nil)
-	want := []xy{{0, 0}, {1, 100}, {2, 200}, {3, 300}}
+	want := []chart.Point{{X: 0, Y: 0}, {X: 1, Y: 100}, {X: 2, Y: 200}, {X: 3, Y: 300}}
 	if len(k) != len(want) {
 		t.Fatalf("knots = %v, want %v", k, want)
 	}

@@ -206,7 +206,7 @@ func (s *store) addStep(r diagnose.StepRow) {
 func (s *store) trainSteps(base string) (*stepSeries, diagnose.Column, bool) {
 	for _, name := range s.stepOrder {
 		m := s.stepMeta[name]
-		if m.Base == base && m.Split == diagnose.SplitTrain && len(s.steps[name].steps) > 0 {
+		if m.Base == base && m.Split == diagnose.SplitTrain && !s.steps[name].empty() {
 			return s.steps[name], m, true
 		}
 	}

@@ -4,6 +4,8 @@ import (
 	"strings"
 
 	"github.com/charmbracelet/lipgloss"
+
+	"github.com/fitgap/fitgap/tui/chart"
 )
 
 // Colours are chosen in pairs, one for light and one for dark terminals, so
@@ -29,9 +31,10 @@ var (
 )
 
 // class names the role of a chart cell or a run of text; the Styles hold
-// one style per class, and the cell renderer groups neighbouring cells of
-// one class into one styled run.
-type class uint8
+// one style per class, and the chart's cell renderer groups neighbouring
+// cells of one class into one styled run. A class is the chart's ink, and
+// clsPlain its plain ink 0.
+type class = chart.Ink
 
 const (
 	clsPlain class = iota
@@ -166,6 +169,15 @@ func splitStyle(st lipgloss.Style) (pre, post string) {
 		return "", ""
 	}
 	return out[:i], out[i+1:]
+}
+
+// Escapes returns the escape sequences around a run of class c: the
+// Styles are the chart package's Palette.
+func (s *Styles) Escapes(c chart.Ink) (pre, post string) {
+	if int(c) >= len(s.pre) {
+		return "", ""
+	}
+	return s.pre[c], s.post[c]
 }
 
 // paint wraps already-clean text in a class's escape sequences.

@@ -1,12 +1,13 @@
 package tui
 
 import (
+	"math"
 	"strings"
 
-	"github.com/NimbleMarkets/ntcharts/sparkline"
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/tui/chart"
 )
 
 // frame is the render cache: the strings View joins, and the scratch
@@ -17,16 +18,16 @@ type frame struct {
 	body   string // the lines between the status line and the bottom line
 	bottom string // key help, or a flash message
 
-	chart  curveChart
-	spark  cells
-	raw    [3][]xy
-	ds     [3][]xy
-	vals   []xy
-	dsv    []xy
+	chart  chart.Chart
+	spark  chart.Grid
+	raw    [3][]chart.Point
+	ds     [3][]chart.Point
+	vals   []chart.Point
+	dsv    []chart.Point
 	ys     []float64
 	runes  []rune
-	sparks []*sparkline.Model // one per sparkline slot, reused while its width holds
-	knots  []xy
+	sparks []chart.Sparkline // one per sparkline slot
+	knots  []chart.Point
 
 	keyLine   string  // the short key help, for keyLineW columns and keyLineSt
 	keyLineW  int     //
@@ -251,6 +252,9 @@ func fit(s string, w int) string {
 	return ansi.Truncate(s, w, "…")
 }
 
+// ansiLen is the width of text on the terminal, in columns.
+func ansiLen(s string) int { return ansi.StringWidth(s) }
+
 // pad fills a styled line with spaces to w columns.
 func pad(s string, w int) string {
 	if n := w - ansi.StringWidth(s); n > 0 {
@@ -269,4 +273,13 @@ func wrap(s string, w int) []string {
 		out[i] = strings.TrimRight(out[i], " ")
 	}
 	return out
+}
+
+func isFinite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+func clampInt(v, lo, hi int) int {
+	if hi < lo {
+		return lo
+	}
+	return min(max(v, lo), hi)
 }

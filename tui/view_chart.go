@@ -5,11 +5,8 @@ import (
 	"sort"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/tui/chart"
 )
-
-// yHeadroom is the share of the y span added above and below the data, so
-// the extreme points do not sit on the frame.
-const yHeadroom = 0.04
 
 // maxBadMarks caps the '!' marks of non-finite values: one per column is
 // all a chart can show.
@@ -45,87 +42,76 @@ func (m *Model) chartLines(j diagnose.Judgement, w, h int) []string {
 	if m.logY {
 		title += " · log"
 	}
-	spec := chartSpec{title: title, logY: m.logY, percent: isRateMetric(metric)}
+	spec := chart.Spec{Title: title, LogY: m.logY, Percent: isRateMetric(metric), Inks: chartInks}
 
 	// Raw series into our scratch, then downsampled: about two points per
 	// braille column is what the plot can show.
 	threshold := 4 * w
-	var rng yRange
-	rng.reset(len(rows))
+	var rng chart.YRange
+	rng.Reset(len(rows))
 	for s := 0; s < 3; s++ {
 		raw := f.raw[s][:0]
 		finite := 0
 		for i := range rows {
 			v := m.plotted(seriesValue(&rows[i], s))
-			raw = append(raw, xy{X: float64(rows[i].epoch), Y: v})
+			raw = append(raw, chart.Point{X: float64(rows[i].epoch), Y: v})
 			if isFinite(v) {
 				finite++
-				rng.add(i, v)
+				rng.Add(i, v)
 			}
 		}
 		f.raw[s] = raw
 		if finite == 0 {
 			continue
 		}
-		f.ds[s] = lttbRuns(f.ds[s], raw, threshold)
-		spec.curves = append(spec.curves, curve{
-			label: seriesLabel[s], glyph: seriesGlyph[s], cls: seriesClass[s], pts: f.ds[s],
+		f.ds[s] = chart.LTTBRuns(f.ds[s], raw, threshold)
+		spec.Curves = append(spec.Curves, chart.Curve{
+			Label: seriesLabel[s], Glyph: seriesGlyph[s], Ink: seriesClass[s], Points: f.ds[s],
 		})
 	}
 	// Draw order: validation last, so it wins the cells it shares.
-	sort.SliceStable(spec.curves, func(a, b int) bool { return curveRank(spec.curves[a].cls) < curveRank(spec.curves[b].cls) })
+	sort.SliceStable(spec.Curves, func(a, b int) bool { return curveRank(spec.Curves[a].Ink) < curveRank(spec.Curves[b].Ink) })
 
 	if len(rows) > 0 {
-		spec.xmin, spec.xmax = float64(rows[0].epoch), float64(rows[len(rows)-1].epoch)
+		spec.XMin, spec.XMax = float64(rows[0].epoch), float64(rows[len(rows)-1].epoch)
 	}
-	lo, hi := rng.limits()
+	lo, hi := rng.Limits()
 	if band := m.band(metric); band != nil {
-		spec.band = band
-		last := band.series.steps[len(band.series.steps)-1]
+		spec.Band, spec.BandLabel = band, "per step"
+		last := band.series.lastStep()
 		endX := epochAt(band.knots, float64(last))
 		if len(rows) == 0 {
-			spec.xmin, spec.xmax = band.knots[0].X, endX
-			if bl, bh, ok := band.series.minMax(0, len(band.series.steps)); ok {
+			spec.XMin, spec.XMax = band.knots[0].X, endX
+			if bl, bh, ok := band.series.minMax(0, len(band.series.blocks)); ok {
 				a, b := band.conv(bl), band.conv(bh)
 				lo, hi = math.Min(a, b), math.Max(a, b)
 			}
-		} else if !m.paused && endX > spec.xmax {
+		} else if !m.paused && endX > spec.XMax {
 			// The epoch in progress: its steps extend the axis.
-			spec.xmax = endX
+			spec.XMax = endX
 		}
 	}
-	if spec.xmax <= spec.xmin {
-		if spec.xmin >= 1 {
-			spec.xmin--
+	if spec.XMax <= spec.XMin {
+		if spec.XMin >= 1 {
+			spec.XMin--
 		} else {
-			spec.xmax++
+			spec.XMax++
 		}
 	}
 	if !(hi >= lo) {
 		return m.emptyChart(w, h, title)
 	}
-	if hi == lo {
-		d := math.Max(math.Abs(lo)*0.1, 0.05)
-		if m.logY {
-			d = 0.5
-		}
-		lo, hi = lo-d, hi+d
-	}
-	pad := (hi - lo) * yHeadroom
-	spec.ymin, spec.ymax = lo-pad, hi+pad
-	if !m.logY && lo >= 0 && spec.ymin < 0 {
-		spec.ymin = 0 // errors and losses are not negative: keep 0 as the floor
-	}
-	if rng.clipped() {
+	spec.YMin, spec.YMax = chart.YAxis(lo, hi, m.logY)
+	if rng.Clipped() {
 		// Only the first few epochs can fall outside: mark where they are.
-		for _, cv := range spec.curves {
-			for _, p := range f.raw[seriesOf(cv.cls)][:min(rng.skip, len(rows))] {
+		for _, cv := range spec.Curves {
+			for _, p := range f.raw[seriesOf(cv.Ink)][:min(rng.Skip(), len(rows))] {
 				switch {
 				case !isFinite(p.Y):
-				case p.Y > spec.ymax:
-					spec.off = append(spec.off, offMark{x: p.X, y: p.Y, up: true, cls: cv.cls})
-				case p.Y < spec.ymin:
-					spec.off = append(spec.off, offMark{x: p.X, y: p.Y, cls: cv.cls})
+				case p.Y > spec.YMax:
+					spec.Off = append(spec.Off, chart.OffMark{X: p.X, Y: p.Y, Up: true, Ink: cv.Ink})
+				case p.Y < spec.YMin:
+					spec.Off = append(spec.Off, chart.OffMark{X: p.X, Y: p.Y, Ink: cv.Ink})
 				}
 			}
 		}
@@ -134,28 +120,36 @@ func (m *Model) chartLines(j diagnose.Judgement, w, h int) []string {
 	if idx := m.inspected(); idx >= 0 && idx < n {
 		if es := j.EarlyStop; es.BestVal.OK {
 			if k := rowOfEpoch(rows, es.BestEpoch); k >= 0 {
-				spec.best = xy{X: float64(rows[k].epoch), Y: m.plotted(rows[k].val)}
-				spec.hasBest = isFinite(spec.best.Y)
+				spec.Best = chart.Point{X: float64(rows[k].epoch), Y: m.plotted(rows[k].val)}
+				spec.HasBest = isFinite(spec.Best.Y)
 			}
 		}
 	}
 	if m.cursor >= 0 && m.cursor < n {
-		spec.cursor, spec.hasCursor = float64(rows[m.cursor].epoch), true
+		spec.Cursor, spec.HasCursor = float64(rows[m.cursor].epoch), true
 	}
 	for i := range rows {
-		if rows[i].bad && len(spec.bad) < maxBadMarks {
-			spec.bad = append(spec.bad, float64(rows[i].epoch))
+		if rows[i].bad && len(spec.Bad) < maxBadMarks {
+			spec.Bad = append(spec.Bad, float64(rows[i].epoch))
 		}
 	}
-	return f.chart.draw(w, h, &spec, m.st)
+	return f.chart.Draw(w, h, &spec, m.st)
 }
 
-// Per-series tables of the main chart, indexed as seriesValue.
+// Per-series tables of the main chart, indexed as seriesValue. The
+// glyphs are plain ASCII so that they keep their one-column width in every
+// terminal and locale.
 var (
 	seriesLabel = [3]string{"train", "val", "train-dev"}
-	seriesGlyph = [3]rune{glyphTrain, glyphVal, glyphTrainDev}
+	seriesGlyph = [3]rune{'o', 'x', '+'}
 	seriesClass = [3]class{clsTrain, clsVal, clsTrainDev}
 )
+
+// chartInks are the classes of the main chart's own marks.
+var chartInks = chart.Inks{
+	Title: clsHeading, Legend: clsDim, Axis: clsAxis, Band: clsSteps,
+	Cursor: clsCursor, Best: clsBest, Bad: clsBad,
+}
 
 // seriesOf is the index of a curve class in the tables above.
 func seriesOf(c class) int {
@@ -196,9 +190,35 @@ func rowOfEpoch(rows []row, epoch int) int {
 	return -1
 }
 
+// stepBand is the per-step training series of the judged metric as the
+// main chart's band: the min and max of the steps under each braille
+// column, placed on the epoch axis by the step clock's knots.
+type stepBand struct {
+	series *stepSeries
+	knots  []chart.Point         // epoch position → step
+	conv   func(float64) float64 // raw value → plotted units; NaN to skip
+}
+
+// Envelope returns the least and greatest plotted value of the steps that
+// fall in the epoch positions [x0, x1).
+func (b *stepBand) Envelope(x0, x1 float64) (lo, hi float64, ok bool) {
+	i, j := b.series.indexRange(b.stepOf(x0), b.stepOf(x1))
+	if i >= j {
+		return 0, 0, false
+	}
+	l, h, ok := b.series.minMax(i, j)
+	if !ok {
+		return 0, 0, false
+	}
+	return b.conv(l), b.conv(h), true
+}
+
+// stepOf is the first whole step at or after the epoch position x.
+func (b *stepBand) stepOf(x float64) int64 { return int64(math.Ceil(stepAt(b.knots, x) - 1e-9)) }
+
 // band returns the per-step training series of the judged metric, if the
 // log has one and it can be placed on the epoch axis.
-func (m *Model) band(metric diagnose.Metric) *bandSource {
+func (m *Model) band(metric diagnose.Metric) *stepBand {
 	ss, col, ok := m.data.trainSteps(metric.Base)
 	if !ok {
 		return nil
@@ -209,11 +229,10 @@ func (m *Model) band(metric diagnose.Metric) *bandSource {
 		return nil
 	}
 	conv := m.data.stepConverter(col)
-	return &bandSource{
+	return &stepBand{
 		series: ss,
 		knots:  f.knots,
 		conv:   func(v float64) float64 { return m.plotted(conv(v)) },
-		label:  "per step",
 	}
 }
 
@@ -271,7 +290,7 @@ func (m *Model) sparkLines(cols []*column, lay layout) []string {
 	}
 	f := m.cache
 	g := &f.spark
-	g.reset(lay.mainW, lay.sparkRows)
+	g.Reset(lay.mainW, lay.sparkRows)
 	slots := lay.sparkRows * lay.sparkCols
 	hidden := 0
 	if len(cols) > slots {
@@ -294,14 +313,14 @@ func (m *Model) sparkLines(cols []*column, lay layout) []string {
 		if len(name) > nameW {
 			name = append(name[:nameW-1], '…')
 		}
-		g.text(x, y, string(name), clsDim)
+		g.Text(x, y, string(name), clsDim)
 		vals := c.vals[:min(n, len(c.vals))]
 		if blocksW >= 4 {
 			f.vals = f.vals[:0]
 			for k, v := range vals {
-				f.vals = append(f.vals, xy{X: float64(k), Y: v})
+				f.vals = append(f.vals, chart.Point{X: float64(k), Y: v})
 			}
-			f.dsv = lttbRuns(f.dsv, f.vals, blocksW)
+			f.dsv = chart.LTTBRuns(f.dsv, f.vals, blocksW)
 			if len(f.dsv) > blocksW {
 				f.dsv = f.dsv[len(f.dsv)-blocksW:]
 			}
@@ -310,16 +329,16 @@ func (m *Model) sparkLines(cols []*column, lay layout) []string {
 				f.ys = append(f.ys, p.Y)
 			}
 			for len(f.sparks) <= i {
-				f.sparks = append(f.sparks, nil)
+				f.sparks = append(f.sparks, chart.Sparkline{})
 			}
-			f.sparks[i], f.runes = sparkRow(f.sparks[i], f.ys, blocksW, f.runes)
+			f.runes = f.sparks[i].Row(f.ys, blocksW, f.runes)
 			bx := x + nameW + 1
 			hl := -1
 			if m.cursor >= 0 {
 				if len(f.dsv) == blocksW && len(vals) > blocksW {
 					// Downsampled without gaps: the column is the bucket that
 					// holds the epoch, the same in every sparkline.
-					hl = lttbBucket(len(vals), blocksW, idx)
+					hl = chart.LTTBBucket(len(vals), blocksW, idx)
 				} else {
 					hl = nearestX(f.dsv, float64(idx)) + blocksW - len(f.dsv)
 				}
@@ -330,27 +349,27 @@ func (m *Model) sparkLines(cols []*column, lay layout) []string {
 					// The inspected epoch: the same line as on the main
 					// chart, so it shows without colour; the value at the
 					// right is the one under it.
-					r, cls = glyphCursor, clsCursor
+					r, cls = chart.GlyphCursor, clsCursor
 				}
-				g.set(bx+k, y, r, cls)
+				g.Set(bx+k, y, r, cls)
 			}
 		}
 		v := math.NaN()
 		if idx >= 0 && idx < len(vals) {
 			v = vals[idx]
 		}
-		g.text(x+lay.sparkW-valueW, y, formatFit(v, valueW-1), clsPlain)
+		g.Text(x+lay.sparkW-valueW, y, chart.FormatFit(v, valueW-1), clsPlain)
 	}
 	if hidden > 0 {
 		i := slots - 1
 		x := (i % lay.sparkCols) * lay.sparkW
-		g.text(x, i/lay.sparkCols, "+"+itoa(hidden)+" more columns", clsDim)
+		g.Text(x, i/lay.sparkCols, "+"+itoa(hidden)+" more columns", clsDim)
 	}
-	return g.lines(m.st)
+	return g.Lines(m.st)
 }
 
 // nearestX returns the index of the point whose X is closest to x.
-func nearestX(pts []xy, x float64) int {
+func nearestX(pts []chart.Point, x float64) int {
 	k := sort.Search(len(pts), func(i int) bool { return pts[i].X >= x })
 	if k >= len(pts) {
 		return len(pts) - 1

@@ -1,6 +1,9 @@
 package tui
 
-import "github.com/fitgap/fitgap/diagnose"
+import (
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/tui/chart"
+)
 
 // Numbers of the judged metric as the panels print them. A rate's value
 // is a percent ("19.2%"); a difference of two rates is in percentage
@@ -46,3 +49,7 @@ func (m *Model) fmtPart(c component) string {
 // formatPoints prints the difference v of two rates (fractions) in
 // percentage points, by the project's one rule (diagnose.Percent).
 func formatPoints(v float64) string { return diagnose.Percent(v) }
+
+// formatNum is the chart's number format, so that a value reads the same
+// on an axis and in a panel.
+func formatNum(v float64, digits int) string { return chart.FormatNum(v, digits) }

@@ -5,8 +5,11 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"unicode/utf8"
 
 	"github.com/charmbracelet/x/ansi"
+
+	"github.com/fitgap/fitgap/diagnose"
 )
 
 // golden compares got with testdata/name.golden, or rewrites the file
@@ -148,5 +151,36 @@ func TestStatus_LongNameKeepsState(t *testing.T) {
 				t.Errorf("width %d: status lost the file name: %q", w, status)
 			}
 		})
+	}
+}
+
+func TestErrorBar(t *testing.T) {
+	m := newTestModel(t, 80, 24, Options{})
+	j := diagnose.Judgement{
+		BayesError: 0.05, BayesErrorGiven: true,
+		AvoidableBias: diagnose.Some(0.10), Variance: diagnose.Some(0.25), DataMismatch: diagnose.Some(-0.02),
+	}
+	comps := components(j)
+	for _, w := range []int{1, 2, 3, 7, 20, 40} {
+		bar := m.errorBar(comps, w)
+		if n := utf8.RuneCountInString(bar); n != w {
+			t.Errorf("width %d: bar has %d cells: %q", w, n, bar)
+		}
+		if w >= 3 && strings.ContainsRune(bar, glyphMismatch) {
+			t.Errorf("width %d: a negative part took room: %q", w, bar)
+		}
+		if w >= 3 && !(strings.ContainsRune(bar, glyphOptimal) && strings.ContainsRune(bar, glyphBias) && strings.ContainsRune(bar, glyphVariance)) {
+			t.Errorf("width %d: a positive part vanished: %q", w, bar)
+		}
+	}
+	// 0.05 : 0.10 : 0.25 of 40 cells is 5 : 10 : 25.
+	bar := m.errorBar(comps, 40)
+	for g, want := range map[rune]int{glyphOptimal: 5, glyphBias: 10, glyphVariance: 25} {
+		if got := strings.Count(bar, string(g)); got != want {
+			t.Errorf("%c: %d cells, want %d", g, got, want)
+		}
+	}
+	if empty := m.errorBar(components(diagnose.Judgement{}), 5); empty != "·····" {
+		t.Errorf("no parts: %q", empty)
 	}
 }

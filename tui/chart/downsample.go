@@ -1,11 +1,11 @@
-package tui
+package chart
 
 import "math"
 
-// xy is one plotted point: X in epochs, Y in the judged metric's units.
-type xy struct{ X, Y float64 }
+// Point is one plotted point: X in epochs, Y in plotted units.
+type Point struct{ X, Y float64 }
 
-// lttb downsamples pts to threshold points with the largest-triangle-three-
+// LTTB downsamples pts to threshold points with the largest-triangle-three-
 // buckets method (Steinarsson 2013, "Downsampling Time Series for Visual
 // Representation", M.Sc. thesis, University of Iceland, §4.2), appending to
 // dst[:0] so a caller can reuse one buffer per frame.
@@ -22,7 +22,7 @@ type xy struct{ X, Y float64 }
 //
 // threshold ≥ len(pts) or threshold ≤ 0 returns the input unchanged (copied);
 // a threshold of 1 or 2 keeps the first and the last point.
-func lttb(dst, pts []xy, threshold int) []xy {
+func LTTB(dst, pts []Point, threshold int) []Point {
 	dst = dst[:0]
 	n := len(pts)
 	if threshold <= 0 || threshold >= n {
@@ -67,12 +67,12 @@ func lttb(dst, pts []xy, threshold int) []xy {
 	return append(dst, pts[n-1])
 }
 
-// lttbBucket is the output position at which lttb(pts, threshold) puts
+// LTTBBucket is the output position at which LTTB(pts, threshold) puts
 // the point of input index i, for n points (2 < threshold < n): 0 for the
 // first point, threshold−1 for the last, else 1 + the bucket whose index
 // range [⌊b·every⌋+1, ⌊(b+1)·every⌋+1) holds i. Every series of n points
 // maps an index to the same position, whichever point its bucket keeps.
-func lttbBucket(n, threshold, i int) int {
+func LTTBBucket(n, threshold, i int) int {
 	switch {
 	case i <= 0:
 		return 0
@@ -90,12 +90,12 @@ func lttbBucket(n, threshold, i int) int {
 	return b + 1
 }
 
-// lttbRuns downsamples a series that may hold gaps (NaN or ±Inf Y) to about
+// LTTBRuns downsamples a series that may hold gaps (NaN or ±Inf Y) to about
 // threshold points: each run of finite points between gaps gets a share of
 // the threshold proportional to its length (at least its two ends), so a
 // gap stays a gap on the chart instead of being bridged by a line. A gap is
 // returned as one point with NaN Y.
-func lttbRuns(dst, pts []xy, threshold int) []xy {
+func LTTBRuns(dst, pts []Point, threshold int) []Point {
 	dst = dst[:0]
 	n := len(pts)
 	if n == 0 {
@@ -104,7 +104,7 @@ func lttbRuns(dst, pts []xy, threshold int) []xy {
 	if threshold <= 0 || threshold >= n {
 		return append(dst, pts...)
 	}
-	var run []xy
+	var run []Point
 	start := -1
 	flush := func(end int) {
 		if start < 0 {
@@ -115,8 +115,8 @@ func lttbRuns(dst, pts []xy, threshold int) []xy {
 		if share < 2 {
 			share = 2
 		}
-		// lttb appends to its dst argument from index 0, so hand it the free tail.
-		tail := lttb(dst[len(dst):], run, share)
+		// LTTB appends to its dst argument from index 0, so hand it the free tail.
+		tail := LTTB(dst[len(dst):], run, share)
 		dst = append(dst, tail...)
 		start = -1
 	}
@@ -129,7 +129,7 @@ func lttbRuns(dst, pts []xy, threshold int) []xy {
 		}
 		flush(i)
 		if len(dst) == 0 || isFinite(dst[len(dst)-1].Y) {
-			dst = append(dst, xy{X: p.X, Y: math.NaN()})
+			dst = append(dst, Point{X: p.X, Y: math.NaN()})
 		}
 	}
 	flush(n)

@@ -1,4 +1,4 @@
-package tui
+package chart
 
 import (
 	"math"
@@ -49,8 +49,8 @@ func TestFormatNum(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			if got := formatNum(tt.v, tt.digits); got != tt.want {
-				t.Errorf("formatNum(%v, %d) = %q, want %q", tt.v, tt.digits, got, tt.want)
+			if got := FormatNum(tt.v, tt.digits); got != tt.want {
+				t.Errorf("FormatNum(%v, %d) = %q, want %q", tt.v, tt.digits, got, tt.want)
 			}
 		})
 	}
@@ -120,8 +120,8 @@ func TestFormatFit(t *testing.T) {
 		{math.NaN(), 8, "NaN"},
 	}
 	for _, tt := range tests {
-		if got := formatFit(tt.v, tt.w); got != tt.want || len(got) > tt.w {
-			t.Errorf("formatFit(%v, %d) = %q, want %q", tt.v, tt.w, got, tt.want)
+		if got := FormatFit(tt.v, tt.w); got != tt.want || len(got) > tt.w {
+			t.Errorf("FormatFit(%v, %d) = %q, want %q", tt.v, tt.w, got, tt.want)
 		}
 	}
 }

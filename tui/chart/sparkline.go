@@ -1,4 +1,4 @@
-package tui
+package chart
 
 import (
 	"math"
@@ -32,21 +32,28 @@ import (
 // glyphFlat draws the values of a flat window.
 const glyphFlat = runes.LineHorizontal
 
-// sparkRow draws vals (at most the last w are used) as a one-row column
-// chart w cells wide into dst, reusing sl when it has the right width.
-// It returns the runes, right-aligned, blank where nothing was drawn, and
-// the model to reuse next time.
-func sparkRow(sl *sparkline.Model, vals []float64, w int, dst []rune) (*sparkline.Model, []rune) {
+// Sparkline draws one-row column charts, reusing the library's model while
+// the width holds. The zero Sparkline is ready.
+type Sparkline struct {
+	model *sparkline.Model
+}
+
+// Row draws vals (at most the last w are used) as a one-row column chart
+// w cells wide into dst[:0] and returns the runes, right-aligned, blank
+// where nothing was drawn.
+func (s *Sparkline) Row(vals []float64, w int, dst []rune) []rune {
 	dst = dst[:0]
 	if w <= 0 {
-		return sl, dst
+		return dst
 	}
 	if len(vals) > w {
 		vals = vals[len(vals)-w:]
 	}
+	sl := s.model
 	if sl == nil || sl.Width() != w || sl.Height() != 1 {
 		m := sparkline.New(w, 1, sparkline.WithNoAutoMaxValue())
 		sl = &m
+		s.model = sl
 	}
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, v := range vals {
@@ -96,5 +103,5 @@ func sparkRow(sl *sparkline.Model, vals []float64, w int, dst []rune) (*sparklin
 		}
 		dst = append(dst, r)
 	}
-	return sl, dst
+	return dst
 }

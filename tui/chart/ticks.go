@@ -1,4 +1,4 @@
-package tui
+package chart
 
 import (
 	"math"
@@ -62,7 +62,7 @@ func logTicks(lo, hi float64, n int, scale float64) (vals []float64, labels []st
 		every := math.Max(1, math.Ceil((k1-k0+1)/float64(n)))
 		for k := k0; k <= k1; k += every {
 			vals = append(vals, k)
-			labels = append(labels, formatNum(math.Pow(10, k)*scale, 0))
+			labels = append(labels, FormatNum(math.Pow(10, k)*scale, 0))
 		}
 		return vals, labels
 	}
@@ -71,7 +71,7 @@ func logTicks(lo, hi float64, n int, scale float64) (vals []float64, labels []st
 			v := k + math.Log10(f)
 			if v >= lo-1e-9 && v <= hi+1e-9 {
 				vals = append(vals, v)
-				labels = append(labels, formatNum(f*math.Pow(10, k)*scale, 0))
+				labels = append(labels, FormatNum(f*math.Pow(10, k)*scale, 0))
 			}
 		}
 	}
@@ -92,19 +92,19 @@ func logTicks(lo, hi float64, n int, scale float64) (vals []float64, labels []st
 // formatTick prints a tick value with as many decimals as its step needs.
 func formatTick(v, step float64) string {
 	if step <= 0 {
-		return formatNum(v, 4)
+		return FormatNum(v, 4)
 	}
 	d := int(math.Max(0, -math.Floor(math.Log10(step)+1e-9)))
 	if d > 6 || math.Abs(v) >= 1e6 {
-		return formatNum(v, 3)
+		return FormatNum(v, 3)
 	}
 	return strconv.FormatFloat(v, 'f', d, 64)
 }
 
-// formatNum prints a value in at most about digits significant digits,
+// FormatNum prints a value in at most about digits significant digits,
 // trimming trailing zeros, switching to exponent form for very large or
 // very small magnitudes: labels must fit a narrow column.
-func formatNum(v float64, digits int) string {
+func FormatNum(v float64, digits int) string {
 	switch {
 	case math.IsNaN(v):
 		return "NaN"
@@ -138,12 +138,12 @@ func formatNum(v float64, digits int) string {
 	return s
 }
 
-// formatFit prints a value in at most w columns: four significant digits
+// FormatFit prints a value in at most w columns: four significant digits
 // when they fit, fewer when not (0.0003061 becomes 0.000306 in 8 columns).
-func formatFit(v float64, w int) string {
-	s := formatNum(v, 4)
+func FormatFit(v float64, w int) string {
+	s := FormatNum(v, 4)
 	for d := 3; d >= 1 && len(s) > w; d-- {
-		s = formatNum(v, d)
+		s = FormatNum(v, d)
 		if len(s) > w {
 			// The exponent form is often the shorter one for small values.
 			if e := strconv.FormatFloat(v, 'e', max(d-1, 0), 64); len(shortExp(e)) < len(s) {
@@ -159,13 +159,4 @@ func shortExp(s string) string {
 	s = strings.Replace(s, "e-0", "e-", 1)
 	s = strings.Replace(s, "e+0", "e", 1)
 	return strings.Replace(s, "e+", "e", 1)
-}
-
-// formatValue prints a metric value for the panels: four significant
-// digits at most, "–" when absent or not finite-absent.
-func formatValue(v float64, ok bool) string {
-	if !ok {
-		return "–"
-	}
-	return formatNum(v, 4)
 }

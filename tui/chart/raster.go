@@ -1,4 +1,4 @@
-package tui
+package chart
 
 import (
 	"math"
@@ -11,10 +11,10 @@ import (
 // The curves are rasterized by the chart library's braille primitives: a
 // graph.BrailleGrid with our axis ranges, dots placed with GridPoint,
 // segments traced with GetLinePoints, and the cells read back with
-// BraillePatterns once all the layers (the per-step band, then each curve)
+// BraillePatterns once all the layers (the band, then each curve)
 // are in. The cells go into the chart's own cell grid, which remembers the
 // layer that last put a dot in a cell (its colour) and renders each run of
-// same-class cells with one escape sequence: the library's canvas would
+// same-ink cells with one escape sequence: the library's canvas would
 // render every cell with its own Style.Render call, about 1.3 µs a cell.
 // Only the dots of one frame are ever handed to the library, never the
 // stored series. One grid serves all the layers of a frame: a grid holds
@@ -55,21 +55,21 @@ func (p plotMap) dotY(y float64) int {
 
 // layer is the braille grid the series of one frame are rasterized into,
 // one after the other. owner (pw×ph, row by row) records for each cell the
-// class of the series that last put a dot in it: the cell's colour, so the
+// ink of the series that last put a dot in it: the cell's colour, so the
 // most important series is drawn last.
 type layer struct {
 	pm     plotMap
 	grid   *graph.BrailleGrid
-	owner  []class
-	cls    class      // the series being drawn
+	owner  []Ink
+	ink    Ink        // the series being drawn
 	bounds [4]float64 // x0, x1, y0, y1: see newLayer
 }
 
 // newLayer returns an empty layer for the plot pm; owner receives the
-// classes. Its bounds are the box of values whose dot falls inside the
+// inks. Its bounds are the box of values whose dot falls inside the
 // plot: the ranges widened by just under half a dot each way, since a
 // value rounds to the nearest dot.
-func newLayer(pm plotMap, owner []class) *layer {
+func newLayer(pm plotMap, owner []Ink) *layer {
 	hx := 0.499 * (pm.xmax - pm.xmin) / float64(max(pm.w2-1, 1))
 	hy := 0.499 * (pm.ymax - pm.ymin) / float64(max(pm.h4-1, 1))
 	return &layer{
@@ -87,12 +87,12 @@ func (l *layer) set(p canvas.Point) {
 	}
 	l.grid.Set(p)
 	if i := (p.Y/4)*(l.pm.w2/2) + p.X/2; i < len(l.owner) {
-		l.owner[i] = l.cls
+		l.owner[i] = l.ink
 	}
 }
 
 // point sets the dot of a if it lies inside the plot.
-func (l *layer) point(a xy) {
+func (l *layer) point(a Point) {
 	x0, x1, y0, y1 := l.bounds[0], l.bounds[1], l.bounds[2], l.bounds[3]
 	if !(a.X >= x0 && a.X <= x1 && a.Y >= y0 && a.Y <= y1) {
 		return
@@ -103,7 +103,7 @@ func (l *layer) point(a xy) {
 // segment traces the part of a–b inside the plot. Clipping first keeps an
 // off-scale value (a first epoch far above the rest, a per-step spike)
 // from costing a line of millions of dots outside the plot.
-func (l *layer) segment(a, b xy) {
+func (l *layer) segment(a, b Point) {
 	a, b, ok := clipSegment(a, b, l.bounds[0], l.bounds[1], l.bounds[2], l.bounds[3])
 	if !ok {
 		return
@@ -116,9 +116,9 @@ func (l *layer) segment(a, b xy) {
 }
 
 // polyline traces consecutive finite points; a NaN or ±Inf Y is a gap.
-func (l *layer) polyline(pts []xy) {
+func (l *layer) polyline(pts []Point) {
 	prevOK := false
-	var prev xy
+	var prev Point
 	for _, p := range pts {
 		if !isFinite(p.Y) {
 			prevOK = false
@@ -150,7 +150,7 @@ func (l *layer) cells(mask []rune) {
 // parametric method of Liang and Barsky ("A new concept and method for
 // line clipping", ACM Transactions on Graphics 3(1), 1984): ok is false
 // when no part of the segment is inside.
-func clipSegment(a, b xy, x0, x1, y0, y1 float64) (xy, xy, bool) {
+func clipSegment(a, b Point, x0, x1, y0, y1 float64) (Point, Point, bool) {
 	if a.X >= x0 && a.X <= x1 && b.X >= x0 && b.X <= x1 && a.Y >= y0 && a.Y <= y1 && b.Y >= y0 && b.Y <= y1 {
 		return a, b, true // inside: the usual case
 	}
@@ -180,10 +180,10 @@ func clipSegment(a, b xy, x0, x1, y0, y1 float64) (xy, xy, bool) {
 	}
 	na, nb := a, b
 	if t0 > 0 {
-		na = xy{X: a.X + t0*dx, Y: a.Y + t0*dy}
+		na = Point{X: a.X + t0*dx, Y: a.Y + t0*dy}
 	}
 	if t1 < 1 {
-		nb = xy{X: a.X + t1*dx, Y: a.Y + t1*dy}
+		nb = Point{X: a.X + t1*dx, Y: a.Y + t1*dy}
 	}
 	// Rounding can leave an end a hair outside; the grid must not see it.
 	na.X, nb.X = clampF(na.X, x0, x1), clampF(nb.X, x0, x1)

@@ -1,0 +1,59 @@
+#!/usr/bin/env bash
+# first_frame.sh: how long the live screen takes to show a whole per-step
+# backlog, and its peak memory, against the same epochs without step rows.
+#
+#   tui/first_frame.sh [LINES] [RUNS]   (default 1000000 steps, 5 runs; needs tmux, GNU time)
+#
+# Builds fitgap and bench/genlog, writes a per-step CSV of LINES steps (an
+# epoch every 1,000 steps) and the same file cut to its epoch rows, then,
+# interleaved RUNS times each, opens `fitgap watch` on it in a detached
+# 200×60 tmux pane and times from the start of the process to the first
+# frame whose status line reads the last epoch (the whole backlog read,
+# judged and drawn). Peak RSS is GNU time's maximum resident set size.
+# Prints medians and the ratio of the per-step file to the epochs-only one.
+set -euo pipefail
+lines=${1:-1000000}
+runs=${2:-5}
+root=$(cd "$(dirname "$0")/.." && pwd)
+tmp=$(mktemp -d)
+name="fitgap-frame-$$"
+trap 'tmux -L "$name" kill-server 2>/dev/null || true; rm -rf "$tmp"' EXIT
+(cd "$root" && go build -o "$tmp/fitgap" ./cmd/fitgap && go build -o "$tmp/genlog" ./bench/genlog)
+"$tmp/genlog" -format csv -lines "$lines" >"$tmp/steps.csv"
+awk -F, 'NR == 1 || $6 != ""' "$tmp/steps.csv" >"$tmp/epochs.csv"
+last=$(tail -n 1 "$tmp/epochs.csv" | cut -d, -f1)
+cat "$tmp/steps.csv" "$tmp/epochs.csv" >/dev/null # page cache warm
+
+# once KIND: one run on $tmp/KIND.csv; appends "ms rss_kib" to $tmp/KIND.
+once() {
+	local kind=$1 t0 t1
+	rm -f "$tmp/rss"
+	t0=$(date +%s%N)
+	tmux -L "$name" new-session -d -s "$name" -x 200 -y 60 \
+		"/usr/bin/time -f %M -o $tmp/rss $tmp/fitgap watch $tmp/$kind.csv"
+	until tmux -L "$name" capture-pane -p -t "$name" 2>/dev/null | grep -q "epoch $last "; do
+		sleep 0.005
+	done
+	t1=$(date +%s%N)
+	tmux -L "$name" send-keys -t "$name" q
+	while [ ! -s "$tmp/rss" ]; do sleep 0.05; done
+	tmux -L "$name" kill-server 2>/dev/null || true
+	echo "$(((t1 - t0) / 1000000)) $(tail -n 1 "$tmp/rss")" >>"$tmp/$kind"
+}
+
+median() { sort -n | awk '{a[NR]=$1} END{print (NR%2) ? a[(NR+1)/2] : (a[NR/2]+a[NR/2+1])/2}'; }
+
+echo "load before: $(cut -d' ' -f1-3 /proc/loadavg)"
+for _ in $(seq "$runs"); do
+	once steps
+	once epochs
+done
+echo "load after:  $(cut -d' ' -f1-3 /proc/loadavg)"
+for kind in epochs steps; do
+	ms=$(cut -d' ' -f1 "$tmp/$kind" | median)
+	rss=$(cut -d' ' -f2 "$tmp/$kind" | median)
+	printf "%-7s first full frame %6s ms (runs: %s), peak RSS %s MiB\n" "$kind" "$ms" \
+		"$(cut -d' ' -f1 "$tmp/$kind" | tr '\n' ' ' | sed 's/ $//')" "$(awk -v k="$rss" 'BEGIN{printf "%.1f", k/1024}')"
+done
+awk -v a="$(cut -d' ' -f1 "$tmp/steps" | median)" -v b="$(cut -d' ' -f1 "$tmp/epochs" | median)" \
+	'BEGIN{printf "ratio   %.2f× (%d step rows against %d epoch rows)\n", a/b, '"$lines"', '"$last"'}'
