@@ -1,0 +1,56 @@
+// Command forecasteval prints the evaluation of the epoch forecasts on real
+// learning curves: each curve is forecast from its first third and compared
+// with the value its log shows at the last epoch. The README quotes its
+// table.
+//
+//	go run ./bench/forecasteval                       # the committed evaluation set
+//	go run ./bench/forecasteval -v 'runs/*.csv'       # other logs, one line per curve
+package main
+
+import (
+	"flag"
+	"fmt"
+	"os"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/forecast"
+	"github.com/fitgap/fitgap/forecast/evalset"
+)
+
+func main() {
+	verbose := flag.Bool("v", false, "print one line per curve")
+	part := flag.Float64("part", 1.0/3, "part of each curve the forecast sees")
+	flag.Parse()
+	patterns := flag.Args()
+	if len(patterns) == 0 {
+		patterns = evalset.Committed
+	}
+	if err := run(patterns, *part, *verbose); err != nil {
+		fmt.Fprintln(os.Stderr, "forecasteval:", diagnose.Printable(err.Error()))
+		os.Exit(1)
+	}
+}
+
+func run(patterns []string, part float64, verbose bool) error {
+	paths, err := evalset.Glob(patterns...)
+	if err != nil {
+		return err
+	}
+	if len(paths) == 0 {
+		return fmt.Errorf("no logs match %q", patterns)
+	}
+	runs, err := evalset.Load(paths)
+	if err != nil {
+		return err
+	}
+	var outs []evalset.Outcome
+	for _, r := range runs {
+		o := evalset.Backtest(r, part, forecast.Options{})
+		outs = append(outs, o)
+		if verbose {
+			fmt.Println(diagnose.Printable(o.String()))
+		}
+	}
+	fmt.Print(evalset.Markdown(evalset.Summarize(outs), forecast.DefaultLevel))
+	return nil
+}

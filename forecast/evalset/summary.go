@@ -1,0 +1,140 @@
+package evalset
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"github.com/fitgap/fitgap/forecast"
+)
+
+// Row sums up the outcomes of one group of runs and one metric.
+type Row struct {
+	Group, Metric string
+	Fraction      bool
+	// Runs is how many curves; Forecasts how many got a forecast; Refused
+	// counts the others by status.
+	Runs, Forecasts int
+	Refused         map[forecast.Status]int
+	// Mean absolute errors at the target of the forecast and of the two
+	// baselines, over the curves with a forecast.
+	MAE, MAELast, MAEBest float64
+	// MedianAE is the median absolute error of the forecast.
+	MedianAE float64
+	// Covered is how many outcomes fell inside the interval.
+	Covered int
+}
+
+// Coverage is the share of forecasts whose interval held the outcome.
+func (r Row) Coverage() float64 {
+	if r.Forecasts == 0 {
+		return math.NaN()
+	}
+	return float64(r.Covered) / float64(r.Forecasts)
+}
+
+// Summarize groups outcomes by group and metric (sorted), then adds one
+// row per metric over all groups (Group "all").
+func Summarize(outs []Outcome) []Row {
+	type key struct{ g, m string }
+	by := map[key][]Outcome{}
+	for _, o := range outs {
+		by[key{o.Group, o.Metric}] = append(by[key{o.Group, o.Metric}], o)
+		by[key{"all", o.Metric}] = append(by[key{"all", o.Metric}], o)
+	}
+	keys := make([]key, 0, len(by))
+	for k := range by {
+		keys = append(keys, k)
+	}
+	sort.Slice(keys, func(i, j int) bool {
+		if (keys[i].g == "all") != (keys[j].g == "all") {
+			return keys[j].g == "all"
+		}
+		if keys[i].g != keys[j].g {
+			return keys[i].g < keys[j].g
+		}
+		return keys[i].m > keys[j].m // error before loss
+	})
+	rows := make([]Row, 0, len(keys))
+	for _, k := range keys {
+		rows = append(rows, summarize(k.g, k.m, by[k]))
+	}
+	return rows
+}
+
+func summarize(group, metric string, outs []Outcome) Row {
+	r := Row{Group: group, Metric: metric, Runs: len(outs), Refused: map[forecast.Status]int{}}
+	var errs []float64
+	for _, o := range outs {
+		r.Fraction = o.Fraction
+		if o.Status != forecast.OK {
+			r.Refused[o.Status]++
+			continue
+		}
+		r.Forecasts++
+		e := math.Abs(o.Forecast.Value - o.Actual)
+		errs = append(errs, e)
+		r.MAE += e
+		r.MAELast += math.Abs(o.Last - o.Actual)
+		r.MAEBest += math.Abs(o.BestSoFar - o.Actual)
+		if o.Covered() {
+			r.Covered++
+		}
+	}
+	if n := float64(r.Forecasts); n > 0 {
+		r.MAE /= n
+		r.MAELast /= n
+		r.MAEBest /= n
+		sort.Float64s(errs)
+		r.MedianAE = errs[len(errs)/2]
+		if len(errs)%2 == 0 {
+			r.MedianAE = (errs[len(errs)/2-1] + errs[len(errs)/2]) / 2
+		}
+	}
+	return r
+}
+
+// Markdown writes the rows as a table: errors in points for error rates,
+// in the metric's units for losses.
+func Markdown(rows []Row, level float64) string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "| runs | metric | curves | forecasts | refused | mean abs. error: forecast | last value | best so far | median abs. error | in the %d %% interval |\n",
+		int(math.Round(level*100)))
+	b.WriteString("|---|---|---|---|---|---|---|---|---|---|\n")
+	for _, r := range rows {
+		f := func(v float64) string {
+			if r.Fraction {
+				return fmt.Sprintf("%.2f pt", 100*v)
+			}
+			return fmt.Sprintf("%.4f", v)
+		}
+		fmt.Fprintf(&b, "| %s | %s | %d | %d | %s | %s | %s | %s | %s | %s |\n",
+			r.Group, r.Metric, r.Runs, r.Forecasts, refusals(r.Refused),
+			f(r.MAE), f(r.MAELast), f(r.MAEBest), f(r.MedianAE), coverage(r))
+	}
+	return b.String()
+}
+
+func refusals(m map[forecast.Status]int) string {
+	if len(m) == 0 {
+		return "0"
+	}
+	ss := make([]forecast.Status, 0, len(m))
+	for s := range m {
+		ss = append(ss, s)
+	}
+	sort.Slice(ss, func(i, j int) bool { return ss[i] < ss[j] })
+	parts := make([]string, len(ss))
+	for i, s := range ss {
+		parts[i] = fmt.Sprintf("%d %s", m[s], s)
+	}
+	return strings.Join(parts, ", ")
+}
+
+func coverage(r Row) string {
+	if r.Forecasts == 0 {
+		return "–"
+	}
+	return fmt.Sprintf("%d/%d = %.0f %%", r.Covered, r.Forecasts, 100*r.Coverage())
+}

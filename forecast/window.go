@@ -1,0 +1,224 @@
+package forecast
+
+import (
+	"math"
+	"sort"
+	"strconv"
+)
+
+// BreakCause says why the fit starts later than the first epoch.
+type BreakCause uint8
+
+const (
+	NoBreak BreakCause = iota
+	// BreakRestart: the epochs went backwards (a run resumed from a
+	// checkpoint); only the latest stretch is one curve.
+	BreakRestart
+	// BreakNonFinite: a NaN or ±Inf was logged; the curve after it is
+	// fitted on its own.
+	BreakNonFinite
+	// BreakLR: the learning rate changed by a factor of two or more within
+	// two epochs after holding steady, which starts a new curve (a step
+	// schedule, a reduction on a plateau, a warm restart).
+	BreakLR
+	// BreakCurve: no learning rate was given, and the curve itself dropped
+	// by far more than its noise and trend explain.
+	BreakCurve
+)
+
+var breakNames = [...]string{"none", "restart", "non-finite", "lr-step", "curve-step"}
+
+// String returns the stable machine name used in JSON ("lr-step").
+func (b BreakCause) String() string {
+	if int(b) < len(breakNames) {
+		return breakNames[b]
+	}
+	return "break(" + strconv.Itoa(int(b)) + ")"
+}
+
+// MarshalText makes a BreakCause a JSON string.
+func (b BreakCause) MarshalText() ([]byte, error) { return []byte(b.String()), nil }
+
+// phrase says what happened at the break, for the reason texts.
+func (b BreakCause) phrase() string {
+	switch b {
+	case BreakRestart:
+		return "the restart"
+	case BreakNonFinite:
+		return "the non-finite value"
+	case BreakLR:
+		return "the learning-rate step"
+	case BreakCurve:
+		return "the step in the curve"
+	}
+	return "the start"
+}
+
+// Break is where the fitted stretch of the curve begins and why.
+type Break struct {
+	// Epoch is the first epoch of the fitted stretch.
+	Epoch int        `json:"epoch"`
+	Cause BreakCause `json:"cause"`
+}
+
+// Thresholds of the break detectors.
+const (
+	// lrStepFactor: a change of the learning rate by this factor or more
+	// within two epochs is a step. Step schedules divide by 10 (or 2–5);
+	// reduce-on-plateau by 2–10 (common practice).
+	lrStepFactor = 2.0
+	// lrSteadyFactor: the rate counts as steady (before a step) or as
+	// changing (into the step's epoch) when one epoch moves it by less, or
+	// more, than this factor. A smooth decay (cosine, linear, exponential)
+	// moves every epoch, so its fast end is not taken for a step.
+	lrSteadyFactor = 1.1
+	// curveStepPre, curveStepPost are the points before a candidate step
+	// (fitted by a line) and after it (averaged).
+	curveStepPre, curveStepPost = 6, 4
+	// curveStepSigmas: the drop must exceed this many noise standard
+	// deviations of one point. The prediction of the line plus the mean of
+	// the post window have a standard error of about 1.4σ, so 6σ is 4.3
+	// standard errors: false alarms about 1 in 100 000 per candidate.
+	curveStepSigmas = 6.0
+)
+
+// lrBreak returns the index of the first point after the last learning-rate
+// step in lr[from:], or from when there is none. Missing values (NaN, ≤ 0)
+// are skipped.
+func lrBreak(lr []float64, from int) int {
+	idx := make([]int, 0, len(lr))
+	for i := from; i < len(lr); i++ {
+		if lr[i] > 0 && finite(lr[i]) {
+			idx = append(idx, i)
+		}
+	}
+	at := func(k int) float64 { return lr[idx[max(k, 0)]] }
+	ratio := func(a, b float64) float64 { return math.Abs(math.Log(a / b)) }
+	last := from
+	for k := 1; k < len(idx); k++ {
+		big := ratio(at(k), at(k-2)) >= math.Log(lrStepFactor)-1e-12
+		moved := ratio(at(k), at(k-1)) >= math.Log(lrSteadyFactor)
+		steady := k < 3 || ratio(at(k-2), at(k-3)) < math.Log(lrSteadyFactor)
+		if big && moved && steady {
+			last = idx[k]
+		}
+	}
+	return last
+}
+
+// curveBreak returns the index of the first point after the last sudden
+// drop of v[from:] (a learning-rate step seen in the curve), or from. A
+// drop is a post window whose mean lies more than curveStepSigmas·σ below
+// the line through the pre window, extended. A curve that bends as a
+// learning curve does (convex, falling) stays above its tangent lines, so
+// it is not taken for a step; a plateau followed by a cliff is.
+func curveBreak(v []float64, from int, sigma float64) int {
+	if !(sigma > 0) {
+		return from
+	}
+	last, lastDrop := from, 0.0
+	prev := -1
+	for i := from + curveStepPre; i+curveStepPost <= len(v); i++ {
+		// Line through the pre window, by least squares on k = 0..pre−1.
+		var sk, sv, skk, skv float64
+		for k := 0; k < curveStepPre; k++ {
+			y := v[i-curveStepPre+k]
+			fk := float64(k)
+			sk += fk
+			sv += y
+			skk += fk * fk
+			skv += fk * y
+		}
+		n := float64(curveStepPre)
+		slope := (skv - sk*sv/n) / (skk - sk*sk/n)
+		mid := float64(curveStepPre) + float64(curveStepPost-1)/2
+		pred := sv/n + slope*(mid-sk/n)
+		var post float64
+		for k := 0; k < curveStepPost; k++ {
+			post += v[i+k]
+		}
+		post /= curveStepPost
+		drop := pred - post
+		if drop <= curveStepSigmas*sigma {
+			continue
+		}
+		// Adjacent candidates see the same step, most fully where the post
+		// window starts at it: keep the largest drop of the last cluster.
+		if i != prev+1 || drop > lastDrop {
+			last, lastDrop = i, drop
+		}
+		prev = i
+	}
+	return last
+}
+
+// robustNoise estimates the standard deviation of one point around the
+// local trend from pseudo-residuals ẽ = (v₁ + v₃)/2 − v₂ (Gasser, Sroka &
+// Jennen-Steinmetz 1986, from memory; Var ẽ = 1.5σ² for white noise), with
+// the median of |ẽ| (σ = 1.4826·median for a normal) so that a step or a
+// spike does not inflate it.
+func robustNoise(v []float64) float64 {
+	if len(v) < 3 {
+		return 0
+	}
+	e := make([]float64, 0, len(v)-2)
+	for i := 1; i+1 < len(v); i++ {
+		e = append(e, math.Abs((v[i-1]+v[i+1])/2-v[i]))
+	}
+	sort.Float64s(e)
+	med := e[len(e)/2]
+	if len(e)%2 == 0 {
+		med = (e[len(e)/2-1] + e[len(e)/2]) / 2
+	}
+	return 1.4826 * med / math.Sqrt(1.5)
+}
+
+// Turn describes a curve that has turned upward: its best stretch lies
+// behind it and the latest values are clearly worse.
+type Turn struct {
+	// BestEpoch is the middle epoch of the best stretch, Best its mean;
+	// Now is the mean of the latest stretch.
+	BestEpoch int     `json:"best_epoch"`
+	Best      float64 `json:"best"`
+	Now       float64 `json:"now"`
+}
+
+// turnWindow returns the length of the stretches compared by turned: an
+// eighth of the curve, at least 3 and at most 20 points, so that the turn
+// of a short run is seen within a few epochs and a long run's latest
+// stretch is still recent.
+func turnWindow(n int) int { return min(max(n/8, 3), 20) }
+
+// turned reports whether the mean of the last window of v lies clearly
+// above the lowest mean of an earlier window that does not overlap it:
+// by more than minDelta and by more than z standard errors of the
+// difference, z = 2 + √(2·ln m) for m earlier windows (the expected
+// maximum of m standard normals is about √(2 ln m), so the minimum over
+// many windows of a flat noisy curve does not pass for a turn).
+func turned(epochs []int, v []float64, sigma, minDelta float64) (Turn, bool) {
+	w := turnWindow(len(v))
+	m := len(v) - 2*w + 1 // windows [i, i+w) with i+w ≤ len−w
+	if m < 1 || !(sigma >= 0) {
+		return Turn{}, false
+	}
+	mean := func(i int) float64 {
+		var s float64
+		for _, x := range v[i : i+w] {
+			s += x
+		}
+		return s / float64(w)
+	}
+	best, at := math.Inf(1), 0
+	for i := 0; i < m; i++ {
+		if b := mean(i); b < best {
+			best, at = b, i
+		}
+	}
+	now := mean(len(v) - w)
+	z := 2 + math.Sqrt(2*math.Log(float64(m)))
+	se := sigma * math.Sqrt(2/float64(w))
+	if now-best > z*se && now-best > minDelta {
+		return Turn{BestEpoch: epochs[at+w/2], Best: best, Now: now}, true
+	}
+	return Turn{}, false
+}
