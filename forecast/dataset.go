@@ -5,14 +5,16 @@ import "math"
 // dataset is a curve as the fit sees it: the rising score u at epochs x
 // (counted from the first fitted epoch, 1-based), merged into bins.
 //
-// Binning is what makes a 300-point forecast fit in a millisecond. Early
-// epochs, where the curve bends, stay single; later ones are merged while a
-// bin spans less than binRel of its first epoch, so a run of n epochs has
-// about 12 + 12·ln(n/12) bins (51 for 300, 93 for 10 000). Least squares on
-// bin means weighted by their counts is least squares on the raw points up
-// to the curve's bend inside a bin: the raw residual sum of squares is the
-// binned one plus the spread inside the bins (within), which does not
-// depend on the parameters.
+// Binning is what makes a long curve fit in a fraction of a millisecond.
+// Curves of up to maxUnbinned points are fitted point by point. Longer ones
+// keep their early epochs, where the curve bends, single; later ones are
+// merged while a bin spans less than binRel of its first epoch, so a run
+// of n epochs has about 6 + 6·ln(n/6) bins (30 for 300, 70 for 10 000).
+// Least squares on bin means weighted by their counts is least squares on
+// the raw points up to the curve's bend inside a bin: the raw residual sum
+// of squares is the binned one plus the spread inside the bins (within),
+// which does not depend on the parameters. TestDataset_BinningKeepsForecast
+// bounds what the bend costs.
 type dataset struct {
 	x, lx, y, w []float64 // bin mean epoch, its log, mean score, count
 	n           int       // raw points
@@ -44,21 +46,26 @@ func (d *dataset) project(f *family, th []float64) {
 	}
 }
 
-// binRel is the relative width of a bin: 1/12 of its first epoch, so that
-// a curve whose time scale is the epoch itself changes by at most a few
-// percent of its drop inside a bin (design choice, checked by the
-// recovery tests against fits on the raw points).
-const binRel = 1.0 / 6
+// binRel is the relative width of a bin: a sixth of its first epoch, where
+// a falling power law bends by a fraction of a percent of its drop (design
+// choice; TestDataset_BinningKeepsForecast). maxUnbinned is the longest
+// curve fitted point by point: short curves are cheap, and their fits
+// (the exact-recovery tests among them) are then plain least squares.
+const (
+	binRel      = 1.0 / 6
+	maxUnbinned = 64
+)
 
-// newDataset bins the points (x rising, ≥ 1) into d, reusing its slices.
-func (d *dataset) reset(x, u []float64) {
+// reset bins the points (x rising, ≥ 1) into d, reusing its slices;
+// curves of up to unbinned points stay point by point.
+func (d *dataset) reset(x, u []float64, unbinned int) {
 	d.x, d.lx, d.y, d.w = d.x[:0], d.lx[:0], d.y[:0], d.w[:0]
 	d.n, d.within, d.sumw = len(x), 0, 0
 	d.rawX, d.rawY = x, u
 	d.plateauMax = math.Inf(1)
 	for i := 0; i < len(x); {
 		j := i + 1
-		for j < len(x) && x[j]-x[i] < math.Max(1, binRel*x[i]) {
+		for len(x) > unbinned && j < len(x) && x[j]-x[i] < math.Max(1, binRel*x[i]) {
 			j++
 		}
 		var sx, su float64

@@ -223,16 +223,16 @@ func Epochs(c Curve, o Options) Forecast {
 		}
 		return f.refuse(TooFew, fmt.Sprintf("no forecast: %s so far, need %d", plural(len(win), "epoch"), MinPoints))
 	}
-	sigma := c.Noise
+	sigma, zScale := c.Noise, 1.0
 	if !(sigma > 0) || !finite(sigma) {
-		sigma = robustNoise(win)
+		sigma, zScale = robustNoise(win), robustNoiseScale(len(win))
 	}
-	if t, ok := turned(ep, win, sigma, c.MinDelta); ok {
+	if t, ok := turned(ep, win, sigma, c.MinDelta, zScale); ok {
 		f.Turn = &t
 		return f.refuse(Turned, fmt.Sprintf("no forecast: the curve has turned, best %s near epoch %d, %s now",
 			f.format(t.Best), t.BestEpoch, f.format(t.Now)))
 	}
-	ens, fams := fitEnsemble(ep, win, c)
+	ens, fams := fitEnsemble(ep, win, c, maxUnbinned)
 	if ens == nil {
 		return f.refuse(NoFit, "no forecast: no learning-curve family fits this curve")
 	}

@@ -38,6 +38,14 @@ type family struct {
 	starts func(d *dataset, try func(th []float64, rss float64))
 	// paper converts internal parameters to the paper's.
 	paper func(th []float64) []float64
+	// twin, when set, names a family spanning exactly the same curves, and
+	// fromTwin maps a fit of the twin to this family's parameters with the
+	// Jacobian of the map (p×p, row-major). The ensemble then derives this
+	// family's least-squares fit from the twin's instead of repeating it:
+	// the minimum maps onto the minimum, and the delta-method variance of a
+	// prediction does not depend on the parametrization.
+	twin     string
+	fromTwin func(th []float64) (out, jac []float64)
 }
 
 // Bounds shared by the families (internal units).
@@ -240,6 +248,18 @@ var janoschek = family{
 		}, func(lkx, de float64) float64 { return math.Exp(-math.Exp(de * lkx)) })
 	},
 	paper: saturatingPaper,
+	twin:  "Weibull",
+	// κ_J·x^δ = (κ_W·x)^δ: ln κ_J = δ·ln κ_W.
+	fromTwin: func(th []float64) ([]float64, []float64) {
+		out := []float64{th[0], th[1], th[3] * th[2], th[3]}
+		jac := []float64{
+			1, 0, 0, 0,
+			0, 1, 0, 0,
+			0, 0, th[3], th[2],
+			0, 0, 0, 1,
+		}
+		return out, jac
+	},
 }
 
 // weibull: u = α − (α − β)·e^(−(κx)^δ).

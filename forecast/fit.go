@@ -22,7 +22,7 @@ type fitted struct {
 // startsPerFamily is how many of the best grid points each family is
 // polished from. Two guard against a start in the wrong valley (a sharp
 // early bend against a slow one) at twice the cost of one.
-const startsPerFamily = 2
+const startsPerFamily = 1
 
 // candidate is a grid start with its residual sum of squares.
 type candidate struct {
@@ -97,6 +97,27 @@ func (ft *fitter) fit(f *family, d *dataset) (fitted, bool) {
 	return best, true
 }
 
+// derive returns the fit of fam, the twin of f's family, mapped from f:
+// the same curve and residuals, the parameters and their covariance
+// carried over by the map's Jacobian (cov' = J·cov·Jᵀ).
+func (f fitted) derive(fam *family) fitted {
+	th, jac := fam.fromTwin(f.th)
+	p := len(th)
+	cov := make([]float64, p*p)
+	for a := 0; a < p; a++ {
+		for b := 0; b < p; b++ {
+			var v float64
+			for k := 0; k < p; k++ {
+				for l := 0; l < p; l++ {
+					v += jac[a*p+k] * f.cov[k*p+l] * jac[b*p+l]
+				}
+			}
+			cov[a*p+b] = v
+		}
+	}
+	return fitted{fam: fam, th: th, rss: f.rss, cov: cov, iterations: 0}
+}
+
 // variance returns the variance of g·θ per unit of residual variance:
 // gᵀ·cov·g, the delta method.
 func (f *fitted) variance(g []float64) float64 {
@@ -131,8 +152,8 @@ func (f *fitted) plateau(g []float64) (u, v float64) {
 const exactResidual = 1e-12
 
 // fitEnsemble fits every family to the stretch (epochs ep, values v) and
-// weighs them. It returns nil when no family fits.
-func fitEnsemble(ep []int, v []float64, c Curve) (*ensemble, []Family) {
+// weighs them; stretches longer than unbinned points are binned. It returns nil when no family fits.
+func fitEnsemble(ep []int, v []float64, c Curve, unbinned int) (*ensemble, []Family) {
 	n := len(v)
 	scale := 1.0
 	if !c.Fraction {
@@ -151,19 +172,30 @@ func fitEnsemble(ep []int, v []float64, c Curve) (*ensemble, []Family) {
 		u[i] = 1 - v[i]/scale
 	}
 	var d dataset
-	d.reset(x, u)
+	d.reset(x, u, unbinned)
 	if c.Fraction || nonNegative(v) {
 		d.plateauMax = 1
 	}
 	var ft fitter
-	fits := make([]fitted, 0, len(families))
+	byName := make(map[string]fitted, len(families))
 	for i := range families {
 		fam := &families[i]
-		if n <= len(fam.lo) {
+		if n <= len(fam.lo) || fam.fromTwin != nil {
 			continue
 		}
 		if fr, ok := ft.fit(fam, &d); ok {
 			fr.rss = math.Max(fr.rss, exactResidual*exactResidual*float64(n))
+			byName[fam.name] = fr
+		}
+	}
+	fits := make([]fitted, 0, len(families))
+	for i := range families {
+		fam := &families[i]
+		if fam.fromTwin != nil {
+			if tw, ok := byName[fam.twin]; ok {
+				fits = append(fits, tw.derive(fam))
+			}
+		} else if fr, ok := byName[fam.name]; ok {
 			fits = append(fits, fr)
 		}
 	}

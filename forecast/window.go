@@ -18,8 +18,8 @@ const (
 	// fitted on its own.
 	BreakNonFinite
 	// BreakLR: the learning rate changed by a factor of two or more within
-	// two epochs after holding steady, which starts a new curve (a step
-	// schedule, a reduction on a plateau, a warm restart).
+	// two epochs, suddenly beside its change before, which starts a new
+	// curve (a step schedule, a reduction on a plateau, a warm restart).
 	BreakLR
 	// BreakCurve: no learning rate was given, and the curve itself dropped
 	// by far more than its noise and trend explain.
@@ -64,21 +64,31 @@ type Break struct {
 // Thresholds of the break detectors.
 const (
 	// lrStepFactor: a change of the learning rate by this factor or more
-	// within two epochs is a step. Step schedules divide by 10 (or 2–5);
-	// reduce-on-plateau by 2–10 (common practice).
+	// within two epochs can be a step. Step schedules divide by 10 (or
+	// 2–5); reduce-on-plateau by 2–10 (common practice).
 	lrStepFactor = 2.0
-	// lrSteadyFactor: the rate counts as steady (before a step) or as
-	// changing (into the step's epoch) when one epoch moves it by less, or
-	// more, than this factor. A smooth decay (cosine, linear, exponential)
-	// moves every epoch, so its fast end is not taken for a step.
-	lrSteadyFactor = 1.1
+	// lrSudden: the two-epoch change of ln(lr) must also be this many times
+	// the one-epoch change before it. A smooth decay accelerates in
+	// relative terms at its end (a cosine to zero falls as (T − t)², a
+	// factor 3.8 beside the epoch before at its last step; a line to zero
+	// 3.8 too), so 5 keeps those from passing for steps, while a step after
+	// a steady or slowly decaying rate stands out by far more.
+	lrSudden = 5.0
+	// lrMoved: the step is placed at the first epoch whose rate moved by
+	// more than this factor from the epoch before: a drop that came in the
+	// middle of an epoch shows as two smaller moves, and the fit starts
+	// after the second.
+	lrMoved = 1.1
 	// curveStepPre, curveStepPost are the points before a candidate step
-	// (fitted by a line) and after it (averaged).
-	curveStepPre, curveStepPost = 6, 4
+	// (fitted by a line) and after it (averaged). Twelve points pin the
+	// line's slope down well enough that one noisy point does not tilt it.
+	curveStepPre, curveStepPost = 12, 4
 	// curveStepSigmas: the drop must exceed this many noise standard
-	// deviations of one point. The prediction of the line plus the mean of
-	// the post window have a standard error of about 1.4σ, so 6σ is 4.3
-	// standard errors: false alarms about 1 in 100 000 per candidate.
+	// deviations of one point. The line's prediction at the post window's
+	// middle and that window's mean have a standard error of about 0.9σ
+	// together, so 6σ is nearly 7 standard errors: noise alone does not
+	// reach it, while a step of a learning-rate drop (several points on an
+	// error curve whose noise is a fraction of a point) does.
 	curveStepSigmas = 6.0
 )
 
@@ -92,14 +102,13 @@ func lrBreak(lr []float64, from int) int {
 			idx = append(idx, i)
 		}
 	}
-	at := func(k int) float64 { return lr[idx[max(k, 0)]] }
-	ratio := func(a, b float64) float64 { return math.Abs(math.Log(a / b)) }
+	logAt := func(k int) float64 { return math.Log(lr[idx[max(k, 0)]]) }
 	last := from
 	for k := 1; k < len(idx); k++ {
-		big := ratio(at(k), at(k-2)) >= math.Log(lrStepFactor)-1e-12
-		moved := ratio(at(k), at(k-1)) >= math.Log(lrSteadyFactor)
-		steady := k < 3 || ratio(at(k-2), at(k-3)) < math.Log(lrSteadyFactor)
-		if big && moved && steady {
+		two := math.Abs(logAt(k) - logAt(k-2))
+		before := math.Abs(logAt(k-2) - logAt(k-3))
+		moved := math.Abs(logAt(k) - logAt(k-1))
+		if two >= math.Log(lrStepFactor)-1e-12 && two >= lrSudden*before && moved >= math.Log(lrMoved) {
 			last = idx[k]
 		}
 	}
@@ -152,6 +161,16 @@ func curveBreak(v []float64, from int, sigma float64) int {
 	return last
 }
 
+// robustNoiseScale returns the factor by which a threshold in units of
+// robustNoise(v) widens so that the estimate's own error, about
+// 1.17/√k relative for the median of k absolute normal deviates (Hampel
+// 1974, from memory), rarely turns noise into a finding: two standard
+// errors of it.
+func robustNoiseScale(n int) float64 {
+	k := float64(max(n-2, 1))
+	return 1 + 2*1.17/math.Sqrt(k)
+}
+
 // robustNoise estimates the standard deviation of one point around the
 // local trend from pseudo-residuals ẽ = (v₁ + v₃)/2 − v₂ (Gasser, Sroka &
 // Jennen-Steinmetz 1986, from memory; Var ẽ = 1.5σ² for white noise), with
@@ -195,7 +214,10 @@ func turnWindow(n int) int { return min(max(n/8, 3), 20) }
 // difference, z = 2 + √(2·ln m) for m earlier windows (the expected
 // maximum of m standard normals is about √(2 ln m), so the minimum over
 // many windows of a flat noisy curve does not pass for a turn).
-func turned(epochs []int, v []float64, sigma, minDelta float64) (Turn, bool) {
+//
+// zScale widens the threshold when sigma is itself estimated from the
+// curve (1 for a noise estimate given from outside).
+func turned(epochs []int, v []float64, sigma, minDelta, zScale float64) (Turn, bool) {
 	w := turnWindow(len(v))
 	m := len(v) - 2*w + 1 // windows [i, i+w) with i+w ≤ len−w
 	if m < 1 || !(sigma >= 0) {
@@ -215,7 +237,7 @@ func turned(epochs []int, v []float64, sigma, minDelta float64) (Turn, bool) {
 		}
 	}
 	now := mean(len(v) - w)
-	z := 2 + math.Sqrt(2*math.Log(float64(m)))
+	z := (2 + math.Sqrt(2*math.Log(float64(m)))) * zScale
 	se := sigma * math.Sqrt(2/float64(w))
 	if now-best > z*se && now-best > minDelta {
 		return Turn{BestEpoch: epochs[at+w/2], Best: best, Now: now}, true
