@@ -1,8 +1,10 @@
 package forecast
 
 import (
+	"encoding/json"
 	"fmt"
 	"math"
+	"strconv"
 
 	"github.com/fitgap/fitgap/diagnose"
 )
@@ -132,6 +134,19 @@ type Param struct {
 	Value float64 `json:"value"`
 }
 
+// MarshalJSON writes null for a value that is not finite: a parameter
+// that the fit left undetermined (pow4's a when the curve is flat).
+func (p Param) MarshalJSON() ([]byte, error) {
+	b := []byte(`{"name":`)
+	name, err := json.Marshal(p.Name)
+	if err != nil {
+		return nil, err
+	}
+	b = append(b, name...)
+	b = append(b, `,"value":`...)
+	return append(appendNum(b, p.Value), '}'), nil
+}
+
 // Family is one fitted family of the ensemble.
 type Family struct {
 	Name string `json:"name"`
@@ -208,7 +223,7 @@ func Epochs(c Curve, o Options) Forecast {
 		return f.refuse(TooFew, fmt.Sprintf("no forecast: no epochs yet, need %d", MinPoints))
 	}
 	f.LastEpoch = epochs[n-1]
-	if !finite(v[n-1]) {
+	if !usable(v[n-1]) {
 		return f.refuse(Diverging, fmt.Sprintf("no forecast: diverging, %s at epoch %d", nonFinite(v[n-1]), f.LastEpoch))
 	}
 	from, cause := breakPoint(epochs, v, c.LR)
@@ -280,7 +295,7 @@ func breakPoint(epochs []int, v, lr []float64) (int, BreakCause) {
 		}
 	}
 	for i := from; i < len(v); i++ {
-		if !finite(v[i]) {
+		if !usable(v[i]) {
 			from, cause = i+1, BreakNonFinite
 		}
 	}
@@ -307,14 +322,25 @@ func target(total, horizon, last, first int) int {
 	return last + max(minHorizon, last-first+1)
 }
 
+// maxMagnitude is the largest value a curve may hold: squares of larger
+// values overflow float64 in the fit, and no loss or error worth
+// forecasting comes near it, so such a value counts as a blow-up, like
+// ±Inf.
+const maxMagnitude = 1e100
+
+// usable reports whether a logged value can be fitted.
+func usable(v float64) bool { return finite(v) && math.Abs(v) <= maxMagnitude }
+
 func nonFinite(v float64) string {
 	switch {
 	case math.IsNaN(v):
 		return "NaN"
-	case v > 0:
+	case math.IsInf(v, 1):
 		return "+Inf"
+	case math.IsInf(v, -1):
+		return "-Inf"
 	}
-	return "-Inf"
+	return strconv.FormatFloat(v, 'g', 3, 64)
 }
 
 func plural(n int, unit string) string {

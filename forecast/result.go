@@ -19,15 +19,17 @@ func (f *Forecast) fill(c Curve) {
 
 	now := e.mean(float64(f.LastEpoch))
 	cs = e.changes(float64(f.LastEpoch), float64(f.Target), cs)
+	// (+ 0 turns a −0 of a flat curve into 0.)
 	f.Change = Interval{
-		Value: -e.scale * mixtureMean(cs),
-		Lo:    -e.scale * mixtureQuantile(cs, qhi),
-		Hi:    -e.scale * mixtureQuantile(cs, qlo),
+		Value: -e.scale*mixtureMean(cs) + 0,
+		Lo:    -e.scale*mixtureQuantile(cs, qhi) + 0,
+		Hi:    -e.scale*mixtureQuantile(cs, qlo) + 0,
 	}
 	// A change cannot take an error rate out of [0, 1].
 	f.Change.Value = clamp(f.Change.Value, e.lower-now, e.upper-now)
 	f.Change.Lo = clamp(f.Change.Lo, e.lower-now, e.upper-now)
 	f.Change.Hi = clamp(f.Change.Hi, e.lower-now, e.upper-now)
+	f.Change = ordered(f.Change)
 
 	cs = e.plateaus(cs)
 	f.Plateau = e.valueInterval(cs, qlo, qhi)
@@ -61,11 +63,21 @@ func (f *Forecast) gainWords(gain, minDelta float64) string {
 // valueInterval converts a score mixture to a value interval: the mean and
 // the quantiles, flipped since a higher score is a lower value.
 func (e *ensemble) valueInterval(cs []component, qlo, qhi float64) Interval {
-	return Interval{
+	return ordered(Interval{
 		Value: e.value(mixtureMean(cs)),
 		Lo:    e.value(mixtureQuantile(cs, qhi)),
 		Hi:    e.value(mixtureQuantile(cs, qlo)),
-	}
+	})
+}
+
+// ordered widens an interval to hold its value. The mean of a mixture can
+// lie outside its central interval when a family with little weight lies
+// far from the others; the interval then reaches to the mean rather than
+// hide it.
+func ordered(iv Interval) Interval {
+	iv.Lo = math.Min(iv.Lo, iv.Value)
+	iv.Hi = math.Max(iv.Hi, iv.Value)
+	return iv
 }
 
 // noiseEpoch returns the first epoch e from which the expected gain

@@ -14,8 +14,8 @@ const (
 	// BreakRestart: the epochs went backwards (a run resumed from a
 	// checkpoint); only the latest stretch is one curve.
 	BreakRestart
-	// BreakNonFinite: a NaN or ±Inf was logged; the curve after it is
-	// fitted on its own.
+	// BreakNonFinite: a NaN or ±Inf (or a value beyond ±1e100) was
+	// logged; the curve after it is fitted on its own.
 	BreakNonFinite
 	// BreakLR: the learning rate changed by a factor of two or more within
 	// two epochs, suddenly beside its change before, which starts a new
