@@ -121,14 +121,14 @@ func TestEpochs_Target(t *testing.T) {
 // curve still falling fast does not.
 func TestEpochs_Stop(t *testing.T) {
 	flat := Epochs(Curve{
-		Values: noisy(80, 0.002, 3, func(x float64) float64 { return 0.1 + 0.3*math.Exp(-x/4) }),
+		Values:   noisy(80, 0.002, 3, func(x float64) float64 { return 0.1 + 0.3*math.Exp(-x/4) }),
 		Fraction: true, Total: 120, MinDelta: 0.005,
 	}, Options{})
 	if flat.Status != OK || !flat.Stop || !strings.HasPrefix(flat.StopReason, "stop: even the optimistic forecast") {
 		t.Errorf("plateau: stop %v %q (%s)", flat.Stop, flat.StopReason, flat.Phrase())
 	}
 	falling := Epochs(Curve{
-		Values: noisy(30, 0.002, 3, func(x float64) float64 { return 0.05 + 0.5*math.Pow(x, -0.5) }),
+		Values:   noisy(30, 0.002, 3, func(x float64) float64 { return 0.05 + 0.5*math.Pow(x, -0.5) }),
 		Fraction: true, Total: 300, MinDelta: 0.005,
 	}, Options{})
 	if falling.Status != OK || falling.Stop {
@@ -136,7 +136,7 @@ func TestEpochs_Stop(t *testing.T) {
 	}
 	// The best value given by the early stopping is the one compared.
 	withBest := Epochs(Curve{
-		Values: noisy(30, 0.002, 3, func(x float64) float64 { return 0.05 + 0.5*math.Pow(x, -0.5) }),
+		Values:   noisy(30, 0.002, 3, func(x float64) float64 { return 0.05 + 0.5*math.Pow(x, -0.5) }),
 		Fraction: true, Total: 300, Best: diagnose.Some(0.01),
 	}, Options{})
 	if !withBest.Stop || withBest.Best != 0.01 {
