@@ -27,6 +27,11 @@ type ensemble struct {
 	// noise2 is the variance of one logged value around the curve, in
 	// score units (the per-epoch noise).
 	noise2 float64
+	// drift is the model-error scale (score units): how far the curve
+	// moved over the second half of the fitted stretch (see modelError).
+	drift float64
+	// last is the last fitted epoch.
+	last float64
 	// lower, upper clamp values (0 and 1 for error rates).
 	lower, upper float64
 	grad         []float64
@@ -88,14 +93,17 @@ func (e *ensemble) value(u float64) float64 {
 }
 
 // mean is the ensemble's expected value at an epoch.
-func (e *ensemble) mean(epoch float64) float64 {
+func (e *ensemble) mean(epoch float64) float64 { return e.value(e.meanScore(epoch)) }
+
+// meanScore is the ensemble's mean score at an epoch.
+func (e *ensemble) meanScore(epoch float64) float64 {
 	x := e.x(epoch)
 	lx := math.Log(x)
 	var u float64
 	for _, m := range e.members {
 		u += m.weight * m.fit.fam.eval(m.fit.th, x, lx, nil)
 	}
-	return e.value(u)
+	return u
 }
 
 // component is one normal of the predictive mixture, in score units.
@@ -107,12 +115,33 @@ type component struct{ w, mu, sd float64 }
 // the curve under it).
 func (e *ensemble) components(epoch float64, observed bool, dst []component) []component {
 	x := e.x(epoch)
+	me := e.modelError(epoch)
 	dst = dst[:0]
 	for _, m := range e.members {
 		u, v := m.fit.at(x, e.grad)
-		dst = append(dst, e.component(m, u, v, observed))
+		c := e.component(m, u, v, observed)
+		c.sd = math.Hypot(c.sd, me)
+		dst = append(dst, c)
 	}
 	return dst
+}
+
+// modelErrorScale is κ of modelError (design choice, set on the tuning
+// curves, see DEVELOPERS.md).
+var modelErrorScale = 0.5
+
+// modelError is the standard deviation (score units) of what no family
+// can know: how the curve departs from every fitted shape beyond the last
+// epoch (a learning-rate schedule that keeps annealing, a second descent,
+// a slow turn). It grows with the log of the horizon and with how far the
+// curve still moved over the second half of the fitted stretch:
+// κ·drift·log₂(epoch/last). A curve that has stopped moving gets little; a
+// curve still falling could fall further or stop, and gets much.
+func (e *ensemble) modelError(epoch float64) float64 {
+	if epoch <= e.last {
+		return 0
+	}
+	return modelErrorScale * e.drift * math.Log2(e.x(epoch)/e.x(e.last))
 }
 
 // plateaus returns the mixture of the families' limits.
@@ -146,7 +175,9 @@ func (e *ensemble) changes(from, to float64, dst []component) []component {
 		for a := 0; a < p; a++ {
 			e.grad[a] -= g0[a]
 		}
-		dst = append(dst, e.component(m, u1-u0, m.fit.variance(e.grad[:p]), false))
+		c := e.component(m, u1-u0, m.fit.variance(e.grad[:p]), false)
+		c.sd = math.Hypot(c.sd, e.modelError(to)-e.modelError(from))
+		dst = append(dst, c)
 	}
 	return dst
 }

@@ -85,12 +85,10 @@ func (ft *fitter) fit(f *family, d *dataset) (fitted, bool) {
 	// Fill JᵀWJ at the winner (the last fit may have been the other start).
 	s.normal(f, d, best.th)
 	best.cov = make([]float64, p*p)
-	active := make([]bool, p)
-	for a := range active {
-		lo, hi := d.bounds(f, a)
-		active[a] = best.th[a] <= lo || best.th[a] >= hi
-	}
-	if !s.covariance(best.cov, active) {
+	// Parameters held at a bound keep their variance: a plateau pressed
+	// against zero error is not known to lie there, and the values are
+	// clamped to the metric's range afterwards.
+	if !s.covariance(best.cov, make([]bool, p)) {
 		return fitted{}, false
 	}
 	best.rss += d.within
@@ -235,6 +233,8 @@ func fitEnsemble(ep []int, v []float64, c Curve, unbinned int) (*ensemble, []Fam
 	}
 	if c.Fraction {
 		e.lower, e.upper = 0, 1
+	} else if d.plateauMax == 1 {
+		e.lower = 0 // a metric with its floor at 0 (a loss) stays above it
 	}
 	if c.Noise > 0 && finite(c.Noise) {
 		e.noise2 = (c.Noise / scale) * (c.Noise / scale)
@@ -256,6 +256,10 @@ func fitEnsemble(ep []int, v []float64, c Curve, unbinned int) (*ensemble, []Fam
 	for i := range e.members {
 		e.members[i].weight /= kept
 	}
+	// The drift: the ensemble's move over the second half of the stretch.
+	e.last = float64(ep[n-1])
+	mid := float64(ep[0]) + (e.last-float64(ep[0]))/2
+	e.drift = math.Abs(e.meanScore(e.last) - e.meanScore(mid))
 	return e, fams
 }
 

@@ -76,8 +76,15 @@ func TestEpochs_ExactCurve(t *testing.T) {
 	if f.Target != 120 {
 		t.Errorf("target %d, want the announced 120", f.Target)
 	}
-	if want := truth(120); math.Abs(f.At.Value-want) > 1e-6 || f.At.Hi-f.At.Lo > 1e-5 {
-		t.Errorf("at 120: %+v, want %.8f with a vanishing interval", f.At, want)
+	if want := truth(120); math.Abs(f.At.Value-want) > 1e-6 {
+		t.Errorf("at 120: %+v, want %.8f", f.At, want)
+	}
+	// Exact data leave only the model error: κ·drift·log₂(120/40), with
+	// the drift over the second half of the stretch, epochs 20.5 to 40;
+	// the 80 % interval is ±1.2815516 of it.
+	sd := modelErrorScale * (truth(20.5) - truth(40)) * math.Log2(120.0/40)
+	if half := (f.At.Hi - f.At.Lo) / 2; math.Abs(half-1.2815516*sd) > 1e-6 {
+		t.Errorf("half-width %.8f, want %.8f", half, 1.2815516*sd)
 	}
 	if want := truth(120) - truth(40); math.Abs(f.Change.Value-want) > 1e-6 {
 		t.Errorf("change %+v, want %.8f", f.Change, want)

@@ -129,6 +129,7 @@ type Outcome struct {
 	Status      forecast.Status
 	Reason      string
 	Forecast    forecast.Interval
+	Level       float64
 	// Actual is the value the log shows at Target; Last and BestSoFar are
 	// the baselines: the last value and the lowest value up to Cut.
 	Actual, Last, BestSoFar float64
@@ -152,7 +153,7 @@ func Backtest(r Run, part float64, opt forecast.Options) Outcome {
 	o := Outcome{
 		Run: r.Name, Group: r.Group, Metric: r.Metric, Fraction: r.Fraction,
 		Cut: r.Epochs[k-1], Target: last, Status: f.Status, Reason: f.Reason,
-		Forecast: f.At, Actual: r.Values[len(r.Values)-1],
+		Forecast: f.At, Level: f.Level, Actual: r.Values[len(r.Values)-1],
 		Last: r.Values[k-1], BestSoFar: math.Inf(1),
 	}
 	for _, v := range r.Values[:k] {

@@ -24,6 +24,26 @@ type Row struct {
 	MedianAE float64
 	// Covered is how many outcomes fell inside the interval.
 	Covered int
+	// Score is the mean interval score of Gneiting & Raftery (2007,
+	// JASA 102:359–378, §6.2, from memory): the width plus 2/α times the
+	// distance by which the outcome missed the interval, α = 1 − level. A
+	// proper scoring rule: lower is better, and neither a narrow interval
+	// that misses nor a wide one that always hits can game it.
+	Score float64
+}
+
+// intervalScore is the interval score of one outcome at central
+// probability level.
+func intervalScore(o Outcome, level float64) float64 {
+	alpha := 1 - level
+	s := o.Forecast.Hi - o.Forecast.Lo
+	if o.Actual < o.Forecast.Lo {
+		s += 2 / alpha * (o.Forecast.Lo - o.Actual)
+	}
+	if o.Actual > o.Forecast.Hi {
+		s += 2 / alpha * (o.Actual - o.Forecast.Hi)
+	}
+	return s
 }
 
 // Coverage is the share of forecasts whose interval held the outcome.
@@ -81,11 +101,13 @@ func summarize(group, metric string, outs []Outcome) Row {
 		if o.Covered() {
 			r.Covered++
 		}
+		r.Score += intervalScore(o, o.Level)
 	}
 	if n := float64(r.Forecasts); n > 0 {
 		r.MAE /= n
 		r.MAELast /= n
 		r.MAEBest /= n
+		r.Score /= n
 		sort.Float64s(errs)
 		r.MedianAE = errs[len(errs)/2]
 		if len(errs)%2 == 0 {
@@ -99,9 +121,9 @@ func summarize(group, metric string, outs []Outcome) Row {
 // in the metric's units for losses.
 func Markdown(rows []Row, level float64) string {
 	var b strings.Builder
-	fmt.Fprintf(&b, "| runs | metric | curves | forecasts | refused | mean abs. error: forecast | last value | best so far | median abs. error | in the %d %% interval |\n",
+	fmt.Fprintf(&b, "| runs | metric | curves | forecasts | refused | mean abs. error: forecast | last value | best so far | median abs. error | in the %d %% interval | interval score |\n",
 		int(math.Round(level*100)))
-	b.WriteString("|---|---|---|---|---|---|---|---|---|---|\n")
+	b.WriteString("|---|---|---|---|---|---|---|---|---|---|---|\n")
 	for _, r := range rows {
 		f := func(v float64) string {
 			if r.Fraction {
@@ -109,9 +131,9 @@ func Markdown(rows []Row, level float64) string {
 			}
 			return fmt.Sprintf("%.4f", v)
 		}
-		fmt.Fprintf(&b, "| %s | %s | %d | %d | %s | %s | %s | %s | %s | %s |\n",
+		fmt.Fprintf(&b, "| %s | %s | %d | %d | %s | %s | %s | %s | %s | %s | %s |\n",
 			r.Group, r.Metric, r.Runs, r.Forecasts, refusals(r.Refused),
-			f(r.MAE), f(r.MAELast), f(r.MAEBest), f(r.MedianAE), coverage(r))
+			f(r.MAE), f(r.MAELast), f(r.MAEBest), f(r.MedianAE), coverage(r), f(r.Score))
 	}
 	return b.String()
 }
