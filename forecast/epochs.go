@@ -87,11 +87,15 @@ const (
 	// NoFit: no family could be fitted (a curve no learning curve
 	// resembles).
 	NoFit
+	// LRRising: the learning rate keeps rising (a range test, a warm-up
+	// not yet over, the rising half of a cycle): the curve's shape is
+	// still changing with it.
+	LRRising
 	// BadInput: the series are inconsistent (lengths differ).
 	BadInput
 )
 
-var statusNames = [...]string{"ok", "too-few-points", "turned", "diverging", "no-fit", "bad-input"}
+var statusNames = [...]string{"ok", "too-few-points", "turned", "diverging", "no-fit", "lr-rising", "bad-input"}
 
 // String returns the stable machine name used in JSON ("turned").
 func (s Status) String() string {
@@ -237,6 +241,12 @@ func Epochs(c Curve, o Options) Forecast {
 				plural(len(win), "epoch"), f.Break.Cause.phrase(), f.Break.Epoch, MinPoints))
 		}
 		return f.refuse(TooFew, fmt.Sprintf("no forecast: %s so far, need %d", plural(len(win), "epoch"), MinPoints))
+	}
+	if c.LR != nil {
+		if k, factor, ok := lrRising(c.LR, from); ok {
+			return f.refuse(LRRising, fmt.Sprintf("no forecast: the learning rate is rising, ×%.3g over the last %s",
+				factor, plural(k, "epoch")))
+		}
 	}
 	sigma, zScale := c.Noise, 1.0
 	if !(sigma > 0) || !finite(sigma) {

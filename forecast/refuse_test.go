@@ -66,6 +66,16 @@ func TestEpochs_Refusals(t *testing.T) {
 			status: TooFew, reason: "5 epochs since the learning-rate step at epoch 31, need 8",
 		},
 		{
+			name:   "LRRangeTest",
+			curve:  Curve{Values: noisy(30, 0.003, 6, powerCurve), LR: rising(30, 1e-4, 1.2), Fraction: true},
+			status: LRRising, reason: "the learning rate is rising, ×2.99 over the last 6 epochs", // 1.2⁶, 30/5 = 6
+		},
+		{
+			name:   "InWarmup",
+			curve:  Curve{Values: noisy(12, 0.003, 6, powerCurve), LR: warmupRates(12, 20), Fraction: true},
+			status: LRRising, reason: "the learning rate is rising",
+		},
+		{
 			name:   "EpochsAndValuesDiffer",
 			curve:  Curve{Epochs: []int{1, 2, 3}, Values: []float64{1, 2}},
 			status: BadInput, reason: "3 epochs but 2 values",
@@ -96,6 +106,25 @@ func TestEpochs_Refusals(t *testing.T) {
 			}
 		})
 	}
+}
+
+// rising is a learning rate that grows by factor every epoch from lr0 (a
+// range test).
+func rising(n int, lr0, factor float64) []float64 {
+	lr := make([]float64, n)
+	for i := range lr {
+		lr[i] = lr0 * math.Pow(factor, float64(i))
+	}
+	return lr
+}
+
+// warmupRates rises linearly over the first warm epochs, then holds.
+func warmupRates(n, warm int) []float64 {
+	lr := make([]float64, n)
+	for i := range lr {
+		lr[i] = 0.1 * math.Min(1, float64(i+1)/float64(warm))
+	}
+	return lr
 }
 
 // steps is a learning rate of hi for the first `at` epochs and lo after.

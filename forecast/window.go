@@ -115,6 +115,32 @@ func lrBreak(lr []float64, from int) int {
 	return last
 }
 
+// lrRisingFactor is the rise of the learning rate over the last stretch
+// (a fifth of the fitted points, at least 5) at which the forecast stands
+// down: a rate growing by half again is still reshaping the curve
+// (design choice; a range test grows it ×1.1–1.3 per epoch, a linear
+// warm-up doubles it within its first epochs).
+const lrRisingFactor = 1.5
+
+// lrRising reports whether the learning rate at the last point is at
+// least lrRisingFactor times the rate k points earlier (k = a fifth of
+// the points from `from`, at least 5), with k and the factor.
+func lrRising(lr []float64, from int) (k int, factor float64, ok bool) {
+	n := len(lr)
+	k = max((n-from)/5, 5)
+	if n-1-k < from {
+		k = n - 1 - from
+	}
+	if k < 1 {
+		return 0, 0, false
+	}
+	a, b := lr[n-1-k], lr[n-1]
+	if !(a > 0) || !(b > 0) || !finite(a) || !finite(b) {
+		return 0, 0, false
+	}
+	return k, b / a, b/a >= lrRisingFactor
+}
+
 // curveBreak returns the index of the first point after the last sudden
 // drop of v[from:] (a learning-rate step seen in the curve), or from. A
 // drop is a post window whose mean lies more than curveStepSigmas·σ below
