@@ -71,6 +71,30 @@ type DataForecast struct {
 	// not the amount of data, limits the error.
 	Optimal    diagnose.Num `json:"optimal"`
 	FloorAbove bool         `json:"floor_above_optimal"`
+
+	law      powerLaw
+	cov      []float64 // (JᵀJ)⁻¹ of the law's parameters
+	s2, t    float64   // residual variance, Student-t quantile at Level
+	fraction bool
+}
+
+// At returns the best value a new run on m training examples would reach:
+// the law's value and the interval that holds such a run (the law's
+// uncertainty and the runs' scatter about it). ok is false when there is
+// no forecast.
+func (f *DataForecast) At(m float64) (iv Interval, ok bool) {
+	if f.Status != OK || f.cov == nil || !(m >= 1) {
+		return Interval{}, false
+	}
+	g := make([]float64, 3)
+	f.law.grad(m, g)
+	sd := math.Sqrt(math.Max(quadForm(f.cov, g), 0)*f.s2 + f.s2)
+	v := f.law.at(m)
+	iv = Interval{Value: v, Lo: v - f.t*sd, Hi: v + f.t*sd}
+	if f.fraction {
+		iv.Lo = math.Max(iv.Lo, 0)
+	}
+	return iv, true
 }
 
 // DataNeed is the training-set size that reaches a target value.
@@ -141,14 +165,15 @@ func Data(pts []SizePoint, o DataOptions) DataForecast {
 	se := func(g []float64) float64 { return math.Sqrt(math.Max(quadForm(cov, g), 0) * s2) }
 	bound := func(v, sd float64) Interval { return Interval{Value: v, Lo: v - t*sd, Hi: v + t*sd} }
 	f.Status = OK
+	f.law, f.cov, f.s2, f.t, f.fraction = law, cov, s2, t, o.Fraction
 	f.A = bound(law.a, math.Sqrt(math.Max(cov[0], 0)*s2))
 	f.B = bound(law.b, math.Sqrt(math.Max(cov[4], 0)*s2))
 	f.Floor = bound(law.c, math.Sqrt(math.Max(cov[8], 0)*s2))
 	f.Floor.Lo = math.Max(f.Floor.Lo, 0)
 	// Doubling the largest size: the law there, and the change.
 	two := 2 * f.Largest
+	f.Doubled, _ = f.At(two)
 	law.grad(two, g)
-	f.Doubled = bound(law.at(two), math.Sqrt(se(g)*se(g)+s2))
 	g2 := make([]float64, 3)
 	law.grad(f.Largest, g2)
 	for i := range g {
@@ -156,9 +181,6 @@ func Data(pts []SizePoint, o DataOptions) DataForecast {
 	}
 	f.Gain = bound(law.at(two)-law.at(f.Largest), se(g))
 	f.Gain.Hi = math.Min(f.Gain.Hi, 0) // the law never rises with m
-	if o.Fraction {
-		f.Doubled.Lo = math.Max(f.Doubled.Lo, 0)
-	}
 	if o.Target > 0 {
 		f.Need = need(law, cov, s2, t, o.Target, f.Floor)
 	}

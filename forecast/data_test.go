@@ -88,7 +88,8 @@ func TestData_IntervalCoverage(t *testing.T) {
 	r := rand.New(rand.NewPCG(7, 7))
 	law := powerLaw{0.8, 0.4, 0.03}
 	const trials = 1000
-	hit := 0
+	hit, gainHit := 0, 0
+	gain := law.at(2*1437) - law.at(1437)
 	for i := 0; i < trials; i++ {
 		f := Data(sized(law.a, law.b, law.c, 0.003, 2, r), DataOptions{Fraction: true})
 		if f.Status != OK {
@@ -98,9 +99,16 @@ func TestData_IntervalCoverage(t *testing.T) {
 		if f.Doubled.Lo <= outcome && outcome <= f.Doubled.Hi {
 			hit++
 		}
+		// The gain's interval holds the law's own gain (no run scatter).
+		if f.Gain.Lo <= gain && gain <= f.Gain.Hi {
+			gainHit++
+		}
 	}
 	if cov := float64(hit) / trials; cov < 0.75 || cov > 0.86 {
-		t.Errorf("coverage %.3f of the 80%% interval", cov)
+		t.Errorf("coverage %.3f of the 80%% interval of a run at twice the data", cov)
+	}
+	if cov := float64(gainHit) / trials; cov < 0.72 || cov > 0.88 {
+		t.Errorf("coverage %.3f of the 80%% interval of the gain", cov)
 	}
 }
 
