@@ -79,17 +79,20 @@ func TestData_MatchesGonumOptimize(t *testing.T) {
 	}
 }
 
-// TestData_IntervalCoverage draws many series from a known law and checks
+// TestData_IntervalCoverage draws many series from a known law (steep, so
+// that the level at a size and the gain from doubling it have different
+// uncertainties) and checks
 // that the 80 % interval of the value at twice the largest size holds a
 // new run there about 80 % of the time (the delta method with a Student-t
 // quantile is an approximation; 1000 series give a standard error of
 // 1.3 points on the coverage).
 func TestData_IntervalCoverage(t *testing.T) {
 	r := rand.New(rand.NewPCG(7, 7))
-	law := powerLaw{0.8, 0.4, 0.03}
+	law := powerLaw{3, 0.9, 0.03}
 	const trials = 1000
 	hit, gainHit := 0, 0
 	gain := law.at(2*1437) - law.at(1437)
+	var gains, sds []float64
 	for i := 0; i < trials; i++ {
 		f := Data(sized(law.a, law.b, law.c, 0.003, 2, r), DataOptions{Fraction: true})
 		if f.Status != OK {
@@ -103,6 +106,21 @@ func TestData_IntervalCoverage(t *testing.T) {
 		if f.Gain.Lo <= gain && gain <= f.Gain.Hi {
 			gainHit++
 		}
+		gains = append(gains, f.Gain.Value)
+		sds = append(sds, (f.Gain.Value-f.Gain.Lo)/f.t)
+	}
+	// The delta method's standard error of the gain against the spread of
+	// the gain estimates over the simulated series: the same within 15 %.
+	var mean, sq, meanSD float64
+	for i := range gains {
+		mean += gains[i] / trials
+		meanSD += sds[i] / trials
+	}
+	for _, g := range gains {
+		sq += (g - mean) * (g - mean)
+	}
+	if mc := math.Sqrt(sq / (trials - 1)); meanSD < 0.85*mc || meanSD > 1.15*mc {
+		t.Errorf("gain: standard error by the delta method %.3g, spread over %d series %.3g", meanSD, trials, mc)
 	}
 	if cov := float64(hit) / trials; cov < 0.75 || cov > 0.86 {
 		t.Errorf("coverage %.3f of the 80%% interval of a run at twice the data", cov)
