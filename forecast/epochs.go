@@ -296,7 +296,7 @@ func (c Curve) epochs() ([]int, error) {
 // breakPoint returns the index of the first point of the stretch to fit
 // and why it is not 0: after the last restart, the last non-finite value,
 // the last learning-rate step (or, with no learning rate, the last step in
-// the curve).
+// the curve), and from the onset of the fall after a wait.
 func breakPoint(epochs []int, v, lr []float64) (int, BreakCause) {
 	from, cause := 0, NoBreak
 	for i := 1; i < len(v); i++ {
@@ -309,14 +309,16 @@ func breakPoint(epochs []int, v, lr []float64) (int, BreakCause) {
 			from, cause = i+1, BreakNonFinite
 		}
 	}
+	sigma := robustNoise(v[from:])
 	if lr != nil {
 		if b := lrBreak(lr, from); b > from {
-			return b, BreakLR
+			from, cause = b, BreakLR
 		}
-		return from, cause
+	} else if b := curveBreak(v, from, sigma); b > from {
+		from, cause = b, BreakCurve
 	}
-	if b := curveBreak(v, from, robustNoise(v[from:])); b > from {
-		return b, BreakCurve
+	if b := onset(v, from, sigma); b > from {
+		from, cause = b, BreakOnset
 	}
 	return from, cause
 }

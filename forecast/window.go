@@ -24,9 +24,14 @@ const (
 	// BreakCurve: no learning rate was given, and the curve itself dropped
 	// by far more than its noise and trend explain.
 	BreakCurve
+	// BreakOnset: the curve held still, then began to fall: the fit starts
+	// where it falls fastest, since the families describe the fall and its
+	// tail, not the wait before it (a network stuck near chance, a slow
+	// start at a small learning rate).
+	BreakOnset
 )
 
-var breakNames = [...]string{"none", "restart", "non-finite", "lr-step", "curve-step"}
+var breakNames = [...]string{"none", "restart", "non-finite", "lr-step", "curve-step", "onset"}
 
 // String returns the stable machine name used in JSON ("lr-step").
 func (b BreakCause) String() string {
@@ -50,6 +55,8 @@ func (b BreakCause) phrase() string {
 		return "the learning-rate step"
 	case BreakCurve:
 		return "the step in the curve"
+	case BreakOnset:
+		return "the onset of the fall"
 	}
 	return "the start"
 }
@@ -186,6 +193,54 @@ func curveBreak(v []float64, from int, sigma float64) int {
 	}
 	return last
 }
+
+// onset returns the index where v[from:] falls fastest when the curve
+// before it fell markedly slower (a wait, then a fall), or from. The fall
+// is measured on a centred moving average of w points (w odd, at least 3,
+// a twentieth of the points), as d = s(i − 1) − s(i + 1); the onset needs
+// d above onsetSigmas standard errors of it and at least onsetRatio times
+// the mean fall per step before it, and leaves MinPoints points to fit.
+func onset(v []float64, from int, sigma float64) int {
+	n := len(v) - from
+	w := max(3, n/20) | 1
+	if n < MinPoints+w+2 || !(sigma > 0) {
+		return from
+	}
+	s := make([]float64, n)
+	h := w / 2
+	for i := range s {
+		lo, hi := max(0, i-h), min(n, i+h+1)
+		var sum float64
+		for _, x := range v[from+lo : from+hi] {
+			sum += x
+		}
+		s[i] = sum / float64(hi-lo)
+	}
+	best, at := 0.0, 0
+	for i := 1; i+1 < n && i <= n-MinPoints; i++ {
+		if d := s[i-1] - s[i+1]; d > best {
+			best, at = d, i
+		}
+	}
+	if at < 2 || best <= onsetSigmas*sigma*math.Sqrt(2/float64(w)) {
+		return from
+	}
+	before := (s[0] - s[at]) / float64(at) // mean fall per step up to the onset
+	if before*onsetRatio >= best/2 {
+		return from
+	}
+	return from + at
+}
+
+// onsetRatio is how many times the mean fall per step before it the
+// fastest fall must be (design choice: a sigmoid start falls several times
+// faster at its steepest than on average before).
+const onsetRatio = 1.5
+
+// onsetSigmas is how many standard errors of a two-step fall of the moving
+// average the fastest fall must reach to count as an onset (design
+// choice: a fall at the start of learning is tens of them).
+const onsetSigmas = 6.0
 
 // robustNoiseScale returns the factor by which a threshold in units of
 // robustNoise(v) widens so that the estimate's own error, about

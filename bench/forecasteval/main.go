@@ -1,7 +1,8 @@
-// Command forecasteval prints the evaluation of the epoch forecasts on real
-// learning curves: each curve is forecast from its first third and compared
-// with the value its log shows at the last epoch. The README quotes its
-// table.
+// Command forecasteval prints the evaluation of the forecasts on real
+// training logs: each validation curve is forecast from its first third and
+// compared with the value its log shows at the last epoch; the runs of a
+// data-size series (a train_size column) are forecast from the runs on
+// smaller training sets. The README quotes its tables.
 //
 //	go run ./bench/forecasteval                       # the committed evaluation set
 //	go run ./bench/forecasteval -v 'runs/*.csv'       # other logs, one line per curve
@@ -52,5 +53,13 @@ func run(patterns []string, part float64, verbose bool) error {
 		}
 	}
 	fmt.Print(evalset.Markdown(evalset.Summarize(outs), forecast.DefaultLevel))
+	sized, err := evalset.LoadSizes(paths)
+	if err != nil {
+		return err
+	}
+	if len(sized) > 0 {
+		fmt.Println()
+		fmt.Print(evalset.SizesMarkdown(evalset.BacktestSizes(sized), forecast.DefaultLevel))
+	}
 	return nil
 }
