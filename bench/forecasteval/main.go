@@ -4,8 +4,8 @@
 // data-size series (a train_size column) are forecast from the runs on
 // smaller training sets. The README quotes its tables.
 //
-//	go run ./bench/forecasteval                       # the committed evaluation set
-//	go run ./bench/forecasteval -v 'runs/*.csv'       # other logs, one line per curve
+//	go run ./bench/forecasteval                  # the committed evaluation sets
+//	go run ./bench/forecasteval -v 'runs/*.csv'  # other logs, one line per curve
 package main
 
 import (
@@ -22,27 +22,28 @@ func main() {
 	verbose := flag.Bool("v", false, "print one line per curve")
 	part := flag.Float64("part", 1.0/3, "part of each curve the forecast sees")
 	flag.Parse()
-	patterns := flag.Args()
-	if len(patterns) == 0 {
-		patterns = evalset.Committed
+	sets := evalset.Committed
+	sizes := []string{evalset.SizeSet}
+	if flag.NArg() > 0 {
+		sets = []evalset.Set{{Name: "logs", Pattern: flag.Arg(0)}}
+		sizes = flag.Args()
+		for _, p := range flag.Args()[1:] {
+			sets = append(sets, evalset.Set{Name: "logs", Pattern: p})
+		}
 	}
-	if err := run(patterns, *part, *verbose); err != nil {
+	if err := run(sets, sizes, *part, *verbose); err != nil {
 		fmt.Fprintln(os.Stderr, "forecasteval:", diagnose.Printable(err.Error()))
 		os.Exit(1)
 	}
 }
 
-func run(patterns []string, part float64, verbose bool) error {
-	paths, err := evalset.Glob(patterns...)
+func run(sets []evalset.Set, sizes []string, part float64, verbose bool) error {
+	runs, err := evalset.Load(sets)
 	if err != nil {
 		return err
 	}
-	if len(paths) == 0 {
-		return fmt.Errorf("no logs match %q", patterns)
-	}
-	runs, err := evalset.Load(paths)
-	if err != nil {
-		return err
+	if len(runs) == 0 {
+		return fmt.Errorf("no curves in %v", sets)
 	}
 	var outs []evalset.Outcome
 	for _, r := range runs {
@@ -53,6 +54,10 @@ func run(patterns []string, part float64, verbose bool) error {
 		}
 	}
 	fmt.Print(evalset.Markdown(evalset.Summarize(outs), forecast.DefaultLevel))
+	paths, err := evalset.Glob(sizes...)
+	if err != nil {
+		return err
+	}
 	sized, err := evalset.LoadSizes(paths)
 	if err != nil {
 		return err

@@ -29,6 +29,7 @@ func TestImportArrows(t *testing.T) {
 		{"watch", [][]string{charm, {mod + "tui", mod + "report"}}, nil},
 		{"tui", [][]string{fsnotify, {mod + "watch"}}, nil},
 		{"trainer", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "diagnose"}}, nil},
+		{"forecast", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "report"}}, [][]string{io}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.pkg, func(t *testing.T) {

@@ -24,8 +24,11 @@ import (
 type Run struct {
 	// Name is the log's file name and the metric ("mlp-adam-1.csv error").
 	Name string
-	// Group is the set the log belongs to (its directory's name).
+	// Group is the name of the set the log belongs to.
 	Group string
+	// Tuning marks a run of a set that a setting was chosen on: its
+	// figures are reported apart and left out of the "held out" rows.
+	Tuning bool
 	// Metric is "error" (1 − accuracy) or "loss".
 	Metric string
 	Epochs []int
@@ -43,24 +46,49 @@ type Run struct {
 // metrics are the judged metrics evaluated: the config that selects each.
 var metrics = []struct{ name, base string }{{"error", "acc"}, {"loss", "loss"}}
 
-// Load reads each log and returns the runs of every metric it has on a
-// validation split, in order.
-func Load(paths []string) ([]Run, error) {
+// Set is a group of evaluation logs.
+type Set struct {
+	Name    string
+	Pattern string // a filepath.Glob pattern
+	// Tuning says a setting of the forecast was chosen on these logs.
+	Tuning bool
+}
+
+// Committed are the evaluation sets in the repository, relative to its
+// root. The model-error scale κ was chosen on the seed-1 curves and on
+// demo runs of seeds 4–9 (not committed: `fitgap demo --pace 0 --epochs
+// 120 --seed N`); everything else is held out from that choice.
+var Committed = []Set{
+	{Name: "curves", Pattern: "testdata/curves/*seed[23].csv"},
+	{Name: "stress runs", Pattern: "testdata/runs/*.csv"},
+	{Name: "demo", Pattern: "testdata/curves-demo/*.csv"},
+	{Name: "curves, seed 1 (tuning)", Pattern: "testdata/curves/*seed1.csv", Tuning: true},
+}
+
+// Load reads the logs of each set and returns the runs of every metric
+// they have on a validation split, in order.
+func Load(sets []Set) ([]Run, error) {
 	var runs []Run
-	for _, p := range paths {
-		pts, _, err := watch.ReadAll(p, nil, watch.Options{})
+	for _, set := range sets {
+		paths, err := Glob(set.Pattern)
 		if err != nil {
-			return nil, fmt.Errorf("evaluation log %q: %w", p, err)
+			return nil, err
 		}
-		for _, m := range metrics {
-			r, ok := judge(pts, m.base)
-			if !ok {
-				continue
+		for _, p := range paths {
+			pts, _, err := watch.ReadAll(p, nil, watch.Options{})
+			if err != nil {
+				return nil, fmt.Errorf("evaluation log %q: %w", p, err)
 			}
-			r.Name = filepath.Base(p) + " " + m.name
-			r.Group = filepath.Base(filepath.Dir(p))
-			r.Metric = m.name
-			runs = append(runs, r)
+			for _, m := range metrics {
+				r, ok := judge(pts, m.base)
+				if !ok {
+					continue
+				}
+				r.Name = filepath.Base(p) + " " + m.name
+				r.Group, r.Tuning = set.Name, set.Tuning
+				r.Metric = m.name
+				runs = append(runs, r)
+			}
 		}
 	}
 	return runs, nil
@@ -122,6 +150,7 @@ func (r Run) Cut(k int) forecast.Curve {
 type Outcome struct {
 	Run      string
 	Group    string
+	Tuning   bool
 	Metric   string
 	Fraction bool
 	// Cut is the last epoch the forecast saw; Target the epoch forecast.
@@ -151,7 +180,7 @@ func Backtest(r Run, part float64, opt forecast.Options) Outcome {
 	c := r.Cut(k)
 	f := forecast.Epochs(c, opt)
 	o := Outcome{
-		Run: r.Name, Group: r.Group, Metric: r.Metric, Fraction: r.Fraction,
+		Run: r.Name, Group: r.Group, Tuning: r.Tuning, Metric: r.Metric, Fraction: r.Fraction,
 		Cut: r.Epochs[k-1], Target: last, Status: f.Status, Reason: f.Reason,
 		Forecast: f.At, Level: f.Level, Actual: r.Values[len(r.Values)-1],
 		Last: r.Values[k-1], BestSoFar: math.Inf(1),
@@ -164,8 +193,9 @@ func Backtest(r Run, part float64, opt forecast.Options) Outcome {
 	return o
 }
 
-// Glob returns the logs matching the patterns, sorted, each pattern's
-// matches after the previous ones.
+// Glob returns the logs matching the patterns (not READMEs, nor tables
+// written from the logs), sorted, each pattern's matches after the
+// previous ones.
 func Glob(patterns ...string) ([]string, error) {
 	var out []string
 	for _, p := range patterns {
@@ -174,7 +204,8 @@ func Glob(patterns ...string) ([]string, error) {
 			return nil, fmt.Errorf("evaluation logs %q: %w", p, err)
 		}
 		for _, f := range m {
-			if !strings.HasSuffix(f, ".md") {
+			// READMEs and tables written from the logs are not logs.
+			if !strings.HasSuffix(f, ".md") && !strings.Contains(filepath.Base(f), "summary") {
 				out = append(out, f)
 			}
 		}
@@ -183,10 +214,6 @@ func Glob(patterns ...string) ([]string, error) {
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
-
-// Committed are the evaluation logs in the repository, relative to its
-// root.
-var Committed = []string{"testdata/curves/*.csv", "testdata/curves-demo/*.csv"}
 
 // String is one line per outcome, for -v.
 func (o Outcome) String() string {

@@ -24,6 +24,9 @@ type SizedRun struct {
 // sizeColumn is the column that carries a run's training-set size.
 const sizeColumn = "train_size"
 
+// SizeSet is the data-size series in the repository.
+var SizeSet = "testdata/curves/datasize-*.csv"
+
 // LoadSizes reads the logs that have a train_size column.
 func LoadSizes(paths []string) ([]SizedRun, error) {
 	var runs []SizedRun

@@ -54,25 +54,33 @@ func (r Row) Coverage() float64 {
 	return float64(r.Covered) / float64(r.Forecasts)
 }
 
-// Summarize groups outcomes by group and metric (sorted), then adds one
-// row per metric over all groups (Group "all").
+// AllHeldOut names the rows over every set not used for tuning.
+const AllHeldOut = "all held out"
+
+// Summarize groups outcomes by group (in order of first appearance) and
+// metric (error, then loss), then adds one row per metric over the groups
+// not used for tuning (AllHeldOut).
 func Summarize(outs []Outcome) []Row {
 	type key struct{ g, m string }
 	by := map[key][]Outcome{}
+	rank := map[string]int{}
 	for _, o := range outs {
+		if _, ok := rank[o.Group]; !ok {
+			rank[o.Group] = len(rank)
+		}
 		by[key{o.Group, o.Metric}] = append(by[key{o.Group, o.Metric}], o)
-		by[key{"all", o.Metric}] = append(by[key{"all", o.Metric}], o)
+		if !o.Tuning {
+			by[key{AllHeldOut, o.Metric}] = append(by[key{AllHeldOut, o.Metric}], o)
+		}
 	}
+	rank[AllHeldOut] = len(rank)
 	keys := make([]key, 0, len(by))
 	for k := range by {
 		keys = append(keys, k)
 	}
 	sort.Slice(keys, func(i, j int) bool {
-		if (keys[i].g == "all") != (keys[j].g == "all") {
-			return keys[j].g == "all"
-		}
 		if keys[i].g != keys[j].g {
-			return keys[i].g < keys[j].g
+			return rank[keys[i].g] < rank[keys[j].g]
 		}
 		return keys[i].m > keys[j].m // error before loss
 	})
