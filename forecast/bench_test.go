@@ -51,3 +51,15 @@ func BenchmarkEpochs(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkData is one data forecast: six sizes, three runs each.
+func BenchmarkData(b *testing.B) {
+	r := rand.New(rand.NewPCG(1, 1))
+	pts := sized(0.8, 0.4, 0.03, 0.003, 3, r)
+	b.ReportAllocs()
+	t := startCPU(b)
+	for b.Loop() {
+		Data(pts, DataOptions{Fraction: true, Target: 0.04})
+	}
+	t.report(b)
+}

@@ -206,15 +206,16 @@ func onset(v []float64, from int, sigma float64) int {
 	if n < MinPoints+w+2 || !(sigma > 0) {
 		return from
 	}
+	// Prefix sums make the moving average O(n) for any window.
+	cum := make([]float64, n+1)
+	for i, x := range v[from:] {
+		cum[i+1] = cum[i] + x
+	}
 	s := make([]float64, n)
 	h := w / 2
 	for i := range s {
 		lo, hi := max(0, i-h), min(n, i+h+1)
-		var sum float64
-		for _, x := range v[from+lo : from+hi] {
-			sum += x
-		}
-		s[i] = sum / float64(hi-lo)
+		s[i] = (cum[hi] - cum[lo]) / float64(hi-lo)
 	}
 	best, at := 0.0, 0
 	for i := 1; i+1 < n && i <= n-MinPoints; i++ {
@@ -242,6 +243,9 @@ const onsetRatio = 1.5
 // choice: a fall at the start of learning is tens of them).
 const onsetSigmas = 6.0
 
+// robustSample is the most pseudo-residuals robustNoise sorts.
+const robustSample = 1000
+
 // robustNoiseScale returns the factor by which a threshold in units of
 // robustNoise(v) widens so that the estimate's own error, about
 // 1.17/√k relative for the median of k absolute normal deviates (Hampel
@@ -261,8 +265,12 @@ func robustNoise(v []float64) float64 {
 	if len(v) < 3 {
 		return 0
 	}
-	e := make([]float64, 0, len(v)-2)
-	for i := 1; i+1 < len(v); i++ {
+	// A long curve is sampled at an even stride: the median of 1 000
+	// pseudo-residuals is within a few percent of the median of all, at a
+	// fraction of the sort.
+	stride := max(1, (len(v)-2)/robustSample)
+	e := make([]float64, 0, (len(v)-2)/stride+1)
+	for i := 1; i+1 < len(v); i += stride {
 		e = append(e, math.Abs((v[i-1]+v[i+1])/2-v[i]))
 	}
 	sort.Float64s(e)
