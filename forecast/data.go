@@ -183,6 +183,11 @@ func Data(pts []SizePoint, o DataOptions) DataForecast {
 	f.Gain.Hi = math.Min(f.Gain.Hi, 0) // the law never rises with m
 	if o.Target > 0 {
 		f.Need = need(law, cov, s2, t, o.Target, f.Floor)
+		// The law above the target at the largest size tried says more
+		// data is needed than that, whatever the interval's low end.
+		if f.Need.Reachable && law.at(f.Largest) > o.Target {
+			f.Need.Size.Lo = math.Max(f.Need.Size.Lo, f.Largest)
+		}
 	}
 	if o.Optimal.OK {
 		tol := o.Tolerance

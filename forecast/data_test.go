@@ -142,6 +142,7 @@ func TestData_Answers(t *testing.T) {
 	}{
 		{"TargetBelowFloor", DataOptions{Fraction: true, Target: 0.05}, false, false, "5.0% not reachable: the floor is above it"},
 		{"TargetAboveFloor", DataOptions{Fraction: true, Target: 0.09}, true, false, "9.0% needs "},
+		{"TargetNotReachedYet", DataOptions{Fraction: true, Target: 0.097}, true, false, "9.7% needs "},
 		{"FloorWellAboveOptimal", DataOptions{Fraction: true, Optimal: diagnose.Some(0.01)}, false, true, "well above the optimal 1.0%: the model, not the data, is the limit"},
 		{"FloorNearOptimal", DataOptions{Fraction: true, Optimal: diagnose.Some(0.075)}, false, false, "beside the optimal 7.5%"},
 	}
@@ -153,6 +154,11 @@ func TestData_Answers(t *testing.T) {
 			}
 			if tt.opt.Target > 0 && (f.Need == nil || f.Need.Reachable != tt.reachable) {
 				t.Errorf("need %+v, want reachable %v", f.Need, tt.reachable)
+			}
+			// Sizes already tried did not reach the target: the low end is
+			// no smaller than the largest of them.
+			if n := f.Need; n != nil && n.Reachable && f.law.at(f.Largest) > n.Target && n.Size.Lo < f.Largest {
+				t.Errorf("need %+v below the largest size tried %v", n.Size, f.Largest)
 			}
 			if f.FloorAbove != tt.floorAbove {
 				t.Errorf("floor %+v above optimal: %v, want %v", f.Floor, f.FloorAbove, tt.floorAbove)

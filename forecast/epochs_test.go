@@ -233,3 +233,28 @@ func TestForecast_NoiseEpoch(t *testing.T) {
 		t.Errorf("with noise 1e-6 the crossing is ahead, got epoch %d", f.NoiseEpoch)
 	}
 }
+
+func TestFormatChange(t *testing.T) {
+	tests := []struct {
+		v        float64
+		fraction bool
+		want     string
+	}{
+		{-0.013, true, "-1.3 points"},
+		{0.01, true, "+1.0 point"},
+		{-0.01, true, "-1.0 point"},
+		{0.00001, true, "0.00 points"},
+		{0, true, "0.0 points"},
+		{-0.0123456, false, "-0.01235"},
+		{0.5, false, "+0.5"},
+	}
+	for _, tt := range tests {
+		if got := formatChange(tt.v, tt.fraction); got != tt.want {
+			t.Errorf("formatChange(%v, %v) = %q, want %q", tt.v, tt.fraction, got, tt.want)
+		}
+	}
+	f := Forecast{Fraction: true}
+	if got := f.formatSigned(0.00001); got != "0.00" {
+		t.Errorf("a change that rounds to zero has no sign: %q", got)
+	}
+}

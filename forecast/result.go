@@ -183,14 +183,18 @@ func (f *Forecast) formatBare(v float64) string {
 	return strconv.FormatFloat(v, 'g', 4, 64)
 }
 
-// formatSigned writes a change with its sign and without a unit.
+// formatSigned writes a change with its sign and without a unit; a value
+// that rounds to zero has none.
 func (f *Forecast) formatSigned(v float64) string {
 	s := f.formatBare(v)
-	if v > 0 && s != "0" && s != "0.0" {
+	if v > 0 && !zeroDigits(s) {
 		return "+" + s
 	}
 	return s
 }
+
+// zeroDigits reports whether a formatted number is a zero ("0", "0.00").
+func zeroDigits(s string) bool { return strings.Trim(s, "0.") == "" }
 
 // formatGap writes a change with its sign and unit ("-1.3 points").
 func (f *Forecast) formatGap(v float64) string { return formatChange(v, f.Fraction) }
@@ -199,14 +203,15 @@ func formatChange(v float64, fraction bool) string {
 	s := formatValue(v, false)
 	if fraction {
 		s = diagnose.Percent(v)
-		if s == "1.0" || s == "-1.0" {
-			s += " point"
-		} else {
-			s += " points"
-		}
 	}
-	if v > 0 {
-		return "+" + s
+	if v > 0 && !zeroDigits(s) {
+		s = "+" + s
+	}
+	if fraction {
+		if s == "+1.0" || s == "-1.0" {
+			return s + " point"
+		}
+		return s + " points"
 	}
 	return s
 }
