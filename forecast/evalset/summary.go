@@ -166,5 +166,5 @@ func coverage(r Row) string {
 	if r.Forecasts == 0 {
 		return "–"
 	}
-	return fmt.Sprintf("%d/%d = %.0f %%", r.Covered, r.Forecasts, 100*r.Coverage())
+	return fmt.Sprintf("%d/%d = %.1f %%", r.Covered, r.Forecasts, 100*r.Coverage())
 }
