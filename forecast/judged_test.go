@@ -53,7 +53,7 @@ func TestFromJudged(t *testing.T) {
 		}
 		js = append(js, tr.Add(diagnose.Point{Epoch: e, EpochLogged: true, Total: 50, Samples: s}))
 	}
-	c := FromJudged(js, tr.Points())
+	c := FromJudged(js, tr.Points(), diagnose.SplitVal)
 	if len(c.Values) != 29 || len(c.Epochs) != 29 || len(c.LR) != 29 {
 		t.Fatalf("%d values, %d epochs, %d rates; want 29 each", len(c.Values), len(c.Epochs), len(c.LR))
 	}
@@ -70,7 +70,20 @@ func TestFromJudged(t *testing.T) {
 	if f.Status != OK || f.Break == nil || f.Break.Epoch != 21 || f.Target != 50 {
 		t.Errorf("forecast %v %q, break %+v, target %d", f.Status, f.Reason, f.Break, f.Target)
 	}
-	if none := FromJudged(nil, nil); none.Values == nil || len(none.Values) != 0 || none.LR != nil {
+	if none := FromJudged(nil, nil, diagnose.SplitVal); none.Values == nil || len(none.Values) != 0 || none.LR != nil {
 		t.Errorf("empty: %+v", none)
+	}
+	// The training curve: every epoch, no noise or best from the
+	// validation's early stopping.
+	train := FromJudged(js, tr.Points(), diagnose.SplitTrain)
+	if len(train.Values) != 30 || math.Abs(train.Values[0]-(powerCurve(1)-0.02)) > 1e-12 || train.Best.OK || train.Noise != 0 {
+		t.Errorf("training curve: %d values, first %v, best %+v, noise %v", len(train.Values), train.Values[0], train.Best, train.Noise)
+	}
+	if _, ok := TrainSize(tr.Points()); ok {
+		t.Error("no size column, yet a size")
+	}
+	sized := []diagnose.Point{{Samples: []diagnose.Sample{{Column: diagnose.Column{Name: "Train-Size"}, Last: 700}}}, {}}
+	if m, ok := TrainSize(sized); !ok || m != 700 {
+		t.Errorf("size %v %v, want 700", m, ok)
 	}
 }

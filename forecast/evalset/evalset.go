@@ -108,7 +108,7 @@ func judge(pts []diagnose.Point, base string) (Run, bool) {
 		return Run{}, false
 	}
 	kept := t.Points()
-	c := forecast.FromJudged(js, kept)
+	c := forecast.FromJudged(js, kept, diagnose.SplitVal)
 	if len(c.Values) < 2*forecast.MinPoints {
 		return Run{}, false
 	}

@@ -13,21 +13,18 @@ import (
 )
 
 // SizedRun is one run of a data-size series: its training-set size (a
-// constant train_size column) and the best validation error the tool's
-// early stopping recorded (the best smoothed value).
+// column forecast.TrainSize reads) and the best validation error the
+// tool's early stopping recorded (the best smoothed value).
 type SizedRun struct {
 	Name string
 	Size float64
 	Best float64
 }
 
-// sizeColumn is the column that carries a run's training-set size.
-const sizeColumn = "train_size"
-
 // SizeSet is the data-size series in the repository.
 var SizeSet = "testdata/curves/datasize-*.csv"
 
-// LoadSizes reads the logs that have a train_size column.
+// LoadSizes reads the logs that log their training-set size.
 func LoadSizes(paths []string) ([]SizedRun, error) {
 	var runs []SizedRun
 	for _, p := range paths {
@@ -35,10 +32,7 @@ func LoadSizes(paths []string) ([]SizedRun, error) {
 		if err != nil {
 			return nil, fmt.Errorf("evaluation log %q: %w", p, err)
 		}
-		if len(pts) == 0 {
-			continue
-		}
-		s, ok := pts[len(pts)-1].Named(sizeColumn)
+		size, ok := forecast.TrainSize(pts)
 		if !ok {
 			continue
 		}
@@ -50,7 +44,7 @@ func LoadSizes(paths []string) ([]SizedRun, error) {
 		if !ok || !j.EarlyStop.BestVal.OK {
 			continue
 		}
-		runs = append(runs, SizedRun{Name: filepath.Base(p), Size: s.Last, Best: j.EarlyStop.BestVal.V})
+		runs = append(runs, SizedRun{Name: filepath.Base(p), Size: size, Best: j.EarlyStop.BestVal.V})
 	}
 	return runs, nil
 }
