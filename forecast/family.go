@@ -167,13 +167,16 @@ var pow4 = family{
 
 // The three saturating families are fitted in (α, D, ln κ, δ) with
 // D = α − β ≥ 0, so that the box keeps them rising.
+var (
+	saturatingNames = []string{"alpha", "beta", "kappa", "delta"}
+	saturatingLo    = []float64{-big, 0, lnRateMin, expMin}
+	saturatingHi    = []float64{big, big, lnRateMax, expMax}
+)
 
 // mmf (Morgan–Mercer–Flodin): u = α − (α − β) / (1 + (κx)^δ).
 var mmf = family{
 	name: "MMF", prior: 1,
-	paperNames: []string{"alpha", "beta", "kappa", "delta"},
-	lo:         []float64{-big, 0, lnRateMin, expMin},
-	hi:         []float64{big, big, lnRateMax, expMax},
+	paperNames: saturatingNames, lo: saturatingLo, hi: saturatingHi,
 	eval: func(th []float64, x, lx float64, g []float64) float64 {
 		al, D, lk, de := th[0], th[1], th[2], th[3]
 		lkx := lk + lx
@@ -226,9 +229,7 @@ var exp4 = family{
 // janoschek: u = α − (α − β)·e^(−κ·x^δ).
 var janoschek = family{
 	name: "Janoschek", prior: 0.5,
-	paperNames: []string{"alpha", "beta", "kappa", "delta"},
-	lo:         []float64{-big, 0, lnRateMin, expMin},
-	hi:         []float64{big, big, lnRateMax, expMax},
+	paperNames: saturatingNames, lo: saturatingLo, hi: saturatingHi,
 	eval: func(th []float64, x, lx float64, g []float64) float64 {
 		al, D, lk, de := th[0], th[1], th[2], th[3]
 		t := math.Exp(lk + de*lx) // κ·x^δ
@@ -265,9 +266,7 @@ var janoschek = family{
 // weibull: u = α − (α − β)·e^(−(κx)^δ).
 var weibull = family{
 	name: "Weibull", prior: 0.5,
-	paperNames: []string{"alpha", "beta", "kappa", "delta"},
-	lo:         []float64{-big, 0, lnRateMin, expMin},
-	hi:         []float64{big, big, lnRateMax, expMax},
+	paperNames: saturatingNames, lo: saturatingLo, hi: saturatingHi,
 	eval: func(th []float64, x, lx float64, g []float64) float64 {
 		al, D, lk, de := th[0], th[1], th[2], th[3]
 		lkx := lk + lx

@@ -289,12 +289,5 @@ func (s *solver) covariance(cov []float64, active []bool) bool {
 	return top > 0
 }
 
-func clamp(v, lo, hi float64) float64 {
-	if v < lo {
-		return lo
-	}
-	if v > hi {
-		return hi
-	}
-	return v
-}
+// clamp returns v held inside [lo, hi] (NaN stays NaN).
+func clamp(v, lo, hi float64) float64 { return min(max(v, lo), hi) }
