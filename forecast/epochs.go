@@ -328,10 +328,11 @@ func target(total, horizon, last, first int) int {
 	if total > last {
 		return total
 	}
+	ahead := max(minHorizon, last-first+1)
 	if horizon > 0 {
-		return last + horizon
+		ahead = horizon
 	}
-	return last + max(minHorizon, last-first+1)
+	return last + min(ahead, math.MaxInt-last) // no overflow at the top of int
 }
 
 // maxMagnitude is the largest value a curve may hold: squares of larger

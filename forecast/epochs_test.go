@@ -258,3 +258,21 @@ func TestFormatChange(t *testing.T) {
 		t.Errorf("a change that rounds to zero has no sign: %q", got)
 	}
 }
+
+// TestEpochs_HugeEpochs: epochs near the top of int neither overflow nor
+// hang the searches.
+func TestEpochs_HugeEpochs(t *testing.T) {
+	v := noisy(30, 0.003, 1, powerCurve)
+	ep := make([]int, 30)
+	for i := range ep {
+		ep[i] = math.MaxInt - 100 + i
+	}
+	f := Epochs(Curve{Epochs: ep, Values: v, Fraction: true}, Options{})
+	if f.Status != OK || f.Target < f.LastEpoch {
+		t.Errorf("%v %q, target %d after %d", f.Status, f.Reason, f.Target, f.LastEpoch)
+	}
+	f = Epochs(Curve{Epochs: ep, Values: v, Fraction: true, Noise: 1e-12}, Options{Horizon: math.MaxInt})
+	if f.Status != OK || f.Target != math.MaxInt {
+		t.Errorf("%v %q, target %d", f.Status, f.Reason, f.Target)
+	}
+}

@@ -95,12 +95,18 @@ func (e *ensemble) noiseEpoch(last, first int, noise float64) int {
 		}
 		lo, hi = first, last
 	} else {
-		lo, hi = last, last+1
-		for !below(hi) {
-			if hi > maxEpoch {
+		// Offsets from last double up to maxEpoch; counting offsets keeps
+		// an epoch near the top of int from overflowing.
+		step := 1
+		for !below(last + step) {
+			if step > maxEpoch || last > math.MaxInt-2*step {
 				return 0
 			}
-			lo, hi = hi, last+2*(hi-last)
+			step *= 2
+		}
+		lo, hi = last+step/2, last+step
+		if step == 1 {
+			lo = last
 		}
 	}
 	for hi-lo > 1 {
