@@ -34,6 +34,7 @@ func TestImportArrows(t *testing.T) {
 		// no event loop, no I/O.
 		{"tui/chart", [][]string{fsnotify, {mod + "watch", mod + "diagnose", mod + "report"}}, [][]string{io, {"github.com/charmbracelet/bubbletea"}}},
 		{"trainer", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "diagnose"}}, nil},
+		{"forecast", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "report"}}, [][]string{io}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.pkg, func(t *testing.T) {
