@@ -41,6 +41,7 @@ func TestFromJudged(t *testing.T) {
 	lr := col("lr", "", diagnose.SplitNone, diagnose.KindOther)
 	tr := diagnose.New(diagnose.Config{})
 	var js []diagnose.Judgement
+	var pts []diagnose.Point
 	for e := 1; e <= 30; e++ {
 		v := 1 - powerCurve(float64(e))
 		rate := 0.1
@@ -51,9 +52,10 @@ func TestFromJudged(t *testing.T) {
 		if e != 7 { // epoch 7 has no validation
 			s = append(s, diagnose.Sample{Column: valAcc, Value: v, Last: v})
 		}
-		js = append(js, tr.Add(diagnose.Point{Epoch: e, EpochLogged: true, Total: 50, Samples: s}))
+		p := diagnose.Point{Epoch: e, EpochLogged: true, Total: 50, Samples: s}
+		js, pts = append(js, tr.Add(p)), append(pts, p)
 	}
-	c := FromJudged(js, tr.Points(), diagnose.SplitVal)
+	c := FromJudged(js, pts, diagnose.SplitVal)
 	if len(c.Values) != 29 || len(c.Epochs) != 29 || len(c.LR) != 29 {
 		t.Fatalf("%d values, %d epochs, %d rates; want 29 each", len(c.Values), len(c.Epochs), len(c.LR))
 	}
@@ -75,11 +77,11 @@ func TestFromJudged(t *testing.T) {
 	}
 	// The training curve: every epoch, no noise or best from the
 	// validation's early stopping.
-	train := FromJudged(js, tr.Points(), diagnose.SplitTrain)
+	train := FromJudged(js, pts, diagnose.SplitTrain)
 	if len(train.Values) != 30 || math.Abs(train.Values[0]-(powerCurve(1)-0.02)) > 1e-12 || train.Best.OK || train.Noise != 0 {
 		t.Errorf("training curve: %d values, first %v, best %+v, noise %v", len(train.Values), train.Values[0], train.Best, train.Noise)
 	}
-	if _, ok := TrainSize(tr.Points()); ok {
+	if _, ok := TrainSize(pts); ok {
 		t.Error("no size column, yet a size")
 	}
 	sized := []diagnose.Point{{Samples: []diagnose.Sample{{Column: diagnose.Column{Name: "Train-Size"}, Last: 700}}}, {}}

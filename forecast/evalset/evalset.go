@@ -97,8 +97,10 @@ func Load(sets []Set) ([]Run, error) {
 // judge runs the tool's judgement of one metric over the points.
 func judge(pts []diagnose.Point, base string) (Run, bool) {
 	t := diagnose.New(diagnose.Config{Metric: base})
+	var kept []diagnose.Point // the points the Tracker keeps: a resumed epoch replaces the later ones
 	for _, p := range pts {
 		t.Push(p)
+		kept = watch.AppendPoint(kept, p)
 	}
 	js := make([]diagnose.Judgement, t.Len())
 	for i := range js {
@@ -107,7 +109,6 @@ func judge(pts []diagnose.Point, base string) (Run, bool) {
 	if len(js) == 0 || js[len(js)-1].Metric.Base != base {
 		return Run{}, false
 	}
-	kept := t.Points()
 	c := forecast.FromJudged(js, kept, diagnose.SplitVal)
 	if len(c.Values) < 2*forecast.MinPoints {
 		return Run{}, false
