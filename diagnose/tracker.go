@@ -46,6 +46,8 @@ type Tracker struct {
 	// after Add return it without building the texts again.
 	last      Judgement
 	lastValid bool
+	// replays counts the times every kept point was judged again.
+	replays int
 
 	buf text // scratch for building texts
 }
@@ -160,8 +162,14 @@ func (t *Tracker) truncate(epoch int) {
 	}
 }
 
+// Replays counts the times the Tracker judged every kept point again (it
+// chose another metric, found a rate written in percent, or was
+// reconfigured): a judgement read before the count changed may be stale.
+func (t *Tracker) Replays() int { return t.replays }
+
 // replay judges every kept point from scratch.
 func (t *Tracker) replay() {
+	t.replays++
 	t.recs.n = 0
 	t.ckpts = t.ckpts[:0]
 	for i := range t.points {

@@ -44,6 +44,11 @@ type store struct {
 	// written in percent (the same inference the judgement makes).
 	percent map[string]bool
 
+	// nonFinite lists, for the rare rows that have one, the base metrics
+	// whose logged value was NaN or ±Inf at that row: a row is marked bad
+	// when the judged metric is among them, whichever metric is judged.
+	nonFinite map[int][]string
+
 	// optimal holds the optimal errors given per base metric (flag or `b`),
 	// so cycling the metric does not carry one metric's estimate to another.
 	optimal map[string]float64
@@ -68,6 +73,11 @@ func (s *store) truncate(n int) {
 			c.vals = c.vals[:n]
 		}
 	}
+	for i := range s.nonFinite {
+		if i >= n {
+			delete(s.nonFinite, i)
+		}
+	}
 }
 
 // add stores the judgement j of point p, which replaces the rows from
@@ -75,20 +85,26 @@ func (s *store) truncate(n int) {
 // last one).
 func (s *store) add(j diagnose.Judgement, p diagnose.Point, arrived time.Time, batch int) {
 	n := j.Index
-	if n < 0 {
-		n = len(s.rows)
+	if n < 0 || n > len(s.rows) {
+		n = len(s.rows) // a gap cannot happen with the Tracker; stay aligned anyway
 	}
 	s.truncate(n)
-	r := rowOf(j, p)
-	r.arrived, r.batch = arrived, batch
-	for len(s.rows) < n { // a gap cannot happen with the Tracker; stay aligned anyway
-		s.rows = append(s.rows, row{epoch: r.epoch, train: math.NaN(), val: math.NaN(), trainDev: math.NaN()})
+	r := row{epoch: p.Epoch, total: p.Total, logged: p.Time, arrived: arrived, batch: batch}
+	if j.Epoch != 0 || p.Epoch == 0 {
+		r.epoch = j.Epoch
 	}
 	s.rows = append(s.rows, r)
 	for _, smp := range p.Samples {
 		switch smp.Column.Kind {
 		case diagnose.KindEpoch, diagnose.KindStep, diagnose.KindTime:
 			continue
+		case diagnose.KindMetric:
+			if !isFinite(smp.Value) {
+				if s.nonFinite == nil {
+					s.nonFinite = map[int][]string{}
+				}
+				s.nonFinite[n] = append(s.nonFinite[n], smp.Column.Base)
+			}
 		}
 		name := clean(smp.Column.Name)
 		c := s.colByID[name]
@@ -109,54 +125,43 @@ func (s *store) add(j diagnose.Judgement, p diagnose.Point, arrived time.Time, b
 			c.vals = append(c.vals, math.NaN())
 		}
 	}
+	s.judge(n, j)
 }
 
-// rejudge refreshes the judged values of every row after the Tracker was
-// reconfigured (another metric, another optimal error), keeping arrival
-// times, which only the screen knows.
+// rejudge refreshes the judged values of every row after the judgements
+// changed (another metric, another optimal error, a replay of the run's
+// Tracker), keeping what only the screen knows (arrival times). Rows the
+// Tracker no longer holds are dropped; points it holds that the screen has
+// not received yet come with their batch.
 func (s *store) rejudge(t *diagnose.Tracker) {
-	pts := t.Points()
-	n := min(t.Len(), len(pts))
-	old := s.rows
-	s.rows = make([]row, 0, n)
+	n := min(t.Len(), len(s.rows))
+	s.truncate(n)
 	for i := 0; i < n; i++ {
-		r := rowOf(t.At(i), pts[i])
-		if i < len(old) {
-			r.arrived, r.batch = old[i].arrived, old[i].batch
-		}
-		s.rows = append(s.rows, r)
+		s.judge(i, t.At(i))
 	}
 }
 
-func rowOf(j diagnose.Judgement, p diagnose.Point) row {
+// judge sets the judged values of row i from its judgement j.
+func (s *store) judge(i int, j diagnose.Judgement) {
 	val := func(e diagnose.Estimate) float64 {
 		if !e.Raw.OK {
 			return math.NaN()
 		}
 		return e.Raw.V
 	}
-	r := row{
-		epoch:    p.Epoch,
-		train:    val(j.Train),
-		val:      val(j.Val),
-		trainDev: val(j.TrainDev),
-		total:    p.Total,
-		logged:   p.Time,
-	}
-	if j.Epoch != 0 || p.Epoch == 0 {
-		r.epoch = j.Epoch
-	}
+	r := &s.rows[i]
+	r.train, r.val, r.trainDev = val(j.Train), val(j.Val), val(j.TrainDev)
+	r.bad = false
 	for _, e := range []diagnose.Estimate{j.Train, j.Val, j.TrainDev} {
 		if e.Raw.OK && !isFinite(e.Raw.V) {
 			r.bad = true
 		}
 	}
-	for _, smp := range p.Samples {
-		if smp.Column.Kind == diagnose.KindMetric && smp.Column.Base == j.Metric.Base && !isFinite(smp.Value) {
+	for _, b := range s.nonFinite[i] {
+		if b == j.Metric.Base {
 			r.bad = true
 		}
 	}
-	return r
 }
 
 // addStep stores one per-step row: its metric columns, and its place on

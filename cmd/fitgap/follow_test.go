@@ -33,43 +33,27 @@ type stopFileBody struct {
 	Reason    string   `json:"reason"`
 }
 
-// writeOverfitLog trains the demo's overfit scenario as a separate writer
-// process, pacing its epochs, into path.
-func startOverfitWriter(t *testing.T, path string, pace time.Duration) *exec.Cmd {
+// followOverfitLive starts writing the shared overfitting run into a new
+// log in dir, header first, a line every few milliseconds, and returns
+// the log's path.
+func followOverfitLive(t *testing.T, dir string) string {
 	t.Helper()
-	w := exec.Command(binPath, "demo", "--scenario", "overfit", "--pace", pace.String(), "--write", path)
-	var stderr bytes.Buffer
-	w.Stderr = &stderr
-	if err := w.Start(); err != nil {
-		t.Fatalf("start writer: %v", err)
-	}
-	t.Cleanup(func() {
-		w.Process.Kill()
-		w.Wait()
-	})
-	return w
-}
-
-func waitForFile(t *testing.T, path string) {
-	t.Helper()
-	deadline := time.Now().Add(20 * time.Second)
-	for time.Now().Before(deadline) {
-		if _, err := os.Stat(path); err == nil {
-			return
-		}
-		time.Sleep(10 * time.Millisecond)
-	}
-	t.Fatalf("%s never appeared", path)
-}
-
-// TestFollow_ExitOnStopCreatesStopFile runs the demo trainer's overfitting
-// curve through a writer process while `fitgap follow` reads it live.
-func TestFollow_ExitOnStopCreatesStopFile(t *testing.T) {
-	dir := t.TempDir()
+	lines := logLines(t, overfitLog(t))
 	logPath := filepath.Join(dir, "overfit.csv")
+	if err := os.WriteFile(logPath, lines[0], 0o644); err != nil {
+		t.Fatal(err)
+	}
+	startWriter(t, logPath, lines[1:], 2*time.Millisecond)
+	return logPath
+}
+
+// TestFollow_ExitOnStopCreatesStopFile follows the demo trainer's
+// overfitting run as it is written, with --exit-on-stop.
+func TestFollow_ExitOnStopCreatesStopFile(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
 	stopPath := filepath.Join(dir, "run.stop")
-	startOverfitWriter(t, logPath, 5*time.Millisecond)
-	waitForFile(t, logPath)
+	logPath := followOverfitLive(t, dir)
 
 	f := exec.Command(binPath, "follow", "--bayes-error", "0.05", "--exit-on-stop", "--idle-exit", "10s", "--stop-file", stopPath, logPath)
 	var stdout, stderr bytes.Buffer
@@ -91,6 +75,9 @@ func TestFollow_ExitOnStopCreatesStopFile(t *testing.T) {
 			break
 		}
 	}
+	if !strings.Contains(stderr.String(), "created "+stopPath) {
+		t.Errorf("stderr %q does not say the stop file was created", stderr.String())
+	}
 	var body stopFileBody
 	b, err := os.ReadFile(stopPath)
 	if err != nil {
@@ -108,7 +95,7 @@ func TestFollow_ExitOnStopCreatesStopFile(t *testing.T) {
 	}
 	// The epoch to restore is the one a whole-log report picks for the same
 	// epochs: follow judges live exactly as report judges afterwards.
-	want := reportBestEpochUpTo(t, logPath, body.Epoch)
+	want := reportBestEpochUpTo(t, overfitLog(t), body.Epoch)
 	if body.BestEpoch != want {
 		t.Errorf("stop file best epoch %d, report on the same %d epochs says %d", body.BestEpoch, body.Epoch, want)
 	}
@@ -145,6 +132,7 @@ func reportBestEpochUpTo(t *testing.T, logPath string, epochs int) int {
 }
 
 func TestFollow_RefusesExistingStopFile(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	logPath := filepath.Join(dir, "run.csv")
 	stopPath := filepath.Join(dir, "run.stop")
@@ -169,35 +157,68 @@ func TestFollow_RefusesExistingStopFile(t *testing.T) {
 }
 
 // TestFollow_SIGTERMLeavesNoHalfWrittenFile ends follow with SIGTERM at
-// many moments around the stop, and checks that the stop file is either
-// absent or complete, with no temporary file left behind.
+// moments around the stop (after it printed its first line, some lines
+// before the stop, the stop's line, lines after it) and checks the stop
+// file: complete and naming the first stop when a printed line said stop,
+// absent when none did, and no temporary file left behind. The moments
+// are counted in lines read from follow, never in sleeps: the signal
+// handler is installed before the first line is printed.
 func TestFollow_SIGTERMLeavesNoHalfWrittenFile(t *testing.T) {
-	if testing.Short() {
-		t.Skip("runs the trainer several times")
-	}
-	for i, delay := range []time.Duration{50 * time.Millisecond, 150 * time.Millisecond, 300 * time.Millisecond, 600 * time.Millisecond} {
-		t.Run(fmt.Sprintf("After%s", delay), func(t *testing.T) {
+	for _, after := range []int{1, 15, 29, 30, 31, 35} {
+		t.Run(fmt.Sprintf("AfterLine%d", after), func(t *testing.T) {
+			t.Parallel()
 			dir := t.TempDir()
-			logPath := filepath.Join(dir, "overfit.csv")
 			stopPath := filepath.Join(dir, "run.stop")
-			startOverfitWriter(t, logPath, time.Duration(i+1)*time.Millisecond)
-			waitForFile(t, logPath)
+			logPath := followOverfitLive(t, dir)
 			f := exec.Command(binPath, "follow", "--bayes-error", "5%", "--stop-file", stopPath, logPath)
 			var stderr bytes.Buffer
 			f.Stderr = &stderr
+			out, err := f.StdoutPipe()
+			if err != nil {
+				t.Fatal(err)
+			}
 			if err := f.Start(); err != nil {
 				t.Fatal(err)
 			}
-			time.Sleep(delay)
-			f.Process.Signal(syscall.SIGTERM)
-			err := f.Wait()
+			t.Cleanup(func() { f.Process.Kill() })
+			var printed bytes.Buffer
+			sc := bufio.NewScanner(out)
+			sc.Buffer(make([]byte, 1<<20), 1<<24)
+			for n := 0; sc.Scan(); {
+				printed.Write(sc.Bytes())
+				printed.WriteByte('\n')
+				if n++; n == after {
+					if err := f.Process.Signal(syscall.SIGTERM); err != nil {
+						t.Fatal(err)
+					}
+				}
+			}
+			err = f.Wait()
 			if code := f.ProcessState.ExitCode(); code != exitTerminated {
 				t.Errorf("exit %d (%v), want %d; stderr %s", code, err, exitTerminated, stderr.String())
 			}
-			if b, err := os.ReadFile(stopPath); err == nil {
+			lines := parseFollow(t, printed.Bytes())
+			if len(lines) < after {
+				t.Fatalf("follow printed %d lines, the signal was due after %d", len(lines), after)
+			}
+			firstStop := 0
+			for _, l := range lines {
+				if l.EarlyStop.Signal == "stop" {
+					firstStop = l.Epoch
+					break
+				}
+			}
+			b, err := os.ReadFile(stopPath)
+			switch {
+			case firstStop == 0 && err == nil:
+				t.Errorf("no printed line said stop, yet the stop file exists: %q", b)
+			case firstStop == 0:
+			case err != nil:
+				t.Errorf("epoch %d said stop, but the stop file is missing: %v", firstStop, err)
+			default:
 				var body stopFileBody
-				if err := json.Unmarshal(b, &body); err != nil || body.BestEpoch == 0 {
-					t.Errorf("stop file is incomplete: %q (%v)", b, err)
+				if err := json.Unmarshal(b, &body); err != nil || body.Epoch != firstStop || body.BestEpoch < 1 || body.BestVal == nil {
+					t.Errorf("stop file %q (%v), want complete and naming epoch %d", b, err, firstStop)
 				}
 			}
 			assertNoTempFiles(t, dir)
@@ -206,6 +227,7 @@ func TestFollow_SIGTERMLeavesNoHalfWrittenFile(t *testing.T) {
 }
 
 func TestFollow_NoStopNoFile(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	logPath := filepath.Join(dir, "improving.csv")
 	stopPath := filepath.Join(dir, "run.stop")
@@ -240,6 +262,7 @@ func TestFollow_NoStopNoFile(t *testing.T) {
 }
 
 func TestFollow_Pipe(t *testing.T) {
+	t.Parallel()
 	in := "epoch,loss,val_loss\n1,1.0,1.1\n2,0.8,0.9\n3,0.7,0.85\n"
 	stdout, stderr, code := runCLI(t, in, "follow", "-")
 	if code != 0 {
