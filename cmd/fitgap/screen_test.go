@@ -5,8 +5,11 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 	"time"
+
+	tea "github.com/charmbracelet/bubbletea"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/pipeline"
@@ -96,5 +99,46 @@ func TestRelay_EndsWhenTheScreenIsGone(t *testing.T) {
 	}
 	if _, open := <-feed; open {
 		t.Error("relay left the feed open")
+	}
+}
+
+// TestRelay_ScreenReadsWhileRunJudges runs the screen's model on the relay's
+// feed while the run judges the next batches, inspecting past epochs and
+// trying another metric as a user would: the screen reads the run's
+// history under the run's lock while the run writes it (run it under
+// -race; the tui tests check what is read).
+func TestRelay_ScreenReadsWhileRunJudges(t *testing.T) {
+	t.Parallel()
+	points, stats, err := watch.ReadAll(overfitLog(t), nil, watch.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	run := pipeline.New(pipeline.Options{Name: "overfit.csv", Judge: diagnose.DefaultConfig()})
+	batches := make(chan watch.Batch)
+	feed := make(chan tui.FeedMsg, 4)
+	go relay(context.Background(), run, batches, feed)
+	go func() {
+		for _, p := range points {
+			batches <- watch.Batch{Points: []diagnose.Point{p}, Stats: stats}
+		}
+		close(batches)
+	}()
+	var m tea.Model = tui.New(tui.Options{History: run})
+	m, _ = m.Update(tea.WindowSizeMsg{Width: 100, Height: 30})
+	n := 0
+	for msg := range feed {
+		m, _ = m.Update(msg)
+		n += len(msg.Points)
+		key := tea.KeyMsg{Type: tea.KeyLeft}
+		if n == len(points)/2 {
+			key = tea.KeyMsg{Type: tea.KeyRunes, Runes: []rune{'m'}}
+		}
+		m, _ = m.Update(key)
+		if v := m.View(); n > 1 && !strings.Contains(v, "as judged then") {
+			t.Fatalf("after %d points the screen does not inspect a past epoch:\n%s", n, v)
+		}
+	}
+	if n != len(points) {
+		t.Errorf("the screen received %d points, want %d", n, len(points))
 	}
 }
