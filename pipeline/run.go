@@ -164,33 +164,45 @@ func (r *Run) Load(points []diagnose.Point, stats watch.Stats) {
 // reader (the screen's feed gives up once the screen is gone).
 func (r *Run) Drive(ctx context.Context, batches <-chan watch.Batch, emit func(Update) error) error {
 	var idle <-chan time.Time
+	var timer *time.Timer
 	if r.opts.IdleEnd > 0 {
-		timer := time.NewTimer(r.opts.IdleEnd)
+		timer = time.NewTimer(r.opts.IdleEnd)
 		defer timer.Stop()
 		idle = timer.C
-		lines := 0
-		inner := emit
-		emit = func(u Update) error {
-			if u.Stats.Lines != lines {
-				lines = u.Stats.Lines
-				timer.Reset(r.opts.IdleEnd)
-			}
-			return inner(u)
-		}
 	}
+	lines := 0
 	writerDone := r.opts.WriterDone
+	// take applies one batch; it reports whether the run is over.
+	take := func(b watch.Batch, ok bool) (bool, error) {
+		if !ok {
+			return true, nil
+		}
+		if timer != nil && b.Stats.Lines != lines {
+			timer.Reset(r.opts.IdleEnd) // new lines: not idle
+		}
+		lines = b.Stats.Lines
+		u := r.Apply(b)
+		err := emit(u)
+		return err != nil || u.Ended, err
+	}
 	for {
 		select {
 		case <-ctx.Done():
 			return nil
 		case <-idle:
-			return nil
-		case b, ok := <-batches:
-			if !ok {
+			// A batch already waiting is not idleness (the process may
+			// have had no CPU for a while): take it, and wait again.
+			select {
+			case b, ok := <-batches:
+				timer.Reset(r.opts.IdleEnd)
+				if over, err := take(b, ok); over {
+					return err
+				}
+			default:
 				return nil
 			}
-			u := r.Apply(b)
-			if err := emit(u); err != nil || u.Ended {
+		case b, ok := <-batches:
+			if over, err := take(b, ok); over {
 				return err
 			}
 		case <-writerDone:

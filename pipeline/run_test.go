@@ -272,6 +272,9 @@ func TestRun_Drive(t *testing.T) {
 		{"ContextEnds", Options{}, false, true, 0, nil, 40},
 		{"EndOnStop", Options{EndOnStop: true}, false, false, 0, nil, firstStop(pts, diagnose.DefaultConfig()) + 1},
 		{"IdleEnd", Options{IdleEnd: 20 * time.Millisecond}, false, false, 0, nil, 40},
+		// The timer fires at once, with batches waiting: they are not
+		// idleness, so every one is taken before the run ends.
+		{"IdleEndWithBatchesWaiting", Options{IdleEnd: time.Microsecond}, false, false, 0, nil, 40},
 		{"SinkFails", Options{}, false, false, 3, sinkErr, 3},
 	}
 	for _, tt := range tests {

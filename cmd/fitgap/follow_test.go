@@ -171,33 +171,7 @@ func TestFollow_SIGTERMLeavesNoHalfWrittenFile(t *testing.T) {
 			stopPath := filepath.Join(dir, "run.stop")
 			logPath := followOverfitLive(t, dir)
 			f := exec.Command(binPath, "follow", "--bayes-error", "5%", "--stop-file", stopPath, logPath)
-			var stderr bytes.Buffer
-			f.Stderr = &stderr
-			out, err := f.StdoutPipe()
-			if err != nil {
-				t.Fatal(err)
-			}
-			if err := f.Start(); err != nil {
-				t.Fatal(err)
-			}
-			t.Cleanup(func() { f.Process.Kill() })
-			var printed bytes.Buffer
-			sc := bufio.NewScanner(out)
-			sc.Buffer(make([]byte, 1<<20), 1<<24)
-			for n := 0; sc.Scan(); {
-				printed.Write(sc.Bytes())
-				printed.WriteByte('\n')
-				if n++; n == after {
-					if err := f.Process.Signal(syscall.SIGTERM); err != nil {
-						t.Fatal(err)
-					}
-				}
-			}
-			err = f.Wait()
-			if code := f.ProcessState.ExitCode(); code != exitTerminated {
-				t.Errorf("exit %d (%v), want %d; stderr %s", code, err, exitTerminated, stderr.String())
-			}
-			lines := parseFollow(t, printed.Bytes())
+			lines := parseFollow(t, readLinesThenTerm(t, f, after))
 			if len(lines) < after {
 				t.Fatalf("follow printed %d lines, the signal was due after %d", len(lines), after)
 			}
@@ -238,13 +212,11 @@ func TestFollow_NoStopNoFile(t *testing.T) {
 		fmt.Fprintf(&b, "%d,%.4f,%.4f\n", e, 2.0/float64(e), 2.2/float64(e))
 	}
 	writeFile(t, logPath, b.String())
-	f := exec.Command(binPath, "follow", "--idle-exit", "300ms", "--stop-file", stopPath, logPath)
-	var stdout, stderr bytes.Buffer
-	f.Stdout, f.Stderr = &stdout, &stderr
-	if err := runWithTimeout(f, 20*time.Second); err != nil {
-		t.Fatalf("follow: %v; stderr %s", err, stderr.String())
-	}
-	lines := parseFollow(t, stdout.Bytes())
+	f := exec.Command(binPath, "follow", "--stop-file", stopPath, logPath)
+	var stderr bytes.Buffer
+	f.Stderr = &stderr
+	printed := readLinesThenTerm(t, f, 30)
+	lines := parseFollow(t, printed)
 	if len(lines) != 30 {
 		t.Errorf("follow printed %d objects, want one per epoch (30)", len(lines))
 	}
@@ -261,6 +233,23 @@ func TestFollow_NoStopNoFile(t *testing.T) {
 	}
 }
 
+// TestFollow_IdleExit ends follow once the log has been quiet for
+// --idle-exit (status 0), after every line was read. The idle time is the
+// feature under test: one second is far more than reading three lines
+// takes, and lines already read are never counted as idleness.
+func TestFollow_IdleExit(t *testing.T) {
+	t.Parallel()
+	p := filepath.Join(t.TempDir(), "run.csv")
+	writeFile(t, p, "epoch,loss,val_loss\n1,1.0,1.1\n2,0.8,0.9\n3,0.7,0.85\n")
+	stdout, stderr, code := runCLI(t, "", "follow", "--idle-exit", "1s", p)
+	if code != 0 {
+		t.Fatalf("follow --idle-exit: exit %d: %s", code, stderr)
+	}
+	if lines := parseFollow(t, []byte(stdout)); len(lines) != 3 {
+		t.Errorf("follow --idle-exit printed %d objects, want 3", len(lines))
+	}
+}
+
 func TestFollow_Pipe(t *testing.T) {
 	t.Parallel()
 	in := "epoch,loss,val_loss\n1,1.0,1.1\n2,0.8,0.9\n3,0.7,0.85\n"
@@ -272,6 +261,43 @@ func TestFollow_Pipe(t *testing.T) {
 	if len(lines) != 3 || lines[2].Epoch != 3 {
 		t.Errorf("follow - printed %+v, want 3 objects ending at epoch 3", lines)
 	}
+}
+
+// readLinesThenTerm starts f, sends it SIGTERM once it has printed n lines
+// (its handler is installed before the first), reads the rest of its
+// output, and checks that it ended as SIGTERM asks: status 143. A process
+// that never prints n lines is killed after a minute.
+func readLinesThenTerm(t *testing.T, f *exec.Cmd, n int) []byte {
+	t.Helper()
+	var stderr bytes.Buffer
+	f.Stderr = &stderr
+	out, err := f.StdoutPipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := f.Start(); err != nil {
+		t.Fatal(err)
+	}
+	// A follow that never prints n lines would wait for ever: kill it.
+	guard := time.AfterFunc(60*time.Second, func() { f.Process.Kill() })
+	defer guard.Stop()
+	var printed bytes.Buffer
+	sc := bufio.NewScanner(out)
+	sc.Buffer(make([]byte, 1<<20), 1<<24)
+	for read := 0; sc.Scan(); {
+		printed.Write(sc.Bytes())
+		printed.WriteByte('\n')
+		if read++; read == n {
+			if err := f.Process.Signal(syscall.SIGTERM); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+	err = f.Wait()
+	if code := f.ProcessState.ExitCode(); code != exitTerminated {
+		t.Errorf("exit %d (%v), want %d; stderr %s", code, err, exitTerminated, stderr.String())
+	}
+	return printed.Bytes()
 }
 
 func parseFollow(t *testing.T, out []byte) []followLine {
