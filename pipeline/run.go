@@ -89,8 +89,9 @@ type Update struct {
 	// Stats are the reader's counts so far. State is StateFinished once the
 	// writer is known to have ended (Options.WriterDone).
 	Stats watch.Stats
-	// Stop is set on the update whose point first reached stop while a
-	// stop file was asked for: whether it was created, or why not.
+	// Stop is set when a point of the batch says stop while the stop file
+	// is still to be created: it was created now, or why not (the next
+	// point that says stop tries again).
 	Stop *StopEvent
 	// Ended: the run ends with this update (Options.EndOnStop reached).
 	Ended bool
@@ -109,7 +110,7 @@ type StopEvent struct {
 // what changed. The lock is held only while judging, never during file I/O.
 func (r *Run) Apply(b watch.Batch) Update {
 	u := Update{Steps: b.Steps, Notices: b.Notices}
-	var stopAt *diagnose.Judgement
+	stopAt := -1 // the first point of the batch that says stop, for the stop file
 	r.mu.Lock()
 	r.stats = b.Stats
 	u.Stats = r.statsLocked()
@@ -130,8 +131,8 @@ func (r *Run) Apply(b watch.Batch) Update {
 		if j.EarlyStop.Signal != diagnose.Stop {
 			continue
 		}
-		if stopAt == nil && r.opts.StopFile.pending() {
-			stopAt = &u.Judgements[len(u.Judgements)-1]
+		if stopAt < 0 && r.opts.StopFile.pending() {
+			stopAt = i
 		}
 		if r.opts.EndOnStop {
 			u.Ended = true
@@ -139,8 +140,8 @@ func (r *Run) Apply(b watch.Batch) Update {
 		}
 	}
 	r.mu.Unlock()
-	if stopAt != nil {
-		u.Stop = r.opts.StopFile.create(*stopAt)
+	if stopAt >= 0 {
+		u.Stop = r.opts.StopFile.create(u.Judgements[stopAt])
 	}
 	return u
 }

@@ -170,9 +170,10 @@ func TestRun_StopFileOnce(t *testing.T) {
 }
 
 // TestRun_StopFileNeverOverwrites: a file that appears at the stop path
-// after the start is left alone; the update says why nothing was created.
+// after the start is left alone; the update says why nothing was created,
+// and the next point that says stop tries again.
 func TestRun_StopFileNeverOverwrites(t *testing.T) {
-	pts, stats := readCSV(t, overfitCSV(40))
+	pts, stats := readCSV(t, overfitCSV(41))
 	dir := t.TempDir()
 	path := filepath.Join(dir, "run.stop")
 	sf, err := OpenStopFile(path, "")
@@ -183,7 +184,7 @@ func TestRun_StopFileNeverOverwrites(t *testing.T) {
 		t.Fatal(err)
 	}
 	run := New(Options{Name: "run.csv", StopFile: sf})
-	u := run.Apply(watch.Batch{Points: pts, Stats: stats})
+	u := run.Apply(watch.Batch{Points: pts[:40], Stats: stats})
 	if u.Stop == nil || u.Stop.Err == nil || !strings.Contains(u.Stop.Err.Error(), "already exists") {
 		t.Fatalf("stop event %+v, want an error saying the file exists", u.Stop)
 	}
@@ -191,6 +192,16 @@ func TestRun_StopFileNeverOverwrites(t *testing.T) {
 		t.Errorf("the file that appeared was overwritten: %q", b)
 	}
 	assertNoTemp(t, dir)
+	if err := os.Remove(path); err != nil {
+		t.Fatal(err)
+	}
+	u = run.Apply(watch.Batch{Points: pts[40:], Stats: stats})
+	if u.Stop == nil || u.Stop.Err != nil || u.Stop.Epoch != 41 {
+		t.Fatalf("stop event %+v at epoch 41, want the file created", u.Stop)
+	}
+	if _, err := os.Stat(path); err != nil {
+		t.Errorf("no stop file after the retry: %v", err)
+	}
 }
 
 // TestRun_EndOnStop cuts the batch after the first stop.
