@@ -124,11 +124,39 @@ func newTestModel(t testing.TB, w, h int, opts Options) Model {
 }
 
 // send delivers one message and returns the updated model (commands are
-// dropped: tests call them on purpose when they matter).
+// dropped: tests call them on purpose when they matter). A FeedMsg with
+// points and no judgements is judged first, as the run's pipeline would.
 func send(t testing.TB, m Model, msg tea.Msg) Model {
 	t.Helper()
+	if f, ok := msg.(FeedMsg); ok {
+		msg = judged(t, m, f)
+	}
 	nm, _ := m.Update(msg)
 	return nm.(Model)
+}
+
+// judged fills in the judgements of f's points with the model's own
+// History (the one New makes when Options.History is nil), standing in for
+// the pipeline that judges a run before the screen sees it.
+func judged(t testing.TB, m Model, f FeedMsg) FeedMsg {
+	t.Helper()
+	if len(f.Points) == 0 || len(f.Judgements) > 0 {
+		return f
+	}
+	h, ok := m.hist.(ownHistory)
+	if !ok {
+		t.Fatalf("judged: the model's history is %T, not its own", m.hist)
+	}
+	j := sharedHistory(h).judge(f.Points, f.Source)
+	f.Judgements, f.Rejudged = j.Judgements, f.Rejudged || j.Rejudged
+	return f
+}
+
+// judgedLen is the number of points the shown judgements cover.
+func judgedLen(m Model) int {
+	n := 0
+	m.read(func(t *diagnose.Tracker) { n = t.Len() })
+	return n
 }
 
 // settle runs the rebuild the next tick would run.

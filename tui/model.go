@@ -4,11 +4,15 @@
 // inspect past epochs as they were judged then, switch metric, type a new
 // optimal-error estimate and save the summary.
 //
-// Data arrives as FeedMsg values on a channel; the screen judges the
-// points with its own diagnose.Tracker, keeps the raw series in its own
-// store, and rebuilds the rendered panels on a 10 Hz tick only when
-// something changed. View only joins cached strings. The package never
-// opens the log.
+// Data arrives as FeedMsg values on a channel: points already judged by
+// the run's one diagnose.Tracker, which the screen reads through a shared
+// History to show any past epoch as judged then. The screen keeps the raw
+// series in its own store, and rebuilds the rendered panels on a 10 Hz
+// tick only when something changed. View only joins cached strings. The
+// screen judges nothing itself, except while the user tries another
+// setting (`m`, `b`): it then keeps a Tracker of its own, and drops it when
+// the settings are the command line's again. The package never opens the
+// log.
 package tui
 
 import (
@@ -68,19 +72,40 @@ type SourceInfo struct {
 	LastWrite time.Time
 }
 
-// FeedMsg is one batch from the reader: new evaluation points, per-step
-// rows for the charts, the state of the source, and notices (a truncated
-// file, a resumed run) to show once.
+// FeedMsg is one batch from the run: new evaluation points with their
+// judgements, per-step rows for the charts, the state of the source, and
+// notices (a truncated file, a resumed run) to show once.
 type FeedMsg struct {
-	Points  []diagnose.Point
-	Steps   []diagnose.StepRow
-	Source  SourceInfo
-	Notices []string
+	// Points are the new evaluation points and Judgements[i] the run's
+	// judgement of Points[i] (the History's, at the time it was made).
+	Points     []diagnose.Point
+	Judgements []diagnose.Judgement
+	// Rejudged says the run judged every earlier point again (another
+	// metric, a rate found to be in percent): the screen reads them anew.
+	Rejudged bool
+	Steps    []diagnose.StepRow
+	Source   SourceInfo
+	Notices  []string
 }
+
+// History is the run's judged history, shared with whoever judges the run:
+// the screen reads past judgements through it. Read calls f with the
+// Tracker held still; f does not modify the Tracker nor keep it.
+type History interface {
+	Read(f func(t *diagnose.Tracker))
+}
+
+// ownHistory is a Tracker only the screen's goroutine touches.
+type ownHistory struct{ t *diagnose.Tracker }
+
+func (h ownHistory) Read(f func(t *diagnose.Tracker)) { f(h.t) }
 
 // Options configure the screen.
 type Options struct {
-	// Config is the judgement's configuration; `m` and `b` change a copy.
+	// History is the run's judged history, the source of every judgement
+	// the screen shows. Nil gives an empty one judged with Config.
+	History History
+	// Config is the judgement's configuration when History is nil.
 	Config diagnose.Config
 	// BayesNote says where a given optimal error comes from, shown beside
 	// it ("from the demo's label-noise rate").
@@ -144,7 +169,10 @@ type Model struct {
 	input  textinput.Model
 	typing bool // an optimal error is being typed
 
-	tracker *diagnose.Tracker
+	hist History
+	// explore judges the points again while the user tries settings other
+	// than the command line's (`m`, `b`); nil otherwise.
+	explore *diagnose.Tracker
 	data    *store
 	src     SourceInfo
 	notices []string // sanitized, newest last, at most maxNotices
@@ -188,16 +216,19 @@ func New(opts Options) Model {
 	in.Prompt = "optimal error: "
 	in.CharLimit = 24
 	m := Model{
-		opts:    opts,
-		now:     now,
-		keys:    newKeyMap(),
-		help:    help.New(),
-		input:   in,
-		tracker: diagnose.New(opts.Config),
-		data:    newStore(),
-		cursor:  -1,
-		cache:   &frame{},
-		dirty:   true,
+		opts:   opts,
+		now:    now,
+		keys:   newKeyMap(),
+		help:   help.New(),
+		input:  in,
+		hist:   opts.History,
+		data:   newStore(),
+		cursor: -1,
+		cache:  &frame{},
+		dirty:  true,
+	}
+	if m.hist == nil {
+		m.hist = ownHistory{diagnose.New(opts.Config)}
 	}
 	m.setRenderer(lipgloss.DefaultRenderer())
 	return m
@@ -250,8 +281,8 @@ type (
 		err  error
 	}
 	feedEndMsg struct{}
-	// signalMsg carries a signal caught by Run.
-	signalMsg struct{ reason ExitReason }
+	// closeMsg asks the screen to close: the caller caught a signal.
+	closeMsg struct{ reason ExitReason }
 )
 
 // frameInterval is the rebuild tick: 10 Hz keeps a fast log from costing a
@@ -270,20 +301,51 @@ func (m *Model) frameTick() tea.Cmd {
 	return tea.Tick(frameInterval, func(time.Time) tea.Msg { return frameMsg{} })
 }
 
-// Tracker returns the screen's judged history (shared: read only).
-func (m Model) Tracker() *diagnose.Tracker { return m.tracker }
+// read calls f with the Tracker whose judgements the screen shows: its
+// own while the user tries another setting, else the run's.
+func (m *Model) read(f func(t *diagnose.Tracker)) {
+	if m.explore != nil {
+		f(m.explore)
+		return
+	}
+	m.hist.Read(f)
+}
+
+// judging returns the settings of the judgements the screen shows.
+func (m *Model) judging() diagnose.Config {
+	var cfg diagnose.Config
+	m.read(func(t *diagnose.Tracker) { cfg = t.Config() })
+	return cfg
+}
+
+// judgementAt returns the judgement made at point i, as judged then, or
+// the zero Judgement when i is not a judged point.
+func (m *Model) judgementAt(i int) diagnose.Judgement {
+	var j diagnose.Judgement
+	m.read(func(t *diagnose.Tracker) {
+		if i >= 0 && i < t.Len() {
+			j = t.At(i)
+		}
+	})
+	return j
+}
 
 // Reason returns why the screen closed.
 func (m Model) Reason() ExitReason { return m.reason }
 
-// Summary returns the snapshot summary as of the last point received,
-// whatever the display shows (paused or inspecting).
+// Summary returns the snapshot summary as of the last point judged,
+// whatever the display shows (paused or inspecting), with the settings
+// the screen judges with.
 func (m Model) Summary() report.Summary {
-	return report.Build(report.Source{
-		Name:         m.src.Name,
-		Format:       m.src.Format,
-		Points:       m.tracker.Len(),
-		SkippedLines: m.src.Skipped,
-		Warnings:     m.sourceWarnings(),
-	}, m.tracker)
+	var s report.Summary
+	m.read(func(t *diagnose.Tracker) {
+		s = report.Build(report.Source{
+			Name:         m.src.Name,
+			Format:       m.src.Format,
+			Points:       t.Len(),
+			SkippedLines: m.src.Skipped,
+			Warnings:     m.sourceWarnings(),
+		}, t)
+	})
+	return s
 }

@@ -5,9 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
-	"os/signal"
 	"sync/atomic"
-	"syscall"
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
@@ -69,13 +67,13 @@ func openTerminal(stdout *os.File) (terminal, error) {
 // carries only what the caller prints. Without any terminal Run returns
 // ErrNoTerminal at once.
 //
-// Signals are Run's own: bubbletea ignores SIGHUP, so a dropped SSH link
-// would kill the process with the terminal in raw mode and no summary
-// written. SIGHUP, SIGTERM and SIGINT end the screen gracefully (the reason
-// says which); a second signal kills the screen at once, still restoring the
-// terminal. ctrl+c typed in the screen is a key (raw mode), and quits with
-// ExitInterrupted.
-func Run(ctx context.Context, m Model, feed <-chan FeedMsg, stdout *os.File) (Model, ExitReason, error) {
+// Signals are the caller's: bubbletea's own handler is off (it ignores
+// SIGHUP, so a dropped SSH link would kill the process with the terminal in
+// raw mode and no summary written). The caller catches them and sends a
+// reason on closes: the first ends the screen gracefully with that reason,
+// a second kills it at once, still restoring the terminal. ctrl+c typed in
+// the screen is a key (raw mode), and quits with ExitInterrupted.
+func Run(ctx context.Context, m Model, feed <-chan FeedMsg, closes <-chan ExitReason, stdout *os.File) (Model, ExitReason, error) {
 	t, err := openTerminal(stdout)
 	if err != nil {
 		return m, ExitQuit, err
@@ -83,11 +81,11 @@ func Run(ctx context.Context, m Model, feed <-chan FeedMsg, stdout *os.File) (Mo
 	if t.opened != nil {
 		defer t.opened.Close()
 	}
-	return run(ctx, m, feed, t)
+	return run(ctx, m, feed, closes, t)
 }
 
 // run drives the program on a chosen terminal (tests pass a pseudo-terminal).
-func run(ctx context.Context, m Model, feed <-chan FeedMsg, t terminal) (Model, ExitReason, error) {
+func run(ctx context.Context, m Model, feed <-chan FeedMsg, closes <-chan ExitReason, t terminal) (Model, ExitReason, error) {
 	r := lipgloss.NewRenderer(t.out)
 	// Ask the terminal for its colours now, before the program reads keys
 	// from it: an answer arriving later would be read as key presses.
@@ -109,28 +107,25 @@ func run(ctx context.Context, m Model, feed <-chan FeedMsg, t terminal) (Model, 
 		tea.WithoutSignalHandler(),
 		tea.WithFPS(maxFPS),
 	)
-	sigs := make(chan os.Signal, 2)
-	signal.Notify(sigs, syscall.SIGHUP, syscall.SIGTERM, syscall.SIGINT)
-	defer signal.Stop(sigs)
 	done := make(chan struct{})
 	defer close(done)
-	var caughtReason atomic.Int32 // 1 + the first signal's reason; 0 for none
+	var caughtReason atomic.Int32 // 1 + the first close's reason; 0 for none
 	go func() {
 		caught := false
 		for {
 			select {
 			case <-done:
 				return
-			case s := <-sigs:
+			case r := <-closes:
 				if caught {
 					p.Kill()
 					continue
 				}
 				caught = true
-				caughtReason.Store(1 + int32(reasonOf(s)))
+				caughtReason.Store(1 + int32(r))
 				// Send blocks until the event loop takes the message; the
-				// loop above must stay free for a second signal.
-				go p.Send(signalMsg{reason: reasonOf(s)})
+				// loop above must stay free for a second close.
+				go p.Send(closeMsg{reason: r})
 			}
 		}
 	}()
@@ -145,21 +140,11 @@ func run(ctx context.Context, m Model, feed <-chan FeedMsg, t terminal) (Model, 
 			return fm, ExitCanceled, nil
 		}
 		if r := caughtReason.Load(); r > 0 && errors.Is(err, tea.ErrProgramKilled) {
-			// Killed by a second signal: the first one's reason stands.
+			// Killed by a second close: the first one's reason stands.
 			fm.reason = ExitReason(r - 1)
 			return fm, fm.reason, nil
 		}
 		return fm, fm.reason, fmt.Errorf("live screen: %w", err)
 	}
 	return fm, fm.reason, nil
-}
-
-func reasonOf(s os.Signal) ExitReason {
-	switch s {
-	case syscall.SIGHUP:
-		return ExitHangup
-	case syscall.SIGTERM:
-		return ExitTerminated
-	}
-	return ExitInterrupted
 }

@@ -87,21 +87,22 @@ type runResult struct {
 	err    error
 }
 
-// TestRun_SignalsRestoreTerminal drives Run on a pseudo-terminal, sends
-// the process a signal while the screen is up, and checks that Run returns
-// with the reason, the final model, and the terminal back in cooked mode
-// with the alternate screen left. Signals go to this test process; Run's
-// handler is the only one registered for them while it runs, so the test
-// process itself is not ended.
-func TestRun_SignalsRestoreTerminal(t *testing.T) {
+// TestRun_ClosesRestoreTerminal drives Run on a pseudo-terminal, asks the
+// screen to close while it is up (as the caller does when it catches
+// SIGHUP, SIGTERM or SIGINT), and checks that Run returns with the reason,
+// the final model, and the terminal back in cooked mode with the alternate
+// screen left. A second request kills the program at once: the first
+// reason stands and the terminal is restored all the same.
+func TestRun_ClosesRestoreTerminal(t *testing.T) {
 	tests := []struct {
-		name string
-		sig  syscall.Signal
-		want ExitReason
+		name   string
+		closes []ExitReason
+		want   ExitReason
 	}{
-		{"Hangup", syscall.SIGHUP, ExitHangup},
-		{"Terminate", syscall.SIGTERM, ExitTerminated},
-		{"Interrupt", syscall.SIGINT, ExitInterrupted},
+		{"Hangup", []ExitReason{ExitHangup}, ExitHangup},
+		{"Terminate", []ExitReason{ExitTerminated}, ExitTerminated},
+		{"Interrupt", []ExitReason{ExitInterrupted}, ExitInterrupted},
+		{"SecondKills", []ExitReason{ExitTerminated, ExitInterrupted}, ExitTerminated},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -113,11 +114,13 @@ func TestRun_SignalsRestoreTerminal(t *testing.T) {
 			var screen screenBuffer
 			go screen.drain(master)
 
+			m := New(Options{})
 			feedCh := make(chan FeedMsg, 1)
-			feedCh <- FeedMsg{Points: overfitRun.points(), Source: liveSource(31)}
+			feedCh <- judged(t, m, FeedMsg{Points: overfitRun.points(), Source: liveSource(31)})
+			closes := make(chan ExitReason, len(tt.closes))
 			done := make(chan runResult, 1)
 			go func() {
-				m, r, err := run(context.Background(), New(Options{}), feedCh, terminal{in: slave, out: slave})
+				m, r, err := run(context.Background(), m, feedCh, closes, terminal{in: slave, out: slave})
 				done <- runResult{m, r, err}
 			}()
 			waitFor(t, "the verdict on screen", func() bool { return screen.contains("VERDICT") })
@@ -128,14 +131,14 @@ func TestRun_SignalsRestoreTerminal(t *testing.T) {
 			if raw.Lflag&unix.ICANON != 0 {
 				t.Fatalf("terminal not in raw mode while the screen is up")
 			}
-			if err := syscall.Kill(os.Getpid(), tt.sig); err != nil {
-				t.Fatal(err)
+			for _, r := range tt.closes {
+				closes <- r
 			}
 			var res runResult
 			select {
 			case res = <-done:
 			case <-time.After(10 * time.Second):
-				t.Fatal("Run did not return after the signal")
+				t.Fatal("Run did not return after the close request")
 			}
 			if res.err != nil || res.reason != tt.want {
 				t.Fatalf("Run = %v, %v; want %v, nil", res.reason, res.err, tt.want)
@@ -160,7 +163,7 @@ func TestRun_SignalsRestoreTerminal(t *testing.T) {
 // return ErrNoTerminal at once.
 func TestRun_NoTerminal(t *testing.T) {
 	if os.Getenv("FITGAP_TUI_NOTTY_CHILD") == "1" {
-		_, _, err := Run(context.Background(), New(Options{}), nil, os.Stdout)
+		_, _, err := Run(context.Background(), New(Options{}), nil, nil, os.Stdout)
 		if errors.Is(err, ErrNoTerminal) {
 			fmt.Println("no-terminal:", err)
 			os.Exit(0)

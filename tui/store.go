@@ -44,6 +44,11 @@ type store struct {
 	// written in percent (the same inference the judgement makes).
 	percent map[string]bool
 
+	// nonFinite lists, for the rare rows that have one, the base metrics
+	// whose logged value was NaN or ±Inf at that row: a row is marked bad
+	// when the judged metric is among them, whichever metric is judged.
+	nonFinite map[int][]string
+
 	// optimal holds the optimal errors given per base metric (flag or `b`),
 	// so cycling the metric does not carry one metric's estimate to another.
 	optimal map[string]float64
@@ -68,6 +73,11 @@ func (s *store) truncate(n int) {
 			c.vals = c.vals[:n]
 		}
 	}
+	for i := range s.nonFinite {
+		if i >= n {
+			delete(s.nonFinite, i)
+		}
+	}
 }
 
 // add stores the judgement j of point p, which replaces the rows from
@@ -75,20 +85,26 @@ func (s *store) truncate(n int) {
 // last one).
 func (s *store) add(j diagnose.Judgement, p diagnose.Point, arrived time.Time, batch int) {
 	n := j.Index
-	if n < 0 {
-		n = len(s.rows)
+	if n < 0 || n > len(s.rows) {
+		n = len(s.rows) // a gap cannot happen with the Tracker; stay aligned anyway
 	}
 	s.truncate(n)
-	r := rowOf(j, p)
-	r.arrived, r.batch = arrived, batch
-	for len(s.rows) < n { // a gap cannot happen with the Tracker; stay aligned anyway
-		s.rows = append(s.rows, row{epoch: r.epoch, train: math.NaN(), val: math.NaN(), trainDev: math.NaN()})
+	r := row{epoch: p.Epoch, total: p.Total, logged: p.Time, arrived: arrived, batch: batch}
+	if j.Epoch != 0 || p.Epoch == 0 {
+		r.epoch = j.Epoch
 	}
 	s.rows = append(s.rows, r)
 	for _, smp := range p.Samples {
 		switch smp.Column.Kind {
 		case diagnose.KindEpoch, diagnose.KindStep, diagnose.KindTime:
 			continue
+		case diagnose.KindMetric:
+			if !isFinite(smp.Value) {
+				if s.nonFinite == nil {
+					s.nonFinite = map[int][]string{}
+				}
+				s.nonFinite[n] = append(s.nonFinite[n], smp.Column.Base)
+			}
 		}
 		name := clean(smp.Column.Name)
 		c := s.colByID[name]
@@ -109,34 +125,47 @@ func (s *store) add(j diagnose.Judgement, p diagnose.Point, arrived time.Time, b
 			c.vals = append(c.vals, math.NaN())
 		}
 	}
+	s.judge(n, j)
 }
 
-// rejudge refreshes the judged values of every row after the Tracker
-// judged its points again (another metric, another optimal error),
-// keeping what only the screen knows (arrival, batch) and the point's own
-// facts (announced total, time column). It reads the logged values from
+// rejudge refreshes the judged values of every row after the judgements
+// changed (another metric, another optimal error, a replay of the run's
+// Tracker), keeping what only the screen knows (arrival times). Rows the
+// Tracker no longer holds are dropped; points it holds that the screen has
+// not received yet come with their batch. It reads the logged values from
 // the Tracker's history, without rebuilding a judgement per point.
 func (s *store) rejudge(t *diagnose.Tracker) {
-	n := t.Len()
-	old := s.rows
-	s.rows = make([]row, 0, n)
+	n := min(t.Len(), len(s.rows))
+	s.truncate(n)
+	if n == 0 {
+		return
+	}
+	base := t.At(t.Len() - 1).Metric.Base
 	for i := 0; i < n; i++ {
-		r := row{
-			epoch:    t.Epoch(i),
-			train:    loggedValue(t.Logged(i, diagnose.SplitTrain)),
-			val:      loggedValue(t.Logged(i, diagnose.SplitVal)),
-			trainDev: loggedValue(t.Logged(i, diagnose.SplitTrainDev)),
+		s.setJudged(i, base, t.Logged(i, diagnose.SplitTrain), t.Logged(i, diagnose.SplitVal), t.Logged(i, diagnose.SplitTrainDev))
+	}
+}
+
+// judge sets the judged values of row i from its judgement j.
+func (s *store) judge(i int, j diagnose.Judgement) {
+	s.setJudged(i, j.Metric.Base, j.Train.Raw, j.Val.Raw, j.TrainDev.Raw)
+}
+
+// setJudged sets row i's logged values of the judged metric base; a row is
+// bad when one of them, or any value of that metric, is NaN or ±Inf.
+func (s *store) setJudged(i int, base string, train, val, trainDev diagnose.Num) {
+	r := &s.rows[i]
+	r.train, r.val, r.trainDev = loggedValue(train), loggedValue(val), loggedValue(trainDev)
+	r.bad = false
+	for _, v := range []diagnose.Num{train, val, trainDev} {
+		if v.OK && !isFinite(v.V) {
+			r.bad = true
 		}
-		for _, sp := range []diagnose.Split{diagnose.SplitTrain, diagnose.SplitVal, diagnose.SplitTrainDev, diagnose.SplitTest} {
-			if v := t.Logged(i, sp); v.OK && !isFinite(v.V) {
-				r.bad = true
-			}
+	}
+	for _, b := range s.nonFinite[i] {
+		if b == base {
+			r.bad = true
 		}
-		if i < len(old) {
-			r.arrived, r.batch = old[i].arrived, old[i].batch
-			r.total, r.logged = old[i].total, old[i].logged
-		}
-		s.rows = append(s.rows, r)
 	}
 }
 
@@ -146,31 +175,6 @@ func loggedValue(n diagnose.Num) float64 {
 		return math.NaN()
 	}
 	return n.V
-}
-
-func rowOf(j diagnose.Judgement, p diagnose.Point) row {
-	r := row{
-		epoch:    p.Epoch,
-		train:    loggedValue(j.Train.Raw),
-		val:      loggedValue(j.Val.Raw),
-		trainDev: loggedValue(j.TrainDev.Raw),
-		total:    p.Total,
-		logged:   p.Time,
-	}
-	if j.Epoch != 0 || p.Epoch == 0 {
-		r.epoch = j.Epoch
-	}
-	for _, e := range []diagnose.Estimate{j.Train, j.Val, j.TrainDev} {
-		if e.Raw.OK && !isFinite(e.Raw.V) {
-			r.bad = true
-		}
-	}
-	for _, smp := range p.Samples {
-		if smp.Column.Kind == diagnose.KindMetric && smp.Column.Base == j.Metric.Base && !isFinite(smp.Value) {
-			r.bad = true
-		}
-	}
-	return r
 }
 
 // addStep stores one per-step row: its metric columns, and its place on

@@ -53,7 +53,7 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		}
 		cmd := m.say(false, "summary saved to "+clean(msg.path))
 		return m, cmd
-	case signalMsg:
+	case closeMsg:
 		m.reason = msg.reason
 		return m, tea.Quit
 	}
@@ -76,24 +76,33 @@ func (m Model) handleResize(msg tea.WindowSizeMsg) (tea.Model, tea.Cmd) {
 	return m, cmd
 }
 
-// handleData judges the new points, stores the series and marks the screen
+// handleData stores the judged points and the series and marks the screen
 // dirty; the rebuild waits for the next tick, so a fast log costs one
 // rebuild per tick, not one per batch.
 func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 	m.batches++
 	now := m.now()
-	revision := m.tracker.Revision()
-	for _, p := range msg.Points {
-		j := m.tracker.Add(p)
-		m.data.add(j, p, now, m.batches)
+	judged, rejudged := msg.Judgements, msg.Rejudged
+	if m.explore != nil {
+		// The user tries another setting: the run's judgements are not the
+		// ones shown, so the screen's own Tracker judges the points.
+		judged, rejudged = make([]diagnose.Judgement, len(msg.Points)), false
+		for i, p := range msg.Points {
+			revision := m.explore.Revision()
+			judged[i] = m.explore.Add(p)
+			if m.explore.Revision() != revision && m.explore.Len() > 1 {
+				rejudged = true // the points before p were judged again
+			}
+		}
+	}
+	for i, p := range msg.Points[:min(len(msg.Points), len(judged))] {
+		m.data.add(judged[i], p, now, m.batches)
 		if m.paused {
 			m.newPaused++
 		}
 	}
-	if m.tracker.Revision() != revision {
-		// The Tracker judged its earlier points again (it chose another
-		// metric, or learned that a rate is written in percent).
-		m.data.rejudge(m.tracker)
+	if rejudged {
+		m.read(m.data.rejudge)
 	}
 	for _, s := range msg.Steps {
 		m.data.addStep(s)
@@ -259,7 +268,9 @@ func (m *Model) hasPositive() bool {
 // error typed for one metric stays with it: another metric starts from
 // the estimate given for it, if any.
 func (m *Model) cycleMetric() tea.Cmd {
-	metrics := m.tracker.Metrics()
+	var metrics []string
+	var cfg diagnose.Config
+	m.read(func(t *diagnose.Tracker) { metrics, cfg = t.Metrics(), t.Config() })
 	if len(metrics) == 0 {
 		return m.say(true, "no judgeable metric in the log yet")
 	}
@@ -273,16 +284,13 @@ func (m *Model) cycleMetric() tea.Cmd {
 	if next == cur {
 		return m.say(false, "the log has one judgeable metric: "+clean(cur))
 	}
-	cfg := m.tracker.Config()
 	m.rememberOptimal(cur, cfg)
 	cfg.Metric = next
 	cfg.BayesError, cfg.BayesErrorGiven = 0, false
 	if o, ok := m.optimalFor()[next]; ok {
 		cfg.BayesError, cfg.BayesErrorGiven = o, true
 	}
-	m.tracker.Reconfigure(cfg)
-	m.data.rejudge(m.tracker)
-	m.clampView()
+	m.judgeWith(cfg)
 	label := m.currentMetric().Label
 	if !cfg.BayesErrorGiven {
 		return m.say(false, "judging "+clean(label)+" · optimal error taken as 0 (b sets it)")
@@ -290,12 +298,53 @@ func (m *Model) cycleMetric() tea.Cmd {
 	return m.say(false, "judging "+clean(label))
 }
 
+// judgeWith judges every point with cfg. The command line's settings are
+// the run's own judgements, read through the shared History; any other
+// setting is judged by a Tracker of the screen's, made from the points the
+// screen has and fed the new ones while it lasts. Coming back to the
+// command line's settings drops it.
+func (m *Model) judgeWith(cfg diagnose.Config) {
+	var base diagnose.Config
+	var baseMetric string
+	m.hist.Read(func(t *diagnose.Tracker) {
+		base = t.Config()
+		if j, ok := t.Latest(); ok {
+			baseMetric = j.Metric.Base
+		}
+	})
+	switch {
+	case sameSettings(cfg, base, baseMetric):
+		m.explore = nil
+	case m.explore != nil:
+		m.explore.Reconfigure(cfg)
+	default:
+		m.hist.Read(func(h *diagnose.Tracker) { m.explore = h.Rejudged(cfg) })
+	}
+	m.read(m.data.rejudge)
+	m.clampView()
+}
+
+// sameSettings reports whether cfg judges as the command line's settings
+// base do. A metric picked by name is the same as base's automatic choice
+// when it is the metric that choice judges now (baseMetric).
+func sameSettings(cfg, base diagnose.Config, baseMetric string) bool {
+	if base.Metric == "" && cfg.Metric != "" && cfg.Metric == baseMetric {
+		cfg.Metric = ""
+	}
+	return cfg == base
+}
+
 // currentMetric is the metric of the latest judgement.
 func (m *Model) currentMetric() diagnose.Metric {
-	if j, ok := m.tracker.Latest(); ok {
-		return j.Metric
-	}
-	return diagnose.Metric{Base: m.tracker.Config().Metric}
+	var mt diagnose.Metric
+	m.read(func(t *diagnose.Tracker) {
+		if j, ok := t.Latest(); ok {
+			mt = j.Metric
+		} else {
+			mt = diagnose.Metric{Base: t.Config().Metric}
+		}
+	})
+	return mt
 }
 
 // optimalFor returns the optimal errors given per metric, creating the map.
@@ -345,7 +394,7 @@ func (m Model) handleTyping(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 		}
 		m.typing = false
 		m.input.Blur()
-		cfg := m.tracker.Config()
+		cfg := m.judging()
 		cfg.BayesError, cfg.BayesErrorGiven = v, true
 		if b := m.currentMetric().Base; b != "" {
 			if cfg.Metric == "" {
@@ -353,9 +402,7 @@ func (m Model) handleTyping(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 			}
 			m.optimalFor()[b] = v
 		}
-		m.tracker.Reconfigure(cfg)
-		m.data.rejudge(m.tracker)
-		m.clampView()
+		m.judgeWith(cfg)
 		m.opts.BayesNote = "typed in"
 		m.rebuild()
 		cmd := m.say(false, "optimal error set to "+m.fmtValue(v)+": verdict recomputed for every epoch")

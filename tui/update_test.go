@@ -23,7 +23,7 @@ func TestModel_PauseKeepsReading(t *testing.T) {
 		t.Fatalf("after space: paused %v, shown %d, want paused with 10", m.paused, m.shown())
 	}
 	m = settle(t, send(t, m, FeedMsg{Points: pts[10:13], Source: liveSource(14)}))
-	if got := m.tracker.Len(); got != 13 {
+	if got := judgedLen(m); got != 13 {
 		t.Errorf("tracker has %d points while paused, want 13 (reading goes on)", got)
 	}
 	if m.shown() != 10 {
@@ -40,7 +40,7 @@ func TestModel_PauseKeepsReading(t *testing.T) {
 
 func TestModel_CursorShowsJudgementOfThen(t *testing.T) {
 	m := feed(t, newTestModel(t, 120, 40, Options{}), overfitRun)
-	last := m.tracker.At(m.tracker.Len() - 1)
+	last := m.judgementAt(judgedLen(m) - 1)
 	tests := []struct {
 		name  string
 		keys  []string
@@ -61,7 +61,7 @@ func TestModel_CursorShowsJudgementOfThen(t *testing.T) {
 			if !mm.paused || mm.cursor != tt.index {
 				t.Fatalf("keys %v: paused %v cursor %d, want paused at %d", tt.keys, mm.paused, mm.cursor, tt.index)
 			}
-			j := mm.tracker.At(tt.index)
+			j := mm.judgementAt(tt.index)
 			v := mm.View()
 			if !strings.Contains(v, "VERDICT · epoch "+itoa(j.Epoch)+" · as judged then") {
 				t.Errorf("panel does not show epoch %d as judged then:\n%s", j.Epoch, v)
@@ -74,7 +74,7 @@ func TestModel_CursorShowsJudgementOfThen(t *testing.T) {
 	// Early in the run the signal was not yet stop, later it is: the
 	// inspected panel really shows the past judgement.
 	early := press(t, m, "home", "right", "right", "right", "right")
-	je := early.tracker.At(4)
+	je := early.judgementAt(4)
 	if je.EarlyStop.Signal == last.EarlyStop.Signal && je.Diagnosis == last.Diagnosis {
 		t.Fatalf("fixture: epoch 5 judged like the last epoch (%v, %v); the test cannot tell them apart", je.Diagnosis, je.EarlyStop.Signal)
 	}
@@ -92,7 +92,7 @@ func TestModel_NewOptimalError(t *testing.T) {
 	// Models share their Tracker: each case starts from a fresh one.
 	fresh := func() Model { return feed(t, newTestModel(t, 100, 30, Options{}), overfitRun) }
 	m := fresh()
-	before := m.tracker.At(m.tracker.Len() - 1)
+	before := m.judgementAt(judgedLen(m) - 1)
 	if before.BayesErrorGiven {
 		t.Fatal("fixture: optimal error given before typing one")
 	}
@@ -127,11 +127,11 @@ func TestModel_NewOptimalError(t *testing.T) {
 				}
 				return
 			}
-			cfg := mm.tracker.Config()
+			cfg := mm.judging()
 			if mm.typing || !cfg.BayesErrorGiven || cfg.BayesError != tt.want {
 				t.Fatalf("typed %q: typing %v, config %v/%v, want %v given", tt.typed, mm.typing, cfg.BayesError, cfg.BayesErrorGiven, tt.want)
 			}
-			after := mm.tracker.At(mm.tracker.Len() - 1)
+			after := mm.judgementAt(judgedLen(mm) - 1)
 			if !after.BayesErrorGiven || after.BayesError != tt.want {
 				t.Errorf("verdict not recomputed: %v given %v", after.BayesError, after.BayesErrorGiven)
 			}
@@ -146,8 +146,8 @@ func TestModel_NewOptimalError(t *testing.T) {
 	}
 	t.Run("EscCancels", func(t *testing.T) {
 		mm := press(t, fresh(), "b", "4", "esc")
-		if mm.typing || mm.tracker.Config().BayesErrorGiven {
-			t.Errorf("esc: typing %v, given %v", mm.typing, mm.tracker.Config().BayesErrorGiven)
+		if mm.typing || mm.judging().BayesErrorGiven {
+			t.Errorf("esc: typing %v, given %v", mm.typing, mm.judging().BayesErrorGiven)
 		}
 	})
 }
@@ -168,14 +168,14 @@ func TestModel_CycleMetric(t *testing.T) {
 	if b := m.currentMetric().Base; b != "loss" {
 		t.Fatalf("after m judged %q, want loss", b)
 	}
-	if m.tracker.Config().BayesErrorGiven {
+	if m.judging().BayesErrorGiven {
 		t.Error("the optimal error given for acc was carried to loss")
 	}
 	if v := m.View(); !strings.Contains(v, "loss by epoch") || !strings.Contains(v, "train_acc") {
 		t.Errorf("after m the chart should show loss and the accuracy columns move to sparklines:\n%s", v)
 	}
 	m = press(t, m, "m")
-	cfg := m.tracker.Config()
+	cfg := m.judging()
 	if b := m.currentMetric().Base; b != "acc" || !cfg.BayesErrorGiven || cfg.BayesError != 0.02 {
 		t.Errorf("after m m: judged %q with optimal %v/%v, want acc with 0.02 back", b, cfg.BayesError, cfg.BayesErrorGiven)
 	}
@@ -203,8 +203,8 @@ func TestModel_Quit(t *testing.T) {
 		{"Q", keyMsg("q"), ExitQuit},
 		{"CtrlC", keyMsg("ctrl+c"), ExitInterrupted},
 		{"CtrlCWhileTyping", nil, ExitInterrupted},
-		{"Hangup", signalMsg{reason: ExitHangup}, ExitHangup},
-		{"Terminate", signalMsg{reason: ExitTerminated}, ExitTerminated},
+		{"Hangup", closeMsg{reason: ExitHangup}, ExitHangup},
+		{"Terminate", closeMsg{reason: ExitTerminated}, ExitTerminated},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -274,8 +274,8 @@ func TestModel_RewindReplacesRows(t *testing.T) {
 	pts := overfitRun.points()
 	// A resume from the checkpoint of epoch 20: epochs 20.. are logged again.
 	m = settle(t, send(t, m, FeedMsg{Points: pts[19:21], Source: liveSource(50)}))
-	if n := len(m.data.rows); n != 21 || m.tracker.Len() != 21 {
-		t.Fatalf("after a resume at epoch 20: %d rows, tracker %d, want 21", n, m.tracker.Len())
+	if n := len(m.data.rows); n != 21 || judgedLen(m) != 21 {
+		t.Fatalf("after a resume at epoch 20: %d rows, tracker %d, want 21", n, judgedLen(m))
 	}
 	for _, c := range m.data.cols {
 		if len(c.vals) != 21 {

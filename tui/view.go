@@ -67,10 +67,7 @@ func (m *Model) rebuild() {
 	f := m.cache
 	f.builds++
 	idx := m.inspected()
-	var j diagnose.Judgement
-	if idx >= 0 && idx < m.tracker.Len() {
-		j = m.tracker.At(idx)
-	}
+	j := m.judgementAt(idx)
 	warns := m.warnings(j)
 	sparks := m.sparkColumns()
 	f.lay = computeLayout(m.width, m.height, len(sparks), len(warns))

@@ -97,7 +97,7 @@ func TestChart_FirstEpochOffScale(t *testing.T) {
 		t.Errorf("legend lacks the off-scale entry: %q", chart[0])
 	}
 	// The judged values are untouched: the verdict still sees epoch 1.
-	if got := m.tracker.At(0).Train.Raw; !got.OK || math.Abs(got.V-0.9) > 1e-9 {
+	if got := m.judgementAt(0).Train.Raw; !got.OK || math.Abs(got.V-0.9) > 1e-9 {
 		t.Errorf("epoch 1 judged as %+v, want train error 0.9", got)
 	}
 

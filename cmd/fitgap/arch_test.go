@@ -2,6 +2,7 @@ package main
 
 import (
 	"os/exec"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -11,6 +12,7 @@ import (
 // reads the transitive dependencies with `go list -deps`, so an indirect
 // import through a helper package is caught too.
 func TestImportArrows(t *testing.T) {
+	t.Parallel()
 	if _, err := exec.LookPath("go"); err != nil {
 		t.Fatalf("the import arrows cannot be checked without the go command: %v", err)
 	}
@@ -20,25 +22,38 @@ func TestImportArrows(t *testing.T) {
 	io := []string{"os", "os/exec", "net", "syscall", "io/ioutil"}
 	// Processes and the network, not even through a dependency.
 	outside := []string{"os/exec", "net", "net/"}
+	// pkgs names our packages with their subpackages (watch/… once split).
+	pkgs := func(names ...string) []string {
+		var out []string
+		for _, n := range names {
+			out = append(out, mod+n, mod+n+"/")
+		}
+		return out
+	}
 	tests := []struct {
 		pkg string
 		// deps are forbidden anywhere below the package; direct only in
 		// its own imports (the standard library itself uses syscall).
 		deps, direct [][]string
 	}{
-		{"diagnose", [][]string{charm, fsnotify, outside, {mod + "watch", mod + "tui", mod + "report"}}, [][]string{io}},
-		{"report", [][]string{charm, fsnotify, outside, {mod + "watch", mod + "tui"}}, [][]string{io}},
-		{"watch", [][]string{charm, {mod + "tui", mod + "report"}}, nil},
-		{"tui", [][]string{fsnotify, {mod + "watch"}}, nil},
+		// diagnose imports nothing of ours.
+		{"diagnose", [][]string{charm, fsnotify, outside, {mod}}, [][]string{io}},
+		{"report", [][]string{charm, fsnotify, outside, pkgs("watch", "tui", "pipeline")}, [][]string{io}},
+		{"watch", [][]string{charm, pkgs("tui", "report", "pipeline")}, nil},
+		// The pipeline feeds the screen through cmd/fitgap; it never draws.
+		{"pipeline", [][]string{charm, pkgs("tui", "trainer")}, nil},
+		{"tui", [][]string{fsnotify, pkgs("watch", "pipeline")}, nil},
 		// The chart engine draws numbers it is handed: no log, no judgement,
 		// no event loop, no I/O.
-		{"tui/chart", [][]string{fsnotify, {mod + "watch", mod + "diagnose", mod + "report"}}, [][]string{io, {"github.com/charmbracelet/bubbletea"}}},
-		{"trainer", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "diagnose"}}, nil},
-		{"forecast", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "report"}}, [][]string{io}},
+		{"tui/chart", [][]string{fsnotify, pkgs("watch", "diagnose", "report", "pipeline")}, [][]string{io, {"github.com/charmbracelet/bubbletea"}}},
+		{"trainer", [][]string{charm, fsnotify, pkgs("watch", "tui", "diagnose", "pipeline")}, nil},
+		{"forecast", [][]string{charm, fsnotify, pkgs("watch", "tui", "report", "pipeline")}, [][]string{io}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.pkg, func(t *testing.T) {
-			check(t, tt.pkg, goList(t, "-deps", tt.pkg), tt.deps)
+			// -deps lists the package itself: it is not its own dependency.
+			deps := slices.DeleteFunc(goList(t, "-deps", tt.pkg), func(d string) bool { return d == mod+tt.pkg })
+			check(t, tt.pkg, deps, tt.deps)
 			check(t, tt.pkg, goList(t, "-f={{join .Imports \"\\n\"}}", tt.pkg), tt.direct)
 		})
 	}

@@ -16,16 +16,12 @@ func runCLI(t *testing.T, stdin string, args ...string) (stdout, stderr string, 
 	t.Helper()
 	var out, errb bytes.Buffer
 	err := run(context.Background(), args, strings.NewReader(stdin), &out, &errb)
-	if err != nil && !isQuietExit(err) {
-		errb.WriteString("fitgap: " + err.Error() + "\n")
-		if h := hintFor(err); h != "" {
-			errb.WriteString("fitgap: " + h + "\n")
-		}
-	}
+	errb.WriteString(errorText(err))
 	return out.String(), errb.String(), exitCode(err)
 }
 
 func TestRun_UsageErrors(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name     string
 		args     []string
@@ -64,6 +60,7 @@ func TestRun_UsageErrors(t *testing.T) {
 // TestHelp_ListsEveryFlag checks that `fitgap COMMAND --help` documents
 // every flag the command accepts, and gives an example.
 func TestHelp_ListsEveryFlag(t *testing.T) {
+	t.Parallel()
 	for _, c := range commands {
 		t.Run(c.name, func(t *testing.T) {
 			stdout, stderr, code := runCLI(t, "", c.name, "--help")

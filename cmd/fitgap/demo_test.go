@@ -4,67 +4,129 @@ import (
 	"encoding/json"
 	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
 	"github.com/fitgap/fitgap/trainer"
 )
 
-// TestDemo_ScenariosReachTheirRegime trains every demo scenario headless
-// (a separate, non-instrumented process) and judges the log through
-// `fitgap report --json`, as a user would.
+// demoVerdict is what the demo tests read of `report --json`.
+type demoVerdict struct {
+	Diagnosis string   `json:"diagnosis"`
+	Epoch     int      `json:"epoch"`
+	Bayes     float64  `json:"bayes_error"`
+	Train     *float64 `json:"train"`
+	Val       *float64 `json:"val"`
+	Variance  *float64 `json:"variance"`
+	EarlyStop struct {
+		Signal    string `json:"signal"`
+		BestEpoch int    `json:"best_epoch"`
+	} `json:"early_stop"`
+}
+
+// trainDemo trains a scenario headless with the built binary (a separate,
+// non-instrumented process, as a user runs it) and returns the log's path.
+// The overfitting run of the length the other tests share is not trained
+// again.
+func trainDemo(t *testing.T, sc trainer.Scenario, format string, epochs int) string {
+	t.Helper()
+	if sc == trainer.Overfit && format == "csv" && epochs == overfitEpochs {
+		return overfitLog(t)
+	}
+	path := filepath.Join(t.TempDir(), "run."+format)
+	args := []string{"demo", "--scenario", sc.String(), "--format", format, "--pace", "0", "--write", path}
+	if epochs > 0 {
+		args = append(args, "--epochs", strconv.Itoa(epochs))
+	}
+	if out, err := exec.Command(binPath, args...).CombinedOutput(); err != nil {
+		t.Fatalf("demo --write: %v\n%s", err, out)
+	}
+	return path
+}
+
+// judgeDemo trains a scenario and judges its log through `fitgap report
+// --json` with what the demo knows of its data.
+func judgeDemo(t *testing.T, sc trainer.Scenario, format string, epochs int) demoVerdict {
+	t.Helper()
+	path := trainDemo(t, sc, format, epochs)
+	facts := trainer.Config{Scenario: sc}.Facts()
+	report := strings.Fields(reportCommandLine(facts, path))[1:]
+	report = append([]string{report[0], "--json"}, report[1:]...)
+	stdout, stderr, code := runCLI(t, "", report...)
+	if code != 0 {
+		t.Fatalf("report: exit %d: %s", code, stderr)
+	}
+	var v demoVerdict
+	if err := json.Unmarshal([]byte(stdout), &v); err != nil {
+		t.Fatalf("report --json: %v\n%s", err, stdout)
+	}
+	if v.Bayes != facts.BayesError {
+		t.Errorf("bayes_error %g, want the demo's %g", v.Bayes, facts.BayesError)
+	}
+	return v
+}
+
+// TestDemo_ScenariosReachTheirRegime trains every demo scenario and checks
+// fitgap's verdict on its log. The epochs are the fewest at which each
+// scenario shows its regime with a margin (balanced and mismatch from
+// epoch 30, overfit's stop at epoch 30), so the test does not train the
+// whole default run twice over: the trainer's own tests check each
+// regime at full length from the logged numbers. The cheap scenarios run
+// at the default length.
 func TestDemo_ScenariosReachTheirRegime(t *testing.T) {
 	tests := []struct {
 		scenario trainer.Scenario
-		format   string
+		epochs   int    // 0: the demo's default
 		want     string // diagnosis
 		wantStop bool   // the early-stopping signal must have reached stop
 	}{
-		{trainer.Underfit, "csv", "high-bias", false},
-		{trainer.Overfit, "csv", "high-variance", true},
-		{trainer.Balanced, "csv", "good-fit", false},
-		{trainer.Balanced, "jsonl", "good-fit", false},
-		{trainer.Balanced, "text", "good-fit", false},
-		{trainer.Diverge, "jsonl", "diverging", false},
-		{trainer.Mismatch, "csv", "data-mismatch", false},
+		{trainer.Underfit, 0, "high-bias", false},
+		{trainer.Overfit, overfitEpochs, "high-variance", true},
+		{trainer.Balanced, 40, "good-fit", false},
+		{trainer.Diverge, 0, "diverging", false},
+		{trainer.Mismatch, 40, "data-mismatch", false},
 	}
 	for _, tt := range tests {
-		name := strings.ToUpper(tt.scenario.String()[:1]) + tt.scenario.String()[1:] + strings.ToUpper(tt.format)
+		name := strings.ToUpper(tt.scenario.String()[:1]) + tt.scenario.String()[1:]
 		t.Run(name, func(t *testing.T) {
 			t.Parallel()
-			path := filepath.Join(t.TempDir(), "run."+tt.format)
-			w := exec.Command(binPath, "demo", "--scenario", tt.scenario.String(), "--format", tt.format, "--pace", "0", "--write", path)
-			if out, err := w.CombinedOutput(); err != nil {
-				t.Fatalf("demo --write: %v\n%s", err, out)
-			}
-			facts := trainer.Config{Scenario: tt.scenario}.Facts()
-			args := strings.Fields(reportCommandLine(facts, path))[1:]
-			args = append([]string{args[0], "--json"}, args[1:]...)
-			stdout, stderr, code := runCLI(t, "", args...)
-			if code != 0 {
-				t.Fatalf("report: exit %d: %s", code, stderr)
-			}
-			var got struct {
-				Diagnosis string  `json:"diagnosis"`
-				Epoch     int     `json:"epoch"`
-				Bayes     float64 `json:"bayes_error"`
-				EarlyStop struct {
-					Signal    string `json:"signal"`
-					BestEpoch int    `json:"best_epoch"`
-				} `json:"early_stop"`
-			}
-			if err := json.Unmarshal([]byte(stdout), &got); err != nil {
-				t.Fatalf("report --json: %v\n%s", err, stdout)
-			}
+			got := judgeDemo(t, tt.scenario, "csv", tt.epochs)
 			if got.Diagnosis != tt.want {
-				t.Errorf("%s scenario ends %s, want %s\n%s", tt.scenario, got.Diagnosis, tt.want, stdout)
-			}
-			if got.Bayes != facts.BayesError {
-				t.Errorf("bayes_error %g, want the demo's %g", got.Bayes, facts.BayesError)
+				t.Errorf("%s scenario ends %s, want %s", tt.scenario, got.Diagnosis, tt.want)
 			}
 			if tt.wantStop && (got.EarlyStop.Signal != "stop" || got.EarlyStop.BestEpoch >= got.Epoch) {
 				t.Errorf("%s scenario: early stop %+v at epoch %d, want stop with an earlier epoch to restore", tt.scenario, got.EarlyStop, got.Epoch)
 			}
 		})
 	}
+}
+
+// TestDemo_EveryFormatJudgedAlike writes a short run in each log format
+// the demo has (every reader is exercised) and checks that fitgap judges
+// the three logs alike: same epoch, diagnosis, values and signal.
+func TestDemo_EveryFormatJudgedAlike(t *testing.T) {
+	t.Parallel()
+	const epochs = 8
+	want := judgeDemo(t, trainer.Balanced, "csv", epochs)
+	if want.Epoch != epochs || want.Train == nil || want.Val == nil {
+		t.Fatalf("csv log judged %+v, want epoch %d with values", want, epochs)
+	}
+	for _, format := range []string{"jsonl", "text"} {
+		got := judgeDemo(t, trainer.Balanced, format, epochs)
+		if got.Epoch != want.Epoch || got.Diagnosis != want.Diagnosis || got.EarlyStop != want.EarlyStop ||
+			!near(got.Train, want.Train) || !near(got.Val, want.Val) || !near(got.Variance, want.Variance) {
+			t.Errorf("%s log judged %+v, the csv log %+v", format, got, want)
+		}
+	}
+}
+
+// near compares two values of the logs, written with 4 to 6 decimals
+// depending on the format.
+func near(a, b *float64) bool {
+	if a == nil || b == nil {
+		return a == b
+	}
+	d := *a - *b
+	return d < 1e-4 && d > -1e-4
 }

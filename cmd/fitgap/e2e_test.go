@@ -30,6 +30,8 @@ type pane struct {
 	dir  string
 }
 
+// requireTmux skips the test without tmux or under -short; the tests that
+// pass run in parallel, each pane on its own tmux server.
 func requireTmux(t *testing.T) {
 	t.Helper()
 	if testing.Short() {
@@ -38,6 +40,7 @@ func requireTmux(t *testing.T) {
 	if _, err := exec.LookPath("tmux"); err != nil {
 		t.Skip("tmux not installed: the end-to-end tests need it (apt-get install tmux)")
 	}
+	t.Parallel()
 }
 
 // e2eHeader is the header of the logs the end-to-end tests write.
@@ -321,9 +324,10 @@ func TestE2E_PipeKeys(t *testing.T) {
 	dir := t.TempDir()
 
 	newLog(t, dir, 1, 9)
-	// The writer stays alive after the lines, like a training script (the
-	// shell waits for it after fitgap quits, so not for long).
-	p := startPane(t, dir, wrapper("(cat run.csv; sleep 4) | "+binPath, "-"), 100, 30)
+	// The writer stays alive after the lines, like a training script; it
+	// is a process substitution, so the shell does not wait for it once
+	// fitgap has quit.
+	p := startPane(t, dir, wrapper(binPath, "- < <(cat run.csv; exec sleep 30)"), 100, 30)
 	p.waitScreen("the piped epochs", "epoch 9", "└")
 	p.keys("Space")
 	p.waitScreen("the pause key", "PAUSED")

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"runtime/debug"
 	"strings"
+
+	"github.com/fitgap/fitgap/diagnose"
 )
 
 // Exit statuses, documented in the README. They are mapped here, in one
@@ -79,6 +81,20 @@ func exitCode(err error) int {
 		return exitNoTerminal
 	}
 	return exitFailure
+}
+
+// errorText is what main prints on stderr for err: one "fitgap: " line,
+// plus one with a hint where the fix is known; nothing for a quiet exit.
+// Errors name files and quote log lines, so the text is made printable.
+func errorText(err error) string {
+	if err == nil || isQuietExit(err) {
+		return ""
+	}
+	s := "fitgap: " + diagnose.Printable(err.Error()) + "\n"
+	if h := hintFor(err); h != "" {
+		s += "fitgap: " + diagnose.Printable(h) + "\n"
+	}
+	return s
 }
 
 // hintFor returns a second stderr line where the fix is known.

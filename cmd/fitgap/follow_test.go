@@ -33,43 +33,27 @@ type stopFileBody struct {
 	Reason    string   `json:"reason"`
 }
 
-// writeOverfitLog trains the demo's overfit scenario as a separate writer
-// process, pacing its epochs, into path.
-func startOverfitWriter(t *testing.T, path string, pace time.Duration) *exec.Cmd {
+// followOverfitLive starts writing the shared overfitting run into a new
+// log in dir, header first, a line every few milliseconds, and returns
+// the log's path.
+func followOverfitLive(t *testing.T, dir string) string {
 	t.Helper()
-	w := exec.Command(binPath, "demo", "--scenario", "overfit", "--pace", pace.String(), "--write", path)
-	var stderr bytes.Buffer
-	w.Stderr = &stderr
-	if err := w.Start(); err != nil {
-		t.Fatalf("start writer: %v", err)
-	}
-	t.Cleanup(func() {
-		w.Process.Kill()
-		w.Wait()
-	})
-	return w
-}
-
-func waitForFile(t *testing.T, path string) {
-	t.Helper()
-	deadline := time.Now().Add(20 * time.Second)
-	for time.Now().Before(deadline) {
-		if _, err := os.Stat(path); err == nil {
-			return
-		}
-		time.Sleep(10 * time.Millisecond)
-	}
-	t.Fatalf("%s never appeared", path)
-}
-
-// TestFollow_ExitOnStopCreatesStopFile runs the demo trainer's overfitting
-// curve through a writer process while `fitgap follow` reads it live.
-func TestFollow_ExitOnStopCreatesStopFile(t *testing.T) {
-	dir := t.TempDir()
+	lines := logLines(t, overfitLog(t))
 	logPath := filepath.Join(dir, "overfit.csv")
+	if err := os.WriteFile(logPath, lines[0], 0o644); err != nil {
+		t.Fatal(err)
+	}
+	startWriter(t, logPath, lines[1:], 2*time.Millisecond)
+	return logPath
+}
+
+// TestFollow_ExitOnStopCreatesStopFile follows the demo trainer's
+// overfitting run as it is written, with --exit-on-stop.
+func TestFollow_ExitOnStopCreatesStopFile(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
 	stopPath := filepath.Join(dir, "run.stop")
-	startOverfitWriter(t, logPath, 5*time.Millisecond)
-	waitForFile(t, logPath)
+	logPath := followOverfitLive(t, dir)
 
 	f := exec.Command(binPath, "follow", "--bayes-error", "0.05", "--exit-on-stop", "--idle-exit", "10s", "--stop-file", stopPath, logPath)
 	var stdout, stderr bytes.Buffer
@@ -91,6 +75,9 @@ func TestFollow_ExitOnStopCreatesStopFile(t *testing.T) {
 			break
 		}
 	}
+	if !strings.Contains(stderr.String(), "created "+stopPath) {
+		t.Errorf("stderr %q does not say the stop file was created", stderr.String())
+	}
 	var body stopFileBody
 	b, err := os.ReadFile(stopPath)
 	if err != nil {
@@ -108,7 +95,7 @@ func TestFollow_ExitOnStopCreatesStopFile(t *testing.T) {
 	}
 	// The epoch to restore is the one a whole-log report picks for the same
 	// epochs: follow judges live exactly as report judges afterwards.
-	want := reportBestEpochUpTo(t, logPath, body.Epoch)
+	want := reportBestEpochUpTo(t, overfitLog(t), body.Epoch)
 	if body.BestEpoch != want {
 		t.Errorf("stop file best epoch %d, report on the same %d epochs says %d", body.BestEpoch, body.Epoch, want)
 	}
@@ -145,6 +132,7 @@ func reportBestEpochUpTo(t *testing.T, logPath string, epochs int) int {
 }
 
 func TestFollow_RefusesExistingStopFile(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	logPath := filepath.Join(dir, "run.csv")
 	stopPath := filepath.Join(dir, "run.stop")
@@ -169,35 +157,42 @@ func TestFollow_RefusesExistingStopFile(t *testing.T) {
 }
 
 // TestFollow_SIGTERMLeavesNoHalfWrittenFile ends follow with SIGTERM at
-// many moments around the stop, and checks that the stop file is either
-// absent or complete, with no temporary file left behind.
+// moments around the stop (after it printed its first line, some lines
+// before the stop, the stop's line, lines after it) and checks the stop
+// file: complete and naming the first stop when a printed line said stop,
+// absent when none did, and no temporary file left behind. The moments
+// are counted in lines read from follow, never in sleeps: the signal
+// handler is installed before the first line is printed.
 func TestFollow_SIGTERMLeavesNoHalfWrittenFile(t *testing.T) {
-	if testing.Short() {
-		t.Skip("runs the trainer several times")
-	}
-	for i, delay := range []time.Duration{50 * time.Millisecond, 150 * time.Millisecond, 300 * time.Millisecond, 600 * time.Millisecond} {
-		t.Run(fmt.Sprintf("After%s", delay), func(t *testing.T) {
+	for _, after := range []int{1, 15, 29, 30, 31, 35} {
+		t.Run(fmt.Sprintf("AfterLine%d", after), func(t *testing.T) {
+			t.Parallel()
 			dir := t.TempDir()
-			logPath := filepath.Join(dir, "overfit.csv")
 			stopPath := filepath.Join(dir, "run.stop")
-			startOverfitWriter(t, logPath, time.Duration(i+1)*time.Millisecond)
-			waitForFile(t, logPath)
+			logPath := followOverfitLive(t, dir)
 			f := exec.Command(binPath, "follow", "--bayes-error", "5%", "--stop-file", stopPath, logPath)
-			var stderr bytes.Buffer
-			f.Stderr = &stderr
-			if err := f.Start(); err != nil {
-				t.Fatal(err)
+			lines := parseFollow(t, readLinesThenTerm(t, f, after))
+			if len(lines) < after {
+				t.Fatalf("follow printed %d lines, the signal was due after %d", len(lines), after)
 			}
-			time.Sleep(delay)
-			f.Process.Signal(syscall.SIGTERM)
-			err := f.Wait()
-			if code := f.ProcessState.ExitCode(); code != exitTerminated {
-				t.Errorf("exit %d (%v), want %d; stderr %s", code, err, exitTerminated, stderr.String())
+			firstStop := 0
+			for _, l := range lines {
+				if l.EarlyStop.Signal == "stop" {
+					firstStop = l.Epoch
+					break
+				}
 			}
-			if b, err := os.ReadFile(stopPath); err == nil {
+			b, err := os.ReadFile(stopPath)
+			switch {
+			case firstStop == 0 && err == nil:
+				t.Errorf("no printed line said stop, yet the stop file exists: %q", b)
+			case firstStop == 0:
+			case err != nil:
+				t.Errorf("epoch %d said stop, but the stop file is missing: %v", firstStop, err)
+			default:
 				var body stopFileBody
-				if err := json.Unmarshal(b, &body); err != nil || body.BestEpoch == 0 {
-					t.Errorf("stop file is incomplete: %q (%v)", b, err)
+				if err := json.Unmarshal(b, &body); err != nil || body.Epoch != firstStop || body.BestEpoch < 1 || body.BestVal == nil {
+					t.Errorf("stop file %q (%v), want complete and naming epoch %d", b, err, firstStop)
 				}
 			}
 			assertNoTempFiles(t, dir)
@@ -206,6 +201,7 @@ func TestFollow_SIGTERMLeavesNoHalfWrittenFile(t *testing.T) {
 }
 
 func TestFollow_NoStopNoFile(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	logPath := filepath.Join(dir, "improving.csv")
 	stopPath := filepath.Join(dir, "run.stop")
@@ -216,13 +212,11 @@ func TestFollow_NoStopNoFile(t *testing.T) {
 		fmt.Fprintf(&b, "%d,%.4f,%.4f\n", e, 2.0/float64(e), 2.2/float64(e))
 	}
 	writeFile(t, logPath, b.String())
-	f := exec.Command(binPath, "follow", "--idle-exit", "300ms", "--stop-file", stopPath, logPath)
-	var stdout, stderr bytes.Buffer
-	f.Stdout, f.Stderr = &stdout, &stderr
-	if err := runWithTimeout(f, 20*time.Second); err != nil {
-		t.Fatalf("follow: %v; stderr %s", err, stderr.String())
-	}
-	lines := parseFollow(t, stdout.Bytes())
+	f := exec.Command(binPath, "follow", "--stop-file", stopPath, logPath)
+	var stderr bytes.Buffer
+	f.Stderr = &stderr
+	printed := readLinesThenTerm(t, f, 30)
+	lines := parseFollow(t, printed)
 	if len(lines) != 30 {
 		t.Errorf("follow printed %d objects, want one per epoch (30)", len(lines))
 	}
@@ -239,7 +233,25 @@ func TestFollow_NoStopNoFile(t *testing.T) {
 	}
 }
 
+// TestFollow_IdleExit ends follow once the log has been quiet for
+// --idle-exit (status 0), after every line was read. The idle time is the
+// feature under test: one second is far more than reading three lines
+// takes, and lines already read are never counted as idleness.
+func TestFollow_IdleExit(t *testing.T) {
+	t.Parallel()
+	p := filepath.Join(t.TempDir(), "run.csv")
+	writeFile(t, p, "epoch,loss,val_loss\n1,1.0,1.1\n2,0.8,0.9\n3,0.7,0.85\n")
+	stdout, stderr, code := runCLI(t, "", "follow", "--idle-exit", "1s", p)
+	if code != 0 {
+		t.Fatalf("follow --idle-exit: exit %d: %s", code, stderr)
+	}
+	if lines := parseFollow(t, []byte(stdout)); len(lines) != 3 {
+		t.Errorf("follow --idle-exit printed %d objects, want 3", len(lines))
+	}
+}
+
 func TestFollow_Pipe(t *testing.T) {
+	t.Parallel()
 	in := "epoch,loss,val_loss\n1,1.0,1.1\n2,0.8,0.9\n3,0.7,0.85\n"
 	stdout, stderr, code := runCLI(t, in, "follow", "-")
 	if code != 0 {
@@ -249,6 +261,43 @@ func TestFollow_Pipe(t *testing.T) {
 	if len(lines) != 3 || lines[2].Epoch != 3 {
 		t.Errorf("follow - printed %+v, want 3 objects ending at epoch 3", lines)
 	}
+}
+
+// readLinesThenTerm starts f, sends it SIGTERM once it has printed n lines
+// (its handler is installed before the first), reads the rest of its
+// output, and checks that it ended as SIGTERM asks: status 143. A process
+// that never prints n lines is killed after a minute.
+func readLinesThenTerm(t *testing.T, f *exec.Cmd, n int) []byte {
+	t.Helper()
+	var stderr bytes.Buffer
+	f.Stderr = &stderr
+	out, err := f.StdoutPipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := f.Start(); err != nil {
+		t.Fatal(err)
+	}
+	// A follow that never prints n lines would wait for ever: kill it.
+	guard := time.AfterFunc(60*time.Second, func() { f.Process.Kill() })
+	defer guard.Stop()
+	var printed bytes.Buffer
+	sc := bufio.NewScanner(out)
+	sc.Buffer(make([]byte, 1<<20), 1<<24)
+	for read := 0; sc.Scan(); {
+		printed.Write(sc.Bytes())
+		printed.WriteByte('\n')
+		if read++; read == n {
+			if err := f.Process.Signal(syscall.SIGTERM); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+	err = f.Wait()
+	if code := f.ProcessState.ExitCode(); code != exitTerminated {
+		t.Errorf("exit %d (%v), want %d; stderr %s", code, err, exitTerminated, stderr.String())
+	}
+	return printed.Bytes()
 }
 
 func parseFollow(t *testing.T, out []byte) []followLine {

@@ -9,14 +9,15 @@
 //	log file or pipe ──► watch (tail, decode, aggregate per epoch)
 //	                        │ batches of diagnose.Point
 //	                        ▼
-//	                     diagnose.Tracker (judges each point, keeps history)
-//	                        │
-//	          ┌─────────────┼──────────────┬───────────────┐
-//	          ▼             ▼              ▼               ▼
-//	   tui (watch)   report (Markdown/JSON)  follow (JSON Lines)  stop file
+//	                     pipeline.Run: one diagnose.Tracker per run,
+//	                        │          the stop file, the summary
+//	          ┌─────────────┼──────────────────┐
+//	          ▼             ▼                  ▼
+//	   tui (watch)   report (Markdown/JSON)  follow (JSON Lines)
 //
-// This package only wires: it parses flags, opens the reader, hands batches
-// to the screen or to the headless printers, and maps errors to exit codes.
+// This package only wires: it parses flags, builds the run's pipeline with
+// the command's sinks, catches signals (signals.go, the one place), and maps
+// errors to exit codes.
 package main
 
 import (
@@ -28,12 +29,7 @@ import (
 
 func main() {
 	err := run(context.Background(), os.Args[1:], os.Stdin, os.Stdout, os.Stderr)
-	if err != nil && !isQuietExit(err) {
-		fmt.Fprintln(os.Stderr, "fitgap: "+err.Error())
-		if h := hintFor(err); h != "" {
-			fmt.Fprintln(os.Stderr, "fitgap: "+h)
-		}
-	}
+	fmt.Fprint(os.Stderr, errorText(err))
 	os.Exit(exitCode(err))
 }
 

@@ -9,8 +9,9 @@ import (
 )
 
 // binPath is the fitgap binary built once for the tests that run it as a
-// separate process (signals, a writer process beside a reader, tmux).
-var binPath string
+// separate process (signals, the demo's trainer, tmux), in testDir, which
+// also holds the logs the tests share (fixtures_test.go).
+var binPath, testDir string
 
 func TestMain(m *testing.M) {
 	dir, err := os.MkdirTemp("", "fitgap-test-bin-")
@@ -18,6 +19,7 @@ func TestMain(m *testing.M) {
 		fmt.Fprintln(os.Stderr, err)
 		os.Exit(1)
 	}
+	testDir = dir
 	binPath = filepath.Join(dir, "fitgap")
 	build := exec.Command("go", "build", "-o", binPath, ".")
 	build.Stderr = os.Stderr

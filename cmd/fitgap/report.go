@@ -5,12 +5,11 @@ import (
 	"errors"
 	"flag"
 	"fmt"
-	"io"
 	"io/fs"
 	"strings"
 
 	"github.com/fitgap/fitgap/diagnose"
-	"github.com/fitgap/fitgap/report"
+	"github.com/fitgap/fitgap/pipeline"
 	"github.com/fitgap/fitgap/watch"
 )
 
@@ -35,11 +34,11 @@ Exit status 0 after a report; 2 on a usage error or an unreadable or empty log.`
 			if err != nil {
 				return err
 			}
-			sum, err := judgeWholeLog(path, e.stdin, opts, cfg)
+			run, err := judgeWholeLog(pipeline.Source{Path: path, Stdin: e.stdin, Read: opts}, cfg)
 			if err != nil {
 				return err
 			}
-			return writeSummary(e.stdout, sum, asJSON)
+			return pipeline.WriteSummary(e.stdout, run.Summary(), asJSON)
 		}
 	},
 }
@@ -56,34 +55,21 @@ func onePath(args []string) (string, error) {
 }
 
 // judgeWholeLog reads a finished log (or a pipe to its end) and judges it,
-// handing each batch's points to the Tracker as they are read: memory
-// follows the Tracker's compact history, not the log's points.
-func judgeWholeLog(path string, stdin io.Reader, opts watch.Options, cfg diagnose.Config) (report.Summary, error) {
-	opts.Follow = false
-	name := path
-	var batches <-chan watch.Batch
-	if path == "-" {
-		name = "standard input"
-		batches = watch.FollowReader(context.Background(), name, stdin, opts)
-	} else {
-		b, err := watch.Follow(context.Background(), path, opts)
-		if err != nil {
-			return report.Summary{}, readError(name, err)
-		}
-		batches = b
+// handing each batch to the run as it is read.
+func judgeWholeLog(src pipeline.Source, cfg diagnose.Config) (*pipeline.Run, error) {
+	src.Read.Follow = false
+	batches, err := src.Follow(context.Background())
+	if err != nil {
+		return nil, readError(src.Name(), err)
 	}
-	t := diagnose.New(cfg)
-	var stats watch.Stats
+	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: cfg})
 	for b := range batches {
-		for _, p := range b.Points {
-			t.Push(p) // the summary needs only the last judgement
-		}
-		stats = b.Stats
+		run.Load(b)
 	}
-	if t.Len() == 0 {
-		return report.Summary{}, emptyLogError(name, stats)
+	if run.Len() == 0 {
+		return nil, emptyLogError(src.Name(), run.Stats())
 	}
-	return report.Build(sourceOf(name, stats, t.Len()), t), nil
+	return run, nil
 }
 
 // readError turns a reader error into an input error with a hint.
@@ -116,45 +102,4 @@ func emptyLogError(name string, stats watch.Stats) error {
 		hint = "if the format was misdetected, name it: --format csv, tsv, jsonl or text"
 	}
 	return &inputError{err: errors.New(msg), hint: hint}
-}
-
-// sourceOf describes the log for the summary.
-func sourceOf(name string, stats watch.Stats, points int) report.Source {
-	return report.Source{
-		Name:         watch.Sanitize(name),
-		Format:       stats.Format.String(),
-		Points:       points,
-		SkippedLines: stats.Skipped,
-		Warnings:     sourceWarnings(stats),
-	}
-}
-
-// sourceWarnings lists what the reader noticed that the user should know.
-func sourceWarnings(stats watch.Stats) []string {
-	var w []string
-	if stats.Skipped > 0 {
-		s := fmt.Sprintf("%d line(s) skipped", stats.Skipped)
-		if len(stats.Examples) > 0 {
-			s += ", e.g. " + stats.Examples[0].Error()
-		}
-		w = append(w, s)
-	}
-	if stats.Segments > 1 {
-		w = append(w, fmt.Sprintf("the log restarted %d time(s) (repeated header, truncation or a replaced file); later epochs replace earlier ones", stats.Segments-1))
-	}
-	return w
-}
-
-// writeSummary prints a summary as Markdown or JSON.
-func writeSummary(w io.Writer, s report.Summary, asJSON bool) error {
-	if asJSON {
-		b, err := s.JSON()
-		if err != nil {
-			return fmt.Errorf("encode summary: %w", err)
-		}
-		_, err = w.Write(append(b, '\n'))
-		return err
-	}
-	_, err := io.WriteString(w, s.Markdown())
-	return err
 }

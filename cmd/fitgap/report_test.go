@@ -11,6 +11,7 @@ import (
 )
 
 func TestReport_BadLogs(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	empty := filepath.Join(dir, "empty.csv")
 	writeFile(t, empty, "")
@@ -51,6 +52,7 @@ func TestReport_BadLogs(t *testing.T) {
 }
 
 func TestReport_PermissionDenied(t *testing.T) {
+	t.Parallel()
 	if os.Geteuid() == 0 {
 		t.Skip("root reads any file")
 	}
@@ -65,6 +67,7 @@ func TestReport_PermissionDenied(t *testing.T) {
 
 // TestReport_JSONKeys checks the keys issue-level users script against.
 func TestReport_JSONKeys(t *testing.T) {
+	t.Parallel()
 	p := filepath.Join(t.TempDir(), "run.csv")
 	writeFile(t, p, "epoch,loss,acc,val_loss,val_acc\n1,0.9,0.6,0.95,0.58\n2,0.7,0.7,0.8,0.66\n3,0.6,0.75,0.75,0.7\n4,0.5,0.8,0.74,0.71\n")
 	stdout, stderr, code := runCLI(t, "", "report", "--json", p)
@@ -105,6 +108,7 @@ func TestReport_JSONKeys(t *testing.T) {
 // TestReport_StdinAndFormats reads the same run from a pipe and from every
 // format the reader knows.
 func TestReport_StdinAndFormats(t *testing.T) {
+	t.Parallel()
 	csv := "epoch,loss,acc,val_loss,val_acc\n1,0.9,0.6,0.95,0.58\n2,0.7,0.7,0.8,0.66\n3,0.6,0.75,0.75,0.7\n"
 	stdout, stderr, code := runCLI(t, csv, "report", "--json", "-")
 	if code != 0 {
@@ -123,6 +127,7 @@ func TestReport_StdinAndFormats(t *testing.T) {
 // (a new session, pipes for every stream, as under cron): it must say so
 // and point to the headless commands.
 func TestWatch_NoTerminal(t *testing.T) {
+	t.Parallel()
 	p := filepath.Join(t.TempDir(), "run.csv")
 	writeFile(t, p, "epoch,loss,val_loss\n1,0.9,0.95\n")
 	cmd := exec.Command(binPath, p)

@@ -6,8 +6,10 @@ import (
 	"flag"
 	"fmt"
 	"os"
+	"syscall"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/pipeline"
 	"github.com/fitgap/fitgap/report"
 	"github.com/fitgap/fitgap/tui"
 	"github.com/fitgap/fitgap/watch"
@@ -71,44 +73,68 @@ type screenSpec struct {
 	writerDone <-chan struct{}
 }
 
-// runScreen opens the reader, runs the screen until the user quits or a
-// signal ends it, then prints the summary and writes the summary file.
+// defaultSummaryFile is where the s key saves the summary without --summary.
+const defaultSummaryFile = "fitgap-summary.md"
+
+// runScreen runs the log's pipeline with the screen as its sink until the
+// user quits or a signal ends it, then prints the summary and writes the
+// summary file.
 func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 	stdout, ok := e.stdout.(*os.File)
 	if !ok {
 		return &noTerminalError{err: errors.New("standard output is not a file")}
 	}
-	stop, err := checkStopFile(spec.flags.stopFile)
+	spec.opts.Steps = true
+	src := pipeline.Source{Path: spec.path, Stdin: e.stdin, Read: spec.opts}
+	stop, err := openStopFile(spec.flags.stopFile, src)
 	if err != nil {
 		return err
 	}
-	spec.opts.Steps = true
+	summaryPath := spec.flags.summary
+	if summaryPath != "" {
+		if err := pipeline.NotTheLog(summaryPath, src.Log()); err != nil {
+			return usageErrorf("--summary %v", err)
+		}
+	}
+	closes := make(chan tui.ExitReason, 2)
+	sigs := catchSignals(func(s syscall.Signal) {
+		select {
+		case closes <- screenReason(s):
+		default:
+		}
+	})
+	defer sigs.stop()
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
-	batches, name, err := openFollow(ctx, spec.path, e.stdin, spec.opts)
+	batches, err := src.Follow(ctx)
 	if err != nil {
-		return err
+		return readError(src.Name(), err)
 	}
 
+	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: spec.cfg, StopFile: stop, WriterDone: spec.writerDone})
 	feed := make(chan tui.FeedMsg, 4)
-	stopErrs := make(chan error, 1)
-	go relay(ctx, batches, spec.writerDone, feed, name, diagnose.New(spec.cfg), stop, stopErrs)
+	var stopErr error
+	relayed := make(chan struct{})
+	go func() {
+		defer close(relayed)
+		stopErr = relay(ctx, run, batches, feed)
+	}()
 
-	summaryPath := spec.flags.summary
 	m := tui.New(tui.Options{
-		Config:    spec.cfg,
+		History:   run,
 		BayesNote: spec.bayesNote,
 		NoColor:   spec.flags.noColor || os.Getenv("NO_COLOR") != "",
 		SaveSummary: func(s report.Summary) (string, error) {
 			p := summaryPath
 			if p == "" {
-				p = "fitgap-summary.md"
+				p = defaultSummaryFile
 			}
-			return p, saveSummary(p, s)
+			return p, pipeline.SaveSummary(p, src.Log(), s)
 		},
 	})
-	final, reason, err := tui.Run(ctx, m, feed, stdout)
+	final, reason, err := tui.Run(ctx, m, feed, closes, stdout)
 	cancel()
+	<-relayed
 	if spec.after != nil {
 		spec.after()
 	}
@@ -121,16 +147,16 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 	sum := final.Summary()
 	var fileErr error
 	if summaryPath != "" {
-		fileErr = saveSummary(summaryPath, sum)
+		fileErr = pipeline.SaveSummary(summaryPath, src.Log(), sum)
 	}
 	if reason != tui.ExitHangup {
 		// After a hangup the terminal is gone: only the file is kept.
-		fmt.Fprint(e.stdout, sum.Markdown())
+		if err := pipeline.WriteSummary(e.stdout, sum, false); err != nil && fileErr == nil {
+			fileErr = err
+		}
 	}
-	select {
-	case err := <-stopErrs:
-		fmt.Fprintln(e.stderr, "fitgap: "+err.Error())
-	default:
+	if stopErr != nil {
+		fmt.Fprintln(e.stderr, "fitgap: "+diagnose.Printable(stopErr.Error()))
 	}
 	if fileErr != nil {
 		return fileErr
@@ -146,85 +172,52 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 	return nil
 }
 
-// relay turns reader batches into screen messages. It also judges the
-// points itself, with the command line's settings, to act on the stop
-// signal: the stop file must not depend on what the screen shows (paused,
-// or with an optimal error typed in to explore).
-func relay(ctx context.Context, batches <-chan watch.Batch, writerDone <-chan struct{}, feed chan<- tui.FeedMsg, name string, t *diagnose.Tracker, stop *stopFile, errs chan<- error) {
+// relay drives the run and hands each update to the screen, until the
+// source ends or ctx does (the screen closed); it then closes feed. It
+// never blocks on a feed nobody reads: a send gives up once ctx ends. The
+// stop file is the run's business, whatever the screen shows (paused, or
+// judging with another optimal error typed in to explore); relay returns
+// the first error in creating it, for after the screen.
+func relay(ctx context.Context, run *pipeline.Run, batches <-chan watch.Batch, feed chan<- tui.FeedMsg) (stopErr error) {
 	defer close(feed)
-	// send gives up once the screen is gone (ctx ends when it closes), so
-	// the relay never blocks on a feed nobody reads.
-	send := func(m tui.FeedMsg) bool {
+	_ = run.Drive(ctx, batches, func(u pipeline.Update) error {
+		if u.Stop != nil && u.Stop.Err != nil && stopErr == nil {
+			stopErr = u.Stop.Err
+		}
 		select {
-		case feed <- m:
-			return true
+		case feed <- screenFeed(run, u):
 		case <-ctx.Done():
-			return false
 		}
-	}
-	var last watch.Stats
-	finished := false
-	for {
-		select {
-		case b, ok := <-batches:
-			if !ok {
-				return
-			}
-			if stop != nil {
-				for _, p := range b.Points {
-					if _, err := stop.observe(t.Add(p)); err != nil {
-						select {
-						case errs <- err:
-						default:
-						}
-					}
-				}
-			}
-			last = b.Stats
-			msg := feedMsg(name, b)
-			if finished && msg.Source.State == tui.Live {
-				msg.Source.State = tui.Finished
-			}
-			if !send(msg) {
-				return
-			}
-		case <-writerDone:
-			writerDone, finished = nil, true
-			// The reader may still hand on the last lines; they will be
-			// marked finished too.
-			msg := feedMsg(name, watch.Batch{Stats: last})
-			if msg.Source.State == tui.Live {
-				msg.Source.State = tui.Finished
-			}
-			if !send(msg) {
-				return
-			}
-		}
-	}
+		return nil // the screen takes what comes; nothing here ends the run
+	})
+	return stopErr
 }
 
-func feedMsg(name string, b watch.Batch) tui.FeedMsg {
-	notices := make([]string, len(b.Notices))
-	for i, n := range b.Notices {
+// screenFeed is an update in the screen's terms.
+func screenFeed(run *pipeline.Run, u pipeline.Update) tui.FeedMsg {
+	notices := make([]string, len(u.Notices))
+	for i, n := range u.Notices {
 		notices[i] = n.Text
 	}
-	examples := make([]string, len(b.Stats.Examples))
-	for i, x := range b.Stats.Examples {
+	examples := make([]string, len(u.Stats.Examples))
+	for i, x := range u.Stats.Examples {
 		examples[i] = x.Error()
 	}
 	return tui.FeedMsg{
-		Points:  b.Points,
-		Steps:   b.Steps,
-		Notices: notices,
+		Points:     u.Points,
+		Judgements: u.Judgements,
+		Rejudged:   u.Rejudged,
+		Steps:      u.Steps,
+		Notices:    notices,
 		Source: tui.SourceInfo{
-			Name:      watch.Sanitize(name),
-			Format:    b.Stats.Format.String(),
-			State:     sourceState(b.Stats.State),
-			Lines:     b.Stats.Lines,
-			Skipped:   b.Stats.Skipped,
-			NonFinite: b.Stats.NonFinite,
+			Name:      diagnose.Printable(run.Name()),
+			Format:    u.Stats.Format.String(),
+			State:     sourceState(u.Stats.State),
+			Lines:     u.Stats.Lines,
+			Skipped:   u.Stats.Skipped,
+			NonFinite: u.Stats.NonFinite,
 			Examples:  examples,
-			LastWrite: b.Stats.LastWrite,
+			LastWrite: u.Stats.LastWrite,
 		},
 	}
 }
@@ -239,4 +232,16 @@ func sourceState(s watch.State) tui.SourceState {
 		return tui.Finished
 	}
 	return tui.Live
+}
+
+// openStopFile checks the --stop-file path, if any, before anything runs.
+func openStopFile(path string, src pipeline.Source) (*pipeline.StopFile, error) {
+	if path == "" {
+		return nil, nil
+	}
+	s, err := pipeline.OpenStopFile(path, src.Log())
+	if err != nil {
+		return nil, usageErrorf("--stop-file %v", err)
+	}
+	return s, nil
 }

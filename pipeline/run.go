@@ -1,0 +1,258 @@
+// Package pipeline owns one training run end to end: the reader's batches
+// go through one diagnose.Tracker, and the judged points go on to the
+// sinks — the screen's feed, follow's JSON lines, the stop file, the
+// summary.
+//
+//	watch.Batch ──► Run.Apply ──► one Tracker (under the Run's lock)
+//	                   │
+//	                   ├──► stop file (created once, when the signal first says stop)
+//	                   └──► Update ──► emit: the screen's feed, or follow's lines
+//	Run.Read ◄── the screen inspects past judgements ("as judged then")
+//	Run.Summary ◄── report, the summary file, the s key
+//
+// A Run is cheap when its log is idle: Drive blocks on its channels, and
+// holds a timer only when an idle end was asked for. Apply is the whole
+// work of a batch, so a process watching many runs can drive them from
+// one goroutine instead.
+//
+// The package does no terminal I/O and knows nothing of the screen; the
+// only files it writes are the stop file and the summary file, never the
+// log.
+package pipeline
+
+import (
+	"context"
+	"sync"
+	"time"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/report"
+	"github.com/fitgap/fitgap/watch"
+)
+
+// Options configure a Run.
+type Options struct {
+	// Name is how the log is named in output: its path, or "standard
+	// input". It is untrusted: output sanitizes it.
+	Name string
+	// Judge is the judgement's configuration (the command line's settings).
+	Judge diagnose.Config
+	// StopFile, when not nil, is created the first time the early-stopping
+	// signal reaches stop.
+	StopFile *StopFile
+	// EndOnStop ends the run at the first point whose signal is stop: the
+	// batch is cut after that point and Drive returns.
+	EndOnStop bool
+	// Summaries asks for the summary as of each point (follow's lines):
+	// Update.Summaries then holds one per point.
+	Summaries bool
+	// WriterDone, when not nil, is closed when the process writing the log
+	// has ended (the demo's trainer): a live source is then reported as
+	// finished, since no more epochs will come.
+	WriterDone <-chan struct{}
+	// IdleEnd ends Drive after this long without a new line; 0 never.
+	IdleEnd time.Duration
+}
+
+// Run is one training run: its Tracker, the reader's latest counts and the
+// stop file's state. Apply and Drive must be called from one goroutine at
+// a time; Read, Summary and the accessors may be called from any.
+type Run struct {
+	opts Options
+
+	mu       sync.Mutex // guards tracker and stats
+	tracker  *diagnose.Tracker
+	stats    watch.Stats
+	finished bool // WriterDone was closed
+}
+
+// New returns a run with no point judged yet.
+func New(opts Options) *Run {
+	return &Run{opts: opts, tracker: diagnose.New(opts.Judge)}
+}
+
+// Update is what one batch changed, once judged. Points[i] was judged as
+// Judgements[i], in order; a point whose epoch is not above the one before
+// replaces the judgements from Judgements[i].Index on.
+type Update struct {
+	Points     []diagnose.Point
+	Judgements []diagnose.Judgement
+	// Summaries[i] is the summary as of Points[i], with Options.Summaries.
+	Summaries []report.Summary
+	// Rejudged says the Tracker judged every earlier point again while
+	// taking this batch (it chose another metric, or found a rate written
+	// in percent): judgements read before it are stale.
+	Rejudged bool
+	// Steps are the batch's per-step rows, Notices the reader's messages.
+	Steps   []diagnose.StepRow
+	Notices []watch.Notice
+	// Stats are the reader's counts so far. State is StateFinished once the
+	// writer is known to have ended (Options.WriterDone).
+	Stats watch.Stats
+	// Stop is set when a point of the batch says stop while the stop file
+	// is still to be created: it was created now, or why not (the next
+	// point that says stop tries again).
+	Stop *StopEvent
+	// Ended: the run ends with this update (Options.EndOnStop reached).
+	Ended bool
+}
+
+// StopEvent is the outcome of creating the stop file.
+type StopEvent struct {
+	Path      string
+	Epoch     int // the epoch whose signal reached stop
+	BestEpoch int // the epoch to restore
+	Err       error
+}
+
+// Apply judges one batch: every point goes through the Tracker, the stop
+// file is created when the signal first reaches stop, and the Update says
+// what changed. The lock is held only while judging, never during file I/O.
+func (r *Run) Apply(b watch.Batch) Update {
+	u := Update{Steps: b.Steps, Notices: b.Notices}
+	stopAt := -1 // the first point of the batch that says stop, for the stop file
+	r.mu.Lock()
+	r.stats = b.Stats
+	u.Stats = r.statsLocked()
+	if len(b.Points) > 0 {
+		u.Judgements = make([]diagnose.Judgement, 0, len(b.Points))
+	}
+	for i, p := range b.Points {
+		revision := r.tracker.Revision()
+		j := r.tracker.Add(p)
+		if r.tracker.Revision() != revision && r.tracker.Len() > 1 {
+			u.Rejudged = true // the points before p were judged again
+		}
+		u.Points = b.Points[:i+1]
+		u.Judgements = append(u.Judgements, j)
+		if r.opts.Summaries {
+			u.Summaries = append(u.Summaries, r.summaryLocked())
+		}
+		if j.EarlyStop.Signal != diagnose.Stop {
+			continue
+		}
+		if stopAt < 0 && r.opts.StopFile.pending() {
+			stopAt = i
+		}
+		if r.opts.EndOnStop {
+			u.Ended = true
+			break
+		}
+	}
+	r.mu.Unlock()
+	if stopAt >= 0 {
+		u.Stop = r.opts.StopFile.create(u.Judgements[stopAt])
+	}
+	return u
+}
+
+// Load judges one batch of a whole log being read (report): every point,
+// but only the judgements asked for later are built. Handing each batch on
+// as it is read keeps memory to the Tracker's compact history, not the
+// log's points.
+func (r *Run) Load(b watch.Batch) {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	r.stats = b.Stats
+	for _, p := range b.Points {
+		r.tracker.Push(p)
+	}
+}
+
+// Drive applies the batches as they come and hands each Update to emit,
+// until the source ends (the channel closes), ctx ends, the run ends on
+// stop (Options.EndOnStop), no line came for Options.IdleEnd, or emit
+// returns an error, which Drive returns. An update being handed on when
+// ctx ends is still handed on whole: emit decides whether to wait for its
+// reader (the screen's feed gives up once the screen is gone).
+func (r *Run) Drive(ctx context.Context, batches <-chan watch.Batch, emit func(Update) error) error {
+	var idle <-chan time.Time
+	var timer *time.Timer
+	if r.opts.IdleEnd > 0 {
+		timer = time.NewTimer(r.opts.IdleEnd)
+		defer timer.Stop()
+		idle = timer.C
+	}
+	lines := 0
+	writerDone := r.opts.WriterDone
+	// take applies one batch; it reports whether the run is over.
+	take := func(b watch.Batch, ok bool) (bool, error) {
+		if !ok {
+			return true, nil
+		}
+		if timer != nil && b.Stats.Lines != lines {
+			timer.Reset(r.opts.IdleEnd) // new lines: not idle
+		}
+		lines = b.Stats.Lines
+		u := r.Apply(b)
+		err := emit(u)
+		return err != nil || u.Ended, err
+	}
+	for {
+		select {
+		case <-ctx.Done():
+			return nil
+		case <-idle:
+			// A batch already waiting is not idleness (the process may
+			// have had no CPU for a while): take it, and wait again.
+			select {
+			case b, ok := <-batches:
+				timer.Reset(r.opts.IdleEnd)
+				if over, err := take(b, ok); over {
+					return err
+				}
+			default:
+				return nil
+			}
+		case b, ok := <-batches:
+			if over, err := take(b, ok); over {
+				return err
+			}
+		case <-writerDone:
+			writerDone = nil
+			r.mu.Lock()
+			r.finished = true
+			u := Update{Stats: r.statsLocked()}
+			r.mu.Unlock()
+			if err := emit(u); err != nil {
+				return err
+			}
+		}
+	}
+}
+
+// statsLocked is the reader's latest counts, a live source shown finished
+// once its writer has ended.
+func (r *Run) statsLocked() watch.Stats {
+	s := r.stats
+	if r.finished && s.State == watch.StateLive {
+		s.State = watch.StateFinished
+	}
+	return s
+}
+
+// Read calls f with the run's Tracker held still, for reading past
+// judgements ("as judged then"). f must not modify the Tracker nor keep
+// it, and must not call back into the Run.
+func (r *Run) Read(f func(t *diagnose.Tracker)) {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	f(r.tracker)
+}
+
+// Stats returns the reader's latest counts.
+func (r *Run) Stats() watch.Stats {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	return r.statsLocked()
+}
+
+// Len returns the number of points judged.
+func (r *Run) Len() int {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	return r.tracker.Len()
+}
+
+// Name returns how the log is named (untrusted text).
+func (r *Run) Name() string { return r.opts.Name }

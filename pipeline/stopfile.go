@@ -1,0 +1,63 @@
+package pipeline
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// StopFile is the file created once, when the early-stopping signal first
+// reaches stop, for a training loop or a scheduler's wrapper to poll. It
+// is never written over: a file that exists already is refused at the
+// start, and one that appears later is left alone (createFileAtomic).
+type StopFile struct {
+	path    string
+	created bool
+}
+
+// OpenStopFile checks a stop file's path before the run starts. It refuses
+// a path that exists already (it is not ours, and a training loop polling
+// it would stop at once), a directory that does not exist, and the log's
+// own path (log).
+func OpenStopFile(path, log string) (*StopFile, error) {
+	if _, err := os.Lstat(path); err == nil {
+		return nil, fmt.Errorf("%s already exists; fitgap does not overwrite a file it did not create (remove it, or choose another path)", path)
+	} else if !errors.Is(err, fs.ErrNotExist) {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	dir := filepath.Dir(path)
+	if st, err := os.Stat(dir); err != nil || !st.IsDir() {
+		return nil, fmt.Errorf("%s: directory %s does not exist", path, dir)
+	}
+	if err := NotTheLog(path, log); err != nil {
+		return nil, err
+	}
+	return &StopFile{path: path}, nil
+}
+
+// Path returns where the file goes.
+func (s *StopFile) Path() string { return s.path }
+
+// pending reports whether the file is still to be created.
+func (s *StopFile) pending() bool { return s != nil && !s.created }
+
+// create writes the file for the judgement j whose signal is stop. A
+// failure is reported and tried again at the next point that says stop.
+func (s *StopFile) create(j diagnose.Judgement) *StopEvent {
+	ev := &StopEvent{Path: s.path, Epoch: j.Epoch, BestEpoch: j.EarlyStop.BestEpoch}
+	b, err := json.Marshal(j.StopForm())
+	if err == nil {
+		err = createFileAtomic(s.path, append(b, '\n'))
+	}
+	if err != nil {
+		ev.Err = err
+		return ev
+	}
+	s.created = true
+	return ev
+}

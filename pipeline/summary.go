@@ -1,0 +1,112 @@
+package pipeline
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/report"
+	"github.com/fitgap/fitgap/watch"
+)
+
+// This file is where a run becomes a summary and a summary becomes bytes:
+// the one place of the wiring that calls into report.
+
+// Summary returns the snapshot summary as of the latest point.
+func (r *Run) Summary() report.Summary {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	return r.summaryLocked()
+}
+
+func (r *Run) summaryLocked() report.Summary {
+	return report.Build(sourceOf(r.opts.Name, r.stats, r.tracker.Len()), r.tracker)
+}
+
+// sourceOf describes the log for the summary.
+func sourceOf(name string, stats watch.Stats, points int) report.Source {
+	return report.Source{
+		Name:         diagnose.Printable(name),
+		Format:       stats.Format.String(),
+		Points:       points,
+		SkippedLines: stats.Skipped,
+		Warnings:     sourceWarnings(stats),
+	}
+}
+
+// sourceWarnings lists what the reader noticed that the user should know.
+func sourceWarnings(stats watch.Stats) []string {
+	var w []string
+	if stats.Skipped > 0 {
+		s := fmt.Sprintf("%d line(s) skipped", stats.Skipped)
+		if len(stats.Examples) > 0 {
+			s += ", e.g. " + stats.Examples[0].Error()
+		}
+		w = append(w, s)
+	}
+	if stats.Segments > 1 {
+		w = append(w, fmt.Sprintf("the log restarted %d time(s) (repeated header, truncation or a replaced file); later epochs replace earlier ones", stats.Segments-1))
+	}
+	return w
+}
+
+// SummaryBytes renders a summary as Markdown, or as one indented JSON
+// object with a final newline.
+func SummaryBytes(s report.Summary, asJSON bool) ([]byte, error) {
+	if !asJSON {
+		return []byte(s.Markdown()), nil
+	}
+	b, err := s.JSON()
+	if err != nil {
+		return nil, fmt.Errorf("encode summary: %w", err)
+	}
+	return append(b, '\n'), nil
+}
+
+// WriteSummary prints a summary as Markdown or JSON.
+func WriteSummary(w io.Writer, s report.Summary, asJSON bool) error {
+	b, err := SummaryBytes(s, asJSON)
+	if err != nil {
+		return err
+	}
+	_, err = w.Write(b)
+	return err
+}
+
+// SaveSummary writes the summary file atomically: JSON when the name ends
+// in .json, Markdown otherwise. It refuses the log's own path (log).
+func SaveSummary(path, log string, s report.Summary) error {
+	if err := NotTheLog(path, log); err != nil {
+		return err
+	}
+	b, err := SummaryBytes(s, strings.EqualFold(filepath.Ext(path), ".json"))
+	if err != nil {
+		return err
+	}
+	return writeFileAtomic(path, b)
+}
+
+// followLine is one line of `fitgap follow`: the summary as of a point
+// (the keys of `report --json`), with the time it was judged.
+type followLine struct {
+	report.Document
+	Time string `json:"time"`
+}
+
+// lineTime is the layout of a line's time: RFC 3339 in UTC with
+// milliseconds, fixed width so lines align.
+const lineTime = "2006-01-02T15:04:05.000Z07:00"
+
+// AppendLine appends the follow line of s, judged at the time at, and a
+// newline to dst.
+func AppendLine(dst []byte, s report.Summary, at time.Time) ([]byte, error) {
+	b, err := json.Marshal(followLine{Document: s.Document(), Time: at.UTC().Format(lineTime)})
+	if err != nil {
+		return dst, fmt.Errorf("encode summary: %w", err)
+	}
+	return append(append(dst, b...), '\n'), nil
+}
