@@ -18,6 +18,9 @@ func TestImportArrows(t *testing.T) {
 	charm := []string{"github.com/charmbracelet/", "github.com/NimbleMarkets/", "github.com/muesli/"}
 	fsnotify := []string{"github.com/fsnotify/"}
 	io := []string{"os", "os/exec", "net", "syscall", "io/ioutil"}
+	// Inside watch, tail reads bytes and knows no layout; layout decodes
+	// and points assembles, both pure; column names columns.
+	tail, layout, points, column := mod+"watch/tail", mod+"watch/layout", mod+"watch/points", mod+"watch/column"
 	tests := []struct {
 		pkg string
 		// deps are forbidden anywhere below the package; direct only in
@@ -27,6 +30,10 @@ func TestImportArrows(t *testing.T) {
 		{"diagnose", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "report"}}, [][]string{io}},
 		{"report", [][]string{charm, fsnotify, {mod + "watch", mod + "tui"}}, [][]string{io}},
 		{"watch", [][]string{charm, {mod + "tui", mod + "report"}}, nil},
+		{"watch/tail", [][]string{charm, {mod + "watch", layout, points, column, mod + "tui", mod + "report"}}, nil},
+		{"watch/layout", [][]string{charm, fsnotify, {mod + "watch", tail, mod + "tui", mod + "report"}}, [][]string{io}},
+		{"watch/points", [][]string{charm, fsnotify, {mod + "watch", tail, layout, mod + "tui", mod + "report"}}, [][]string{io}},
+		{"watch/column", [][]string{charm, fsnotify, {mod + "watch", tail, layout, points, mod + "tui", mod + "report"}}, [][]string{io}},
 		{"tui", [][]string{fsnotify, {mod + "watch"}}, nil},
 		{"trainer", [][]string{charm, fsnotify, {mod + "watch", mod + "tui", mod + "diagnose"}}, nil},
 	}
