@@ -85,7 +85,9 @@ func readFileCounting(t *testing.T, path string, opts Options) (ingestResult, in
 	}()
 	var r ingestResult
 	for b := range out {
-		r.points = append(r.points, b.Points...)
+		for _, p := range b.Points {
+			r.points = AppendPoint(r.points, p)
+		}
 		for _, n := range b.Notices {
 			r.notices = append(r.notices, n.Text)
 		}

@@ -6,6 +6,7 @@ import (
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/layout"
+	"github.com/fitgap/fitgap/watch/points"
 	"github.com/fitgap/fitgap/watch/tail"
 )
 
@@ -47,7 +48,11 @@ func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester
 
 // points.Out
 
-func (g *ingester) Point(p diagnose.Point)  { g.batch.Points = append(g.batch.Points, p) }
+// Point adds p to the batch by the replacement rule of Batch, so that a
+// batch holds each epoch once (an epoch handed on early and refined, or
+// written as an evaluation row and a summary row, goes out as its last
+// version).
+func (g *ingester) Point(p diagnose.Point)  { g.batch.Points = points.Append(g.batch.Points, p) }
 func (g *ingester) Step(r diagnose.StepRow) { g.batch.Steps = append(g.batch.Steps, r) }
 
 // Notice reports a message; it may quote the log's name or an error about
@@ -67,6 +72,7 @@ func (g *ingester) Feed(p []byte) {
 }
 
 func (g *ingester) Restart(why string) { g.r.Reset(why) }
+func (g *ingester) Rewind() bool       { return g.r.Rewind() }
 func (g *ingester) State(s State)      { g.state = s }
 func (g *ingester) CaughtUp()          { g.r.CaughtUp() }
 func (g *ingester) End()               { g.r.End() }
@@ -116,7 +122,7 @@ func (g *ingester) take() Batch {
 	g.batch = Batch{}
 	c := g.r.Counts()
 	b.Stats = Stats{Format: c.Format, State: g.state, Lines: c.Lines, Skipped: c.Skipped, Examples: c.Examples,
-		NonFinite: c.NonFinite, Segments: c.Segments, LastWrite: g.lastWrite}
+		NonFinite: c.NonFinite, Segments: c.Segments, LastWrite: g.lastWrite, Roles: c.Roles, Columns: c.Columns}
 	return b
 }
 

@@ -97,7 +97,20 @@ type Stats struct {
 	// LastWrite is when the reader last saw new bytes, by the reader's
 	// clock (the screen shows how long the log has been quiet).
 	LastWrite time.Time
+	// Roles are the roles the reader assumed where the log left a choice
+	// (which eval set of a boosting library is the training data, a test
+	// split standing in for validation), each with what it rests on, so
+	// that the screen, the report and the JSON can state them. The flags
+	// --train, --val, --train-dev and --test override them.
+	Roles []RoleGuess
+	// Columns are the log's value columns read so far (not the epoch or
+	// step), in the order they appeared, with what each holds.
+	Columns []diagnose.Column
 }
+
+// RoleGuess is a role the reader assumed for a column: Column (its name),
+// Split (the split assumed) and Source (what the guess rests on).
+type RoleGuess = column.Guess
 
 // Notice is a message about the source, for the status line: "waiting for
 // run.csv", "run.csv truncated: reading from the start (segment 2)",

@@ -55,12 +55,15 @@ func Parse(name string) diagnose.Column {
 			return col
 		}
 	}
+	dir, rate, known := metricMeaning(rest)
+	if known {
+		rest = trimBase(rest)
+	}
 	col.Base = strings.Join(rest, "_")
 	if col.Base == "" {
 		// "val" alone: a value of the split with no metric name.
 		col.Base = "value"
 	}
-	dir, rate, known := metricMeaning(rest)
 	switch {
 	case known:
 		if split == diagnose.SplitNone {
@@ -152,6 +155,14 @@ var splitOf = map[string]diagnose.Split{
 	"traindev": diagnose.SplitTrainDev,
 }
 
+// Words cuts a name into lower-case words at separators and camelCase
+// humps ("valLoss" → val, loss; "train/acc" → train, acc).
+func Words(name string) []string { return splitWords(name) }
+
+// SplitOf finds the split word among lower-case words ("test", "set") and
+// returns its split and the other words; SplitNone when there is none.
+func SplitOf(words []string) (diagnose.Split, []string) { return findSplit(words) }
+
 // findSplit finds the split word of a name and returns the other words.
 // "train" followed by "dev" is the train-dev split.
 func findSplit(words []string) (diagnose.Split, []string) {
@@ -173,20 +184,51 @@ func findSplit(words []string) (diagnose.Split, []string) {
 	return diagnose.SplitNone, words
 }
 
+// fillerWords say how a metric was measured or on what, not which metric
+// it is: "Test set: Average loss" is the test split's loss, "val_avg_acc"
+// its accuracy.
+var fillerWords = map[string]bool{"average": true, "avg": true, "set": true}
+
+// trimBase drops filler words and a trailing "epoch" from the words of a
+// known metric: "train_loss_epoch" is the per-epoch aggregate that some
+// trainers log beside the per-step "train_loss_step", and it is the
+// epoch's training loss (base "loss").
+func trimBase(words []string) []string {
+	out := make([]string, 0, len(words))
+	for _, w := range words {
+		if !fillerWords[w] {
+			out = append(out, w)
+		}
+	}
+	if n := len(out); n > 1 && out[n-1] == "epoch" {
+		out = out[:n-1]
+	}
+	if len(out) == 0 {
+		return words
+	}
+	return out
+}
+
 // metricMeaning gives the direction and rate-ness of a base metric from its
 // words; known is false when no word names a metric.
 func metricMeaning(words []string) (dir diagnose.Direction, rate, known bool) {
 	for _, w := range words {
 		switch w {
 		case "loss", "losses", "nll", "mse", "mae", "rmse", "mape", "perplexity", "ppl",
-			"ce", "xent", "bce", "wer", "cer", "cost", "objective":
+			"ce", "xent", "bce", "wer", "cer", "cost", "objective",
+			// the boosting libraries' names: logloss, mlogloss (multi-class),
+			// l1 and l2 (absolute and squared error).
+			"logloss", "mlogloss", "l1", "l2":
 			return diagnose.LowerIsBetter, false, true
-		case "error", "err", "errors", "misclassification":
+		case "error", "err", "errors", "misclassification", "merror":
 			return diagnose.LowerIsBetter, true, true
 		case "accuracy", "acc", "top1", "top5", "top1acc", "top5acc":
 			return diagnose.HigherIsBetter, true, true
 		case "f1", "f1score", "auc", "auroc", "roc", "precision", "prec", "recall", "rec",
-			"iou", "miou", "map", "bleu", "rouge", "dice", "r2", "kappa", "mcc":
+			"iou", "miou", "map", "bleu", "rouge", "dice", "r2", "kappa", "mcc",
+			// A score is higher-is-better by scikit-learn's convention for
+			// every scorer ("Validation score" is accuracy or R²).
+			"score":
 			return diagnose.HigherIsBetter, false, true
 		}
 	}
@@ -205,6 +247,20 @@ func isBookkeepingBase(words []string) bool {
 		}
 	}
 	return false
+}
+
+// Guess is a role the reader assumed for a column where the log left a
+// choice: which of the boosting libraries' validation_0, validation_1 is
+// the training data, or a test split evaluated every epoch standing in for
+// validation. The flags --train, --val, --train-dev and --test override
+// it.
+type Guess struct {
+	// Column is the column's name as the log writes it, sanitized.
+	Column string
+	// Split is the split assumed.
+	Split diagnose.Split
+	// Source says what the guess rests on, in a sentence.
+	Source string
 }
 
 // Overrides force named columns to a split, whatever their names say

@@ -52,7 +52,19 @@ func TestParse(t *testing.T) {
 		{"val_precision", diagnose.SplitVal, "precision", m, hi, false},
 		{"val_recall", diagnose.SplitVal, "recall", m, hi, false},
 		{"val_iou", diagnose.SplitVal, "iou", m, hi, false},
-		{"val_score", diagnose.SplitVal, "score", m, un, false},
+		// Source: scikit-learn user guide §3.4 "Metrics and scoring": all
+		// scorer objects follow the convention that higher return values
+		// are better than lower return values (from memory).
+		{"val_score", diagnose.SplitVal, "score", m, hi, false},
+		{"Validation score", diagnose.SplitVal, "score", m, hi, false},
+		{"Test set: Average loss", diagnose.SplitTest, "loss", m, lo, false},
+		{"train_loss_epoch", diagnose.SplitTrain, "loss", m, lo, false},
+		{"val_acc_epoch", diagnose.SplitVal, "acc", m, hi, true},
+		{"train_loss_step", diagnose.SplitTrain, "loss_step", m, lo, false},
+		{"eval-mlogloss", diagnose.SplitVal, "mlogloss", m, lo, false},
+		{"train-merror", diagnose.SplitTrain, "merror", m, lo, true},
+		{"accuracy/top1", diagnose.SplitTrain, "accuracy_top1", m, hi, true},
+		{"eval.loss", diagnose.SplitVal, "loss", m, lo, false},
 		{"lr", diagnose.SplitNone, "", o, un, false},
 		{"learning_rate", diagnose.SplitNone, "", o, un, false},
 		{"grad_norm", diagnose.SplitNone, "", o, un, false},

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"strconv"
+	"strings"
 	"time"
 	"unicode/utf8"
 
@@ -66,6 +67,9 @@ func (d *csvDecoder) format() Format {
 }
 
 func (d *csvDecoder) Decode(line []byte, n int) {
+	if d.recs.pendingLines == 0 && isComment(line) {
+		return
+	}
 	if d.names != nil && d.recs.pendingLines == 0 && !d.general && d.fastRow(line, n) {
 		return
 	}
@@ -312,6 +316,13 @@ func (d *csvDecoder) useHeader(line []byte, fields [][]byte) {
 // row reads one data row.
 func (d *csvDecoder) row(line []byte, fields [][]byte, n int) {
 	cells := d.recs.cells
+	if len(fields) != len(d.roles) && d.hasText(fields, cells) {
+		// Not the header's shape and words in it: a console line among
+		// the rows ("Epoch 00021: val_loss improved from 0.41 to 0.39,
+		// saving model to best.h5"), or a new header.
+		d.textRow(line, fields, n)
+		return
+	}
 	if len(fields) > len(d.roles) {
 		if !anyNumber(cells) {
 			d.textRow(line, fields, n) // a wider header, or a bad line
@@ -378,24 +389,33 @@ func (d *csvDecoder) textRow(line []byte, fields [][]byte, n int) {
 		return // a row of empty cells holds nothing
 	}
 	reason := "no numeric value"
-	if !utf8.Valid(line) || bytes.IndexByte(line, 0) >= 0 {
+	switch {
+	case !utf8.Valid(line) || bytes.IndexByte(line, 0) >= 0:
 		reason = "binary data"
+	case anyNumber(d.recs.cells):
+		reason = fmt.Sprintf("not a row of the header's %d columns", len(d.names))
 	}
 	d.r.bad(n, reason, line)
 }
 
-// looksLikeHeader: every cell is a plausible name and at least one is a
-// known column name or a recognised epoch, step or metric.
+// looksLikeHeader reports a new header in the middle of the log: it passes
+// the tests of the first one (headerLike: names, no numbers, no "name:
+// value" pairs), at least one name is a known column or a recognised
+// epoch, step or metric, and it matches the segment it restarts: as many
+// columns, or all the columns it had and more. A console line that merely
+// mentions a metric ("val_loss improved from 0.41 to 0.39") fails.
 func (d *csvDecoder) looksLikeHeader(fields [][]byte) bool {
+	if !headerLike(fields) {
+		return false
+	}
 	known := false
+	have := make(map[string]bool, len(fields))
 	for _, f := range fields {
 		name := string(bytes.TrimSpace(f))
 		if name == "" {
 			continue
 		}
-		if !column.ValidName(name) {
-			return false
-		}
+		have[name] = true
 		if d.asm.Known(name) {
 			known = true
 			continue
@@ -404,7 +424,38 @@ func (d *csvDecoder) looksLikeHeader(fields [][]byte) bool {
 			known = true
 		}
 	}
-	return known
+	if !known {
+		return false
+	}
+	if len(fields) == len(d.names) {
+		return true
+	}
+	for _, n := range d.names {
+		if !have[n] && !strings.HasPrefix(n, "column ") {
+			return false
+		}
+	}
+	return len(fields) > len(d.names)
+}
+
+// hasText reports a field that holds words: not empty, not a number, a
+// decimal comma or a time stamp.
+func (d *csvDecoder) hasText(fields [][]byte, cells []cell) bool {
+	for i, f := range fields {
+		if cells[i].ok || len(bytes.TrimSpace(f)) == 0 {
+			continue
+		}
+		if d.recs.delim == ';' {
+			if _, ok := d.decimalComma(f); ok {
+				continue
+			}
+		}
+		if _, ok := parseTime(f); ok {
+			continue
+		}
+		return true
+	}
+	return false
 }
 
 // extraColumns gives names to cells beyond the header ("column 8"), so

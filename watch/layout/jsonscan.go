@@ -60,7 +60,7 @@ func (d *jsonDecoder) strSlow(start int) ([]byte, error) {
 			case 't':
 				out = append(out, '\t')
 			case 'u':
-				r, ok := hex4(p[i+1:])
+				r, ok := hexDigits(p[i+1:], 4)
 				if !ok {
 					return nil, errJSONSyntax
 				}
@@ -68,7 +68,7 @@ func (d *jsonDecoder) strSlow(start int) ([]byte, error) {
 				if utf16.IsSurrogate(r) {
 					r2, ok2 := rune(-1), false
 					if i+6 < len(p) && p[i+1] == '\\' && p[i+2] == 'u' {
-						r2, ok2 = hex4(p[i+3:])
+						r2, ok2 = hexDigits(p[i+3:], 4)
 					}
 					if dec := utf16.DecodeRune(r, r2); ok2 && dec != utf8.RuneError {
 						r = dec
@@ -97,26 +97,6 @@ func (d *jsonDecoder) strSlow(start int) ([]byte, error) {
 	}
 	d.tmp = out
 	return nil, errJSONSyntax
-}
-
-func hex4(p []byte) (rune, bool) {
-	if len(p) < 4 {
-		return 0, false
-	}
-	var r rune
-	for _, c := range p[:4] {
-		switch {
-		case c >= '0' && c <= '9':
-			r = r<<4 | rune(c-'0')
-		case c >= 'a' && c <= 'f':
-			r = r<<4 | rune(c-'a'+10)
-		case c >= 'A' && c <= 'F':
-			r = r<<4 | rune(c-'A'+10)
-		default:
-			return 0, false
-		}
-	}
-	return r, true
 }
 
 // skipArray moves over an array; arrays hold no metric of ours (a list of

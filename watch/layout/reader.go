@@ -3,6 +3,7 @@ package layout
 import (
 	"bytes"
 	"fmt"
+	"slices"
 	"unicode/utf8"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -71,6 +72,11 @@ type Counts struct {
 	NonFinite int
 	// Segments counts the segments so far (1 once anything was read).
 	Segments int
+	// Roles are the roles assumed where the log left a choice.
+	Roles []column.Guess
+	// Columns are the log's value columns so far, in the order they
+	// appeared, with what each holds.
+	Columns []diagnose.Column
 }
 
 // Reader turns the bytes of a log into points: it cuts lines, detects the
@@ -93,10 +99,15 @@ type Reader struct {
 	lineNo   int    // lines of the current file
 
 	lines, skipped int
-	first          []ParseError
-	last           [examplesLast]ParseError
-	lastN          int
-	overrode       bool // checkRoles already reported
+	// cols and guesses are copies of the assembler's, made again when its
+	// version changes (Counts hands them out with every batch).
+	cols       []diagnose.Column
+	guesses    []column.Guess
+	colVersion int
+	first      []ParseError
+	last       [examplesLast]ParseError
+	lastN      int
+	overrode   bool // checkRoles already reported
 
 	// spec marks a worker of the parallel path (ahead.go): it decodes a
 	// piece ahead of the Reader and gives up (bailed) at the first
@@ -104,6 +115,11 @@ type Reader struct {
 	spec   bool
 	bailed bool
 	snap   *aheadSnap // the last snapshot, whose copies are reused while the header holds
+	// segments: the decoder reads carriage-return segments (segmenter).
+	segments bool
+	// rewind: the decoder found the file rewritten (a document read whole
+	// has data after its end); Rewind reports it to the tailer.
+	rewind bool
 	// general makes the decoders take their general path (tests).
 	general bool
 	// taken counts the pieces whose workers' results were taken (tests
@@ -121,38 +137,79 @@ func NewReader(out points.Out, c Config) *Reader {
 // Feed reads the next bytes of the source.
 func (r *Reader) Feed(p []byte) {
 	for len(p) > 0 && !r.bailed {
-		i := bytes.IndexByte(p, '\n')
+		i := r.lineEnd(p)
 		if i < 0 {
 			r.hold(p)
 			return
 		}
-		seg := p[:i]
+		seg, cr := p[:i], p[i] == '\r'
 		p = p[i+1:]
 		switch {
 		case r.skipping:
 			r.skipping = false
-			r.lineNo++
-			r.lines++
+			r.endLine(cr)
 		case len(r.carry) > 0:
 			if len(r.carry)+len(seg) > maxLineBytes {
 				r.tooLong(r.carry)
 				r.skipping = false
-				r.lineNo++
-				r.lines++
+				r.endLine(cr)
 				r.carry = r.carry[:0]
 				continue
 			}
 			r.carry = append(r.carry, seg...)
-			r.line(r.carry)
+			r.piece(r.carry, cr)
 			r.carry = r.carry[:0]
 		case len(seg) > maxLineBytes:
 			r.tooLong(seg)
-			r.lineNo++
-			r.lines++
+			r.endLine(cr)
 		default:
-			r.line(seg)
+			r.piece(seg, cr)
 		}
 	}
+}
+
+// lineEnd finds the end of the next line: a newline, or also a carriage
+// return while the layout is not known yet and for a decoder that reads
+// the segments of redrawn lines (segmenter), so that a progress bar
+// redrawn across a whole run is read as it is drawn. Other layouts get
+// whole lines, the carriage returns in them included.
+func (r *Reader) lineEnd(p []byte) int {
+	if r.dec != nil && !r.segments {
+		return bytes.IndexByte(p, '\n')
+	}
+	if i := bytes.IndexByte(p, '\n'); i >= 0 {
+		if j := bytes.IndexByte(p[:i], '\r'); j >= 0 {
+			return j
+		}
+		return i
+	}
+	return bytes.IndexByte(p, '\r')
+}
+
+// endLine counts a line that ended (not a carriage-return segment).
+func (r *Reader) endLine(cr bool) {
+	if !cr {
+		r.lineNo++
+		r.lines++
+	}
+}
+
+// piece handles a complete line, or a segment that a carriage return ended.
+func (r *Reader) piece(b []byte, cr bool) {
+	if !cr {
+		r.line(b)
+		return
+	}
+	if r.lineNo == 0 {
+		b = bytes.TrimPrefix(b, utf8BOM)
+	}
+	if r.dec == nil {
+		if len(bytes.TrimSpace(b)) == 0 || isComment(b) {
+			return
+		}
+		r.start(b)
+	}
+	r.dec.Decode(b, r.lineNo+1)
 }
 
 // hold keeps a partial line until its newline arrives, unless it is too
@@ -189,18 +246,31 @@ func (r *Reader) line(b []byte) {
 		b = bytes.TrimPrefix(b, utf8BOM)
 	}
 	if r.dec == nil {
-		if len(bytes.TrimSpace(b)) == 0 {
-			return
+		if len(bytes.TrimSpace(b)) == 0 || isComment(b) {
+			return // layouts are detected from the first line of data
 		}
 		r.start(b)
 	}
 	r.dec.Decode(b, r.lineNo)
 }
 
+// isComment reports a "#" comment line, which some writers put before
+// their header and between rows.
+func isComment(line []byte) bool {
+	t := bytes.TrimLeft(line, " \t")
+	return len(t) > 0 && t[0] == '#'
+}
+
 // continuer is a decoder that can tell whether the first line of a
 // truncated or replaced file goes on under its header (copytruncate).
 type continuer interface {
 	continues(first []byte) bool
+}
+
+// segmenter is a decoder that reads every carriage-return segment of a
+// line (a progress bar redrawn in place), not only whole lines.
+type segmenter interface {
+	segmented() bool
 }
 
 // formatter is a decoder whose layout depends on what it read (a CSV
@@ -213,6 +283,8 @@ type formatter interface {
 func (r *Reader) start(first []byte) {
 	if c, ok := r.prev.(continuer); ok && c.continues(first) {
 		r.dec, r.prev = r.prev, nil
+		s, ok := r.dec.(segmenter)
+		r.segments = ok && s.segmented()
 		return
 	}
 	r.prev = nil
@@ -220,9 +292,10 @@ func (r *Reader) start(first []byte) {
 	if !ok {
 		l = detect(first)
 	}
-	r.asm.SetReplace(false)
 	r.dec = l.New(r, first)
 	r.format = l.Format
+	s, ok := r.dec.(segmenter)
+	r.segments = ok && s.segmented()
 	if f, ok := r.dec.(formatter); ok {
 		r.format = f.format()
 	}
@@ -269,6 +342,17 @@ func (r *Reader) restart(why string) {
 // truncation, a replaced file): the partial line is dropped, line numbers
 // and layout detection start over; why is the notice's text.
 func (r *Reader) Reset(why string) {
+	if d, ok := r.dec.(rereadable); ok && d.rereads() {
+		// A document read whole is read again at each rewrite: no new
+		// segment, no notice; the decoder goes on (continues) and the
+		// lines are counted once.
+		r.lines -= r.lineNo
+		r.carry = r.carry[:0]
+		r.skipping, r.rewind = false, false
+		r.lineNo = 0
+		r.prev, r.dec = r.dec, nil
+		return
+	}
 	if r.dec != nil {
 		r.dec.Finish()
 	}
@@ -280,6 +364,14 @@ func (r *Reader) Reset(why string) {
 		r.asm.NewSegment()
 	}
 	r.notice(fmt.Sprintf("%s (segment %d)", why, r.asm.Segment()))
+}
+
+// Rewind reports, once, that the file must be read again from its start:
+// it was rewritten whole (a JSON document dumped again at a checkpoint).
+func (r *Reader) Rewind() bool {
+	w := r.rewind
+	r.rewind = false
+	return w
 }
 
 // End finishes a source that will not grow: an unterminated last line is
@@ -336,7 +428,13 @@ func (r *Reader) Lines() (lines, skipped int) { return r.lines, r.skipped }
 
 // Counts returns the counters so far.
 func (r *Reader) Counts() Counts {
-	c := Counts{Format: r.format, Lines: r.lines, Skipped: r.skipped, Examples: r.examples(), NonFinite: r.asm.NonFinite()}
+	if v := r.asm.Version(); v != r.colVersion {
+		r.colVersion = v
+		r.cols = r.asm.Columns()
+		r.guesses = slices.Clone(r.asm.Guesses())
+	}
+	c := Counts{Format: r.format, Lines: r.lines, Skipped: r.skipped, Examples: r.examples(), NonFinite: r.asm.NonFinite(),
+		Roles: r.guesses, Columns: r.cols}
 	if r.lines > 0 {
 		c.Segments = r.asm.Segment()
 	}

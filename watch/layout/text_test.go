@@ -4,6 +4,7 @@ import (
 	"math"
 	"reflect"
 	"strconv"
+	"strings"
 	"testing"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -126,8 +127,10 @@ func TestReadAll_TextMergesLines(t *testing.T) {
 		t.Fatalf("epochs = %v", got)
 	}
 	p := last[0]
-	if v, _ := sample(t, p, "train loss"); v != 0.8 {
-		t.Errorf("train loss = %v, want the later 0.8", v)
+	// Training values are averaged over the epoch's lines, as the rows of
+	// a per-step CSV are: (0.9 + 0.8) / 2 = 0.85, by hand.
+	if v, l := sample(t, p, "train loss"); !near(v, 0.85) || l != 0.8 {
+		t.Errorf("train loss = %v (last %v), want the mean 0.85 and the last 0.8", v, l)
 	}
 	if v, _ := sample(t, p, "val acc"); v != 0.7 {
 		t.Errorf("val acc = %v", v)
@@ -145,10 +148,57 @@ func TestReadAll_TextWithoutMarkers(t *testing.T) {
 	}
 }
 
+// TestReadAll_TextRatio: the classic example's evaluation line gives a
+// fraction for "Accuracy: 9893/10000 (99%)", and "Test set:" puts its
+// values on the test split, not the training one; with no validation split
+// in the log the test split is taken as validation, and the guess listed.
 func TestReadAll_TextRatio(t *testing.T) {
-	points, _ := readString(t, "Epoch 1\nTest set: Average loss: 0.0338, Accuracy: 9893/10000 (99%)\n", Config{})
-	if v, _ := sample(t, points[0], "Accuracy"); !near(v, 0.9893) {
-		t.Errorf("Accuracy = %v, want 9893/10000", v)
+	in := "Train Epoch: 1 [0/60000 (0%)]\tLoss: 2.30\n\nTest set: Average loss: 0.0338, Accuracy: 9893/10000 (99%)\n"
+	points, c := readString(t, in, Config{})
+	s, ok := points[0].Lookup(diagnose.SplitVal, "accuracy")
+	if !ok || !near(s.Value, 0.9893) || s.Column.Name != "Test set: Accuracy" || !s.Column.Rate {
+		t.Errorf("accuracy = %+v, want 9893/10000 on the test split taken as validation", s)
+	}
+	if s, ok := points[0].Lookup(diagnose.SplitTrain, "loss"); !ok || s.Value != 2.30 {
+		t.Errorf("training loss = %+v", s)
+	}
+	if len(c.Roles) != 2 || c.Roles[0].Split != diagnose.SplitVal || !strings.Contains(c.Roles[0].Source, "test split") {
+		t.Errorf("roles = %+v", c.Roles)
+	}
+}
+
+// TestLineContext: the split a line states once for its values.
+func TestLineContext(t *testing.T) {
+	for line, want := range map[string]string{
+		"Test set: Average loss: 0.0338, Accuracy: 9893/10000 (99%)":            "Test set: ",
+		"Validation: loss 0.41 acc 0.83":                                        "Validation: ",
+		"2031/05/04 10:00:02 - mmengine - INFO - Epoch(val) [3][12/12]  acc: 9": "val/",
+		"Epoch(train) [1][10/23]  lr: 1.0000e-03  loss: 2.1651":                 "train/",
+		"Validation score: 0.912000":                                            "",
+		"Train Epoch: 1 [0/150 (0%)]\tLoss: 2.285350":                           "",
+		"Results of the whole run: loss 0.3":                                    "",
+		"Epoch(warmup) [1] loss: 0.3":                                           "",
+	} {
+		if got := lineContext(line); got != want {
+			t.Errorf("lineContext(%q) = %q, want %q", line, got, want)
+		}
+	}
+}
+
+// TestFindEpochMarker_Modes: scikit-learn's iterations and the bracketed
+// epoch after a mode are epoch markers.
+func TestFindEpochMarker_Modes(t *testing.T) {
+	for line, want := range map[string]int{
+		"Iteration 7, loss = 0.31210000":                                   7,
+		"Epoch(val) [3][38/38]  accuracy/top1: 83.0":                       3,
+		"2031/05/04 10:00:02 - mmengine - INFO - Epoch(train) [12][10/23]": 12,
+	} {
+		if e, _, ok := findEpochMarker(line); !ok || e != want {
+			t.Errorf("findEpochMarker(%q) = %d, %v; want %d", line, e, ok, want)
+		}
+	}
+	if _, _, ok := findEpochMarker("Iteration 7 of the outer loop"); ok {
+		t.Errorf("a prose iteration is no marker")
 	}
 }
 

@@ -6,7 +6,6 @@
 package points
 
 import (
-	"fmt"
 	"math"
 	"time"
 
@@ -33,11 +32,13 @@ type colState struct {
 	// eval columns (validation, train-dev, test) are measured once per
 	// evaluation: a later value replaces an earlier one instead of being
 	// averaged with it.
-	eval    bool
-	sum     float64
-	n       int
-	last    float64
-	inGroup bool
+	eval bool
+	// testAsVal: a test column taken as validation (roles.go).
+	testAsVal bool
+	sum       float64
+	n         int
+	last      float64
+	inGroup   bool
 	// rowMark is the row sequence number of the last row that set this
 	// column: a name repeated within one row replaces its value.
 	rowMark uint64
@@ -122,16 +123,19 @@ type Assembler struct {
 	// more: a log with only single-row epochs hands each row on at once.
 	singleRow, multiRow int
 
-	// replace makes every column keep its latest value (console text,
-	// where a later value of a name replaces the earlier one).
-	replace bool
-	steps   bool
-	full    bool // the column table reached MaxColumns
+	steps bool
+	full  bool // the column table reached MaxColumns
 	// frozen: the column table is shared with the ingester (a worker of
 	// the parallel path) and must not grow; a new name gives up instead.
 	frozen    bool
 	slab      []diagnose.Sample // shared storage of per-step rows
 	nonFinite int
+
+	// guesses are the roles assumed (roles.go); version counts changes
+	// of the column table (a column added, a guess made or undone).
+	guesses []column.Guess
+	haveVal bool // a column is a validation metric by its name
+	version int
 }
 
 // New returns an Assembler that hands what it makes to out, names columns
@@ -145,29 +149,14 @@ func New(out Out, r column.Roles, steps bool) *Assembler {
 // thousand is far above any real metrics log. Unit: columns.
 const MaxColumns = 10000
 
-// Column returns the index of the named column, adding it on first sight;
-// -1 once the table is full (the values of that name are dropped, and a
-// notice says so once).
+// Column returns the index of the named column, adding it on first sight
+// with the meaning its name gives (column.Roles); -1 once the table is
+// full (the values of that name are dropped, and a notice says so once).
 func (a *Assembler) Column(name string) int {
 	if i, ok := a.byName[name]; ok {
 		return i
 	}
-	if a.frozen {
-		a.out.Notice("new column " + name)
-		return -1
-	}
-	if len(a.cols) >= MaxColumns {
-		if !a.full {
-			a.full = true
-			a.out.Notice(fmt.Sprintf("more than %d distinct column names: values of further names are dropped", MaxColumns))
-		}
-		return -1
-	}
-	c := a.roles.Column(name)
-	a.cols = append(a.cols, colState{col: c, eval: c.Kind == diagnose.KindMetric && c.Split != diagnose.SplitTrain})
-	i := len(a.cols) - 1
-	a.byName[name] = i
-	return i
+	return a.add(name, a.roles.Column(name), "")
 }
 
 // Known reports whether a column of that name has been seen.
@@ -191,11 +180,6 @@ func (a *Assembler) ExpectEval() { a.evalExpected = true }
 
 // Roles returns how the Assembler names columns.
 func (a *Assembler) Roles() column.Roles { return a.roles }
-
-// SetReplace makes every column keep its latest value rather than the mean
-// of the point's rows (console text, where a later value of a name
-// replaces the earlier one), or not.
-func (a *Assembler) SetReplace(on bool) { a.replace = on }
 
 // Segment is the current segment (1 until the log restarts or a run
 // resumes).

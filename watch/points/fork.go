@@ -32,11 +32,11 @@ type Snapshot struct {
 }
 
 // Snapshot returns the state a worker starts from, or nil when workers
-// cannot read for this Assembler: per-step rows are wanted, values replace
-// each other (console text), or the column table is full. The name index
+// cannot read for this Assembler: per-step rows are wanted, or the column
+// table is full. The name index
 // is cloned only when columns were added since prev.
 func (a *Assembler) Snapshot(prev *Snapshot) *Snapshot {
-	if a.steps || a.replace || a.full {
+	if a.steps || a.full {
 		return nil
 	}
 	s := &Snapshot{ncols: len(a.cols), roles: a.roles, evalExpected: a.evalExpected, single: 0, multi: 1}
@@ -87,7 +87,7 @@ func (a *Assembler) Settled() bool {
 // Assembler would do: closing its open epoch leaves the state the worker
 // assumed.
 func (a *Assembler) CanJoin(s *Snapshot, epoch, single, multi int) bool {
-	if len(a.cols) != s.ncols || a.replace || a.full {
+	if len(a.cols) != s.ncols || a.full {
 		return false
 	}
 	open := &a.g

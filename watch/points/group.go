@@ -17,6 +17,8 @@ func (a *Assembler) EndRow(line int) {
 		a.evalSeen = true
 	}
 	switch {
+	case a.rowHasEpoch && a.echoes(EpochKey(a.rowEpoch)):
+		return
 	case a.rowHasEpoch:
 		a.epochRow(EpochKey(a.rowEpoch), line)
 		a.merge(line)
@@ -52,6 +54,26 @@ func (a *Assembler) EndRow(line int) {
 	if a.steps {
 		a.emitStep()
 	}
+}
+
+// echoes reports a row of the open epoch that only repeats values the
+// point has already handed on, with fewer columns than the point: an event
+// logged beside the evaluation (a checkpoint record carrying the epoch and
+// the validation loss it saved on). It makes no point and changes none.
+func (a *Assembler) echoes(e int) bool {
+	g := &a.g
+	if !g.open || !g.epochLogged || !g.emitted || e != g.epoch || len(a.row) == 0 || len(a.row) >= len(a.touched) {
+		return false
+	}
+	if a.rowHasStep && int64(a.rowStep) > g.step {
+		return false
+	}
+	for _, r := range a.row {
+		if c := &a.cols[r.col]; !c.inGroup || c.last != r.v {
+			return false
+		}
+	}
+	return true
 }
 
 // epochRow opens the group a row of epoch e belongs to.
@@ -183,7 +205,7 @@ func (a *Assembler) emit() {
 	for _, ci := range a.touched {
 		c := &a.cols[ci]
 		v := c.last
-		if !c.eval && !a.replace && c.n > 1 {
+		if !c.eval && c.n > 1 {
 			v = c.sum / float64(c.n)
 		}
 		p.Samples = append(p.Samples, diagnose.Sample{Column: c.col, Value: v, Last: c.last})
@@ -256,7 +278,8 @@ func (a *Assembler) SetTotal(total int) { a.g.total = total }
 
 // EndLine files the current row of a console line into the open point,
 // opening one numbered by order when none is open (a log without epoch
-// markers). Later values of a name replace earlier ones (SetReplace). The
+// markers). As for rows, training values are averaged over the point's
+// lines and evaluation values keep their latest. The
 // point is handed on once it holds an evaluation value, and then closed
 // when closeOnEval is set (without markers, a validation line ends the
 // point). A row without any value or step files nothing.

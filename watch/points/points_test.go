@@ -122,12 +122,11 @@ func TestAssembler_Steps(t *testing.T) {
 	}
 }
 
-// TestAssembler_EndLine: console lines replace values; without markers a
-// line with a validation value ends the point.
+// TestAssembler_EndLine: console lines average training values; without
+// markers a line with a validation value ends the point.
 func TestAssembler_EndLine(t *testing.T) {
 	o := &recorder{}
 	a := New(o, column.NewRoles(column.Overrides{}), false)
-	a.SetReplace(true)
 	for i, line := range []map[string]float64{{"loss": 0.9}, {"loss": 0.8}, {"val_loss": 0.85}, {"loss": 0.7}} {
 		a.BeginRow()
 		for name, v := range line {
@@ -139,8 +138,8 @@ func TestAssembler_EndLine(t *testing.T) {
 	if len(o.points) != 2 || o.points[0].Epoch != 1 || o.points[1].Epoch != 2 {
 		t.Fatalf("points = %+v", o.points)
 	}
-	if v, _ := watchtest.Sample(t, o.points[0], "loss"); v != 0.8 {
-		t.Errorf("loss = %v, want the later 0.8", v)
+	if v, last := watchtest.Sample(t, o.points[0], "loss"); !watchtest.Near(v, 0.85) || last != 0.8 {
+		t.Errorf("loss = %v (last %v), want the mean 0.85 and the last 0.8", v, last)
 	}
 }
 
@@ -166,5 +165,62 @@ func TestAppend(t *testing.T) {
 	}
 	if got := watchtest.Epochs(list); !reflect.DeepEqual(got, []int{1, 2, 3, 4}) {
 		t.Fatalf("epochs = %v", got)
+	}
+}
+
+// TestAssembler_EchoRows: a record that only repeats what the epoch's
+// evaluation handed on (a checkpoint event with the epoch and the
+// validation loss) makes no point and no new segment, in a log of one row
+// per epoch and in a per-step log.
+func TestAssembler_EchoRows(t *testing.T) {
+	type v = map[string]float64
+	for name, rows := range map[string][]row{
+		"OneRowPerEpoch": {
+			{1, -1, v{"loss": 0.9, "val_loss": 1, "val_acc": 0.5}}, {1, -1, v{"val_loss": 1}},
+			{2, -1, v{"loss": 0.8, "val_loss": 0.9, "val_acc": 0.6}}, {2, -1, v{"val_loss": 0.9}},
+			{3, -1, v{"loss": 0.7, "val_loss": 0.8, "val_acc": 0.7}}, {3, -1, v{"val_loss": 0.8}},
+		},
+		"PerStep": {
+			{1, 1, v{"loss": 0.9}}, {1, 2, v{"loss": 0.8, "val_loss": 1}}, {1, 2, v{"val_loss": 1}},
+			{2, 3, v{"loss": 0.7}}, {2, 4, v{"loss": 0.6, "val_loss": 0.9}}, {2, 4, v{"val_loss": 0.9}},
+		},
+	} {
+		t.Run(name, func(t *testing.T) {
+			got, o := file(rows, false)
+			if len(o.notices) > 0 || got[len(got)-1].Segment != 1 {
+				t.Fatalf("notices %q segments %v", o.notices, got)
+			}
+			for _, p := range got {
+				if p.Rows == 0 || len(p.Samples) < 2 {
+					t.Errorf("epoch %d lost values to an event: %+v", p.Epoch, p)
+				}
+			}
+			if name == "PerStep" {
+				if v, _ := watchtest.Sample(t, got[1], "loss"); !watchtest.Near(v, 0.65) || got[1].Rows != 2 {
+					t.Errorf("epoch 2 loss %v over %d rows, want the mean 0.65 of 2 rows", v, got[1].Rows)
+				}
+			}
+		})
+	}
+}
+
+// TestAssembler_TestAsValidation: a test metric in a log without a
+// validation metric is taken as validation and the guess listed; a
+// validation metric appearing later gives it back to the test split.
+func TestAssembler_TestAsValidation(t *testing.T) {
+	o := &recorder{}
+	a := New(o, column.NewRoles(column.Overrides{}), false)
+	ti := a.Column("Test set: Average loss")
+	if c := a.Info(ti); c.Split != diagnose.SplitVal || len(a.Guesses()) != 1 || a.Guesses()[0].Split != diagnose.SplitVal {
+		t.Fatalf("column %+v guesses %+v", c, a.Guesses())
+	}
+	a.Column("val_loss")
+	if c := a.Info(ti); c.Split != diagnose.SplitTest || len(a.Guesses()) != 0 {
+		t.Fatalf("after val_loss: column %+v guesses %+v", c, a.Guesses())
+	}
+	// Forced by a flag: no guess.
+	b := New(o, column.NewRoles(column.Overrides{Test: "test_acc"}), false)
+	if c := b.Info(b.Column("test_acc")); c.Split != diagnose.SplitTest || len(b.Guesses()) != 0 {
+		t.Fatalf("forced: column %+v guesses %+v", c, b.Guesses())
 	}
 }

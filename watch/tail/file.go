@@ -56,9 +56,14 @@ type File struct {
 	offset int64
 	head   []byte // the first bytes of the file, for the fingerprint
 	seen   bool   // a file was read under this name before
-	state  State
-	buf    []byte
-	procs  int // cores for the parallel path
+	// rewound is the size and time of the file when it was last read again
+	// because the sink asked (Rewinder): the same file is not read again
+	// for the same reason, whatever the sink says.
+	rewoundSize int64
+	rewoundTime time.Time
+	state       State
+	buf         []byte
+	procs       int // cores for the parallel path
 }
 
 // Open checks the options and opens the file at path if it is there. It
@@ -302,6 +307,9 @@ func (t *File) read(ctx context.Context, sink Sink) {
 			t.fingerprint(buf[:n])
 			t.offset += int64(n)
 			sink.Feed(buf[:n])
+			if t.rewind(sink) {
+				continue
+			}
 		}
 		if err != nil {
 			if err != io.EOF {
@@ -314,6 +322,22 @@ func (t *File) read(ctx context.Context, sink Sink) {
 		}
 	}
 	sink.CaughtUp()
+}
+
+// rewind reads the file again from its start when the sink asks
+// (Rewinder) and the file changed since it last did.
+func (t *File) rewind(sink Sink) bool {
+	rw, ok := sink.(Rewinder)
+	if !ok || !rw.Rewind() {
+		return false
+	}
+	fi, err := t.f.Stat()
+	if err != nil || fi.Size() == t.rewoundSize && fi.ModTime().Equal(t.rewoundTime) {
+		return false
+	}
+	t.rewoundSize, t.rewoundTime = fi.Size(), fi.ModTime()
+	t.restart(sink, t.name+" rewritten: reading it again")
+	return true
 }
 
 // fingerprint keeps the first bytes of the file from a read at t.offset.

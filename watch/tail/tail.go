@@ -56,6 +56,15 @@ const (
 	Always
 )
 
+// Rewinder is implemented by a Sink that can tell that the file was
+// rewritten whole (a JSON document dumped again at each checkpoint), which
+// no shrink or changed head shows when the new file outgrew the read
+// offset. After a Feed it reports, once, that the file must be read again
+// from its start.
+type Rewinder interface {
+	Rewind() bool
+}
+
 // Ahead is implemented by a Sink that can decode line-aligned pieces of a
 // long backlog on other goroutines.
 type Ahead interface {
