@@ -144,6 +144,7 @@ func (s *aheadSnap) worker(single, multi int) (*Reader, *collector) {
 	w.asm = s.asm.Worker(c, single, multi)
 	w.dec = &csvDecoder{r: w, asm: w.asm, recs: csvRecords{delim: s.delim}, header: slices.Clone(s.header),
 		names: s.names, roles: s.roles, colOf: s.colOf, extraNote: s.extraNote, gen: s.gen, planGen: -1}
+	w.wholeLines = true
 	return w, c
 }
 

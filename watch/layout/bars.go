@@ -153,7 +153,7 @@ func (d *barsDecoder) closeEpoch() {
 
 // file files one epoch's postfix values as a row.
 func (d *barsDecoder) file(epoch int, postfix string, n int) {
-	d.pairs = scanPairs(d.pairs[:0], postfix, &d.names)
+	d.pairs, _ = scanPairs(d.pairs[:0], postfix, &d.names)
 	a := d.asm
 	a.BeginRow()
 	a.Epoch(float64(epoch))

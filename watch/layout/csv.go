@@ -67,10 +67,10 @@ func (d *csvDecoder) format() Format {
 }
 
 func (d *csvDecoder) Decode(line []byte, n int) {
-	if d.recs.pendingLines == 0 && isComment(line) {
-		return
-	}
 	if d.names != nil && d.recs.pendingLines == 0 && !d.general && d.fastRow(line, n) {
+		return // a comment never passes fastRow: checked below
+	}
+	if d.recs.pendingLines == 0 && isComment(line) {
 		return
 	}
 	rec, start, st := d.recs.add(line, n)

@@ -115,8 +115,9 @@ type Reader struct {
 	spec   bool
 	bailed bool
 	snap   *aheadSnap // the last snapshot, whose copies are reused while the header holds
-	// segments: the decoder reads carriage-return segments (segmenter).
-	segments bool
+	// wholeLines: a decoder reads whole lines (the layout is known and
+	// it is no segmenter), so lines end at newlines only.
+	wholeLines bool
 	// rewind: the decoder found the file rewritten (a document read whole
 	// has data after its end); Rewind reports it to the tailer.
 	rewind bool
@@ -137,7 +138,12 @@ func NewReader(out points.Out, c Config) *Reader {
 // Feed reads the next bytes of the source.
 func (r *Reader) Feed(p []byte) {
 	for len(p) > 0 && !r.bailed {
-		i := r.lineEnd(p)
+		var i int
+		if r.wholeLines {
+			i = bytes.IndexByte(p, '\n') // the common case, inline
+		} else {
+			i = crLineEnd(p)
+		}
 		if i < 0 {
 			r.hold(p)
 			return
@@ -162,21 +168,21 @@ func (r *Reader) Feed(p []byte) {
 		case len(seg) > maxLineBytes:
 			r.tooLong(seg)
 			r.endLine(cr)
-		default:
+		case cr:
 			r.piece(seg, cr)
+		default:
+			r.line(seg)
 		}
 	}
 }
 
-// lineEnd finds the end of the next line: a newline, or also a carriage
-// return while the layout is not known yet and for a decoder that reads
-// the segments of redrawn lines (segmenter), so that a progress bar
-// redrawn across a whole run is read as it is drawn. Other layouts get
-// whole lines, the carriage returns in them included.
-func (r *Reader) lineEnd(p []byte) int {
-	if r.dec != nil && !r.segments {
-		return bytes.IndexByte(p, '\n')
-	}
+// crLineEnd finds the end of the next line or carriage-return segment.
+// Lines end at a newline; while the layout is not known yet, and for a
+// decoder that reads the segments of redrawn lines (segmenter), a carriage
+// return ends a segment too, so that a progress bar redrawn across a whole
+// run is read as it is drawn. Other layouts get whole lines, the carriage
+// returns in them included.
+func crLineEnd(p []byte) int {
 	if i := bytes.IndexByte(p, '\n'); i >= 0 {
 		if j := bytes.IndexByte(p[:i], '\r'); j >= 0 {
 			return j
@@ -257,8 +263,12 @@ func (r *Reader) line(b []byte) {
 // isComment reports a "#" comment line, which some writers put before
 // their header and between rows.
 func isComment(line []byte) bool {
-	t := bytes.TrimLeft(line, " \t")
-	return len(t) > 0 && t[0] == '#'
+	for _, c := range line {
+		if c != ' ' && c != '\t' {
+			return c == '#'
+		}
+	}
+	return false
 }
 
 // continuer is a decoder that can tell whether the first line of a
@@ -273,6 +283,12 @@ type segmenter interface {
 	segmented() bool
 }
 
+// setLines sets how lines end for the decoder in use.
+func (r *Reader) setLines() {
+	s, ok := r.dec.(segmenter)
+	r.wholeLines = r.dec != nil && !(ok && s.segmented())
+}
+
 // formatter is a decoder whose layout depends on what it read (a CSV
 // decoder that found tabs is TSV).
 type formatter interface {
@@ -283,8 +299,7 @@ type formatter interface {
 func (r *Reader) start(first []byte) {
 	if c, ok := r.prev.(continuer); ok && c.continues(first) {
 		r.dec, r.prev = r.prev, nil
-		s, ok := r.dec.(segmenter)
-		r.segments = ok && s.segmented()
+		r.setLines()
 		return
 	}
 	r.prev = nil
@@ -294,8 +309,7 @@ func (r *Reader) start(first []byte) {
 	}
 	r.dec = l.New(r, first)
 	r.format = l.Format
-	s, ok := r.dec.(segmenter)
-	r.segments = ok && s.segmented()
+	r.setLines()
 	if f, ok := r.dec.(formatter); ok {
 		r.format = f.format()
 	}
@@ -351,6 +365,7 @@ func (r *Reader) Reset(why string) {
 		r.skipping, r.rewind = false, false
 		r.lineNo = 0
 		r.prev, r.dec = r.dec, nil
+		r.wholeLines = false
 		return
 	}
 	if r.dec != nil {
@@ -360,6 +375,7 @@ func (r *Reader) Reset(why string) {
 	r.skipping = false
 	r.lineNo = 0
 	r.prev, r.dec = r.dec, nil
+	r.wholeLines = false
 	if r.lines > 0 {
 		r.asm.NewSegment()
 	}

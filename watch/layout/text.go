@@ -92,9 +92,11 @@ func (d *textDecoder) Decode(line []byte, n int) {
 		return
 	}
 	s := diagnose.Printable(string(line))
-	epoch, total, marked := findEpochMarker(s)
-	d.pairs = scanPairs(d.pairs[:0], s, &d.names)
-	if ctx := lineContext(s); ctx != "" {
+	m := findMarker(s)
+	epoch, total, marked := m.epoch, m.total, m.ok
+	var lead int
+	d.pairs, lead = scanPairs(d.pairs[:0], s, &d.names)
+	if ctx := contextPrefix(s, m.mode, lead); ctx != "" {
 		for i := range d.pairs {
 			d.pairs[i].name = ctx + d.pairs[i].name
 		}

@@ -68,7 +68,7 @@ func TestScanPairs(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(strconv.Quote(tt.line), func(t *testing.T) {
-			got := scanPairs(nil, tt.line, nil)
+			got, _ := scanPairs(nil, tt.line, nil)
 			if len(got) != len(tt.want) {
 				t.Fatalf("scanPairs(%q) = %+v, want %+v", tt.line, got, tt.want)
 			}
@@ -167,8 +167,8 @@ func TestReadAll_TextRatio(t *testing.T) {
 	}
 }
 
-// TestLineContext: the split a line states once for its values.
-func TestLineContext(t *testing.T) {
+// TestContextPrefix: the split a line states once for its values.
+func TestContextPrefix(t *testing.T) {
 	for line, want := range map[string]string{
 		"Test set: Average loss: 0.0338, Accuracy: 9893/10000 (99%)":            "Test set: ",
 		"Validation: loss 0.41 acc 0.83":                                        "Validation: ",
@@ -179,8 +179,9 @@ func TestLineContext(t *testing.T) {
 		"Results of the whole run: loss 0.3":                                    "",
 		"Epoch(warmup) [1] loss: 0.3":                                           "",
 	} {
-		if got := lineContext(line); got != want {
-			t.Errorf("lineContext(%q) = %q, want %q", line, got, want)
+		_, lead := scanPairs(nil, line, nil)
+		if got := contextPrefix(line, findMarker(line).mode, lead); got != want {
+			t.Errorf("context of %q = %q, want %q", line, got, want)
 		}
 	}
 }

@@ -7,13 +7,28 @@ import (
 	"github.com/fitgap/fitgap/watch/column"
 )
 
+// marker is an epoch marker found in a line: the epoch, the total when
+// the line gives one ("3/50"), and the mode written in parentheses after
+// the epoch word ("Epoch(val) [3]").
+type marker struct {
+	epoch, total int
+	mode         string
+	ok           bool
+}
+
 // findEpochMarker finds "Epoch 3/50", "epoch: 3", "ep 3", "epoch=3",
 // "Epoch(val) [3][38/38]", "[3/50]" or scikit-learn's "Iteration 3," in a
 // line.
 func findEpochMarker(s string) (epoch, total int, ok bool) {
+	m := findMarker(s)
+	return m.epoch, m.total, m.ok
+}
+
+// findMarker is findEpochMarker with the mode.
+func findMarker(s string) marker {
 	lower := strings.ToLower(s)
 	if e, good := sklearnIteration(lower); good {
-		return e, 0, true
+		return marker{epoch: e, ok: true}
 	}
 	for from := 0; from < len(lower); {
 		i := indexWord(lower[from:], "epoch", "ep")
@@ -31,25 +46,25 @@ func findEpochMarker(s string) (epoch, total int, ok bool) {
 		k := j
 		if k < len(lower) && lower[k] == '(' {
 			// "Epoch(val) [3][38/38]": the mode, then the epoch in brackets.
-			if e, good := bracketAfterMode(lower, k); good {
-				return e, 0, true
+			if e, mode, good := bracketAfterMode(lower, k); good {
+				return marker{epoch: e, mode: mode, ok: true}
 			}
 		}
 		for k < len(lower) && (lower[k] == ' ' || lower[k] == ':' || lower[k] == '=' || lower[k] == '#') {
 			k++
 		}
 		if e, t, end, good := readFraction(lower, k); good && end > k {
-			return e, t, true
+			return marker{epoch: e, total: t, ok: true}
 		}
 		from = j
 	}
 	// "[3/50]" as the epoch when no word says epoch.
 	if i := strings.IndexByte(s, '['); i >= 0 {
 		if e, t, end, good := readFraction(s, i+1); good && t > 0 && end < len(s) && s[end] == ']' {
-			return e, t, true
+			return marker{epoch: e, total: t, ok: true}
 		}
 	}
-	return 0, 0, false
+	return marker{}
 }
 
 // indexWord finds the first of the words that stands alone (not inside a
@@ -145,51 +160,46 @@ func sklearnIteration(lower string) (int, bool) {
 	return e, ok && end < len(lower) && lower[end] == ','
 }
 
-// bracketAfterMode reads "(mode) [3]" at s[k] == '(' and returns 3.
-func bracketAfterMode(s string, k int) (int, bool) {
+// bracketAfterMode reads "(mode) [3]" at s[k] == '(' and returns 3 and
+// the mode.
+func bracketAfterMode(s string, k int) (int, string, bool) {
 	paren := strings.IndexByte(s[k:], ')')
 	if paren < 0 {
-		return 0, false
+		return 0, "", false
 	}
 	i := k + paren + 1
 	for i < len(s) && s[i] == ' ' {
 		i++
 	}
 	if i >= len(s) || s[i] != '[' {
-		return 0, false
+		return 0, "", false
 	}
 	e, end, ok := readInt(s, i+1)
-	return e, ok && end < len(s) && s[end] == ']'
+	return e, s[k+1 : k+paren], ok && end < len(s) && s[end] == ']'
 }
 
 // maxContextWords bounds a split context ("Test set:", "Validation:"):
 // a longer run of words before a colon is prose. Unit: words.
 const maxContextWords = 3
 
-// lineContext finds what split the values of a line belong to when the
+// contextPrefix finds what split the values of a line belong to when the
 // line says it once, before them, rather than in each name: "Test set:
 // Average loss: 0.05, Accuracy: 9849/10000 (98%)" (a leading "Name:" that
-// names a split and holds no value) or "Epoch(val) [3][38/38]
-// accuracy/top1: 83.0" (a mode in parentheses after the epoch word). It
-// returns the prefix that makes the line's names carry the split ("Test
-// set: ", "val/"), or "".
-func lineContext(s string) string {
-	if i := strings.Index(s, "poch("); i > 0 && s[i-1]|0x20 == 'e' {
-		if paren := strings.IndexByte(s[i+5:], ')'); paren > 0 {
-			mode := strings.ToLower(s[i+5 : i+5+paren])
-			if split, rest := column.SplitOf([]string{mode}); split != diagnose.SplitNone && len(rest) == 0 {
-				return mode + "/"
-			}
+// names a split and holds no value: lead is the index of that colon, from
+// scanPairs, or -1) or "Epoch(val) [3][38/38] accuracy/top1: 83.0" (mode,
+// from findMarker). It returns the prefix that makes the line's names
+// carry the split ("Test set: ", "val/"), or "".
+func contextPrefix(s, mode string, lead int) string {
+	if mode != "" {
+		if split, rest := column.SplitOf([]string{mode}); split != diagnose.SplitNone && len(rest) == 0 {
+			return mode + "/"
 		}
-	}
-	colon := strings.IndexByte(s, ':')
-	if colon <= 0 {
 		return ""
 	}
-	if _, _, _, isValue := readValue(s, skipSpaces(s, colon+1)); isValue {
-		return "" // "Validation score: 0.91" is a pair
+	if lead <= 0 {
+		return ""
 	}
-	name := strings.TrimSpace(s[:colon])
+	name := strings.TrimSpace(s[:lead])
 	words := strings.Fields(strings.ToLower(name))
 	if len(words) == 0 || len(words) > maxContextWords || !column.ValidName(name) {
 		return ""
@@ -209,10 +219,3 @@ func lineContext(s string) string {
 // contextWords may stand beside the split word in a context: "Test set:",
 // "Validation results:".
 var contextWords = map[string]bool{"set": true, "results": true, "metrics": true, "split": true, "data": true}
-
-func skipSpaces(s string, i int) int {
-	for i < len(s) && s[i] == ' ' {
-		i++
-	}
-	return i
-}

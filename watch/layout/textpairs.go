@@ -29,8 +29,12 @@ func isSeparator(c byte) bool {
 }
 
 // scanPairs finds the name/value pairs of a sanitized line; names (which
-// may be nil) caches what the names of "name value" segments are.
-func scanPairs(dst []textPair, s string, names *nameKinds) []textPair {
+// may be nil) caches what the names of "name value" segments are. lead is
+// the index of a colon that no value follows and no pair precedes (the
+// "Test set:" of contextPrefix), or -1.
+func scanPairs(dst []textPair, s string, names *nameKinds) (pairs []textPair, lead int) {
+	lead = -1
+	first := len(dst)
 	seg := 0 // start of the current segment
 	for i := 0; i < len(s); i++ {
 		c := s[i]
@@ -42,6 +46,9 @@ func scanPairs(dst []textPair, s string, names *nameKinds) []textPair {
 			}
 			v, total, end, ok := readValue(s, j)
 			if !ok {
+				if c == ':' && lead < 0 && len(dst) == first {
+					lead = i
+				}
 				seg = i + 1
 				continue
 			}
@@ -55,7 +62,7 @@ func scanPairs(dst []textPair, s string, names *nameKinds) []textPair {
 			seg = i + 1
 		}
 	}
-	return segmentPair(dst, s[seg:], names)
+	return segmentPair(dst, s[seg:], names), lead
 }
 
 // segmentPair reads a whole segment of the form "name value". Without a

@@ -17,7 +17,7 @@ func (a *Assembler) EndRow(line int) {
 		a.evalSeen = true
 	}
 	switch {
-	case a.rowHasEpoch && a.echoes(EpochKey(a.rowEpoch)):
+	case a.rowHasEpoch && a.g.emitted && a.echoes(EpochKey(a.rowEpoch)):
 		return
 	case a.rowHasEpoch:
 		a.epochRow(EpochKey(a.rowEpoch), line)

@@ -1,9 +1,6 @@
 package points
 
-import (
-	"math"
-	"math/bits"
-)
+import "math"
 
 // Plan says, for the header in force, where a decoder's fast path finds
 // the epoch, the step and the value columns of a plain row (fields that
@@ -45,11 +42,10 @@ func (a *Assembler) PlanValue(i, ci int) PlanValue {
 // false, having changed nothing, sends any other row to them.
 func (a *Assembler) PlainRow(p *Plan, vals []float64, mask uint64, line int) bool {
 	g := &a.g
-	if mask&p.EpochBit == 0 || !g.open || !g.epochLogged || a.steps || a.onePerEpoch() {
+	// After the point was handed on, a row may be an event that echoes
+	// the evaluation (echoes): the general path decides.
+	if mask&p.EpochBit == 0 || !g.open || !g.epochLogged || g.emitted || a.steps || a.onePerEpoch() {
 		return false
-	}
-	if g.emitted && bits.OnesCount64(mask&^(p.EpochBit|p.StepBit)) < len(a.touched) {
-		return false // maybe an event echoing the evaluation (echoes)
 	}
 	ev := vals[p.Epoch]
 	if ev-ev != 0 || math.Abs(ev) > MaxEpoch || EpochKey(ev) != g.epoch {
