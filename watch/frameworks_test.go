@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strconv"
 	"strings"
 	"testing"
@@ -166,5 +167,94 @@ func TestReadAll_Frameworks(t *testing.T) {
 				t.Errorf("verdict %v on %+v, %v on its plain twin (%+v)", got.Diagnosis, got.Metric, want.Diagnosis, want.Metric)
 			}
 		})
+	}
+}
+
+// TestReadAll_FrameworksVerdicts: where the judge tells a clearly good run
+// from a clearly overfitting one on the plain twins, it does on the logs.
+func TestReadAll_FrameworksVerdicts(t *testing.T) {
+	for file, want := range map[string]diagnose.Diagnosis{
+		"comments-good.tsv": diagnose.GoodFit, "comments-overfit.tsv": diagnose.HighVariance,
+		"keras-style-good.csv": diagnose.GoodFit, "keras-style-overfit.csv": diagnose.HighVariance,
+		"numpy-dict-good.log": diagnose.GoodFit, "numpy-dict-overfit.log": diagnose.HighVariance,
+		"numpy2-dict-good.log": diagnose.GoodFit, "numpy2-dict-overfit.log": diagnose.HighVariance,
+		"tqdm-epochs-good.log": diagnose.GoodFit, "tqdm-epochs-overfit.log": diagnose.HighVariance,
+		"tqdm-epochs-pty-good.log": diagnose.GoodFit, "tqdm-epochs-pty-overfit.log": diagnose.HighVariance,
+	} {
+		points, _, err := ReadAll(frameworkPath(file), nil, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := judge(points).Diagnosis; got != want {
+			t.Errorf("%s: %v, want %v", file, got, want)
+		}
+	}
+}
+
+// TestReadAll_FrameworksRoles: the roles the reader assumed on the captured
+// logs are listed with their source, and a flag takes the guess away.
+func TestReadAll_FrameworksRoles(t *testing.T) {
+	tests := []struct {
+		file  string
+		opts  Options
+		roles map[string]diagnose.Split // column → split assumed
+	}{
+		{"xgboost-sklearn-good.log", Options{}, map[string]diagnose.Split{
+			"validation_0-mlogloss": diagnose.SplitTrain, "validation_0-merror": diagnose.SplitTrain,
+			"validation_1-mlogloss": diagnose.SplitVal, "validation_1-merror": diagnose.SplitVal}},
+		{"xgboost-sklearn-good.log", Options{Roles: Overrides{Train: "validation_0-merror", Val: "validation_1-merror"}}, map[string]diagnose.Split{
+			"validation_0-mlogloss": diagnose.SplitTrain, "validation_1-mlogloss": diagnose.SplitVal}},
+		{"xgboost-train-good.log", Options{}, map[string]diagnose.Split{}},
+		{"aligned-table-good.txt", Options{}, map[string]diagnose.Split{"accuracy": diagnose.SplitVal}},
+		{"torch-classic-good.log", Options{}, map[string]diagnose.Split{
+			"Test set: Average loss": diagnose.SplitVal, "Test set: Accuracy": diagnose.SplitVal}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.file, func(t *testing.T) {
+			_, st, err := ReadAll(frameworkPath(tt.file), nil, tt.opts)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := map[string]diagnose.Split{}
+			for _, r := range st.Roles {
+				if r.Source == "" || Sanitize(r.Source) != r.Source {
+					t.Errorf("guess %+v lacks a clean source", r)
+				}
+				got[r.Column] = r.Split
+			}
+			if !reflect.DeepEqual(got, tt.roles) {
+				t.Errorf("roles %+v, want %v", st.Roles, tt.roles)
+			}
+		})
+	}
+}
+
+// TestFollow_JSONDocRewritten follows a trainer's state document that is
+// dumped again, longer, at each checkpoint (truncated and written whole):
+// the new records are read, none twice, in one segment, without notices.
+func TestFollow_JSONDocRewritten(t *testing.T) {
+	early, err := os.ReadFile(frameworkPath("loghistory-good-epoch3.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	full, err := os.ReadFile(frameworkPath("loghistory-good.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(t.TempDir(), "trainer_state.json")
+	if err := os.WriteFile(path, early, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	f := startFollow(t, path, Options{})
+	f.waitEpochs(t, 1, 2, 3)
+	if err := os.WriteFile(path, full, 0o644); err != nil { // truncate, then write
+		t.Fatal(err)
+	}
+	want, _ := twin(t, "loghistory-good.json")
+	f.waitEpochs(t, want...)
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	if len(f.notices) > 0 || f.stats.Segments != 1 {
+		t.Fatalf("notices %q segments %d", f.notices, f.stats.Segments)
 	}
 }

@@ -22,6 +22,10 @@ const FormatAuto = layout.Auto
 // name or alias (case-insensitive), or "auto".
 func ParseFormat(s string) (Format, error) { return layout.ParseFormat(s) }
 
+// FormatNames lists the layouts --format accepts besides "auto", in
+// alphabetical order.
+func FormatNames() []string { return layout.Names() }
+
 // Overrides force named columns to a split, whatever their names say
 // (--train COL, --val COL, --train-dev COL, --test COL).
 type Overrides = column.Overrides

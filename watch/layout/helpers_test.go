@@ -1,6 +1,7 @@
 package layout
 
 import (
+	"github.com/fitgap/fitgap/watch/column"
 	"strings"
 	"testing"
 
@@ -80,3 +81,6 @@ func hasNotice(notices []string, sub string) bool {
 	}
 	return false
 }
+
+// overridesVal forces one column to the validation split.
+func overridesVal(name string) column.Overrides { return column.Overrides{Val: name} }

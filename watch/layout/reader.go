@@ -96,6 +96,9 @@ type Reader struct {
 
 	carry    []byte // the partial line so far
 	skipping bool   // inside a line longer than maxLineBytes
+	// midLine: carriage-return segments of a line were read and its
+	// newline has not come yet (End counts it as a line).
+	midLine bool
 	lineNo   int    // lines of the current file
 
 	lines, skipped int
@@ -194,6 +197,7 @@ func crLineEnd(p []byte) int {
 
 // endLine counts a line that ended (not a carriage-return segment).
 func (r *Reader) endLine(cr bool) {
+	r.midLine = cr
 	if !cr {
 		r.lineNo++
 		r.lines++
@@ -206,6 +210,7 @@ func (r *Reader) piece(b []byte, cr bool) {
 		r.line(b)
 		return
 	}
+	r.midLine = true
 	if r.lineNo == 0 {
 		b = bytes.TrimPrefix(b, utf8BOM)
 	}
@@ -243,6 +248,7 @@ func (r *Reader) tooLong(head []byte) {
 
 // line handles one complete line.
 func (r *Reader) line(b []byte) {
+	r.midLine = false
 	r.lineNo++
 	r.lines++
 	if n := len(b); n > 0 && b[n-1] == '\r' {
@@ -362,7 +368,7 @@ func (r *Reader) Reset(why string) {
 		// lines are counted once.
 		r.lines -= r.lineNo
 		r.carry = r.carry[:0]
-		r.skipping, r.rewind = false, false
+		r.skipping, r.rewind, r.midLine = false, false, false
 		r.lineNo = 0
 		r.prev, r.dec = r.dec, nil
 		r.wholeLines = false
@@ -372,7 +378,7 @@ func (r *Reader) Reset(why string) {
 		r.dec.Finish()
 	}
 	r.carry = r.carry[:0]
-	r.skipping = false
+	r.skipping, r.midLine = false, false
 	r.lineNo = 0
 	r.prev, r.dec = r.dec, nil
 	r.wholeLines = false
@@ -402,6 +408,8 @@ func (r *Reader) End() {
 		line := r.carry
 		r.carry = nil
 		r.line(line)
+	case r.midLine: // a last line of carriage-return segments only
+		r.endLine(false)
 	}
 	r.carry = r.carry[:0]
 	if r.dec != nil {

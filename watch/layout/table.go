@@ -167,7 +167,7 @@ func (d *tableDecoder) Decode(line []byte, n int) {
 			v, ok = parseClock(c.text)
 		}
 		if !ok {
-			d.r.bad(n, "not a number under "+d.names[i], line)
+			d.r.bad(n, "not a number under "+diagnose.Printable(d.names[i]), line)
 			return
 		}
 		vals[i] = v

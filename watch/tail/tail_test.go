@@ -311,3 +311,30 @@ func TestFile_Backlog(t *testing.T) {
 		t.Fatalf("%d pieces, %d merged", a.pieces, a.merged)
 	}
 }
+
+// rewinder asks for the file to be read again each time it is fed.
+type rewinder struct {
+	*recorder
+	asked int
+}
+
+func (r *rewinder) Rewind() bool {
+	r.asked++
+	return true
+}
+
+// TestFile_Rewind: a sink that finds the file rewritten has it read again
+// from the start, once per state of the file, however often it asks.
+func TestFile_Rewind(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "doc.json")
+	watchtest.WriteRaw(t, path, "{}\n")
+	f, err := Open(path, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := &rewinder{recorder: newRecorder()}
+	f.Run(context.Background(), r)
+	if r.data.String() != "{}\n" || len(r.restarts) != 1 || !strings.Contains(r.restarts[0], "rewritten") || r.asked < 2 {
+		t.Fatalf("data %q restarts %q asked %d", r.data.String(), r.restarts, r.asked)
+	}
+}
