@@ -99,7 +99,7 @@ type Reader struct {
 	// midLine: carriage-return segments of a line were read and its
 	// newline has not come yet (End counts it as a line).
 	midLine bool
-	lineNo   int    // lines of the current file
+	lineNo  int // lines of the current file
 
 	lines, skipped int
 	// cols and guesses are copies of the assembler's, made again when its
