@@ -166,9 +166,10 @@ func decodeJSON(line []byte) (map[string]float64, bool) {
 	if r.skipped > 0 {
 		return nil, false
 	}
-	// The line is one row without epoch or step: ended, it is one point
-	// whose samples are the row's values.
+	// The line is one row: ended and finished, it is one point whose
+	// samples are the row's values.
 	r.asm.EndRow(1)
+	r.asm.Finish()
 	out := map[string]float64{}
 	for _, p := range o.points {
 		for _, s := range p.Samples {
