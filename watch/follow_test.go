@@ -6,6 +6,7 @@ import (
 	"github.com/fitgap/fitgap/watch/internal/watchtest"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"sync"
 	"syscall"
@@ -431,5 +432,49 @@ func TestFollowReader_BadOption(t *testing.T) {
 	if len(got) != 1 || got[0].Stats.State != StateFinished || len(got[0].Notices) != 1 ||
 		!strings.Contains(got[0].Notices[0].Text, "bad option: poll interval -1ns is negative") {
 		t.Fatalf("batches = %+v", got)
+	}
+}
+
+// TestFollowReader_EventsAndSummaries: a checkpoint record that repeats the
+// epoch's validation loss makes no point and no new segment, and an
+// evaluation row followed by the epoch's summary row goes out as one point
+// of that epoch in a batch.
+func TestFollowReader_EventsAndSummaries(t *testing.T) {
+	for name, in := range map[string]string{
+		"Checkpoint": `{"epoch": 1, "loss": 0.9, "val_loss": 1.0, "val_acc": 0.5}` + "\n" + `{"epoch": 1, "val_loss": 1.0}` + "\n" +
+			`{"epoch": 2, "loss": 0.8, "val_loss": 0.9, "val_acc": 0.6}` + "\n" + `{"epoch": 2, "val_loss": 0.9}` + "\n" +
+			`{"epoch": 3, "loss": 0.7, "val_loss": 0.8, "val_acc": 0.7}` + "\n" + `{"epoch": 3, "val_loss": 0.8}` + "\n",
+		"Summary": `{"epoch": 1, "step": 5, "train_loss_step": 0.9}` + "\n" + `{"epoch": 1, "step": 10, "val_loss": 1.0, "val_acc": 0.5}` + "\n" +
+			`{"epoch": 1, "step": 10, "train_loss_epoch": 0.85}` + "\n" + `{"epoch": 2, "step": 15, "train_loss_step": 0.7}` + "\n" +
+			`{"epoch": 2, "step": 20, "val_loss": 0.9, "val_acc": 0.6}` + "\n" + `{"epoch": 2, "step": 20, "train_loss_epoch": 0.65}` + "\n",
+	} {
+		t.Run(name, func(t *testing.T) {
+			var handed []int
+			var last Stats
+			var points []diagnose.Point
+			for b := range FollowReader(t.Context(), "x", strings.NewReader(in), Options{}) {
+				for _, p := range b.Points {
+					handed = append(handed, p.Epoch)
+					points = AppendPoint(points, p)
+				}
+				last = b.Stats
+			}
+			if last.Segments != 1 || !reflect.DeepEqual(epochs(points), []int{1, 2, 3}[:len(points)]) || len(points) < 2 {
+				t.Fatalf("points %v (handed on %v), segments %d", epochs(points), handed, last.Segments)
+			}
+			if !reflect.DeepEqual(handed, epochs(points)) {
+				t.Errorf("epochs handed on %v: each once, want %v", handed, epochs(points))
+			}
+			for _, p := range points {
+				if _, ok := p.Lookup(diagnose.SplitVal, "acc"); !ok {
+					t.Errorf("epoch %d lost its evaluation: %+v", p.Epoch, p.Samples)
+				}
+				if name == "Summary" {
+					if s, ok := p.Lookup(diagnose.SplitTrain, "loss"); !ok || s.Column.Name != "train_loss_epoch" {
+						t.Errorf("epoch %d training loss %+v, want the epoch's train_loss_epoch", p.Epoch, s)
+					}
+				}
+			}
+		})
 	}
 }
