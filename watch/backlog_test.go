@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"github.com/fitgap/fitgap/bench/loggen"
+	"github.com/fitgap/fitgap/watch/tail"
 )
 
 // TestParallel_ReadAllFile: ReadAll on a file of many pieces gives
@@ -72,28 +73,35 @@ func insertLines(log string, at map[int]string) string {
 // how many pieces were taken from workers.
 func readFileCounting(t *testing.T, path string, opts Options) (ingestResult, int) {
 	t.Helper()
-	tl, err := newTailer(path, opts)
+	f, err := tail.Open(path, opts.tail())
 	if err != nil {
 		t.Fatal(err)
 	}
-	go tl.run(context.Background())
+	out := make(chan Batch, 4)
+	g := newIngester(opts, out, func() time.Time { return time.Time{} })
+	go func() {
+		defer close(out)
+		f.Run(context.Background(), g)
+	}()
 	var r ingestResult
-	for b := range tl.out {
-		r.points = append(r.points, b.Points...)
+	for b := range out {
+		for _, p := range b.Points {
+			r.points = AppendPoint(r.points, p)
+		}
 		for _, n := range b.Notices {
 			r.notices = append(r.notices, n.Text)
 		}
 		r.stats = b.Stats
 	}
 	r.stats.LastWrite = time.Time{}
-	return r, tl.ing.taken
+	return r, g.r.Taken()
 }
 
 // TestParallel_SmallPieces reads files through the parallel path cut into
 // small pieces on 2 to 5 workers, and compares with a sequential read of
 // the same bytes: a clean per-step log, one with CRLF ends and without a
 // final newline, one with junk, a resume, a repeated header and a line
-// longer than pieceSlack (which stops the parallel path there).
+// longer than tail.PieceSlack (which stops the parallel path there).
 func TestParallel_SmallPieces(t *testing.T) {
 	var gen bytes.Buffer
 	if err := loggen.WriteCSV(&gen, 20_000); err != nil {
@@ -102,23 +110,23 @@ func TestParallel_SmallPieces(t *testing.T) {
 	mixed := insertLines(gen.String(), map[int]string{
 		3_000:  "2,1,0.5,0.4,0.3,,", // resumed from epoch 2
 		7_000:  loggen.Header,
-		9_000:  strings.Repeat("9", pieceSlack+100),
+		9_000:  strings.Repeat("9", tail.PieceSlack+100),
 		12_000: "garbage \"line",
 		12_001: "garbage \"line",
 	})
 	crlf := strings.TrimSuffix(strings.ReplaceAll(gen.String(), "\n", "\r\n"), "\r\n")
 	defer func(chunk, procs int) {
-		parChunkBytes = chunk
+		tail.PieceBytes = chunk
 		runtime.GOMAXPROCS(procs)
-	}(parChunkBytes, runtime.GOMAXPROCS(0))
+	}(tail.PieceBytes, runtime.GOMAXPROCS(0))
 	for name, data := range map[string]string{"Plain": gen.String(), "CRLF": crlf, "Mixed": mixed} {
 		path := filepath.Join(t.TempDir(), "run.csv")
 		if err := os.WriteFile(path, []byte(data), 0o644); err != nil {
 			t.Fatal(err)
 		}
-		g := newIngester(path, Options{}, func() time.Time { return time.Time{} })
-		g.feed([]byte(data))
-		g.endOfInput()
+		g := newIngester(Options{}, nil, func() time.Time { return time.Time{} })
+		g.Feed([]byte(data))
+		g.End()
 		want := ingestResult{points: g.batch.Points}
 		for _, n := range g.batch.Notices {
 			want.notices = append(want.notices, n.Text)
@@ -128,7 +136,7 @@ func TestParallel_SmallPieces(t *testing.T) {
 		for _, chunk := range []int{1 << 10, 4 << 10, 64 << 10} {
 			for _, procs := range []int{2, 3, 5} {
 				t.Run(fmt.Sprintf("%s/%d/%d", name, chunk, procs), func(t *testing.T) {
-					parChunkBytes = chunk
+					tail.PieceBytes = chunk
 					runtime.GOMAXPROCS(procs)
 					got, taken := readFileCounting(t, path, Options{})
 					if d := diffResults(got, want); d != "" {

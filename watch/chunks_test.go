@@ -3,6 +3,7 @@ package watch
 import (
 	"bytes"
 	"fmt"
+	"github.com/fitgap/fitgap/watch/tail"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -39,7 +40,7 @@ func TestReadAll_FileSameAsReader(t *testing.T) {
 	}
 	for name, data := range map[string][]byte{"Plain": plain.Bytes(), "Mixed": mixed.Bytes()} {
 		t.Run(name, func(t *testing.T) {
-			if len(data) < 4*readChunk {
+			if len(data) < 4*tail.ReadChunk {
 				t.Fatalf("test file too small for several chunks: %d bytes", len(data))
 			}
 			path := filepath.Join(t.TempDir(), "run.csv")

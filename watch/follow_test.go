@@ -3,8 +3,10 @@ package watch
 import (
 	"context"
 	"fmt"
+	"github.com/fitgap/fitgap/watch/internal/watchtest"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"sync"
 	"syscall"
@@ -12,7 +14,6 @@ import (
 	"time"
 
 	"github.com/fitgap/fitgap/diagnose"
-	"github.com/fsnotify/fsnotify"
 )
 
 // waitTimeout bounds every wait on the reader; the events themselves take
@@ -122,55 +123,6 @@ func (f *follower) lastPoint() diagnose.Point {
 	return f.points[len(f.points)-1]
 }
 
-func appendLines(t *testing.T, path string, lines ...string) {
-	t.Helper()
-	writeRaw(t, path, strings.Join(lines, "\n")+"\n")
-}
-
-func writeRaw(t *testing.T, path, text string) {
-	t.Helper()
-	f, err := os.OpenFile(path, os.O_APPEND|os.O_CREATE|os.O_WRONLY, 0o644)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if _, err := f.WriteString(text); err != nil {
-		t.Fatal(err)
-	}
-	if err := f.Close(); err != nil {
-		t.Fatal(err)
-	}
-}
-
-func truncate(t *testing.T, path string) {
-	t.Helper()
-	if err := os.Truncate(path, 0); err != nil {
-		t.Fatal(err)
-	}
-}
-
-func replaceByRename(t *testing.T, path, text string) {
-	t.Helper()
-	tmp := path + ".tmp"
-	if err := os.WriteFile(tmp, []byte(text), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	if err := os.Rename(tmp, path); err != nil {
-		t.Fatal(err)
-	}
-}
-
-func copyTruncate(t *testing.T, path string) {
-	t.Helper()
-	b, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := os.WriteFile(path+".1", b, 0o644); err != nil {
-		t.Fatal(err)
-	}
-	truncate(t, path)
-}
-
 const header = "epoch,loss,val_loss"
 
 func row(epoch int) string {
@@ -179,11 +131,11 @@ func row(epoch int) string {
 
 func TestFollow_AppendAndPartialLine(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, header, row(1))
+	watchtest.AppendLines(t, path, header, row(1))
 	f := startFollow(t, path, Options{})
 	f.waitEpochs(t, 1)
-	writeRaw(t, path, "2,0.4")
-	writeRaw(t, path, "00,0.55\n")
+	watchtest.WriteRaw(t, path, "2,0.4")
+	watchtest.WriteRaw(t, path, "00,0.55\n")
 	f.waitEpochs(t, 1, 2)
 	// The partial line was held until its newline, not read as "2,0.4".
 	if v, _ := sample(t, f.lastPoint(), "loss"); v != 0.400 {
@@ -199,7 +151,7 @@ func TestFollow_AppendAndPartialLine(t *testing.T) {
 // inotify coalesces the events, and every line must still arrive.
 func TestFollow_Coalescing(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, header)
+	watchtest.AppendLines(t, path, header)
 	f := startFollow(t, path, Options{})
 	const n = 2000
 	var wg sync.WaitGroup
@@ -227,11 +179,11 @@ func TestFollow_Coalescing(t *testing.T) {
 
 func TestFollow_Truncation(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, header, row(1), row(2), row(3))
+	watchtest.AppendLines(t, path, header, row(1), row(2), row(3))
 	f := startFollow(t, path, Options{})
 	f.waitEpochs(t, 1, 2, 3)
-	truncate(t, path)
-	appendLines(t, path, header, row(1))
+	watchtest.Truncate(t, path)
+	watchtest.AppendLines(t, path, header, row(1))
 	f.waitNotice(t, "run.csv truncated: reading from the start (segment 2)")
 	f.waitEpochs(t, 1)
 	if p := f.lastPoint(); p.Segment != 2 || p.Line != 2 {
@@ -243,14 +195,14 @@ func TestFollow_Truncation(t *testing.T) {
 // copy the log aside, truncate it in place, and the writer goes on.
 func TestFollow_CopyTruncate(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, header, row(1), row(2))
+	watchtest.AppendLines(t, path, header, row(1), row(2))
 	f := startFollow(t, path, Options{})
 	f.waitEpochs(t, 1, 2)
-	copyTruncate(t, path)
+	watchtest.CopyTruncate(t, path)
 	f.waitNotice(t, "truncated")
 	// The writer goes on without a header: its rows are read with the
 	// header of the file before the rotation.
-	appendLines(t, path, row(3), row(4))
+	watchtest.AppendLines(t, path, row(3), row(4))
 	f.waitEpochs(t, 1, 2, 3, 4)
 }
 
@@ -259,7 +211,7 @@ func TestFollow_CopyTruncate(t *testing.T) {
 // it away.
 func TestFollow_RegrownPastOffset(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, "epoch,loss", "1,0.5")
+	watchtest.AppendLines(t, path, "epoch,loss", "1,0.5")
 	f := startFollow(t, path, Options{Poll: 20 * time.Millisecond})
 	f.waitEpochs(t, 1)
 	if err := os.WriteFile(path, []byte("epoch,loss,val_loss\n1,0.9,1.0\n2,0.8,0.9\n"), 0o644); err != nil {
@@ -271,13 +223,13 @@ func TestFollow_RegrownPastOffset(t *testing.T) {
 
 func TestFollow_AtomicReplace(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, header, row(1), row(2))
+	watchtest.AppendLines(t, path, header, row(1), row(2))
 	f := startFollow(t, path, Options{})
 	f.waitEpochs(t, 1, 2)
-	replaceByRename(t, path, header+"\n"+row(1)+"\n")
+	watchtest.ReplaceByRename(t, path, header+"\n"+row(1)+"\n")
 	f.waitNotice(t, "run.csv replaced: reading the new file from the start")
 	f.waitEpochs(t, 1)
-	appendLines(t, path, row(2))
+	watchtest.AppendLines(t, path, row(2))
 	f.waitEpochs(t, 1, 2)
 	if p := f.lastPoint(); p.Segment != 2 {
 		t.Errorf("segment = %d", p.Segment)
@@ -286,7 +238,7 @@ func TestFollow_AtomicReplace(t *testing.T) {
 
 func TestFollow_DeleteThenRecreate(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, header, row(1), row(2))
+	watchtest.AppendLines(t, path, header, row(1), row(2))
 	f := startFollow(t, path, Options{})
 	f.waitEpochs(t, 1, 2)
 	if err := os.Remove(path); err != nil {
@@ -296,7 +248,7 @@ func TestFollow_DeleteThenRecreate(t *testing.T) {
 	f.waitFor(t, "state removed", func(f *follower) bool { return f.stats.State == StateRemoved })
 	// What was read is kept.
 	f.waitEpochs(t, 1, 2)
-	appendLines(t, path, header, row(1))
+	watchtest.AppendLines(t, path, header, row(1))
 	f.waitNotice(t, "replaced")
 	f.waitEpochs(t, 1)
 	f.waitFor(t, "state live", func(f *follower) bool { return f.stats.State == StateLive })
@@ -307,7 +259,7 @@ func TestFollow_LateCreation(t *testing.T) {
 	f := startFollow(t, path, Options{})
 	f.waitNotice(t, "waiting for "+path)
 	f.waitFor(t, "state waiting", func(f *follower) bool { return f.stats.State == StateWaiting })
-	appendLines(t, path, header, row(1))
+	watchtest.AppendLines(t, path, header, row(1))
 	f.waitEpochs(t, 1)
 	f.waitFor(t, "state live", func(f *follower) bool { return f.stats.State == StateLive })
 }
@@ -316,12 +268,12 @@ func TestFollow_LateCreation(t *testing.T) {
 // inotify sees nothing.
 func TestFollow_Poll(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, header, row(1))
+	watchtest.AppendLines(t, path, header, row(1))
 	f := startFollow(t, path, Options{Poll: 20 * time.Millisecond})
 	f.waitEpochs(t, 1)
-	appendLines(t, path, row(2))
+	watchtest.AppendLines(t, path, row(2))
 	f.waitEpochs(t, 1, 2)
-	replaceByRename(t, path, header+"\n"+row(1)+"\n")
+	watchtest.ReplaceByRename(t, path, header+"\n"+row(1)+"\n")
 	f.waitNotice(t, "replaced")
 	f.waitEpochs(t, 1)
 }
@@ -337,39 +289,13 @@ func TestFollow_WatchFallback(t *testing.T) {
 	if err := os.Mkdir(dir, 0o755); err != nil {
 		t.Fatal(err)
 	}
-	appendLines(t, path, header, row(1))
+	watchtest.AppendLines(t, path, header, row(1))
 	f.waitEpochs(t, 1)
-}
-
-// TestFollow_Overflow feeds the loop an inotify queue overflow: the answer
-// is a full check of the file, which finds the lines no event announced.
-func TestFollow_Overflow(t *testing.T) {
-	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, header, row(1))
-	tl, err := newTailer(path, Options{Follow: true})
-	if err != nil {
-		t.Fatal(err)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	events := make(chan fsnotify.Event)
-	errs := make(chan error)
-	go func() {
-		// An hour between ticks: only the overflow can trigger the read.
-		tl.loop(ctx, events, errs, time.Hour)
-		close(tl.out)
-	}()
-	f := collectBatches(tl.out)
-	f.waitEpochs(t, 1)
-	appendLines(t, path, row(2), row(3))
-	errs <- fsnotify.ErrEventOverflow
-	f.waitEpochs(t, 1, 2, 3)
-	f.waitNotice(t, "queue overflow")
 }
 
 func TestFollow_OneShot(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	writeRaw(t, path, header+"\n"+row(1)+"\n"+row(2)) // no final newline
+	watchtest.WriteRaw(t, path, header+"\n"+row(1)+"\n"+row(2)) // no final newline
 	ch, err := Follow(context.Background(), path, Options{})
 	if err != nil {
 		t.Fatal(err)
@@ -387,7 +313,7 @@ func TestFollow_OneShot(t *testing.T) {
 
 func TestFollow_ContextEnds(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "run.csv")
-	appendLines(t, path, header)
+	watchtest.AppendLines(t, path, header)
 	ctx, cancel := context.WithCancel(context.Background())
 	ch, err := Follow(ctx, path, Options{Follow: true})
 	if err != nil {
@@ -473,5 +399,82 @@ func TestFollow_NamedPipe(t *testing.T) {
 	}
 	if fmt.Sprint(epochs(f.points)) != "[1 2]" || f.stats.State != StateFinished {
 		t.Errorf("epochs %v state %v", epochs(f.points), f.stats.State)
+	}
+}
+func TestFollowReader_Steps(t *testing.T) {
+	in := "epoch,step,loss,val_loss\n1,1,0.9,\n1,2,0.8,0.85\n2,3,0.7,\n"
+	var steps []diagnose.StepRow
+	for b := range FollowReader(t.Context(), "x", strings.NewReader(in), Options{Steps: true}) {
+		steps = append(steps, b.Steps...)
+	}
+	if len(steps) != 3 {
+		t.Fatalf("steps = %+v", steps)
+	}
+	if s := steps[1]; s.Epoch != 1 || s.Step != 2 || len(s.Samples) != 2 || s.Samples[0].Value != 0.8 || s.Samples[1].Value != 0.85 {
+		t.Errorf("step row = %+v", s)
+	}
+	if s := steps[2]; s.Epoch != 2 || s.Step != 3 || len(s.Samples) != 1 {
+		t.Errorf("step row = %+v", s)
+	}
+	// Without the option no rows are made.
+	for b := range FollowReader(t.Context(), "x", strings.NewReader(in), Options{}) {
+		if len(b.Steps) > 0 {
+			t.Fatalf("steps without Options.Steps")
+		}
+	}
+}
+
+func TestFollowReader_BadOption(t *testing.T) {
+	var got []Batch
+	for b := range FollowReader(t.Context(), "x", strings.NewReader("epoch,loss\n1,2\n"), Options{Poll: -1}) {
+		got = append(got, b)
+	}
+	if len(got) != 1 || got[0].Stats.State != StateFinished || len(got[0].Notices) != 1 ||
+		!strings.Contains(got[0].Notices[0].Text, "bad option: poll interval -1ns is negative") {
+		t.Fatalf("batches = %+v", got)
+	}
+}
+
+// TestFollowReader_EventsAndSummaries: a checkpoint record that repeats the
+// epoch's validation loss makes no point and no new segment, and an
+// evaluation row followed by the epoch's summary row goes out as one point
+// of that epoch in a batch.
+func TestFollowReader_EventsAndSummaries(t *testing.T) {
+	for name, in := range map[string]string{
+		"Checkpoint": `{"epoch": 1, "loss": 0.9, "val_loss": 1.0, "val_acc": 0.5}` + "\n" + `{"epoch": 1, "val_loss": 1.0}` + "\n" +
+			`{"epoch": 2, "loss": 0.8, "val_loss": 0.9, "val_acc": 0.6}` + "\n" + `{"epoch": 2, "val_loss": 0.9}` + "\n" +
+			`{"epoch": 3, "loss": 0.7, "val_loss": 0.8, "val_acc": 0.7}` + "\n" + `{"epoch": 3, "val_loss": 0.8}` + "\n",
+		"Summary": `{"epoch": 1, "step": 5, "train_loss_step": 0.9}` + "\n" + `{"epoch": 1, "step": 10, "val_loss": 1.0, "val_acc": 0.5}` + "\n" +
+			`{"epoch": 1, "step": 10, "train_loss_epoch": 0.85}` + "\n" + `{"epoch": 2, "step": 15, "train_loss_step": 0.7}` + "\n" +
+			`{"epoch": 2, "step": 20, "val_loss": 0.9, "val_acc": 0.6}` + "\n" + `{"epoch": 2, "step": 20, "train_loss_epoch": 0.65}` + "\n",
+	} {
+		t.Run(name, func(t *testing.T) {
+			var handed []int
+			var last Stats
+			var points []diagnose.Point
+			for b := range FollowReader(t.Context(), "x", strings.NewReader(in), Options{}) {
+				for _, p := range b.Points {
+					handed = append(handed, p.Epoch)
+					points = AppendPoint(points, p)
+				}
+				last = b.Stats
+			}
+			if last.Segments != 1 || !reflect.DeepEqual(epochs(points), []int{1, 2, 3}[:len(points)]) || len(points) < 2 {
+				t.Fatalf("points %v (handed on %v), segments %d", epochs(points), handed, last.Segments)
+			}
+			if !reflect.DeepEqual(handed, epochs(points)) {
+				t.Errorf("epochs handed on %v: each once, want %v", handed, epochs(points))
+			}
+			for _, p := range points {
+				if _, ok := p.Lookup(diagnose.SplitVal, "acc"); !ok {
+					t.Errorf("epoch %d lost its evaluation: %+v", p.Epoch, p.Samples)
+				}
+				if name == "Summary" {
+					if s, ok := p.Lookup(diagnose.SplitTrain, "loss"); !ok || s.Column.Name != "train_loss_epoch" {
+						t.Errorf("epoch %d training loss %+v, want the epoch's train_loss_epoch", p.Epoch, s)
+					}
+				}
+			}
+		})
 	}
 }

@@ -1,11 +1,12 @@
 package watch
 
 import (
-	"math"
+	"fmt"
 	"strings"
 	"testing"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch/internal/watchtest"
 )
 
 // readString reads a whole log given as a string.
@@ -18,50 +19,32 @@ func readString(t *testing.T, in string, opts Options) ([]diagnose.Point, Stats)
 	return points, stats
 }
 
-// sample returns the Value and Last of the named column of p, failing the
-// test when it is missing.
-func sample(t *testing.T, p diagnose.Point, name string) (value, last float64) {
-	t.Helper()
-	s, ok := p.Named(name)
-	if !ok {
-		t.Fatalf("point of epoch %d has no %q: %+v", p.Epoch, name, p.Samples)
-	}
-	return s.Value, s.Last
+// Aliases of the shared comparisons, short for the tables.
+var (
+	sample     = watchtest.Sample
+	near       = watchtest.Near
+	sameFloat  = watchtest.SameFloat
+	samePoints = watchtest.Same
+	epochs     = watchtest.Epochs
+)
+
+// ingestResult is everything a read hands on.
+type ingestResult struct {
+	points  []diagnose.Point // as emitted, before replacement
+	notices []string
+	stats   Stats
 }
 
-func near(a, b float64) bool {
-	if math.IsNaN(a) || math.IsNaN(b) {
-		return math.IsNaN(a) && math.IsNaN(b)
+// diffResults describes how two reads differ, bit for bit, or "".
+func diffResults(a, b ingestResult) string {
+	if d := watchtest.Diff(a.points, b.points); d != "" {
+		return d
 	}
-	return math.Abs(a-b) <= 1e-12*math.Max(1, math.Abs(b))
-}
-
-// eachSequence calls fn with every sequence of 0 to maxLen elements of
-// alphabet, repetition allowed, each sequence before its extensions: the
-// enumeration of the exhaustive tests. fn must not keep seq, which is
-// reused.
-func eachSequence[T any](alphabet []T, maxLen int, fn func(seq []T)) {
-	seq := make([]T, 0, maxLen)
-	var walk func()
-	walk = func() {
-		fn(seq)
-		if len(seq) == maxLen {
-			return
-		}
-		for _, a := range alphabet {
-			seq = append(seq, a)
-			walk()
-			seq = seq[:len(seq)-1]
-		}
+	if fmt.Sprint(a.notices) != fmt.Sprint(b.notices) {
+		return fmt.Sprintf("notices %q, want %q", a.notices, b.notices)
 	}
-	walk()
-}
-
-// epochs lists the Epoch of each point.
-func epochs(points []diagnose.Point) []int {
-	out := make([]int, len(points))
-	for i, p := range points {
-		out[i] = p.Epoch
+	if fmt.Sprintf("%+v", a.stats) != fmt.Sprintf("%+v", b.stats) {
+		return fmt.Sprintf("stats %+v, want %+v", a.stats, b.stats)
 	}
-	return out
+	return ""
 }

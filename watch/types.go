@@ -2,73 +2,33 @@ package watch
 
 import (
 	"fmt"
-	"strconv"
-	"strings"
 	"time"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch/column"
+	"github.com/fitgap/fitgap/watch/layout"
+	"github.com/fitgap/fitgap/watch/points"
+	"github.com/fitgap/fitgap/watch/tail"
 )
 
-// Format is the layout of a metrics log.
-type Format uint8
+// Format is the layout of a metrics log ("csv", "jsonl", "text"…), as the
+// layout registry names it.
+type Format = layout.Format
 
-const (
-	// FormatAuto detects the format from the first non-empty line.
-	FormatAuto Format = iota
-	// FormatCSV is comma- or semicolon-separated values with a header row
-	// (RFC 4180 quoting).
-	FormatCSV
-	// FormatTSV is tab-separated values with a header row.
-	FormatTSV
-	// FormatJSONL is one JSON object per line (JSON Lines, RFC 8259 values).
-	FormatJSONL
-	// FormatText is the console output of a training script.
-	FormatText
-)
+// FormatAuto detects the format from the first non-empty line.
+const FormatAuto = layout.Auto
 
-var formatNames = [...]string{
-	FormatAuto:  "auto",
-	FormatCSV:   "csv",
-	FormatTSV:   "tsv",
-	FormatJSONL: "jsonl",
-	FormatText:  "text",
-}
+// ParseFormat reads a format name as given on the command line: a layout's
+// name or alias (case-insensitive), or "auto".
+func ParseFormat(s string) (Format, error) { return layout.ParseFormat(s) }
 
-func (f Format) String() string {
-	if int(f) < len(formatNames) {
-		return formatNames[f]
-	}
-	return "format(" + strconv.Itoa(int(f)) + ")"
-}
-
-// ParseFormat reads a format name as given on the command line. It accepts
-// the names String returns, case-insensitively, plus "json" and "ndjson"
-// for JSON Lines, "txt" and "console" for text.
-func ParseFormat(s string) (Format, error) {
-	switch strings.ToLower(strings.TrimSpace(s)) {
-	case "", "auto":
-		return FormatAuto, nil
-	case "csv":
-		return FormatCSV, nil
-	case "tsv", "tab":
-		return FormatTSV, nil
-	case "jsonl", "json", "ndjson":
-		return FormatJSONL, nil
-	case "text", "txt", "console":
-		return FormatText, nil
-	}
-	return FormatAuto, fmt.Errorf("unknown format %q: want auto, csv, tsv, jsonl or text", Sanitize(s))
-}
+// FormatNames lists the layouts --format accepts besides "auto", in
+// alphabetical order.
+func FormatNames() []string { return layout.Names() }
 
 // Overrides force named columns to a split, whatever their names say
-// (--train COL, --val COL, --train-dev COL, --test COL). The overridden
-// columns are made one metric: they share the Base of the first one given
-// (in the order Train, Val, TrainDev, Test), so the diagnosis pairs them.
-type Overrides struct{ Train, Val, TrainDev, Test string }
-
-func (o Overrides) empty() bool {
-	return o.Train == "" && o.Val == "" && o.TrainDev == "" && o.Test == ""
-}
+// (--train COL, --val COL, --train-dev COL, --test COL).
+type Overrides = column.Overrides
 
 // Options control how a log is read.
 type Options struct {
@@ -91,64 +51,36 @@ type Options struct {
 }
 
 func (o Options) validate() error {
-	if o.Format > FormatText {
-		return fmt.Errorf("bad option: unknown format %d", o.Format)
+	if !layout.Known(o.Format) {
+		return fmt.Errorf("bad option: unknown format %q", Sanitize(string(o.Format)))
 	}
-	if o.Poll < 0 {
-		return fmt.Errorf("bad option: poll interval %v is negative", o.Poll)
-	}
-	if o.Poll > 0 && o.Poll < minPoll {
-		return fmt.Errorf("bad option: poll interval %v is below %v", o.Poll, minPoll)
-	}
-	return nil
+	return o.tail().Validate()
+}
+
+func (o Options) tail() tail.Options { return tail.Options{Poll: o.Poll, Follow: o.Follow} }
+
+func (o Options) layout() layout.Config {
+	return layout.Config{Format: o.Format, Roles: o.Roles, Steps: o.Steps}
 }
 
 // State is where the reader stands with its source.
-type State uint8
+type State = tail.State
 
 const (
 	// StateWaiting: the file does not exist yet (training not started).
-	StateWaiting State = iota
+	StateWaiting = tail.Waiting
 	// StateLive: the source is open and being read.
-	StateLive
+	StateLive = tail.Live
 	// StateRemoved: the file was deleted or renamed away; what was read is
 	// kept and a file created under the same name is picked up.
-	StateRemoved
+	StateRemoved = tail.Removed
 	// StateFinished: the pipe closed, or a one-shot read is done.
-	StateFinished
+	StateFinished = tail.Finished
 )
-
-var stateNames = [...]string{
-	StateWaiting:  "waiting",
-	StateLive:     "live",
-	StateRemoved:  "file removed",
-	StateFinished: "finished",
-}
-
-func (s State) String() string {
-	if int(s) < len(stateNames) {
-		return stateNames[s]
-	}
-	return "state(" + strconv.Itoa(int(s)) + ")"
-}
 
 // ParseError is one line of the log that could not be read. It is counted
 // and kept as an example, never fatal.
-type ParseError struct {
-	// Line is the 1-based line number in the file (it starts again at 1
-	// after a truncation or a replaced file).
-	Line   int
-	Reason string
-	// Text is the first 80 bytes of the line, sanitized.
-	Text string
-}
-
-func (e ParseError) Error() string {
-	if e.Text == "" {
-		return fmt.Sprintf("line %d: %s", e.Line, e.Reason)
-	}
-	return fmt.Sprintf("line %d: %s: %s", e.Line, e.Reason, e.Text)
-}
+type ParseError = layout.ParseError
 
 // Stats are the reader's cumulative counters. Every Batch carries a copy.
 type Stats struct {
@@ -169,7 +101,20 @@ type Stats struct {
 	// LastWrite is when the reader last saw new bytes, by the reader's
 	// clock (the screen shows how long the log has been quiet).
 	LastWrite time.Time
+	// Roles are the roles the reader assumed where the log left a choice
+	// (which eval set of a boosting library is the training data, a test
+	// split standing in for validation), each with what it rests on, so
+	// that the screen, the report and the JSON can state them. The flags
+	// --train, --val, --train-dev and --test override them.
+	Roles []RoleGuess
+	// Columns are the log's value columns read so far (not the epoch or
+	// step), in the order they appeared, with what each holds.
+	Columns []diagnose.Column
 }
+
+// RoleGuess is a role the reader assumed for a column: Column (its name),
+// Split (the split assumed) and Source (what the guess rests on).
+type RoleGuess = column.Guess
 
 // Notice is a message about the source, for the status line: "waiting for
 // run.csv", "run.csv truncated: reading from the start (segment 2)",
@@ -199,10 +144,10 @@ type Batch struct {
 
 // AppendPoint adds p to points with the replacement rule of Batch: points
 // from p's epoch on are dropped first.
-func AppendPoint(points []diagnose.Point, p diagnose.Point) []diagnose.Point {
-	i := len(points)
-	for i > 0 && points[i-1].Epoch >= p.Epoch {
-		i--
-	}
-	return append(points[:i], p)
+func AppendPoint(list []diagnose.Point, p diagnose.Point) []diagnose.Point {
+	return points.Append(list, p)
 }
+
+// ParseColumn recognises what a log column holds from its name (see
+// column.Parse).
+func ParseColumn(name string) diagnose.Column { return column.Parse(name) }

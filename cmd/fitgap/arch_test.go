@@ -30,6 +30,9 @@ func TestImportArrows(t *testing.T) {
 		}
 		return out
 	}
+	// Inside watch, tail reads bytes and knows no layout; layout decodes
+	// and points assembles, both pure; column names columns.
+	tail, layout, points, column := mod+"watch/tail", mod+"watch/layout", mod+"watch/points", mod+"watch/column"
 	tests := []struct {
 		pkg string
 		// deps are forbidden anywhere below the package; direct only in
@@ -40,6 +43,10 @@ func TestImportArrows(t *testing.T) {
 		{"diagnose", [][]string{charm, fsnotify, outside, {mod}}, [][]string{io}},
 		{"report", [][]string{charm, fsnotify, outside, pkgs("watch", "tui", "pipeline")}, [][]string{io}},
 		{"watch", [][]string{charm, pkgs("tui", "report", "pipeline")}, nil},
+		{"watch/tail", [][]string{charm, {mod + "watch", layout, points, column, mod + "tui", mod + "report", mod + "pipeline"}}, nil},
+		{"watch/layout", [][]string{charm, fsnotify, {mod + "watch", tail, mod + "tui", mod + "report", mod + "pipeline"}}, [][]string{io}},
+		{"watch/points", [][]string{charm, fsnotify, {mod + "watch", tail, layout, mod + "tui", mod + "report", mod + "pipeline"}}, [][]string{io}},
+		{"watch/column", [][]string{charm, fsnotify, {mod + "watch", tail, layout, points, mod + "tui", mod + "report", mod + "pipeline"}}, [][]string{io}},
 		// The pipeline feeds the screen through cmd/fitgap; it never draws.
 		{"pipeline", [][]string{charm, pkgs("tui", "trainer")}, nil},
 		{"tui", [][]string{fsnotify, pkgs("watch", "pipeline")}, nil},

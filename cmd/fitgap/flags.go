@@ -4,6 +4,7 @@ import (
 	"flag"
 	"fmt"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -43,7 +44,7 @@ type sourceFlags struct {
 }
 
 func (s *sourceFlags) register(fs *flag.FlagSet) {
-	fs.StringVar(&s.format, "format", "auto", "log `format`: auto, csv, tsv, jsonl or text")
+	fs.StringVar(&s.format, "format", "auto", "log `format`: auto, "+strings.Join(watch.FormatNames(), ", "))
 	fs.DurationVar(&s.poll, "poll", 0, "check the file by polling at this `interval` (for network filesystems where change events never arrive), e.g. 1s")
 	fs.StringVar(&s.train, "train", "", "the `column` holding the training value of the judged metric")
 	fs.StringVar(&s.val, "val", "", "the `column` holding the validation value")

@@ -1,0 +1,86 @@
+package layout
+
+import (
+	"github.com/fitgap/fitgap/watch/column"
+	"strings"
+	"testing"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch/internal/watchtest"
+	"github.com/fitgap/fitgap/watch/points"
+)
+
+// Aliases of the shared comparisons, short for the tables.
+var (
+	sample      = watchtest.Sample
+	near        = watchtest.Near
+	sameFloat   = watchtest.SameFloat
+	epochs      = watchtest.Epochs
+	samePoints  = watchtest.Same
+	appendPoint = points.Append
+)
+
+const maxColumns = points.MaxColumns
+
+func eachSequence[T any](alphabet []T, maxLen int, fn func(seq []T)) {
+	watchtest.EachSequence(alphabet, maxLen, fn)
+}
+
+// recorder is the points.Out of a test: it keeps everything handed on.
+type recorder struct {
+	points  []diagnose.Point // as emitted, before replacement
+	steps   []diagnose.StepRow
+	notices []string
+}
+
+func (o *recorder) Point(p diagnose.Point)  { o.points = append(o.points, p) }
+func (o *recorder) Step(r diagnose.StepRow) { o.steps = append(o.steps, r) }
+func (o *recorder) Notice(text string)      { o.notices = append(o.notices, diagnose.Printable(text)) }
+
+// take returns what was recorded since the last take.
+func (o *recorder) take() recorder {
+	r := *o
+	*o = recorder{}
+	return r
+}
+
+// newTestReader returns a Reader recording into a recorder.
+func newTestReader(c Config) (*Reader, *recorder) {
+	o := &recorder{}
+	return NewReader(o, c), o
+}
+
+// readString reads a whole log given as a string and returns the points
+// with replacements applied, and the counters.
+func readString(t *testing.T, in string, c Config) ([]diagnose.Point, Counts) {
+	t.Helper()
+	r, o := newTestReader(c)
+	r.Feed([]byte(in))
+	r.End()
+	var list []diagnose.Point
+	for _, p := range o.points {
+		list = points.Append(list, p)
+	}
+	return list, r.Counts()
+}
+
+// readNotices reads a whole log and returns the notices.
+func readNotices(in string, c Config) []string {
+	r, o := newTestReader(c)
+	r.Feed([]byte(in))
+	r.End()
+	return o.notices
+}
+
+// hasNotice reports a notice that contains sub.
+func hasNotice(notices []string, sub string) bool {
+	for _, n := range notices {
+		if strings.Contains(n, sub) {
+			return true
+		}
+	}
+	return false
+}
+
+// overridesVal forces one column to the validation split.
+func overridesVal(name string) column.Overrides { return column.Overrides{Val: name} }

@@ -1,0 +1,138 @@
+package layout
+
+import (
+	"strconv"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch/column"
+	"github.com/fitgap/fitgap/watch/points"
+)
+
+// keyed files the values of records with named keys (JSON Lines, Python
+// dict lines, the records of a JSON document) into the assembler's row: a
+// key is the epoch, the step, the time or a value column, as its name
+// says. The decoder builds the flattened key in key ("train/loss" for
+// {"train": {"loss": …}}) and calls number or stringValue for its value.
+type keyed struct {
+	r   *Reader
+	asm *points.Assembler
+	key []byte // the flattened key being read
+	// keys maps flattened keys to what they feed. Records of one log
+	// repeat their keys in the same order, so seen[k] remembers the k-th
+	// value key of the previous record: a byte comparison instead of a
+	// hash for almost every key.
+	keys map[string]keyRole
+	seen []keyRole
+	nth  int
+	// textKeys are keys that held only strings and are no time column
+	// (run names, paths): column.Parse said so once, not on every line.
+	// Bounded like keys.
+	textKeys map[string]struct{}
+}
+
+// keyRole is what a flattened key feeds: a cell role and, for values and
+// time columns, the assembler's column.
+type keyRole struct {
+	key  string
+	role cellRole
+	col  int
+}
+
+func newKeyed(r *Reader) keyed {
+	return keyed{r: r, asm: r.asm, keys: map[string]keyRole{}, textKeys: map[string]struct{}{}}
+}
+
+// startRecord begins a record: keys are counted again from the first.
+func (d *keyed) startRecord() { d.nth = 0 }
+
+// role looks up (or learns) what the current key feeds.
+func (d *keyed) role() (cellRole, int) {
+	k := d.nth
+	d.nth++
+	if k < len(d.seen) && d.seen[k].key == string(d.key) {
+		return d.seen[k].role, d.seen[k].col
+	}
+	kr, ok := d.keys[string(d.key)]
+	if !ok {
+		kr = d.learn(string(d.key))
+	}
+	if k < len(d.seen) {
+		d.seen[k] = kr
+	} else if k == len(d.seen) && k < maxJSONKeys {
+		d.seen = append(d.seen, kr)
+	}
+	return kr.role, kr.col
+}
+
+// maxJSONKeys bounds the remembered key order; a record with more value
+// keys is still read, through the map only. Unit: keys.
+const maxJSONKeys = 1024
+
+func (d *keyed) learn(name string) keyRole {
+	col := d.r.roles.Column(name)
+	kr := keyRole{key: name, col: -1}
+	switch col.Kind {
+	case diagnose.KindEpoch:
+		kr.role = cellEpoch
+	case diagnose.KindStep:
+		kr.role = cellStep
+	case diagnose.KindTime:
+		kr.role, kr.col = cellTime, d.asm.Column(name)
+	default:
+		kr.role, kr.col = cellValue, d.asm.Column(name)
+	}
+	if len(d.keys) < 2*points.MaxColumns { // bounded like the column table
+		d.keys[name] = kr
+	}
+	return kr
+}
+
+func (d *keyed) number(v float64) {
+	r, ci := d.role()
+	switch r {
+	case cellEpoch:
+		d.asm.Epoch(v)
+	case cellStep:
+		d.asm.Step(v)
+	case cellTime:
+		d.asm.TimeNumber(ci, v)
+	case cellValue:
+		d.asm.Value(ci, v)
+	}
+}
+
+func (d *keyed) stringValue(s []byte) {
+	switch string(s) {
+	case "NaN", "nan", "Infinity", "inf", "-Infinity", "-inf":
+		v, _ := strconv.ParseFloat(string(s), 64)
+		d.number(v)
+		return
+	}
+	// Only a time column reads strings; look it up without learning keys
+	// that hold only text (run names, paths) as columns.
+	kr, ok := d.keys[string(d.key)]
+	if !ok {
+		kr, ok = d.timeKey()
+	}
+	if ok && kr.role == cellTime {
+		if t, tok := parseTime(s); tok {
+			d.asm.Time(t)
+		}
+	}
+}
+
+// timeKey learns the current key when its name is a time column's, and
+// remembers it as text otherwise.
+func (d *keyed) timeKey() (keyRole, bool) {
+	if _, text := d.textKeys[string(d.key)]; text {
+		return keyRole{}, false
+	}
+	name := string(d.key)
+	if column.Parse(name).Kind == diagnose.KindTime {
+		return d.learn(name), true
+	}
+	if len(d.textKeys) < 2*points.MaxColumns {
+		d.textKeys[name] = struct{}{}
+	}
+	return keyRole{}, false
+}

@@ -1,0 +1,228 @@
+package layout
+
+import (
+	"bytes"
+	"strconv"
+	"strings"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch/column"
+	"github.com/fitgap/fitgap/watch/points"
+)
+
+// Rounds is the round lines boosting libraries print while they train: the
+// round in brackets, then one value per evaluation set and metric,
+// separated by tabs, in two spellings:
+//
+//	[12]	train-logloss:0.31	eval-logloss:0.40
+//	[12]	training's binary_logloss: 0.31	valid_1's binary_logloss: 0.40
+//
+// The round is the point's epoch as written (rounds count from 0 in one
+// library, from 1 in the other; printing may be thinned to every k-th).
+const Rounds Format = "rounds"
+
+func init() {
+	register(Layout{Format: Rounds, Aliases: []string{"boosting"}, Rank: 15,
+		Detect: func(first []byte) bool {
+			_, rest, ok := roundPrefix(first)
+			if !ok {
+				return false
+			}
+			_, _, _, ok = roundPair(firstField(rest))
+			return ok
+		},
+		New: func(r *Reader, _ []byte) Decoder { return &roundsDecoder{r: r, asm: r.asm, cols: map[string]int{}} },
+	})
+}
+
+// roundsDecoder reads round lines.
+type roundsDecoder struct {
+	r    *Reader
+	asm  *points.Assembler
+	cols map[string]int // by "set-metric" as written
+	// sets are the evaluation sets named on the first round line, whose
+	// roles depend on one another (validation_0 beside validation_1).
+	sets []string
+	// summary: the line before announced the best round ("Stopping. Best
+	// iteration:"), which the next round line repeats.
+	summary bool
+}
+
+func (d *roundsDecoder) Finish() {}
+
+func (d *roundsDecoder) Decode(line []byte, n int) {
+	round, rest, ok := roundPrefix(line)
+	if !ok {
+		t := bytes.TrimSpace(line)
+		switch {
+		case len(t) == 0:
+		case bytes.Contains(bytes.ToLower(t), []byte("best iteration")):
+			d.summary = true
+		default:
+			d.r.bad(n, "not a round line", line)
+		}
+		return
+	}
+	if d.summary {
+		d.summary = false // the best round, printed again: no new point
+		return
+	}
+	if d.sets == nil {
+		d.sets = roundSets(rest)
+	}
+	a := d.asm
+	a.BeginRow()
+	a.Epoch(float64(round))
+	values := 0
+	for len(rest) > 0 {
+		f := firstField(rest)
+		rest = rest[min(len(f)+1, len(rest)):]
+		set, metric, v, ok := roundPair(f)
+		if !ok {
+			continue
+		}
+		a.Value(d.column(set, metric), v)
+		values++
+	}
+	if values == 0 {
+		d.r.bad(n, "no value in the round line", line)
+		return
+	}
+	a.EndRow(n)
+}
+
+// column returns the column of a set's metric, named as the log writes it.
+func (d *roundsDecoder) column(set, metric string) int {
+	name := set + "-" + metric
+	if strings.HasSuffix(set, "'s") {
+		name = set + " " + metric
+	}
+	if ci, ok := d.cols[name]; ok {
+		return ci
+	}
+	col := column.Parse(metric)
+	split, guess := roundSplit(strings.TrimSuffix(set, "'s"), d.sets)
+	if col.Kind == diagnose.KindMetric && split != diagnose.SplitNone {
+		col.Split = split
+	} else {
+		guess = ""
+		col = column.Parse(name)
+	}
+	ci := d.asm.ColumnAs(name, col, guess)
+	if len(d.cols) < 2*points.MaxColumns {
+		d.cols[name] = ci
+	}
+	return ci
+}
+
+// The eval_set entries of a boosting library's scikit-learn interface are
+// named validation_0, validation_1… in the order given, and the common
+// habit is to pass the training data first.
+const (
+	guessFirstIsTrain  = "the first of several eval sets (validation_0) is commonly the training data"
+	guessSecondIsValid = "the second eval set (validation_1) is commonly the validation data, after the training data"
+	guessLaterIsTest   = "eval sets after the second (validation_2…) are taken as test data"
+)
+
+// roundSplit gives the split of an evaluation set by its name, and the
+// guess it rests on if any. sets are all the sets of the first line.
+func roundSplit(set string, sets []string) (diagnose.Split, string) {
+	lower := strings.ToLower(set)
+	if k, ok := strings.CutPrefix(lower, "validation_"); ok {
+		i, err := strconv.Atoi(k)
+		if err != nil {
+			return diagnose.SplitVal, ""
+		}
+		several := 0
+		for _, s := range sets {
+			if strings.HasPrefix(strings.ToLower(s), "validation_") {
+				several++
+			}
+		}
+		switch {
+		case several < 2:
+			return diagnose.SplitVal, ""
+		case i == 0:
+			return diagnose.SplitTrain, guessFirstIsTrain
+		case i == 1:
+			return diagnose.SplitVal, guessSecondIsValid
+		default:
+			return diagnose.SplitTest, guessLaterIsTest
+		}
+	}
+	// train, training, eval, valid_1, test, dtrain…: the name's split word.
+	split, _ := column.SplitOf(column.Words(lower))
+	return split, ""
+}
+
+// roundSets lists the evaluation sets of a round line's fields.
+func roundSets(rest []byte) []string {
+	var sets []string
+	for len(rest) > 0 {
+		f := firstField(rest)
+		rest = rest[min(len(f)+1, len(rest)):]
+		if set, _, _, ok := roundPair(f); ok {
+			sets = append(sets, strings.TrimSuffix(set, "'s"))
+		}
+	}
+	return sets
+}
+
+// roundPrefix reads "[12]" and the tab or space after it.
+func roundPrefix(line []byte) (int, []byte, bool) {
+	if len(line) < 4 || line[0] != '[' {
+		return 0, nil, false
+	}
+	s := string(line[:min(len(line), maxIntDigits+3)])
+	round, end, ok := readInt(s, 1)
+	if !ok || end+1 >= len(line) || line[end] != ']' || line[end+1] != '\t' && line[end+1] != ' ' {
+		return 0, nil, false
+	}
+	return round, bytes.TrimLeft(line[end+1:], " \t"), true
+}
+
+// firstField returns the text up to the next tab.
+func firstField(rest []byte) []byte {
+	if i := bytes.IndexByte(rest, '\t'); i >= 0 {
+		return rest[:i]
+	}
+	return rest
+}
+
+// roundPair reads "train-logloss:0.31", "training's binary_logloss: 0.31"
+// or a cross-validation mean "test-auc:0.93+0.01" (the standard deviation
+// is dropped).
+func roundPair(f []byte) (set, metric string, v float64, ok bool) {
+	f = bytes.TrimSpace(f)
+	colon := bytes.LastIndexByte(f, ':')
+	if colon <= 0 {
+		return "", "", 0, false
+	}
+	num := bytes.TrimSpace(f[colon+1:])
+	if i := bytes.IndexByte(num[min(1, len(num)):], '+'); i >= 0 && (i == 0 || num[i] != 'e' && num[i] != 'E') {
+		num = num[:i+1] // "0.93+0.01": the mean
+	}
+	v, ok = parseNumber(num)
+	if !ok {
+		return "", "", 0, false
+	}
+	name := string(f[:colon])
+	if i := strings.Index(name, "'s "); i > 0 {
+		set, metric = name[:i+2], strings.TrimSpace(name[i+3:])
+	} else {
+		// The metric is after the last "-" that leaves it a name
+		// ("validation_0-mlogloss"; "ndcg@5-" keeps its own minus).
+		i := strings.LastIndexByte(name, '-')
+		for i == len(name)-1 && i > 0 {
+			i = strings.LastIndexByte(name[:i], '-')
+		}
+		if i <= 0 {
+			return "", "", 0, false
+		}
+		set, metric = name[:i], name[i+1:]
+	}
+	if set == "" || metric == "" || !column.ValidName(set) || !column.ValidName(metric) {
+		return "", "", 0, false
+	}
+	return set, metric, v, true
+}

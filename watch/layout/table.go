@@ -1,0 +1,241 @@
+package layout
+
+import (
+	"bytes"
+	"strings"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch/column"
+	"github.com/fitgap/fitgap/watch/points"
+)
+
+// Table is a results table aligned with spaces, one row per epoch under a
+// header of names, as high-level training libraries print it:
+//
+//	epoch  train_loss  valid_loss  accuracy  time
+//	0      2.190625    2.063380    0.680556  00:00
+//
+// Cells are found between runs of spaces; a row whose values ran into one
+// another is cut at the header's column starts when that gives numbers,
+// else it is counted as a bad row. Times are "mm:ss" or "h:mm:ss".
+const Table Format = "table"
+
+func init() {
+	register(Layout{Format: Table, Aliases: []string{"aligned"}, Rank: 25,
+		Detect: func(first []byte) bool { return tableHeader(first) != nil },
+		New:    newTableDecoder,
+	})
+}
+
+// tableCell is a run of non-space bytes of a line and where it starts.
+type tableCell struct {
+	text  []byte
+	start int
+}
+
+// tableCells cuts a line at runs of spaces and tabs.
+func tableCells(line []byte, dst []tableCell) []tableCell {
+	for i := 0; i < len(line); {
+		for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
+			i++
+		}
+		start := i
+		for i < len(line) && line[i] != ' ' && line[i] != '\t' {
+			i++
+		}
+		if i > start {
+			dst = append(dst, tableCell{line[start:i], start})
+		}
+	}
+	return dst
+}
+
+// tableHeader returns the cells of a table's header line, or nil: two or
+// more names (no numbers, no "name: value"), the first the epoch or step,
+// another a metric.
+func tableHeader(line []byte) []tableCell {
+	cells := tableCells(line, nil)
+	if len(cells) < 2 {
+		return nil
+	}
+	fields := make([][]byte, len(cells))
+	for i, c := range cells {
+		fields[i] = c.text
+	}
+	if !headerLike(fields) {
+		return nil
+	}
+	if k := column.Parse(string(cells[0].text)).Kind; k != diagnose.KindEpoch && k != diagnose.KindStep {
+		return nil
+	}
+	for _, c := range cells[1:] {
+		if column.Parse(string(c.text)).Kind == diagnose.KindMetric {
+			return cells
+		}
+	}
+	return nil
+}
+
+// guessTableVal is why a table's metric without a split is validation.
+const guessTableVal = "a results table's metric columns beside its training and validation losses are computed on the validation set"
+
+// tableDecoder reads the rows of an aligned table.
+type tableDecoder struct {
+	r      *Reader
+	asm    *points.Assembler
+	header []tableCell
+	names  []string
+	roles  []cellRole
+	colOf  []int
+	cells  []tableCell
+	vals   []float64
+}
+
+func newTableDecoder(r *Reader, first []byte) Decoder {
+	d := &tableDecoder{r: r, asm: r.asm}
+	d.useHeader(tableHeader(first))
+	return d
+}
+
+func (d *tableDecoder) Finish() {}
+
+// useHeader names the columns. A metric column with no split word beside
+// a training loss and a validation loss holds validation values.
+func (d *tableDecoder) useHeader(cells []tableCell) {
+	d.header = cells
+	d.names = make([]string, len(cells))
+	d.roles = make([]cellRole, len(cells))
+	d.colOf = make([]int, len(cells))
+	var trainLoss, valLoss bool
+	cols := make([]diagnose.Column, len(cells))
+	for i, c := range cells {
+		d.names[i] = string(c.text)
+		cols[i] = d.r.roles.Column(d.names[i])
+		if cols[i].Kind == diagnose.KindMetric && cols[i].Dir == diagnose.LowerIsBetter && !cols[i].Rate {
+			trainLoss = trainLoss || cols[i].Split == diagnose.SplitTrain
+			valLoss = valLoss || cols[i].Split == diagnose.SplitVal
+		}
+	}
+	for i, col := range cols {
+		switch {
+		case i == 0 && col.Kind == diagnose.KindEpoch:
+			d.roles[i] = cellEpoch
+		case i == 0 && col.Kind == diagnose.KindStep:
+			d.roles[i] = cellStep
+		case col.Kind == diagnose.KindTime:
+			d.roles[i], d.colOf[i] = cellTime, d.asm.Column(d.names[i])
+		case col.Kind == diagnose.KindMetric && trainLoss && valLoss && col.Split == diagnose.SplitTrain && noSplitWord(d.names[i]):
+			col.Split = diagnose.SplitVal
+			d.colOf[i] = d.asm.ColumnAs(d.names[i], col, guessTableVal)
+		default:
+			d.colOf[i] = d.asm.Column(d.names[i])
+		}
+	}
+	d.asm.ExpectEval()
+	d.r.checkRoles(d.names)
+}
+
+// noSplitWord reports a name without a split word ("accuracy", not
+// "train_acc").
+func noSplitWord(name string) bool {
+	split, _ := column.SplitOf(column.Words(name))
+	return split == diagnose.SplitNone
+}
+
+func (d *tableDecoder) Decode(line []byte, n int) {
+	d.cells = tableCells(line, d.cells[:0])
+	if len(d.cells) == 0 {
+		return
+	}
+	if d.isHeader() {
+		return // the header, or the table printed again
+	}
+	if len(d.cells) < len(d.header) {
+		d.cells = d.cutAtColumns(d.cells)
+	}
+	if len(d.cells) != len(d.header) {
+		d.r.bad(n, "cells do not line up with the header", line)
+		return
+	}
+	if cap(d.vals) < len(d.cells) {
+		d.vals = make([]float64, len(d.cells))
+	}
+	vals := d.vals[:len(d.cells)]
+	for i, c := range d.cells {
+		v, ok := parseNumber(c.text)
+		if !ok && d.roles[i] == cellTime {
+			v, ok = parseClock(c.text)
+		}
+		if !ok {
+			d.r.bad(n, "not a number under "+diagnose.Printable(d.names[i]), line)
+			return
+		}
+		vals[i] = v
+	}
+	a := d.asm
+	a.BeginRow()
+	for i, v := range vals {
+		switch d.roles[i] {
+		case cellEpoch:
+			a.Epoch(v)
+		case cellStep:
+			a.Step(v)
+		case cellTime:
+			a.TimeNumber(d.colOf[i], v)
+		default:
+			a.Value(d.colOf[i], v)
+		}
+	}
+	a.EndRow(n)
+}
+
+// isHeader reports a line with the header's names.
+func (d *tableDecoder) isHeader() bool {
+	if len(d.cells) != len(d.names) {
+		return false
+	}
+	for i, c := range d.cells {
+		if string(c.text) != d.names[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// cutAtColumns cuts cells that ran into the next column at the header's
+// column starts, where the piece before the start reads as a number.
+func (d *tableDecoder) cutAtColumns(cells []tableCell) []tableCell {
+	out := make([]tableCell, 0, len(d.header))
+	for _, c := range cells {
+		for _, h := range d.header {
+			at := h.start - c.start
+			if at <= 0 || at >= len(c.text) {
+				continue
+			}
+			if _, ok := parseNumber(c.text[:at]); !ok {
+				continue
+			}
+			out = append(out, tableCell{c.text[:at], c.start})
+			c = tableCell{c.text[at:], h.start}
+		}
+		out = append(out, c)
+	}
+	return out
+}
+
+// parseClock reads an elapsed time "mm:ss" or "h:mm:ss" as seconds.
+func parseClock(b []byte) (float64, bool) {
+	parts := strings.Split(string(b), ":")
+	if len(parts) < 2 || len(parts) > 3 {
+		return 0, false
+	}
+	secs := 0.0
+	for _, p := range parts {
+		v, ok := parseNumber([]byte(p))
+		if !ok || v < 0 || bytes.IndexAny([]byte(p), "eE+-") >= 0 {
+			return 0, false
+		}
+		secs = secs*60 + v
+	}
+	return secs, true
+}

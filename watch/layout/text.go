@@ -1,0 +1,153 @@
+package layout
+
+import (
+	"bytes"
+	"fmt"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch/column"
+	"github.com/fitgap/fitgap/watch/points"
+)
+
+// Text is the console output of a training script. It is the layout of
+// last resort: detection falls back to it.
+const Text Format = "text"
+
+func init() {
+	register(Layout{Format: Text, Aliases: []string{"txt", "console"}, Rank: 1000,
+		Detect: func([]byte) bool { return true },
+		New:    func(r *Reader, _ []byte) Decoder { return newTextDecoder(r) },
+	})
+}
+
+// textDecoder reads the console output of a training script: pairs
+// "name: value", "name=value" and, after a separator (" - ", "|", ",",
+// ";", a tab, brackets), "name value"; epoch markers "Epoch 3/50",
+// "epoch 3", "[3/50]", "ep 3", "Epoch(val) [3]", scikit-learn's
+// "Iteration 3,"; a split said once for the line ("Test set:",
+// "Epoch(val)") goes into its names. Only the text after the last carriage
+// return of a line counts (progress bars redraw with "\r"), and escape
+// sequences are stripped. Values after an epoch marker and before the next
+// one belong to that epoch and merge into one point: training values are
+// averaged over its lines, evaluation values keep their latest. The point
+// is handed on as soon as it has validation
+// values at the end of a line, and again each time it gains values. Without
+// any marker, a line with validation values closes a point. Lines with no
+// numeric pair are noise.
+type textDecoder struct {
+	r     *Reader
+	asm   *points.Assembler
+	pairs []textPair
+
+	epoch     int
+	haveEpoch bool
+	names     nameKinds
+}
+
+// maxKinds bounds the cache of names: prose can hold endless distinct
+// words before a colon. Unit: names.
+const maxKinds = 4096
+
+// nameKinds caches what column.Parse makes of the console names seen,
+// including names that turn out to be noise (which never become columns),
+// so that a name is parsed once, not on every line. It starts afresh when
+// it holds maxKinds names. A nil cache parses every name.
+type nameKinds struct{ m map[string]diagnose.Kind }
+
+func (c *nameKinds) kind(name string) diagnose.Kind {
+	if c == nil {
+		return column.Parse(name).Kind
+	}
+	if k, ok := c.m[name]; ok {
+		return k
+	}
+	if c.m == nil || len(c.m) >= maxKinds {
+		c.m = make(map[string]diagnose.Kind)
+	}
+	k := column.Parse(name).Kind
+	c.m[name] = k
+	return k
+}
+
+// kind is the Kind of the column a name makes (Roles.Column's), from the
+// cache: an overridden name is a metric whatever it says.
+func (d *textDecoder) kind(name string) diagnose.Kind {
+	if d.r.roles.Forced(name) {
+		return diagnose.KindMetric
+	}
+	return d.names.kind(name)
+}
+
+func newTextDecoder(r *Reader) *textDecoder {
+	return &textDecoder{r: r, asm: r.asm}
+}
+
+func (d *textDecoder) Finish() { d.asm.ClosePoint() }
+
+func (d *textDecoder) Decode(line []byte, n int) {
+	if i := bytes.LastIndexByte(line, '\r'); i >= 0 {
+		line = line[i+1:]
+	}
+	if len(line) == 0 {
+		return
+	}
+	s := diagnose.Printable(string(line))
+	m := findMarker(s)
+	epoch, total, marked := m.epoch, m.total, m.ok
+	var lead int
+	d.pairs, lead = scanPairs(d.pairs[:0], s, &d.names)
+	if ctx := contextPrefix(s, m.mode, lead); ctx != "" {
+		for i := range d.pairs {
+			d.pairs[i].name = ctx + d.pairs[i].name
+		}
+	}
+	a := d.asm
+	// A line counts when it marks an epoch or carries a recognised value;
+	// lines of prose with an incidental number ("Using device cuda: 0")
+	// are noise.
+	evidence := marked
+	for _, p := range d.pairs {
+		if d.kind(p.name) != diagnose.KindOther {
+			evidence = true
+			break
+		}
+	}
+	if !evidence {
+		return
+	}
+	if marked && (!d.haveEpoch || epoch != d.epoch) {
+		back := d.haveEpoch && epoch < d.epoch
+		last := d.epoch
+		a.ClosePoint()
+		if back {
+			a.Resume(fmt.Sprintf("epoch went back from %d to %d at line %d", last, epoch, n))
+		}
+		d.epoch, d.haveEpoch = epoch, true
+		a.OpenPoint(epoch, true)
+	}
+	if marked && total > 0 {
+		a.SetTotal(total)
+	}
+	a.BeginRow()
+	for _, p := range d.pairs {
+		ci := a.Column(p.name)
+		if ci < 0 {
+			continue
+		}
+		switch col := a.Info(ci); col.Kind {
+		case diagnose.KindEpoch:
+			continue // the marker, already read
+		case diagnose.KindStep:
+			a.Step(p.value)
+		case diagnose.KindTime:
+			a.TimeNumber(ci, p.value)
+		default:
+			v := p.value
+			if p.total > 0 && col.Rate {
+				v /= float64(p.total) // "Accuracy: 9893/10000"
+			}
+			a.Value(ci, v)
+		}
+	}
+	a.EndLine(n, !d.haveEpoch)
+}

@@ -1,0 +1,221 @@
+package layout
+
+import (
+	"strings"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch/column"
+)
+
+// marker is an epoch marker found in a line: the epoch, the total when
+// the line gives one ("3/50"), and the mode written in parentheses after
+// the epoch word ("Epoch(val) [3]").
+type marker struct {
+	epoch, total int
+	mode         string
+	ok           bool
+}
+
+// findEpochMarker finds "Epoch 3/50", "epoch: 3", "ep 3", "epoch=3",
+// "Epoch(val) [3][38/38]", "[3/50]" or scikit-learn's "Iteration 3," in a
+// line.
+func findEpochMarker(s string) (epoch, total int, ok bool) {
+	m := findMarker(s)
+	return m.epoch, m.total, m.ok
+}
+
+// findMarker is findEpochMarker with the mode.
+func findMarker(s string) marker {
+	lower := strings.ToLower(s)
+	if e, good := sklearnIteration(lower); good {
+		return marker{epoch: e, ok: true}
+	}
+	for from := 0; from < len(lower); {
+		i := indexWord(lower[from:], "epoch", "ep")
+		if i < 0 {
+			break
+		}
+		i += from
+		j := i
+		for j < len(lower) && lower[j] >= 'a' && lower[j] <= 'z' {
+			j++
+		}
+		if j < len(lower) && lower[j] == 's' {
+			j++
+		}
+		k := j
+		if k < len(lower) && lower[k] == '(' {
+			// "Epoch(val) [3][38/38]": the mode, then the epoch in brackets.
+			if e, mode, good := bracketAfterMode(lower, k); good {
+				return marker{epoch: e, mode: mode, ok: true}
+			}
+		}
+		for k < len(lower) && (lower[k] == ' ' || lower[k] == ':' || lower[k] == '=' || lower[k] == '#') {
+			k++
+		}
+		if e, t, end, good := readFraction(lower, k); good && end > k {
+			return marker{epoch: e, total: t, ok: true}
+		}
+		from = j
+	}
+	// "[3/50]" as the epoch when no word says epoch.
+	if i := strings.IndexByte(s, '['); i >= 0 {
+		if e, t, end, good := readFraction(s, i+1); good && t > 0 && end < len(s) && s[end] == ']' {
+			return marker{epoch: e, total: t, ok: true}
+		}
+	}
+	return marker{}
+}
+
+// indexWord finds the first of the words that stands alone (not inside a
+// longer word, "epochs" allowed).
+func indexWord(s string, words ...string) int {
+	best := -1
+	for _, w := range words {
+		for from := 0; from < len(s); {
+			i := strings.Index(s[from:], w)
+			if i < 0 {
+				break
+			}
+			i += from
+			end := i + len(w)
+			if end < len(s) && s[end] == 's' {
+				end++
+			}
+			before := i == 0 || !isWordByte(s[i-1])
+			after := end == len(s) || !isWordByte(s[end]) || s[end] >= '0' && s[end] <= '9'
+			if before && after {
+				if best < 0 || i < best {
+					best = i
+				}
+				break
+			}
+			from = i + 1
+		}
+	}
+	return best
+}
+
+func isWordByte(c byte) bool {
+	return c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '_'
+}
+
+// readFraction reads "3" or "3/50" (spaces allowed around the slash) at i.
+func readFraction(s string, i int) (n, total, end int, ok bool) {
+	n, end, ok = readInt(s, i)
+	if !ok {
+		return 0, 0, i, false
+	}
+	j := end
+	for j < len(s) && s[j] == ' ' {
+		j++
+	}
+	if j < len(s) && s[j] == '/' {
+		j++
+		for j < len(s) && s[j] == ' ' {
+			j++
+		}
+		if t, e, tok := readInt(s, j); tok {
+			return n, t, e, true
+		}
+	}
+	// An epoch number runs into no letters or decimals ("3.5e", "3rd").
+	if end < len(s) && (isWordByte(s[end]) || s[end] == '.' && end+1 < len(s) && s[end+1] >= '0' && s[end+1] <= '9') {
+		return 0, 0, i, false
+	}
+	return n, 0, end, true
+}
+
+// readInt reads a decimal integer of at most maxIntDigits digits at i; a
+// longer run of digits is no epoch, step count or total.
+func readInt(s string, i int) (n, end int, ok bool) {
+	j := i
+	for j < len(s) && s[j] >= '0' && s[j] <= '9' && j-i < maxIntDigits {
+		n = n*10 + int(s[j]-'0')
+		j++
+	}
+	if j == i || j < len(s) && s[j] >= '0' && s[j] <= '9' {
+		return 0, i, false
+	}
+	return n, j, true
+}
+
+// maxIntDigits bounds the integers of markers and ratios: nine digits
+// hold every epoch below maxEpoch (1e9) and cannot overflow an int.
+// Unit: digits.
+const maxIntDigits = 9
+
+// sklearnIteration reads scikit-learn's verbose line "Iteration 7, loss =
+// 0.3121" (lower-cased): for its stochastic solvers an iteration is one
+// pass over the training data, an epoch.
+// Source: scikit-learn MLPClassifier documentation, max_iter: "For
+// stochastic solvers ('sgd', 'adam'), note that this determines the number
+// of epochs (how many times each data point will be used)" (from memory).
+func sklearnIteration(lower string) (int, bool) {
+	const word = "iteration "
+	if !strings.HasPrefix(lower, word) {
+		return 0, false
+	}
+	e, end, ok := readInt(lower, len(word))
+	return e, ok && end < len(lower) && lower[end] == ','
+}
+
+// bracketAfterMode reads "(mode) [3]" at s[k] == '(' and returns 3 and
+// the mode.
+func bracketAfterMode(s string, k int) (int, string, bool) {
+	paren := strings.IndexByte(s[k:], ')')
+	if paren < 0 {
+		return 0, "", false
+	}
+	i := k + paren + 1
+	for i < len(s) && s[i] == ' ' {
+		i++
+	}
+	if i >= len(s) || s[i] != '[' {
+		return 0, "", false
+	}
+	e, end, ok := readInt(s, i+1)
+	return e, s[k+1 : k+paren], ok && end < len(s) && s[end] == ']'
+}
+
+// maxContextWords bounds a split context ("Test set:", "Validation:"):
+// a longer run of words before a colon is prose. Unit: words.
+const maxContextWords = 3
+
+// contextPrefix finds what split the values of a line belong to when the
+// line says it once, before them, rather than in each name: "Test set:
+// Average loss: 0.05, Accuracy: 9849/10000 (98%)" (a leading "Name:" that
+// names a split and holds no value: lead is the index of that colon, from
+// scanPairs, or -1) or "Epoch(val) [3][38/38] accuracy/top1: 83.0" (mode,
+// from findMarker). It returns the prefix that makes the line's names
+// carry the split ("Test set: ", "val/"), or "".
+func contextPrefix(s, mode string, lead int) string {
+	if mode != "" {
+		if split, rest := column.SplitOf([]string{mode}); split != diagnose.SplitNone && len(rest) == 0 {
+			return mode + "/"
+		}
+		return ""
+	}
+	if lead <= 0 {
+		return ""
+	}
+	name := strings.TrimSpace(s[:lead])
+	words := strings.Fields(strings.ToLower(name))
+	if len(words) == 0 || len(words) > maxContextWords || !column.ValidName(name) {
+		return ""
+	}
+	split, rest := column.SplitOf(words)
+	if split == diagnose.SplitNone {
+		return ""
+	}
+	for _, w := range rest {
+		if !contextWords[w] {
+			return ""
+		}
+	}
+	return name + ": "
+}
+
+// contextWords may stand beside the split word in a context: "Test set:",
+// "Validation results:".
+var contextWords = map[string]bool{"set": true, "results": true, "metrics": true, "split": true, "data": true}

@@ -1,0 +1,174 @@
+package tail
+
+import (
+	"bytes"
+	"context"
+)
+
+// PieceBytes is the nominal size of one piece of a backlog: large
+// enough that the per-piece costs (a goroutine, the decoder's sync line,
+// the merge) vanish, small enough that the pieces in flight (two per
+// core, each in its own buffer) stay in the caches and cost few page
+// faults; 256 KiB measured fastest among 128 KiB to 2 MiB on the
+// generated 1,000,000-line log (bench/ingest.sh). Tests lower it to cut
+// small files into many pieces. Unit: bytes.
+var PieceBytes = 256 << 10
+
+const (
+	// PieceSlack is how far past its nominal end a piece is read to find
+	// the end of its last line. A longer line stops the parallel path
+	// there (the sink's sequential path deals with long lines). Unit:
+	// bytes.
+	PieceSlack = 64 << 10
+	// tailProbe is how much of the end of the backlog is read to find its
+	// last line end before the pieces are cut (less than ReadChunk, the
+	// buffer it is read into). Unit: bytes.
+	tailProbe = 64 << 10
+)
+
+// parallel reports whether the backlog before size is read by the
+// parallel path: several cores, a sink that can decode ahead now, and at
+// least a piece per core left, so that a live append is read as it comes,
+// sequentially.
+func (t *File) parallel(sink Sink, size int64) bool {
+	if t.procs < 2 || size-t.offset < int64(t.procs*PieceBytes) {
+		return false
+	}
+	a, ok := sink.(Ahead)
+	return ok && a.ReadsAhead()
+}
+
+// piece is one part of the backlog, read and decoded by a worker: the
+// lines that start in its nominal range of PieceBytes (the first piece
+// starts at the read offset, maybe inside a line the ingester holds).
+type piece struct {
+	buf        []byte
+	data       []byte // the piece's lines, in buf
+	start, end int64  // file offsets of data
+	work       Piece  // nil: fed as bytes
+	ok         bool   // read whole, both ends found
+}
+
+// readBacklog reads the file from t.offset to its last line end before
+// size on t.procs workers. Each worker reads its own piece (so the copying
+// is parallel too) and decodes it ahead; the sink merges the pieces in
+// order. At most 2 pieces per core are in flight, each with its buffer.
+// A piece whose read came short (the file shrank) or whose last line ends
+// beyond PieceSlack stops the parallel path at its start; the sequential
+// loop goes on from t.offset. False when ctx ended while a batch was being
+// handed on.
+func (t *File) readBacklog(ctx context.Context, sink Sink, size int64) bool {
+	ahead := sink.(Ahead)
+	end := t.lastLineEnd(size)
+	chunk := int64(PieceBytes)
+	if end-t.offset < chunk*int64(t.procs) {
+		return true
+	}
+	from := t.offset
+	count := int((end - from + chunk - 1) / chunk)
+	limit := 2 * t.procs
+	results := make([]chan *piece, count)
+	free := make(chan []byte, limit)
+	for range limit {
+		free <- nil
+	}
+	next := 0
+	start := func() {
+		buf := <-free
+		if cap(buf) < PieceBytes+PieceSlack+1 {
+			buf = make([]byte, PieceBytes+PieceSlack+1)
+		}
+		ch := make(chan *piece, 1)
+		results[next] = ch
+		lo := from + int64(next)*chunk
+		p := &piece{buf: buf, work: ahead.Piece()}
+		go func() {
+			t.readPiece(p, from, lo, min(lo+chunk, end), end)
+			ch <- p
+		}()
+		next++
+	}
+	stop := func(j int) {
+		for k := j; k < next; k++ {
+			<-results[k]
+		}
+	}
+	for j := range count {
+		for next < count && next-j < limit {
+			start()
+		}
+		p := <-results[j]
+		if !p.ok || p.start != t.offset || ctx.Err() != nil {
+			stop(j + 1)
+			return ctx.Err() == nil
+		}
+		if p.work != nil {
+			p.work.Merge(p.data)
+		} else {
+			sink.Feed(p.data)
+		}
+		t.offset = p.end
+		free <- p.buf
+		if !sink.Flush(ctx, IfFull) {
+			stop(j + 1)
+			return false
+		}
+	}
+	return true
+}
+
+// lastLineEnd returns the offset after the last newline before size, or
+// t.offset when the last tailProbe bytes hold none.
+func (t *File) lastLineEnd(size int64) int64 {
+	lo := max(t.offset, size-tailProbe)
+	buf := t.buf[:size-lo] // tailProbe < readChunk
+	n, _ := t.f.ReadAt(buf, lo)
+	if i := bytes.LastIndexByte(buf[:n], '\n'); i >= 0 {
+		return lo + int64(i) + 1
+	}
+	return t.offset
+}
+
+// readPiece reads the piece whose lines start in [lo, hi) (from the first
+// line start at or after lo; at from itself for the first piece), up to the
+// first line start at or after hi (end, the backlog's end, for the last),
+// and decodes it when p.work is set.
+func (t *File) readPiece(p *piece, from, lo, hi, end int64) {
+	at := lo
+	if lo > from {
+		at = lo - 1 // a line starts at lo if the byte before is a newline
+	}
+	want := min(hi+PieceSlack, end) - at
+	buf := p.buf[:want]
+	if n, _ := t.f.ReadAt(buf, at); int64(n) < want {
+		return
+	}
+	// The piece's first line: the first after a newline in [at, hi).
+	first := 0
+	if lo > from {
+		i := bytes.IndexByte(buf[:hi-at], '\n')
+		if i < 0 {
+			first = -1 // no line starts here: the piece is empty
+		} else {
+			first = i + 1
+		}
+	}
+	// Its end: the first line start at or after hi.
+	last := int(want)
+	if hi < end {
+		i := bytes.IndexByte(buf[hi-1-at:], '\n')
+		if i < 0 {
+			return // a line longer than PieceSlack
+		}
+		last = int(hi-1-at) + i + 1
+	}
+	if first < 0 {
+		first = last
+	}
+	p.data = buf[first:last:last]
+	p.start, p.end = at+int64(first), at+int64(last)
+	p.ok = true
+	if p.work != nil {
+		p.work.Decode(p.data)
+	}
+}
