@@ -8,7 +8,6 @@ import (
 	"unicode/utf8"
 
 	"github.com/fitgap/fitgap/diagnose"
-	"github.com/fitgap/fitgap/watch/column"
 	"github.com/fitgap/fitgap/watch/points"
 )
 
