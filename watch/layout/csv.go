@@ -4,12 +4,10 @@ import (
 	"bytes"
 	"fmt"
 	"strconv"
-	"strings"
 	"time"
 	"unicode/utf8"
 
 	"github.com/fitgap/fitgap/diagnose"
-	"github.com/fitgap/fitgap/watch/column"
 	"github.com/fitgap/fitgap/watch/points"
 )
 
@@ -396,66 +394,6 @@ func (d *csvDecoder) textRow(line []byte, fields [][]byte, n int) {
 		reason = fmt.Sprintf("not a row of the header's %d columns", len(d.names))
 	}
 	d.r.bad(n, reason, line)
-}
-
-// looksLikeHeader reports a new header in the middle of the log: it passes
-// the tests of the first one (headerLike: names, no numbers, no "name:
-// value" pairs), at least one name is a known column or a recognised
-// epoch, step or metric, and it matches the segment it restarts: as many
-// columns, or all the columns it had and more. A console line that merely
-// mentions a metric ("val_loss improved from 0.41 to 0.39") fails.
-func (d *csvDecoder) looksLikeHeader(fields [][]byte) bool {
-	if !headerLike(fields) {
-		return false
-	}
-	known := false
-	have := make(map[string]bool, len(fields))
-	for _, f := range fields {
-		name := string(bytes.TrimSpace(f))
-		if name == "" {
-			continue
-		}
-		have[name] = true
-		if d.asm.Known(name) {
-			known = true
-			continue
-		}
-		if c := column.Parse(name); c.Kind != diagnose.KindOther {
-			known = true
-		}
-	}
-	if !known {
-		return false
-	}
-	if len(fields) == len(d.names) {
-		return true
-	}
-	for _, n := range d.names {
-		if !have[n] && !strings.HasPrefix(n, "column ") {
-			return false
-		}
-	}
-	return len(fields) > len(d.names)
-}
-
-// hasText reports a field that holds words: not empty, not a number, a
-// decimal comma or a time stamp.
-func (d *csvDecoder) hasText(fields [][]byte, cells []cell) bool {
-	for i, f := range fields {
-		if cells[i].ok || len(bytes.TrimSpace(f)) == 0 {
-			continue
-		}
-		if d.recs.delim == ';' {
-			if _, ok := d.decimalComma(f); ok {
-				continue
-			}
-		}
-		if _, ok := parseTime(f); ok {
-			continue
-		}
-		return true
-	}
-	return false
 }
 
 // extraColumns gives names to cells beyond the header ("column 8"), so

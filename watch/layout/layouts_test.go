@@ -57,6 +57,8 @@ func TestPyDict(t *testing.T) {
 		{"Literals", `{'epoch': 1, "loss": np.float64(0.5), 'acc': tensor(0.75, device='cuda:0'), 'best': True, 'note': None, ` +
 			`'tags': ['a', "b's"], 'val': {'loss': nan, 'acc': np.float32(-inf)}, 'name': 'run \'1\'', 2: 3}` + "\n",
 			PyDict, []int{1}, map[string]float64{"loss": 0.5, "acc": 0.75, "val/loss": math.NaN(), "val/acc": math.Inf(-1)}, 0},
+		{"Escapes", "{'epoch': 1, 'l\\x6fss': 0.5, 'val\\u005facc': 0.7, 'a\\qb': 1}\n", PyDict, []int{1},
+			map[string]float64{"loss": 0.5, "val_acc": 0.7, "aqb": 1}, 0},
 		{"BadLine", "{'epoch': 1, 'loss': 0.5}\n{'epoch': 2, 'loss': }\n{'epoch': 3, 'loss': 0.3}\n", PyDict, []int{1, 3},
 			map[string]float64{"loss": 0.3}, 1},
 	})

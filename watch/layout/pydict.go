@@ -338,17 +338,14 @@ func (d *pyDictDecoder) strSlow(q byte, start int) ([]byte, error) {
 				out = append(out, '\n')
 			case 't':
 				out = append(out, '\t')
-			case 'x':
-				if r, ok := hexDigits(d.p[i+1:], 2); ok {
-					out = utf8.AppendRune(out, r)
-					i += 2
-					continue
+			case 'x', 'u':
+				n := 2 // \xHH, \uHHHH
+				if e == 'u' {
+					n = 4
 				}
-				out = append(out, '\\', e)
-			case 'u':
-				if r, ok := hexDigits(d.p[i+1:], 4); ok {
+				if r, ok := hexDigits(d.p[i+1:], n); ok {
 					out = utf8.AppendRune(out, r)
-					i += 4
+					i += n
 					continue
 				}
 				out = append(out, '\\', e)
