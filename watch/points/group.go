@@ -273,8 +273,16 @@ func (a *Assembler) NewSegment() {
 }
 
 // SetTotal records the run's planned number of epochs ("Epoch 3/50") on
-// the open point.
-func (a *Assembler) SetTotal(total int) { a.g.total = total }
+// the open point. A new total is a change to hand on, even to a point
+// handed on already: otherwise what the reader shows would depend on
+// whether the writer's line that brought the total came in the same read
+// as the point's values.
+func (a *Assembler) SetTotal(total int) {
+	if total != a.g.total {
+		a.g.total = total
+		a.g.dirty = true
+	}
+}
 
 // EndLine files the current row of a console line into the open point,
 // opening one numbered by order when none is open (a log without epoch
