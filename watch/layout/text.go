@@ -84,6 +84,9 @@ func newTextDecoder(r *Reader) *textDecoder {
 
 func (d *textDecoder) Finish() { d.asm.ClosePoint() }
 
+// lastSegment: only the text after a line's last carriage return counts.
+func (d *textDecoder) lastSegment() bool { return true }
+
 func (d *textDecoder) Decode(line []byte, n int) {
 	if i := bytes.LastIndexByte(line, '\r'); i >= 0 {
 		line = line[i+1:]
