@@ -140,6 +140,7 @@ type Reader struct {
 func NewReader(out points.Out, c Config) *Reader {
 	r := &Reader{out: out, forced: c.Format, format: c.Format, roles: column.NewRoles(c.Roles)}
 	r.asm = points.New(out, r.roles, c.Steps)
+	r.asm.OnBad(func(line int, reason string) { r.bad(line, reason, nil) })
 	return r
 }
 

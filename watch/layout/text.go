@@ -96,6 +96,10 @@ func (d *textDecoder) Decode(line []byte, n int) {
 	}
 	s := diagnose.Printable(string(line))
 	m := findMarker(s)
+	if m.bad != "" {
+		d.r.bad(n, m.bad, line)
+		return
+	}
 	epoch, total, marked := m.epoch, m.total, m.ok
 	var lead int
 	d.pairs, lead = scanPairs(d.pairs[:0], s, &d.names)

@@ -9,6 +9,9 @@ import (
 
 // EndRow files the current row into a point.
 func (a *Assembler) EndRow(line int) {
+	if a.dropBad(line) {
+		return
+	}
 	if len(a.row) == 0 && !a.rowHasEpoch && !a.rowHasStep {
 		return
 	}
@@ -292,6 +295,9 @@ func (a *Assembler) SetTotal(total int) {
 // when closeOnEval is set (without markers, a validation line ends the
 // point). A row without any value or step files nothing.
 func (a *Assembler) EndLine(line int, closeOnEval bool) {
+	if a.dropBad(line) {
+		return
+	}
 	if len(a.row) == 0 && !a.rowHasStep {
 		return
 	}
