@@ -66,6 +66,10 @@ type group struct {
 	hasEval     bool
 	emitted     bool // handed on at least once
 	dirty       bool // changed since it was last handed on
+	// provisional: last handed on only because the read paused
+	// (Provisional), which depends on how the writer's bytes were split;
+	// rules that look at what was handed on ignore such a hand-on.
+	provisional bool
 }
 
 // Assembler turns rows of named values into evaluation points. It owns the

@@ -65,7 +65,7 @@ func (a *Assembler) EndRow(line int) {
 // the validation loss it saved on). It makes no point and changes none.
 func (a *Assembler) echoes(e int) bool {
 	g := &a.g
-	if !g.open || !g.epochLogged || !g.emitted || e != g.epoch || len(a.row) == 0 || len(a.row) >= len(a.touched) {
+	if !g.open || !g.epochLogged || !g.emitted || g.provisional || e != g.epoch || len(a.row) == 0 || len(a.row) >= len(a.touched) {
 		return false
 	}
 	if a.rowHasStep && int64(a.rowStep) > g.step {
@@ -213,7 +213,7 @@ func (a *Assembler) emit() {
 		}
 		p.Samples = append(p.Samples, diagnose.Sample{Column: c.col, Value: v, Last: c.last})
 	}
-	g.emitted, g.dirty = true, false
+	g.emitted, g.dirty, g.provisional = true, false, false
 	a.lastEpoch, a.haveLast = g.epoch, true
 	a.out.Point(p)
 }
@@ -247,8 +247,9 @@ func (a *Assembler) ClosePoint() {
 // training-only log shows its latest values without waiting for the next
 // epoch; the next hand-on of the same point replaces it.
 func (a *Assembler) Provisional() {
-	if a.g.open && !a.evalSeen && !a.evalExpected {
+	if a.g.open && !a.evalSeen && !a.evalExpected && a.g.dirty {
 		a.emit()
+		a.g.provisional = true
 	}
 }
 
