@@ -255,3 +255,24 @@ func TestFile_RotatedCopyRead(t *testing.T) {
 		})
 	}
 }
+
+// TestFile_RotatedCopyReadAfterRegrowth: a copytruncate whose writer went
+// on past the old offset before the reader looked (so no shrink is seen)
+// still has the rows the copy holds past the offset read.
+func TestFile_RotatedCopyReadAfterRegrowth(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "run.log")
+	seen, missed, after := "epoch,loss,val_loss,note\n"+rows(1, 5, "a"), rows(6, 8, "a"), rows(9, 30, "a")
+	watchtest.WriteRaw(t, path, seen)
+	r, look := manual(t, path, Options{Poll: time.Second})
+	r.waitData(t, seen)
+	watchtest.WriteRaw(t, path, missed)
+	watchtest.CopyTruncate(t, path)
+	watchtest.WriteRaw(t, path, after) // longer than what was read
+	look()
+	r.waitData(t, after)
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	if got, want := r.all.String(), seen+missed+after; got != want {
+		t.Errorf("fed %d bytes, want %d", len(got), len(want))
+	}
+}

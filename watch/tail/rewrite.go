@@ -72,15 +72,18 @@ func holds(f io.ReaderAt, want []byte, at int64) bool {
 }
 
 // changed compares the open file, as fstat found it, with what was read:
-// a file shorter than the offset was truncated (and maybe rotated: the
-// rows it held last are read from the rotated copy first), a file whose
-// windows changed was rewritten; either is read again from its start.
+// a file shorter than the offset was truncated, a file whose windows
+// changed was rewritten; either is read again from its start, after the
+// rows a rotated copy holds past the offset, if there is one.
 func (t *File) changed(sink Sink, fi os.FileInfo) {
 	switch {
 	case fi.Size() < t.offset:
 		t.readRotated(sink)
 		t.restart(sink, t.name+" truncated: reading from the start")
 	case t.offset > 0 && !t.kept.hold(t.f, t.offset):
+		// A copytruncate whose writer went on past the offset before the
+		// reader looked reads as a rewrite: its copy is read all the same.
+		t.readRotated(sink)
 		t.restart(sink, t.name+" rewritten in place: reading from the start")
 	}
 }
