@@ -108,6 +108,7 @@ func main() {
 	}
 	if failed > 0 {
 		fmt.Fprintf(os.Stderr, "faults: %d scenario(s) broke a guarantee\n", failed)
+		os.RemoveAll(root) // os.Exit runs no deferred call
 		os.Exit(1)
 	}
 }
