@@ -77,24 +77,3 @@ func writeTemp(path string, data []byte) (string, error) {
 	}
 	return f.Name(), nil
 }
-
-// NotTheLog refuses an output path that is the log being read (log; "" or
-// "-" for none): fitgap never writes over the log. Two paths are the same
-// when they clean to the same absolute path, or name the same file.
-func NotTheLog(out, log string) error {
-	if log == "" || log == "-" {
-		return nil
-	}
-	a, errA := filepath.Abs(out)
-	b, errB := filepath.Abs(log)
-	same := errA == nil && errB == nil && a == b
-	if !same {
-		so, err1 := os.Stat(out)
-		sl, err2 := os.Stat(log)
-		same = err1 == nil && err2 == nil && os.SameFile(so, sl)
-	}
-	if same {
-		return fmt.Errorf("%s is the log being read; fitgap never writes to it (choose another path)", out)
-	}
-	return nil
-}

@@ -60,10 +60,11 @@ type Options struct {
 type Run struct {
 	opts Options
 
-	mu       sync.Mutex // guards tracker and stats
+	mu       sync.Mutex // guards tracker, stats and notices
 	tracker  *diagnose.Tracker
 	stats    watch.Stats
-	finished bool // WriterDone was closed
+	notices  noticeLog // the reader's notices, for the summary
+	finished bool      // WriterDone was closed
 }
 
 // New returns a run with no point judged yet.
@@ -113,6 +114,7 @@ func (r *Run) Apply(b watch.Batch) Update {
 	stopAt := -1 // the first point of the batch that says stop, for the stop file
 	r.mu.Lock()
 	r.stats = b.Stats
+	r.notices.add(b.Notices)
 	u.Stats = r.statsLocked()
 	if len(b.Points) > 0 {
 		u.Judgements = make([]diagnose.Judgement, 0, len(b.Points))
@@ -154,6 +156,7 @@ func (r *Run) Load(b watch.Batch) {
 	r.mu.Lock()
 	defer r.mu.Unlock()
 	r.stats = b.Stats
+	r.notices.add(b.Notices)
 	for _, p := range b.Points {
 		r.tracker.Push(p)
 	}

@@ -2,11 +2,6 @@ package pipeline
 
 import (
 	"encoding/json"
-	"errors"
-	"fmt"
-	"io/fs"
-	"os"
-	"path/filepath"
 
 	"github.com/fitgap/fitgap/diagnose"
 )
@@ -22,19 +17,10 @@ type StopFile struct {
 
 // OpenStopFile checks a stop file's path before the run starts. It refuses
 // a path that exists already (it is not ours, and a training loop polling
-// it would stop at once), a directory that does not exist, and the log's
-// own path (log).
+// it would stop at once), a directory that does not exist or takes no new
+// file, and the log's own path (log).
 func OpenStopFile(path, log string) (*StopFile, error) {
-	if _, err := os.Lstat(path); err == nil {
-		return nil, fmt.Errorf("%s already exists; fitgap does not overwrite a file it did not create (remove it, or choose another path)", path)
-	} else if !errors.Is(err, fs.ErrNotExist) {
-		return nil, fmt.Errorf("%s: %w", path, err)
-	}
-	dir := filepath.Dir(path)
-	if st, err := os.Stat(dir); err != nil || !st.IsDir() {
-		return nil, fmt.Errorf("%s: directory %s does not exist", path, dir)
-	}
-	if err := NotTheLog(path, log); err != nil {
+	if err := checkOutput(Output{Path: path, Fresh: true}, log); err != nil {
 		return nil, err
 	}
 	return &StopFile{path: path}, nil

@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"os"
 	"path/filepath"
 	"strings"
 	"time"
@@ -24,7 +25,9 @@ func (r *Run) Summary() report.Summary {
 }
 
 func (r *Run) summaryLocked() report.Summary {
-	return report.Build(sourceOf(r.opts.Name, r.stats, r.tracker.Len()), r.tracker)
+	src := sourceOf(r.opts.Name, r.stats, r.tracker.Len())
+	src.Warnings = append(src.Warnings, r.notices.warnings()...)
+	return report.Build(src, r.tracker)
 }
 
 // sourceOf describes the log for the summary.
@@ -78,16 +81,27 @@ func WriteSummary(w io.Writer, s report.Summary, asJSON bool) error {
 }
 
 // SaveSummary writes the summary file atomically: JSON when the name ends
-// in .json, Markdown otherwise. It refuses the log's own path (log).
-func SaveSummary(path, log string, s report.Summary) error {
+// in .json, Markdown otherwise. It refuses the log's own path (log), the
+// other outputs of the run (others: the stop file) and anything but a
+// regular file; a symbolic link is followed, not replaced.
+func SaveSummary(path, log string, s report.Summary, others ...string) error {
 	if err := NotTheLog(path, log); err != nil {
 		return err
+	}
+	for _, o := range others {
+		if o != "" && samePath(path, o) {
+			return fmt.Errorf("%s is also the stop file; fitgap does not write the summary over it (choose another path)", printable(path))
+		}
+	}
+	target := resolve(path)
+	if fi, err := os.Stat(target); err == nil && !fi.Mode().IsRegular() {
+		return fmt.Errorf("write %s: not a regular file (%v)", printable(path), fi.Mode().Type())
 	}
 	b, err := SummaryBytes(s, strings.EqualFold(filepath.Ext(path), ".json"))
 	if err != nil {
 		return err
 	}
-	return writeFileAtomic(path, b)
+	return writeFileAtomic(target, b)
 }
 
 // followLine is one line of `fitgap follow`: the summary as of a point

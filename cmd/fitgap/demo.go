@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/pipeline"
 	"github.com/fitgap/fitgap/trainer"
 	"github.com/fitgap/fitgap/watch"
 )
@@ -112,6 +113,12 @@ func writeDemoLog(ctx context.Context, e *env, cfg trainer.Config, path string) 
 }
 
 func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format string, scr screenFlags) error {
+	// The outputs are checked before anything is trained; runScreen checks
+	// them again against the log once it is named.
+	outs := screenOutputs{summary: scr.summary, stop: scr.stopFile}
+	if err := checkOutputs(pipeline.Source{}, outs.flags()...); err != nil {
+		return err
+	}
 	dir, err := os.MkdirTemp("", "fitgap-demo-")
 	if err != nil {
 		return fmt.Errorf("demo: %w", err)

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -45,6 +46,9 @@ Exit status 0 at the end of a pipe, after --idle-exit or --exit-on-stop;
 				return usageErrorf("--idle-exit: must not be negative, got %s", idleExit)
 			}
 			src := pipeline.Source{Path: path, Stdin: e.stdin, Read: opts}
+			if err := checkOutputs(src, pipeline.Output{Flag: "--stop-file", Path: stopPath, Fresh: true}); err != nil {
+				return err
+			}
 			stop, err := openStopFile(stopPath, src)
 			if err != nil {
 				return err
@@ -71,8 +75,8 @@ Exit status 0 at the end of a pipe, after --idle-exit or --exit-on-stop;
 	},
 }
 
-// printer writes follow's output: one JSON line per judged point, and a
-// note on stderr when the stop file is created.
+// printer writes follow's output: one JSON line per judged point, and on
+// stderr the reader's notices and a note when the stop file is created.
 type printer struct {
 	out, errOut io.Writer
 	now         func() time.Time
@@ -80,8 +84,8 @@ type printer struct {
 }
 
 // print writes an update's lines in one write, so each batch is flushed at
-// once, then reports the stop file. A stop file that cannot be created
-// ends the run: a training loop is waiting for it.
+// once, then its notices and the stop file's outcome. A stop file that
+// cannot be created ends the run: a training loop is waiting for it.
 func (p *printer) print(u pipeline.Update) error {
 	p.buf = p.buf[:0]
 	at := p.now()
@@ -96,9 +100,12 @@ func (p *printer) print(u pipeline.Update) error {
 			return err
 		}
 	}
+	for _, n := range u.Notices {
+		fmt.Fprintln(p.errOut, "fitgap: "+diagnose.Printable(n.Text))
+	}
 	if ev := u.Stop; ev != nil {
 		if ev.Err != nil {
-			return ev.Err
+			return errors.New(stopFailure(ev))
 		}
 		fmt.Fprintf(p.errOut, "fitgap: stop signal at epoch %d (restore epoch %d): created %s\n",
 			ev.Epoch, ev.BestEpoch, diagnose.Printable(ev.Path))

@@ -347,3 +347,52 @@ func writeFile(t *testing.T, path, content string) {
 		t.Fatal(err)
 	}
 }
+
+// TestFollow_KeepsSignalsIgnoredAtStart: a follow started with SIGHUP
+// ignored (nohup, a job a shell put in the background) keeps ignoring it,
+// as the user asked; SIGTERM still ends it.
+func TestFollow_KeepsSignalsIgnoredAtStart(t *testing.T) {
+	t.Parallel()
+	logPath := filepath.Join(t.TempDir(), "run.csv")
+	writeFile(t, logPath, "epoch,loss,val_loss\n1,1.0,1.1\n")
+	f := exec.Command("sh", "-c", `trap '' HUP; exec "$0" follow "$1"`, binPath, logPath)
+	var stderr bytes.Buffer
+	f.Stderr = &stderr
+	out, err := f.StdoutPipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := f.Start(); err != nil {
+		t.Fatal(err)
+	}
+	guard := time.AfterFunc(60*time.Second, func() { f.Process.Kill() })
+	defer guard.Stop()
+	sc := bufio.NewScanner(out)
+	if !sc.Scan() {
+		t.Fatalf("follow printed nothing: %s", stderr.String())
+	}
+	f.Process.Signal(syscall.SIGHUP)
+	writeFileAppend(t, logPath, "2,0.9,1.0\n") // a line after the hangup is still read
+	if !sc.Scan() || !strings.Contains(sc.Text(), `"epoch":2`) {
+		t.Fatalf("follow ended on an ignored SIGHUP: %s", stderr.String())
+	}
+	f.Process.Signal(syscall.SIGTERM)
+	for sc.Scan() {
+	}
+	f.Wait()
+	if code := f.ProcessState.ExitCode(); code != exitTerminated {
+		t.Errorf("exit %d after SIGTERM, want %d", code, exitTerminated)
+	}
+}
+
+func writeFileAppend(t *testing.T, path, content string) {
+	t.Helper()
+	f, err := os.OpenFile(path, os.O_APPEND|os.O_WRONLY, 0o644)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	if _, err := f.WriteString(content); err != nil {
+		t.Fatal(err)
+	}
+}

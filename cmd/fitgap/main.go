@@ -44,6 +44,7 @@ type env struct {
 // run is main without the process: it returns an error that exitCode maps
 // to the process status, and never calls os.Exit.
 func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) error {
+	stderr = printableLines{stderr}
 	e := &env{stdin: stdin, stdout: stdout, stderr: stderr}
 	if len(args) == 0 {
 		fmt.Fprint(stderr, topUsage())

@@ -80,21 +80,19 @@ const defaultSummaryFile = "fitgap-summary.md"
 // user quits or a signal ends it, then prints the summary and writes the
 // summary file.
 func runScreen(ctx context.Context, e *env, spec screenSpec) error {
-	stdout, ok := e.stdout.(*os.File)
-	if !ok {
-		return &noTerminalError{err: errors.New("standard output is not a file")}
-	}
 	spec.opts.Steps = true
 	src := pipeline.Source{Path: spec.path, Stdin: e.stdin, Read: spec.opts}
-	stop, err := openStopFile(spec.flags.stopFile, src)
+	outs := screenOutputs{log: src.Log(), summary: spec.flags.summary, stop: spec.flags.stopFile}
+	if err := checkOutputs(src, outs.flags()...); err != nil {
+		return err
+	}
+	stop, err := openStopFile(outs.stop, src)
 	if err != nil {
 		return err
 	}
-	summaryPath := spec.flags.summary
-	if summaryPath != "" {
-		if err := pipeline.NotTheLog(summaryPath, src.Log()); err != nil {
-			return usageErrorf("--summary %v", err)
-		}
+	stdout, ok := e.stdout.(*os.File)
+	if !ok {
+		return &noTerminalError{err: errors.New("standard output is not a file")}
 	}
 	closes := make(chan tui.ExitReason, 2)
 	sigs := catchSignals(func(s syscall.Signal) {
@@ -125,11 +123,11 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 		BayesNote: spec.bayesNote,
 		NoColor:   spec.flags.noColor || os.Getenv("NO_COLOR") != "",
 		SaveSummary: func(s report.Summary) (string, error) {
-			p := summaryPath
+			p := outs.summary
 			if p == "" {
 				p = defaultSummaryFile
 			}
-			return p, pipeline.SaveSummary(p, src.Log(), s)
+			return p, pipeline.SaveSummary(p, outs.log, s, outs.stop)
 		},
 	})
 	final, reason, err := tui.Run(ctx, m, feed, closes, stdout)
@@ -144,19 +142,45 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 	if err != nil {
 		return err
 	}
-	sum := final.Summary()
-	var fileErr error
-	if summaryPath != "" {
-		fileErr = pipeline.SaveSummary(summaryPath, src.Log(), sum)
+	if stopErr != nil {
+		fmt.Fprintln(e.stderr, "fitgap: "+diagnose.Printable(stopErr.Error()))
 	}
-	if reason != tui.ExitHangup {
-		// After a hangup the terminal is gone: only the file is kept.
+	return finishScreen(e, final.Summary(), reason, outs)
+}
+
+// screenOutputs are the paths the screen's commands write besides standard
+// output, and the log none of them may land on.
+type screenOutputs struct {
+	log     string // "" for a stream
+	summary string // --summary, "" for none
+	stop    string // --stop-file, "" for none
+}
+
+// flags lists the outputs as given on the command line, for the checks at
+// start.
+func (o screenOutputs) flags() []pipeline.Output {
+	return []pipeline.Output{
+		{Flag: "--summary", Path: o.summary},
+		{Flag: "--stop-file", Path: o.stop, Fresh: true},
+	}
+}
+
+// finishScreen writes the summary once the screen has closed: to the
+// --summary file, and to standard output unless the terminal hung up. A
+// summary file that cannot be written (its directory went away during
+// the run) is the command's error, and the summary then goes to standard
+// output whatever the reason, so that it is not lost: after a hangup
+// standard output may still be a file or a pipe. Otherwise the status is
+// the reason's.
+func finishScreen(e *env, sum report.Summary, reason tui.ExitReason, outs screenOutputs) error {
+	var fileErr error
+	if outs.summary != "" {
+		fileErr = pipeline.SaveSummary(outs.summary, outs.log, sum, outs.stop)
+	}
+	if reason != tui.ExitHangup || fileErr != nil {
 		if err := pipeline.WriteSummary(e.stdout, sum, false); err != nil && fileErr == nil {
 			fileErr = err
 		}
-	}
-	if stopErr != nil {
-		fmt.Fprintln(e.stderr, "fitgap: "+diagnose.Printable(stopErr.Error()))
 	}
 	if fileErr != nil {
 		return fileErr
@@ -193,11 +217,15 @@ func relay(ctx context.Context, run *pipeline.Run, batches <-chan watch.Batch, f
 	return stopErr
 }
 
-// screenFeed is an update in the screen's terms.
+// screenFeed is an update in the screen's terms. A stop file that could
+// not be created is said with the update that reached stop, at once.
 func screenFeed(run *pipeline.Run, u pipeline.Update) tui.FeedMsg {
-	notices := make([]string, len(u.Notices))
+	notices := make([]string, len(u.Notices), len(u.Notices)+1)
 	for i, n := range u.Notices {
 		notices[i] = n.Text
+	}
+	if u.Stop != nil && u.Stop.Err != nil {
+		notices = append(notices, diagnose.Printable(stopFailure(u.Stop)))
 	}
 	examples := make([]string, len(u.Stats.Examples))
 	for i, x := range u.Stats.Examples {
@@ -234,7 +262,22 @@ func sourceState(s watch.State) tui.SourceState {
 	return tui.Live
 }
 
-// openStopFile checks the --stop-file path, if any, before anything runs.
+// stopFailure says that the stop file was not created, and why.
+func stopFailure(ev *pipeline.StopEvent) string {
+	return fmt.Sprintf("stop signal at epoch %d (restore epoch %d), but the stop file %s was not created: %v",
+		ev.Epoch, ev.BestEpoch, ev.Path, ev.Err)
+}
+
+// checkOutputs checks every output path a command was given before
+// anything runs: a problem is a usage error.
+func checkOutputs(src pipeline.Source, outs ...pipeline.Output) error {
+	if err := pipeline.CheckOutputs(src.Log(), outs...); err != nil {
+		return usageErrorf("%v", err)
+	}
+	return nil
+}
+
+// openStopFile makes the --stop-file, if any, once its path is checked.
 func openStopFile(path string, src pipeline.Source) (*pipeline.StopFile, error) {
 	if path == "" {
 		return nil, nil

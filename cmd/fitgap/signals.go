@@ -25,7 +25,9 @@ type signals struct {
 // goroutine, for each signal caught until stop.
 func catchSignals(on func(syscall.Signal)) *signals {
 	s := &signals{ch: make(chan os.Signal, 2), done: make(chan struct{}), ended: make(chan struct{})}
-	signal.Notify(s.ch, syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP)
+	if sigs := caughtSignals(); len(sigs) > 0 { // none would mean every signal
+		signal.Notify(s.ch, sigs...)
+	}
 	go func() {
 		defer close(s.ended)
 		for {
@@ -40,6 +42,20 @@ func catchSignals(on func(syscall.Signal)) *signals {
 		}
 	}()
 	return s
+}
+
+// caughtSignals are SIGINT, SIGTERM and SIGHUP, less those ignored when
+// the process started: `nohup fitgap follow …` asked to survive the
+// hangup, and a shell starts a background job with SIGINT ignored; a
+// handler would undo that.
+func caughtSignals() []os.Signal {
+	var out []os.Signal
+	for _, s := range []os.Signal{syscall.SIGINT, syscall.SIGTERM, syscall.SIGHUP} {
+		if !signal.Ignored(s) {
+			out = append(out, s)
+		}
+	}
+	return out
 }
 
 // stop ends the catching; signals have their default effect again.

@@ -70,11 +70,13 @@ func bestDelim(line []byte) (byte, [][]byte) {
 
 // headerLike reports whether fields read as column names: each non-empty
 // field starts with a letter or "_", has no ":" or "=" (those make console
-// pairs), and has no word that is a number ("loss 0.41" is a value).
+// pairs), and has no word that is a number ("loss 0.41" is a value). The
+// names are judged as they will be shown, sanitized: a byte that is not
+// UTF-8 or an escape sequence in a name does not make a header prose.
 func headerLike(fields [][]byte) bool {
 	nonEmpty := 0
 	for _, f := range fields {
-		name := strings.TrimSpace(string(f))
+		name := strings.TrimSpace(diagnose.Printable(string(f)))
 		if name == "" {
 			continue
 		}

@@ -96,6 +96,11 @@ type Reader struct {
 
 	carry    []byte // the partial line so far
 	skipping bool   // inside a line longer than maxLineBytes
+	// redraws: the decoder reads only the text after a line's last
+	// carriage return (redraw.go); longHead is the start of an over-long
+	// part of such a line, reported when the line ends.
+	redraws  bool
+	longHead []byte
 	// midLine: carriage-return segments of a line were read and its
 	// newline has not come yet (End counts it as a line).
 	midLine bool
@@ -135,12 +140,17 @@ type Reader struct {
 func NewReader(out points.Out, c Config) *Reader {
 	r := &Reader{out: out, forced: c.Format, format: c.Format, roles: column.NewRoles(c.Roles)}
 	r.asm = points.New(out, r.roles, c.Steps)
+	r.asm.OnBad(func(line int, reason string) { r.bad(line, reason, nil) })
 	return r
 }
 
 // Feed reads the next bytes of the source.
 func (r *Reader) Feed(p []byte) {
 	for len(p) > 0 && !r.bailed {
+		if r.redraws { // the layout is known now: the rest goes there
+			r.feedRedrawn(p)
+			return
+		}
 		var i int
 		if r.wholeLines {
 			i = bytes.IndexByte(p, '\n') // the common case, inline
@@ -293,6 +303,8 @@ type segmenter interface {
 func (r *Reader) setLines() {
 	s, ok := r.dec.(segmenter)
 	r.wholeLines = r.dec != nil && !(ok && s.segmented())
+	d, ok := r.dec.(redrawer)
+	r.redraws = r.wholeLines && ok && d.lastSegment()
 }
 
 // formatter is a decoder whose layout depends on what it read (a CSV
@@ -371,7 +383,7 @@ func (r *Reader) Reset(why string) {
 		r.skipping, r.rewind, r.midLine = false, false, false
 		r.lineNo = 0
 		r.prev, r.dec = r.dec, nil
-		r.wholeLines = false
+		r.wholeLines, r.redraws = false, false
 		return
 	}
 	if r.dec != nil {
@@ -381,7 +393,7 @@ func (r *Reader) Reset(why string) {
 	r.skipping, r.midLine = false, false
 	r.lineNo = 0
 	r.prev, r.dec = r.dec, nil
-	r.wholeLines = false
+	r.wholeLines, r.redraws = false, false
 	if r.lines > 0 {
 		r.asm.NewSegment()
 	}
@@ -400,7 +412,10 @@ func (r *Reader) Rewind() bool {
 // read and the open point handed on.
 func (r *Reader) End() {
 	switch {
-	case r.skipping: // an over-long last line, reported already
+	case r.skipping: // an over-long last line, reported already unless redrawn
+		if r.redraws {
+			r.tooLong(r.longHead)
+		}
 		r.skipping = false
 		r.lineNo++
 		r.lines++

@@ -84,6 +84,9 @@ func newTextDecoder(r *Reader) *textDecoder {
 
 func (d *textDecoder) Finish() { d.asm.ClosePoint() }
 
+// lastSegment: only the text after a line's last carriage return counts.
+func (d *textDecoder) lastSegment() bool { return true }
+
 func (d *textDecoder) Decode(line []byte, n int) {
 	if i := bytes.LastIndexByte(line, '\r'); i >= 0 {
 		line = line[i+1:]
@@ -93,6 +96,10 @@ func (d *textDecoder) Decode(line []byte, n int) {
 	}
 	s := diagnose.Printable(string(line))
 	m := findMarker(s)
+	if m.bad != "" {
+		d.r.bad(n, m.bad, line)
+		return
+	}
 	epoch, total, marked := m.epoch, m.total, m.ok
 	var lead int
 	d.pairs, lead = scanPairs(d.pairs[:0], s, &d.names)

@@ -1,10 +1,12 @@
 package layout
 
 import (
+	"math"
 	"strings"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/column"
+	"github.com/fitgap/fitgap/watch/points"
 )
 
 // marker is an epoch marker found in a line: the epoch, the total when
@@ -14,6 +16,9 @@ type marker struct {
 	epoch, total int
 	mode         string
 	ok           bool
+	// bad says why a number written as the epoch is none a run can have
+	// ("Epoch 5/1e400", "epoch: 1e400"): the line is a bad line.
+	bad string
 }
 
 // findEpochMarker finds "Epoch 3/50", "epoch: 3", "ep 3", "epoch=3",
@@ -54,7 +59,13 @@ func findMarker(s string) marker {
 			k++
 		}
 		if e, t, end, good := readFraction(lower, k); good && end > k {
+			if t > 0 && runsOn(lower, end) {
+				return marker{bad: "impossible epoch " + numberToken(lower, k)}
+			}
 			return marker{epoch: e, total: t, ok: true}
+		}
+		if why := impossibleEpoch(lower, k); why != "" {
+			return marker{bad: why}
 		}
 		from = j
 	}
@@ -124,6 +135,43 @@ func readFraction(s string, i int) (n, total, end int, ok bool) {
 		return 0, 0, i, false
 	}
 	return n, 0, end, true
+}
+
+// runsOn reports a number that ends at end only to go on as letters or
+// decimals ("1e400", "1.5"): it is no integer.
+func runsOn(s string, end int) bool {
+	return end < len(s) && (isWordByte(s[end]) || s[end] == '.' && end+1 < len(s) && s[end+1] >= '0' && s[end+1] <= '9')
+}
+
+// numberToken returns the number (or fraction of numbers) written at k.
+func numberToken(s string, k int) string {
+	end := k
+	for end < len(s) && strings.IndexByte("0123456789.e+-/", s[end]) >= 0 {
+		end++
+	}
+	return s[k:end]
+}
+
+// impossibleEpoch says why the number written as an epoch at k (after the
+// word epoch) is none a run can have: not finite or beyond
+// points.MaxEpoch (more digits than readInt takes), or a total of epochs
+// that is no such integer. "" for anything else, a plausible fractional
+// epoch (2.37) or no number at all.
+func impossibleEpoch(s string, k int) string {
+	if k >= len(s) || s[k] < '0' || s[k] > '9' {
+		return ""
+	}
+	tok := numberToken(s, k)
+	epoch, total, _ := strings.Cut(tok, "/")
+	e, ok := parseNumber([]byte(epoch))
+	bad := ok && (isNonFinite(e) || math.Abs(e) > points.MaxEpoch)
+	if t, tok := parseNumber([]byte(total)); tok && (isNonFinite(t) || t > points.MaxEpoch || t != math.Trunc(t)) {
+		bad = true
+	}
+	if !bad {
+		return ""
+	}
+	return "impossible epoch " + tok
 }
 
 // readInt reads a decimal integer of at most maxIntDigits digits at i; a

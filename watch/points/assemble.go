@@ -6,7 +6,9 @@
 package points
 
 import (
+	"fmt"
 	"math"
+	"strconv"
 	"time"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -64,6 +66,10 @@ type group struct {
 	hasEval     bool
 	emitted     bool // handed on at least once
 	dirty       bool // changed since it was last handed on
+	// provisional: last handed on only because the read paused
+	// (Provisional), which depends on how the writer's bytes were split;
+	// rules that look at what was handed on ignore such a hand-on.
+	provisional bool
 }
 
 // Assembler turns rows of named values into evaluation points. It owns the
@@ -96,10 +102,14 @@ type Assembler struct {
 	touched []int
 
 	// the current row
-	rowSeq      uint64
-	row         []rowValue
-	rowEval     bool // the row has a validation, train-dev or test value
-	rowEpoch    float64
+	rowSeq   uint64
+	row      []rowValue
+	rowEval  bool // the row has a validation, train-dev or test value
+	rowEpoch float64
+	// rowBad says why the row cannot be filed (an impossible epoch); bad
+	// receives it with the row's line (the reader counts it).
+	rowBad      string
+	bad         func(line int, reason string)
 	rowHasEpoch bool
 	rowStep     float64
 	rowHasStep  bool
@@ -196,6 +206,7 @@ func (a *Assembler) BeginRow() {
 	a.rowEval = false
 	a.rowHasEpoch, a.rowHasStep = false, false
 	a.rowTime = time.Time{}
+	a.rowBad = ""
 }
 
 // Value sets column ci in the current row (nothing for -1, a column the
@@ -218,13 +229,35 @@ func (a *Assembler) Value(ci int, v float64) {
 	a.rowEval = a.rowEval || c.eval
 }
 
-// Epoch sets the row's epoch; a value that is not a plausible epoch
-// leaves the row without one.
+// Epoch sets the row's epoch. A value no run can have (not finite, or
+// beyond MaxEpoch: 1e400, 2^63) makes the row bad: it is counted as a bad
+// line and filed nowhere, rather than taken for a row without its epoch,
+// which would merge it into the epoch before.
 func (a *Assembler) Epoch(v float64) {
 	if isNonFinite(v) || math.Abs(v) > MaxEpoch {
+		a.rowBad = "impossible epoch " + strconv.FormatFloat(v, 'g', -1, 64)
 		return
 	}
 	a.rowEpoch, a.rowHasEpoch = v, true
+}
+
+// OnBad sets where a row that cannot be filed is reported, with its line
+// and the reason (the reader counts it as a bad line). Without it, the
+// reason is a notice.
+func (a *Assembler) OnBad(f func(line int, reason string)) { a.bad = f }
+
+// dropBad reports a bad row and reports whether the row was bad.
+func (a *Assembler) dropBad(line int) bool {
+	if a.rowBad == "" {
+		return false
+	}
+	if a.bad != nil {
+		a.bad(line, a.rowBad)
+	} else {
+		a.out.Notice(fmt.Sprintf("line %d: %s: skipped", line, a.rowBad))
+	}
+	a.rowBad = ""
+	return true
 }
 
 // Step sets the row's step; a value that is no plausible step leaves the

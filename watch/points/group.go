@@ -9,6 +9,9 @@ import (
 
 // EndRow files the current row into a point.
 func (a *Assembler) EndRow(line int) {
+	if a.dropBad(line) {
+		return
+	}
 	if len(a.row) == 0 && !a.rowHasEpoch && !a.rowHasStep {
 		return
 	}
@@ -62,7 +65,7 @@ func (a *Assembler) EndRow(line int) {
 // the validation loss it saved on). It makes no point and changes none.
 func (a *Assembler) echoes(e int) bool {
 	g := &a.g
-	if !g.open || !g.epochLogged || !g.emitted || e != g.epoch || len(a.row) == 0 || len(a.row) >= len(a.touched) {
+	if !g.open || !g.epochLogged || !g.emitted || g.provisional || e != g.epoch || len(a.row) == 0 || len(a.row) >= len(a.touched) {
 		return false
 	}
 	if a.rowHasStep && int64(a.rowStep) > g.step {
@@ -210,7 +213,7 @@ func (a *Assembler) emit() {
 		}
 		p.Samples = append(p.Samples, diagnose.Sample{Column: c.col, Value: v, Last: c.last})
 	}
-	g.emitted, g.dirty = true, false
+	g.emitted, g.dirty, g.provisional = true, false, false
 	a.lastEpoch, a.haveLast = g.epoch, true
 	a.out.Point(p)
 }
@@ -244,8 +247,9 @@ func (a *Assembler) ClosePoint() {
 // training-only log shows its latest values without waiting for the next
 // epoch; the next hand-on of the same point replaces it.
 func (a *Assembler) Provisional() {
-	if a.g.open && !a.evalSeen && !a.evalExpected {
+	if a.g.open && !a.evalSeen && !a.evalExpected && a.g.dirty {
 		a.emit()
+		a.g.provisional = true
 	}
 }
 
@@ -273,8 +277,16 @@ func (a *Assembler) NewSegment() {
 }
 
 // SetTotal records the run's planned number of epochs ("Epoch 3/50") on
-// the open point.
-func (a *Assembler) SetTotal(total int) { a.g.total = total }
+// the open point. A new total is a change to hand on, even to a point
+// handed on already: otherwise what the reader shows would depend on
+// whether the writer's line that brought the total came in the same read
+// as the point's values.
+func (a *Assembler) SetTotal(total int) {
+	if total != a.g.total {
+		a.g.total = total
+		a.g.dirty = true
+	}
+}
 
 // EndLine files the current row of a console line into the open point,
 // opening one numbered by order when none is open (a log without epoch
@@ -284,6 +296,9 @@ func (a *Assembler) SetTotal(total int) { a.g.total = total }
 // when closeOnEval is set (without markers, a validation line ends the
 // point). A row without any value or step files nothing.
 func (a *Assembler) EndLine(line int, closeOnEval bool) {
+	if a.dropBad(line) {
+		return
+	}
 	if len(a.row) == 0 && !a.rowHasStep {
 		return
 	}

@@ -102,6 +102,7 @@ func (t *File) readBacklog(ctx context.Context, sink Sink, size int64) bool {
 			stop(j + 1)
 			return ctx.Err() == nil
 		}
+		t.kept.saw(p.data, p.start)
 		if p.work != nil {
 			p.work.Merge(p.data)
 		} else {

@@ -1,7 +1,6 @@
 package tail
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -10,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"syscall"
 	"time"
 
 	"github.com/fsnotify/fsnotify"
@@ -19,10 +19,6 @@ const (
 	// ReadChunk is the read size. Large enough that a backlog costs few
 	// system calls, small enough to stay in cache. Unit: bytes.
 	ReadChunk = 256 << 10
-	// safetyPoll re-checks the file while inotify watches it, for events
-	// the kernel never sends (bind mounts, some container filesystems).
-	// A stat per second costs nothing measurable. Unit: time.
-	safetyPoll = time.Second
 	// fallbackPoll is the interval when the directory cannot be watched
 	// at all (inotify limit reached, a network filesystem that refuses):
 	// a new epoch shows within a quarter of a second, at a stat call per
@@ -31,10 +27,6 @@ const (
 	// MinPoll is the smallest poll interval accepted: below it polling
 	// is a busy loop. Unit: time.
 	MinPoll = 10 * time.Millisecond
-	// fingerprintBytes of the head of the file are compared on each read:
-	// a copytruncate that regrew past our offset before we looked shows up
-	// as a changed head. Unit: bytes.
-	fingerprintBytes = 64
 	// headRead is the first read of a long file, enough for its header
 	// line (a few hundred bytes in practice; a longer one takes more
 	// reads). Unit: bytes.
@@ -43,6 +35,12 @@ const (
 	// memory (two pieces in flight per core). Unit: cores.
 	maxProcs = 16
 )
+
+// safetyPoll re-checks the file while inotify watches it, for events the
+// kernel never sends (bind mounts, some container filesystems). A stat per
+// second costs nothing measurable. Tests raise it to see what inotify
+// alone delivers. Unit: time.
+var safetyPoll = time.Second
 
 // File follows one file by name.
 type File struct {
@@ -54,8 +52,16 @@ type File struct {
 	f      *os.File
 	info   os.FileInfo
 	offset int64
-	head   []byte // the first bytes of the file, for the fingerprint
-	seen   bool   // a file was read under this name before
+	seen   bool // a file was read under this name before
+	// kept are windows of the bytes already read, which a writer that
+	// only appends never changes (rewrite.go).
+	kept readWindows
+	// refused is the special file last refused under the name, so that
+	// the refusal is said once.
+	refused os.FileInfo
+	// links are the symbolic links the name leads through, and the
+	// directories watched for them (links.go).
+	links links
 	// rewound is the size and time of the file when it was last read again
 	// because the sink asked (Rewinder): the same file is not read again
 	// for the same reason, whatever the sink says.
@@ -67,9 +73,9 @@ type File struct {
 }
 
 // Open checks the options and opens the file at path if it is there. It
-// returns an error for a directory, a file it may not read, or a bad
-// option; a file that does not exist yet is waited for in Follow mode and
-// is an error otherwise.
+// returns an error for a directory, a file it may not read, anything but a
+// regular file, or a bad option; a file that does not exist yet is waited
+// for in Follow mode and is an error otherwise.
 func Open(path string, opts Options) (*File, error) {
 	if err := opts.Validate(); err != nil {
 		return nil, err
@@ -101,9 +107,16 @@ func IsStream(path string) bool {
 	return err == nil && !fi.IsDir() && !fi.Mode().IsRegular()
 }
 
-// openLog opens a log read-only and refuses a directory.
+// errNotRegular is the refusal of something other than a regular file
+// found under the log's name once it is followed: a named pipe would block
+// the reader in open, a device such as /dev/zero would never end.
+var errNotRegular = errors.New("not a regular file")
+
+// openLog opens a log read-only and refuses a directory and anything but
+// a regular file. The open does not block: a named pipe moved under the
+// name between a stat and the open would otherwise wait for a writer.
 func openLog(path string) (*os.File, error) {
-	f, err := os.Open(path)
+	f, err := os.OpenFile(path, os.O_RDONLY|syscall.O_NONBLOCK, 0)
 	if err != nil {
 		return nil, fmt.Errorf("open log %q: %w", sanitize(path), UnwrapPath(err))
 	}
@@ -116,7 +129,25 @@ func openLog(path string) (*os.File, error) {
 		f.Close()
 		return nil, fmt.Errorf("open log %q: is a directory, not a log file", sanitize(path))
 	}
+	if !fi.Mode().IsRegular() {
+		f.Close()
+		return nil, fmt.Errorf("open log %q: %s, %w", sanitize(path), kindOf(fi), errNotRegular)
+	}
 	return f, nil
+}
+
+// kindOf names what a special file is, for a notice.
+func kindOf(fi os.FileInfo) string {
+	m := fi.Mode()
+	switch {
+	case m&fs.ModeNamedPipe != 0:
+		return "a named pipe"
+	case m&fs.ModeSocket != 0:
+		return "a socket"
+	case m&fs.ModeDevice != 0:
+		return "a device"
+	}
+	return "a special file"
 }
 
 // UnwrapPath drops the *PathError wrapper, whose text repeats the path.
@@ -132,17 +163,18 @@ func (t *File) setFile(f *os.File) {
 	t.f = f
 	t.info, _ = f.Stat()
 	t.offset = 0
-	t.head = t.head[:0]
+	t.kept.reset()
 	t.seen = true
 	t.state = Live
+	t.refused = nil
 }
 
 // Run reads the file into sink until ctx ends (Follow mode) or once to its
 // end (one-shot), and closes the file. In Follow mode the parent directory
 // is watched with inotify and events are filtered by name, so appends,
 // truncation, copytruncate rotation, atomic replacement by rename,
-// deletion and re-creation are all seen; a stat poll backs it up
-// (Options.Poll).
+// deletion and re-creation are all seen; a symbolic link's target is
+// watched in its own directory; a stat poll backs it up (Options.Poll).
 func (t *File) Run(ctx context.Context, sink Sink) {
 	defer func() {
 		if t.f != nil {
@@ -168,6 +200,7 @@ func (t *File) Run(ctx context.Context, sink Sink) {
 			sink.Notice(fmt.Sprintf("cannot watch %s (%v): checking every %v", filepath.Dir(t.path), err, interval))
 		} else {
 			defer w.Close()
+			t.links.w = w
 			events, errs = w.Events, w.Errors
 		}
 	}
@@ -194,7 +227,7 @@ func (t *File) loop(ctx context.Context, sink Sink, events <-chan fsnotify.Event
 				events = nil
 				continue
 			}
-			if filepath.Clean(ev.Name) != t.abs {
+			if !t.concerns(ev.Name) {
 				continue
 			}
 		case err, ok := <-errs:
@@ -239,6 +272,7 @@ func (t *File) setState(sink Sink, s State) {
 // check compares the name with the open file and reads what is new: the
 // same logic answers every event, a lost event and a poll tick.
 func (t *File) check(ctx context.Context, sink Sink) {
+	t.relink(sink)
 	fi, err := os.Stat(t.path)
 	switch {
 	case err != nil:
@@ -252,19 +286,21 @@ func (t *File) check(ctx context.Context, sink Sink) {
 		return
 	case fi.IsDir():
 		return
+	case !fi.Mode().IsRegular():
+		t.refuse(ctx, sink, fi)
+		return
 	case t.f != nil && os.SameFile(fi, t.info):
 		t.read(ctx, sink)
 		return
 	}
 	// A new file under the name: created late, created again, or moved in
 	// over the old one.
-	if t.f != nil {
-		t.read(ctx, sink)
-		t.f.Close()
-		t.f = nil
-	}
+	t.drop(ctx, sink)
 	f, err := openLog(t.path)
 	if err != nil {
+		if errors.Is(err, errNotRegular) {
+			return // moved in between the stat and the open: the next check says so
+		}
 		sink.Notice(err.Error())
 		return
 	}
@@ -277,6 +313,32 @@ func (t *File) check(ctx context.Context, sink Sink) {
 	t.read(ctx, sink)
 }
 
+// drop reads what the open file still holds and closes it.
+func (t *File) drop(ctx context.Context, sink Sink) {
+	if t.f == nil {
+		return
+	}
+	t.read(ctx, sink)
+	t.f.Close()
+	t.f = nil
+}
+
+// refuse answers a special file under the name (a named pipe, a device, a
+// socket, or a symlink repointed to one): the file read so far is drained
+// and closed, the state is Removed, the refusal is said once per special
+// file, and the name is still followed.
+func (t *File) refuse(ctx context.Context, sink Sink, fi os.FileInfo) {
+	t.drop(ctx, sink)
+	if t.state == Live {
+		t.setState(sink, Removed) // the regular file is gone from the name
+	}
+	if t.refused != nil && os.SameFile(fi, t.refused) {
+		return
+	}
+	t.refused = fi
+	sink.Notice(fmt.Sprintf("%s is now %s, not a log file: not read; waiting for a regular file under the name", t.name, kindOf(fi)))
+}
+
 // read reads the open file from the offset to its end.
 func (t *File) read(ctx context.Context, sink Sink) {
 	if t.f == nil {
@@ -285,12 +347,7 @@ func (t *File) read(ctx context.Context, sink Sink) {
 	size := int64(0)
 	if fi, err := t.f.Stat(); err == nil {
 		size = fi.Size()
-		switch {
-		case fi.Size() < t.offset:
-			t.restart(sink, t.name+" truncated: reading from the start")
-		case t.offset > 0 && len(t.head) > 0 && !t.sameHead():
-			t.restart(sink, t.name+" rewritten: reading from the start")
-		}
+		t.changed(sink, fi)
 	}
 	for ctx.Err() == nil {
 		if t.parallel(sink, size) && !t.readBacklog(ctx, sink, size) {
@@ -304,7 +361,7 @@ func (t *File) read(ctx context.Context, sink Sink) {
 		}
 		n, err := t.f.ReadAt(buf, t.offset)
 		if n > 0 {
-			t.fingerprint(buf[:n])
+			t.kept.saw(buf[:n], t.offset)
 			t.offset += int64(n)
 			sink.Feed(buf[:n])
 			if t.rewind(sink) {
@@ -340,21 +397,8 @@ func (t *File) rewind(sink Sink) bool {
 	return true
 }
 
-// fingerprint keeps the first bytes of the file from a read at t.offset.
-func (t *File) fingerprint(p []byte) {
-	if len(t.head) < fingerprintBytes && t.offset < fingerprintBytes {
-		t.head = append(t.head, p[:min(len(p), fingerprintBytes-int(t.offset))]...)
-	}
-}
-
 func (t *File) restart(sink Sink, why string) {
 	t.offset = 0
-	t.head = t.head[:0]
+	t.kept.reset()
 	sink.Restart(why)
-}
-
-func (t *File) sameHead() bool {
-	var b [fingerprintBytes]byte
-	n, _ := t.f.ReadAt(b[:len(t.head)], 0)
-	return bytes.Equal(b[:n], t.head)
 }

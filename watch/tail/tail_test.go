@@ -23,7 +23,8 @@ const waitTimeout = 10 * time.Second
 // restart, the restarts, notices and states. Flush wakes the waiters.
 type recorder struct {
 	mu       sync.Mutex
-	data     bytes.Buffer
+	data     bytes.Buffer // since the last restart
+	all      bytes.Buffer // everything fed
 	restarts []string
 	notices  []string
 	states   []State
@@ -38,6 +39,7 @@ func (r *recorder) Feed(p []byte) {
 	r.mu.Lock()
 	defer r.mu.Unlock()
 	r.data.Write(p)
+	r.all.Write(p)
 }
 
 func (r *recorder) Restart(why string) {

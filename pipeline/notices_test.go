@@ -1,0 +1,73 @@
+package pipeline
+
+import (
+	"fmt"
+	"slices"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/fitgap/fitgap/watch"
+)
+
+// TestRun_NoticesReachTheSummary: what the reader noticed (a fall back to
+// polling, a truncation) reaches the summary as well as the update, so a
+// report, a summary file or a follow line says it too; repeats are kept
+// once with their count, and a flood is bounded.
+func TestRun_NoticesReachTheSummary(t *testing.T) {
+	pts, stats := readCSV(t, overfitCSV(4))
+	at := time.Unix(1700000000, 0)
+	polling := watch.Notice{Time: at, Text: "cannot watch /logs (too many open files): checking every 250ms"}
+	trunc := watch.Notice{Time: at, Text: "run.csv truncated: reading from the start (segment 2)"}
+	tests := []struct {
+		name    string
+		batches []watch.Batch
+		load    bool // Run.Load (report) instead of Run.Apply
+		want    []string
+		absent  []string
+	}{
+		{"Apply", []watch.Batch{{Points: pts[:2], Notices: []watch.Notice{polling}, Stats: stats}, {Points: pts[2:], Stats: stats}},
+			false, []string{polling.Text}, nil},
+		{"Load", []watch.Batch{{Points: pts, Notices: []watch.Notice{trunc}, Stats: stats}}, true, []string{trunc.Text}, nil},
+		{"RepeatsOnce", []watch.Batch{{Points: pts, Notices: []watch.Notice{trunc, trunc, trunc}, Stats: stats}}, false,
+			[]string{trunc.Text + " (3 times)"}, nil},
+		{"BeforeAnyPoint", []watch.Batch{{Notices: []watch.Notice{{Time: at, Text: "waiting for run.csv"}}, Stats: stats}}, false,
+			[]string{"waiting for run.csv"}, nil},
+		{"Flood", []watch.Batch{{Points: pts, Notices: flood(100), Stats: stats}}, false,
+			[]string{"notice 0", "notice 7", "notice 99", "84 more notices"}, []string{"notice 50"}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			run := New(Options{Name: "run.csv"})
+			for _, b := range tt.batches {
+				if tt.load {
+					run.Load(b)
+				} else if u := run.Apply(b); len(u.Notices) != len(b.Notices) {
+					t.Fatalf("the update carries %d notices of %d", len(u.Notices), len(b.Notices))
+				}
+			}
+			got := run.Summary().Source.Warnings
+			for _, w := range tt.want {
+				if !slices.ContainsFunc(got, func(s string) bool { return strings.Contains(s, w) }) {
+					t.Errorf("summary warnings %q lack %q", got, w)
+				}
+			}
+			for _, w := range tt.absent {
+				if slices.ContainsFunc(got, func(s string) bool { return strings.HasSuffix(s, w) }) {
+					t.Errorf("summary warnings %q hold %q, which the bound should drop", got, w)
+				}
+			}
+			if md := run.Summary().Markdown(); !strings.Contains(md, tt.want[0]) {
+				t.Errorf("the Markdown summary lacks %q:\n%s", tt.want[0], md)
+			}
+		})
+	}
+}
+
+func flood(n int) []watch.Notice {
+	out := make([]watch.Notice, n)
+	for i := range out {
+		out[i] = watch.Notice{Text: fmt.Sprintf("notice %d", i)}
+	}
+	return out
+}
