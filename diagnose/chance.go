@@ -211,7 +211,7 @@ func (t *Tracker) checkCollapse(st *state, r *rec) {
 	}
 	l := &st.aux[k]
 	band := l.band(t.cfg.RelTolerance * math.Abs(l.start))
-	if r.blowup == blowNone && l.n >= minPoints && l.low > 0 && l.sm >= lossOrders*l.low && l.sm-l.low >= band*(1-eps) {
+	if l.n >= minPoints && l.low > 0 && l.sm >= lossOrders*l.low && l.sm-l.low >= band*(1-eps) {
 		r.blowup = blowOrders
 		r.blowLoss = uint8(k)
 	}

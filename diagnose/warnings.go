@@ -248,11 +248,11 @@ func (t *verdict) blowupText() string {
 		if st.auxSeen&(1<<auxTrainRate) != 0 {
 			w.s(", and the training ").s(t.chanceName()).s(" is up at ").pctOf(st.aux[auxTrainRate].sm)
 		}
-		return w.s(": the run has collapsed without a NaN (most often a learning rate too high for the model)").done()
+		return w.s(": the run has collapsed, diverging without a NaN (most often a learning rate too high for the model)").done()
 	case blowOrders:
 		l := &st.aux[r.blowLoss]
 		return t.text().s("smoothed ").s(t.blowLossName()).s(" ").plain(l.sm).s(" is ").f(l.sm/l.low, 0).s(" times its best ").plain(l.low).
-			s(": it has grown by an order of magnitude or more without a NaN (most often a learning rate too high for the model)").done()
+			s(", an order of magnitude or more: diverging without a NaN (most often a learning rate too high for the model)").done()
 	}
 	w := t.text().s("training ").s(name).s(" has risen for two epochs: smoothed ").val(r.sm[SplitTrain]).s(" is ")
 	if r.blowup == blowStart {
