@@ -191,7 +191,7 @@ func (w *window) at(k int) (int, float64) {
 // ckptEvery is how many points apart a copy of the state is kept. Asking
 // for a past judgement restores the copy at or before the point and judges
 // at most ckptEvery−1 points again, and so does a rewind. A state copy is
-// about 1.3 kB, so this costs about 10 bytes per point (design choice:
+// about 1.7 kB, so this costs about 14 bytes per point (design choice:
 // rebuilding a judgement stays near 20 µs, far inside the 1 ms an
 // inspection may take).
 const ckptEvery = 128

@@ -14,7 +14,7 @@ import "sort"
 // Cost: the Tracker keeps the inputs of each point compactly (its epoch,
 // its line and the values of each judgeable series: about 48 bytes for a
 // log of train and validation loss and accuracy) and a copy of its running
-// state every ckptEvery points (about 10 bytes per point), never a Point
+// state every ckptEvery points (about 14 bytes per point), never a Point
 // or a judgement. Add does O(1) work from the state of the previous point
 // plus one strip of look-back at strip ends; At(i) restores the copy at or
 // before i and judges at most ckptEvery−1 points again (tens of µs); a
