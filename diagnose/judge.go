@@ -125,8 +125,10 @@ func (t *verdict) reasonText() string {
 			l := &st.aux[r.blowLoss]
 			w.s("diverged at epoch ").n(t.hist.epoch(t.i)).s(": smoothed ").s(t.blowLossName()).s(" ").plain(l.sm).
 				s(" is ").f(l.sm/l.low, 0).s(" times its best ").plain(l.low).s(", with no NaN")
+		case blowBack, blowStart:
+			w.s("diverged at epoch ").n(t.hist.epoch(t.i)).s(": the training ").s(name).s(" climbs far from its best")
 		default:
-			w.s("diverged at epoch ").n(t.hist.epoch(t.i))
+			w.s("diverged at epoch ").n(t.hist.epoch(t.i)).s(": a value is not finite")
 		}
 	case reasonFar:
 		w.s("smoothed validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is up ").gap(r.rise).s(" from its best ").val(st.best).
@@ -149,7 +151,7 @@ func (t *verdict) reasonText() string {
 		}
 		w.s(": keep training")
 	case reasonAging:
-		w.s("best epoch was ").n(r.since).s(" epochs ago (patience ").n(t.cfg.Patience).s(")")
+		w.s("the best smoothed validation ").s(name).s(" was ").n(r.since).s(" epochs ago (patience ").n(t.cfg.Patience).s(")")
 	case reasonUP:
 		w.s("validation ").s(name).s(" rose over the last ").n(int(st.up)).s(" strip(s) of ").n(t.cfg.Strip)
 	case reasonGL:
