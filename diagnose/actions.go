@@ -86,6 +86,9 @@ func (t *verdict) actions() []Action {
 			}
 			return biasWhy
 		case Variance:
+			if r.diag == Memorizing {
+				return t.memorizeWhy()
+			}
 			other, otherName := r.sm[SplitVal], "val "
 			if st.seen&(1<<SplitTrainDev) != 0 {
 				other, otherName = r.sm[SplitTrainDev], "train-dev "
@@ -188,4 +191,17 @@ func (t *verdict) labelCheck(add func(text, why string)) {
 		w.s(" falls while the validation ").s(name).s(" rises; give the optimal error (the label-noise rate, if known) to judge it against")
 	}
 	add("check the training labels for noise (inspect the training examples with the highest loss)", w.done())
+}
+
+// memorizeWhy is the evidence of memorization: how the two curves moved
+// since the best epoch.
+func (t *verdict) memorizeWhy() string {
+	r, st := t.r, t.st
+	w := t.text().s("since epoch ").n(st.bestEpoch).s(": ")
+	if finite(st.bestTrain) {
+		w.s("train ").val(st.bestTrain).s(" → ").val(r.sm[SplitTrain])
+	} else {
+		w.s("train still falling, at ").val(r.sm[SplitTrain])
+	}
+	return w.s(", val ").val(st.best).s(" → ").val(r.sm[SplitVal]).done()
 }

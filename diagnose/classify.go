@@ -81,8 +81,11 @@ func (t *Tracker) classify(st *state, r *rec) {
 			largest = cls[c]
 		}
 	}
-	r.high, r.nprob = 0, 0
+	r.high, r.nprob, r.reach = 0, 0, 0
 	for c := AvoidableBias; c <= ValOverfit; c++ {
+		if ok[c] && cls[c] >= thr[c]*(1-eps) && cls[c] > 0 {
+			r.reach |= 1 << c
+		}
 		if ok[c] && cls[c] >= thr[c]*(1-eps) && cls[c] >= largest/2*(1-eps) && cls[c] > 0 {
 			r.high |= 1 << c
 			r.problems[r.nprob] = c
@@ -161,7 +164,9 @@ func (t *Tracker) uncertainty(r *rec) [nSplits]float64 {
 // larger model or longer training would make it worse, so the bias is not
 // judged a problem (the training error is measured on labels that may be
 // wrong, and the optimal error on them is unknown): the run is judged
-// high-variance, with variance remedies and a check of the labels.
+// high-variance when the validation error is also well above the training
+// error, else memorizing, with the focus on variance either way, variance
+// remedies and a check of the labels.
 func (t *Tracker) checkMemorization(st *state, r *rec) {
 	switch r.diag {
 	case Diverging, TooEarly, OneSplit:
@@ -175,14 +180,22 @@ func (t *Tracker) checkMemorization(st *state, r *rec) {
 		return
 	}
 	r.memorize = true
+	// The variance counts as high when it reaches its threshold, whatever
+	// the bias: a training error on wrong labels is no yardstick for it.
+	varHigh := r.reach&(1<<Variance) != 0
 	r.high &^= 1 << AvoidableBias
-	r.high |= 1 << Variance
-	probs := []Component{Variance}
+	var probs []Component
+	if varHigh {
+		probs = append(probs, Variance)
+	}
 	for _, c := range r.problems[:r.nprob] {
 		if c != AvoidableBias && c != Variance {
 			probs = append(probs, c)
 		}
 	}
 	r.nprob = uint8(copy(r.problems[:], probs))
-	r.focus, r.diag = Variance, HighVariance
+	r.focus, r.diag = Variance, Memorizing
+	if varHigh {
+		r.diag = HighVariance
+	}
 }

@@ -87,6 +87,11 @@ const (
 	// and variance cannot be separated; early stopping still works on a
 	// validation curve.
 	OneSplit
+	// Memorizing: the training error still falls while the validation
+	// error rises from its best, the validation error not (yet) well above
+	// the training error (wrong training labels keep the training error
+	// high): variance by another road.
+	Memorizing
 )
 
 var diagnoses = table[Diagnosis]{kind: "diagnosis", words: []wording{
@@ -98,6 +103,7 @@ var diagnoses = table[Diagnosis]{kind: "diagnosis", words: []wording{
 	DataMismatch:         {"data-mismatch", "data mismatch", "train-dev close to training, validation worse", ""},
 	GoodFit:              {"good-fit", "near the optimal error", "little avoidable bias or variance left", ""},
 	OneSplit:             {"one-split", "one split only", "the judged metric is logged on one split only: bias and variance cannot be separated", ""},
+	Memorizing:           {"memorizing", "memorizing", "training error still falling while validation error rises from its best: the model memorizes its training set", ""},
 }}
 
 // String returns the stable machine name used in JSON ("high-variance").

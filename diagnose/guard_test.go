@@ -96,6 +96,22 @@ func TestTracker_Memorization(t *testing.T) {
 			t.Errorf("actions %+v lack the label check against the optimal error", last.Actions)
 		}
 	})
+	t.Run("MemorizingWhileValidationIsBelowTraining", func(t *testing.T) {
+		// At epoch 90 the validation error (about 7 %) has risen from its
+		// best but is still far below the training error on the noisy
+		// labels (about 18 %): memorizing, not "high variance", whose
+		// description says validation well above training.
+		_, js := run(Config{}, labelNoiseRun(160))
+		j := js[89]
+		if j.Diagnosis != Memorizing || j.Focus != Variance || j.Val.Smooth.V >= j.Train.Smooth.V {
+			t.Errorf("epoch 90: %v focus %v, train %v val %v", j.Diagnosis, j.Focus, j.Train.Smooth, j.Val.Smooth)
+		}
+		for _, a := range j.Actions {
+			if strings.HasPrefix(a.Text, "get more training data") && !strings.HasPrefix(a.Why, "since epoch ") {
+				t.Errorf("variance remedy cites %q, want how the curves moved since the best epoch", a.Why)
+			}
+		}
+	})
 	t.Run("NotBeforeTheValidationRises", func(t *testing.T) {
 		// Up to epoch 40 the validation error is flat: the high training
 		// error is judged as bias (an upper bound, no optimal error given).

@@ -272,7 +272,7 @@ func checkRemedies(t *testing.T, want diagnose.Diagnosis, diverging int, js []di
 		if !strings.Contains(last.EarlyStop.Reason, "no NaN") {
 			t.Errorf("reason %q does not say the run collapsed without a NaN", last.EarlyStop.Reason)
 		}
-	case want == diagnose.HighVariance && last.Focus != diagnose.Variance:
+	case (want == diagnose.HighVariance || want == diagnose.Memorizing) && last.Focus != diagnose.Variance:
 		t.Errorf("focus %v, want variance", last.Focus)
 	}
 	for _, j := range js {

@@ -213,6 +213,7 @@ type rec struct {
 	tol       float64 // tolerance in the metric's units
 	comp      [5]Num  // the components by Component, as defined
 	high      uint8   // bit per Component judged high
+	reach     uint8   // bit per Component that reaches its threshold, large or not
 	problems  [4]Component
 	nprob     uint8
 	focus     Component

@@ -195,7 +195,7 @@ func (t *verdict) warningTexts() []string {
 	if r.warn&warnNegVariance != 0 {
 		add(t.text().s("validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is below training ").val(r.sm[SplitTrain]).
 			s(" (variance ").gap(r.comp[Variance].V).s("): common with dropout or other regularization that acts only in training, ").
-			s("or a training value averaged over an epoch while the model improved; it is not evidence of a good fit"))
+			s("a training value averaged over an epoch while the model improved, or wrong labels in the training set only; it is not evidence of a good fit"))
 	}
 	if r.warn&warnNegBias != 0 {
 		add(t.text().s("training ").s(name).s(" ").val(r.sm[SplitTrain]).s(" is below the optimal error ").val(t.bayes).
