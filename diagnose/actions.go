@@ -36,22 +36,42 @@ func (t *verdict) actions() []Action {
 	}
 	switch r.diag {
 	case Diverging:
-		why := t.text().s("non-finite values at epoch ").n(t.hist.epoch(i)).done()
-		if r.blowup != blowNone {
+		var why string
+		switch r.blowup {
+		case blowNone:
+			why = t.text().s("non-finite values at epoch ").n(t.hist.epoch(i)).done()
+		case blowBack, blowStart:
 			why = t.text().s("smoothed training ").s(name).s(" ").val(r.sm[SplitTrain]).s(" vs best ").val(st.trMin).s(", rising for two epochs").done()
+		case blowChance:
+			why = t.text().s("no NaN, but the validation ").s(t.chanceName()).s(" is back at the chance level ").pctOf(t.chanceLevel()).
+				s(" from its best ").pctOf(st.aux[auxRate].low).done()
+		case blowOrders:
+			l := &st.aux[r.blowLoss]
+			why = t.text().s("no NaN, but the smoothed ").s(t.blowLossName()).s(" is ").f(l.sm/l.low, 0).s(" times its best").done()
 		}
 		if bestEpoch > 0 && st.bestIdx != i {
 			restore("restore the checkpoint of epoch " + itoa(bestEpoch))
 		}
-		add("lower the learning rate (a factor of 3 to 10)", why)
+		add("lower the learning rate: a peak rate 3 to 10 times smaller, reached by a warm-up", why)
 		add("clip the gradient norm", "exploding gradients let single steps undo training (Goodfellow et al. 2016, §8.2.4)")
-		add("check the inputs and labels for NaN, Inf and unnormalized features", why)
+		if r.blowup == blowNone {
+			add("check the inputs and labels for NaN, Inf and unnormalized features", why)
+		}
 		return out
 	case TooEarly:
-		if st.seen&(1<<SplitTrain) == 0 && st.judged >= minPoints {
-			add("log the training "+name+" as well", "no training values: bias and variance cannot be separated")
+		add("keep training: judge after a few more epochs", t.text().n(int(st.judged)).s(" of ").n(minPoints).s(" points with ").s(name).s(" so far").done())
+		return out
+	case OneSplit:
+		base := Printable(t.metric.name)
+		if st.seen&(1<<SplitTrain) == 0 {
+			if r.signal == Stop && r.since > 0 {
+				restore("restore the checkpoint of epoch " + itoa(bestEpoch) + " (early stopping)")
+			}
+			add("log the training "+base+" as well (the same metric on the training data)",
+				"validation "+base+" only: no training counterpart, so bias and variance cannot be separated")
 		} else {
-			add("keep training: judge after a few more epochs", t.text().n(int(st.judged)).s(" of ").n(minPoints).s(" points with ").s(name).s(" so far").done())
+			add("log a validation "+base+" (held-out data)",
+				"training "+base+" only: no held-out counterpart, so variance cannot be estimated and early stopping has no curve to follow")
 		}
 		return out
 	}
@@ -66,6 +86,9 @@ func (t *verdict) actions() []Action {
 			}
 			return biasWhy
 		case Variance:
+			if r.diag == Memorizing {
+				return t.memorizeWhy()
+			}
 			other, otherName := r.sm[SplitVal], "val "
 			if st.seen&(1<<SplitTrainDev) != 0 {
 				other, otherName = r.sm[SplitTrainDev], "train-dev "
@@ -95,13 +118,16 @@ func (t *verdict) actions() []Action {
 			// two smoothed values (1.96 standard errors, 95%).
 			regWhy := w
 			if v := r.comp[Variance]; v.OK && v.V < 0 && -v.V > z95*math.Hypot(r.se[SplitVal], r.se[SplitTrain]) {
-				regWhy = t.text().s("validation beats training by ").gap(-v.V).s(": training-only regularization holds the training fit back").done()
+				regWhy = t.text().s("validation beats training by ").gap(-v.V).s(": regularization that acts only in training may hold the training fit back").done()
 			}
 			add("reduce regularization (dropout, weight decay), if the model uses any", regWhy)
 			add("try an architecture suited to the input (convolutions for images, attention or recurrence for sequences)", w)
 		case Variance:
 			if r.since > 0 {
 				restore("restore the checkpoint of epoch " + itoa(bestEpoch) + " (early stopping)")
+			}
+			if r.memorize {
+				t.labelCheck(add)
 			}
 			add("get more training data", w)
 			add("use data augmentation", w)
@@ -147,4 +173,35 @@ func (t *verdict) actions() []Action {
 		}
 	}
 	return out
+}
+
+// labelCheck adds the check of a memorizing run's labels: against the
+// optimal error when it is given (a training error below it fits wrong
+// labels), else asking for one.
+func (t *verdict) labelCheck(add func(text, why string)) {
+	r := t.r
+	name := t.metricName()
+	w := t.text().s("training ").s(name).s(" ").val(r.sm[SplitTrain])
+	switch {
+	case t.cfg.BayesErrorGiven && r.sm[SplitTrain] < t.bayes:
+		w.s(" is below the optimal error ").val(t.bayes).s(": the model fits noise in its labels, or the optimal-error estimate is too high")
+	case t.cfg.BayesErrorGiven:
+		w.s(" vs optimal ").val(t.bayes).s(", falling while the validation ").s(name).s(" rises")
+	default:
+		w.s(" falls while the validation ").s(name).s(" rises; give the optimal error (the label-noise rate, if known) to judge it against")
+	}
+	add("check the training labels for noise (inspect the training examples with the highest loss)", w.done())
+}
+
+// memorizeWhy is the evidence of memorization: how the two curves moved
+// since the best epoch.
+func (t *verdict) memorizeWhy() string {
+	r, st := t.r, t.st
+	w := t.text().s("since epoch ").n(st.bestEpoch).s(": ")
+	if finite(st.bestTrain) {
+		w.s("train ").val(st.bestTrain).s(" → ").val(r.sm[SplitTrain])
+	} else {
+		w.s("train still falling, at ").val(r.sm[SplitTrain])
+	}
+	return w.s(", val ").val(st.best).s(" → ").val(r.sm[SplitVal]).done()
 }

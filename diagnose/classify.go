@@ -81,8 +81,11 @@ func (t *Tracker) classify(st *state, r *rec) {
 			largest = cls[c]
 		}
 	}
-	r.high, r.nprob = 0, 0
+	r.high, r.nprob, r.reach = 0, 0, 0
 	for c := AvoidableBias; c <= ValOverfit; c++ {
+		if ok[c] && cls[c] >= thr[c]*(1-eps) && cls[c] > 0 {
+			r.reach |= 1 << c
+		}
 		if ok[c] && cls[c] >= thr[c]*(1-eps) && cls[c] >= largest/2*(1-eps) && cls[c] > 0 {
 			r.high |= 1 << c
 			r.problems[r.nprob] = c
@@ -109,8 +112,14 @@ func (t *Tracker) classify(st *state, r *rec) {
 	case bad:
 		r.diag = Diverging
 		r.high, r.nprob, r.focus = 0, 0, NoComponent
-	case t.metric == nil || st.judged < minPoints || !have[SplitTrain]:
+	case t.metric == nil || st.judged < minPoints:
 		r.diag = TooEarly
+		r.high, r.nprob, r.focus = 0, 0, NoComponent
+	case !have[SplitTrain] || !have[SplitVal] && !have[SplitTrainDev] && r.high&(1<<AvoidableBias) == 0:
+		// One split: without a training value nothing is separable; with
+		// training values only, a high avoidable bias is still seen, but
+		// nothing else (variance needs held-out data).
+		r.diag = OneSplit
 		r.high, r.nprob, r.focus = 0, 0, NoComponent
 	case r.high&(1<<AvoidableBias) != 0 && r.high&(1<<Variance) != 0:
 		r.diag = HighBiasHighVariance
@@ -144,4 +153,49 @@ func (t *Tracker) uncertainty(r *rec) [nSplits]float64 {
 		}
 	}
 	return u
+}
+
+// checkMemorization recognises a run that memorizes its training set:
+// since the best epoch its training value fell by the tolerance while its
+// validation value rose by the tolerance and beyond its noise (memoSigmas),
+// or its training curve still falls while the validation value stands
+// far above its best (farSigmas).
+// It fits what does not generalize: wrong labels, or too few examples. A
+// larger model or longer training would make it worse, so the bias is not
+// judged a problem (the training error is measured on labels that may be
+// wrong, and the optimal error on them is unknown): the run is judged
+// high-variance when the validation error is also well above the training
+// error, else memorizing, with the focus on variance either way, variance
+// remedies and a check of the labels.
+func (t *Tracker) checkMemorization(st *state, r *rec) {
+	switch r.diag {
+	case Diverging, TooEarly, OneSplit:
+		return
+	}
+	const trainBit = uint8(1) << SplitTrain
+	sd := r.nzv[SplitVal]
+	sinceBest := st.bestIdx >= 0 && st.seen&trainBit != 0 && finite(st.bestTrain) && finite(sd) &&
+		st.bestTrain-r.sm[SplitTrain] >= r.tol*(1-eps) && r.rise >= math.Max(r.tol, memoSigmas*sd)*(1-eps)
+	if !sinceBest && !(r.trainProg == Improving && r.far) {
+		return
+	}
+	r.memorize = true
+	// The variance counts as high when it reaches its threshold, whatever
+	// the bias: a training error on wrong labels is no yardstick for it.
+	varHigh := r.reach&(1<<Variance) != 0
+	r.high &^= 1 << AvoidableBias
+	var probs []Component
+	if varHigh {
+		probs = append(probs, Variance)
+	}
+	for _, c := range r.problems[:r.nprob] {
+		if c != AvoidableBias && c != Variance {
+			probs = append(probs, c)
+		}
+	}
+	r.nprob = uint8(copy(r.problems[:], probs))
+	r.focus, r.diag = Variance, Memorizing
+	if varHigh {
+		r.diag = HighVariance
+	}
 }

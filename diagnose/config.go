@@ -48,6 +48,11 @@ type Config struct {
 	BayesErrorGiven bool
 	// BaselineError is the majority-class error, when given.
 	BaselineError Num
+	// Classes is the number of classes K of a classification task, when
+	// given (0: unknown). The chance level, the error of a guess that
+	// carries no information, is then 1 − 1/K; unknown, it is inferred
+	// when a point shows a uniform guess (chance.go).
+	Classes int
 	// Tolerance: absolute (fraction, 0.02 = 2 points) for error rates and
 	// other metrics bounded in [0, 1].
 	Tolerance float64
@@ -126,6 +131,9 @@ func (c Config) normalized() Config {
 	}
 	if c.TrainSize < 0 {
 		c.TrainSize = 0
+	}
+	if c.Classes < 2 {
+		c.Classes = 0 // one class has no chance level to fall back to
 	}
 	if math.IsNaN(c.BayesError) || math.IsInf(c.BayesError, 0) {
 		c.BayesError, c.BayesErrorGiven = 0, false

@@ -12,7 +12,8 @@ const (
 	reasonDiverged
 	reasonPatience
 	reasonPQ
-	reasonGuard // a stop held back: high bias and still improving
+	reasonFar   // the validation value far above its best, beyond its noise
+	reasonGuard // a stop held back: high bias, validation still improving, rise within noise
 	reasonAging
 	reasonUP
 	reasonGL
@@ -26,8 +27,9 @@ const (
 // curve, from the least-squares slope over the last slopeWindow points.
 func (t *Tracker) judgeProgress(st *state, i int, r *rec) {
 	w := &st.trend[trendVal]
+	r.progOf = SplitVal
 	if st.seen&(1<<SplitVal) == 0 {
-		w = &st.trend[trendTrain]
+		w, r.progOf = &st.trend[trendTrain], SplitTrain
 	}
 	r.progress, _, _ = t.windowTrend(i, r.tol, w)
 	r.trainProg, _, _ = t.windowTrend(i, r.tol, &st.trend[trendTrain])
@@ -105,6 +107,10 @@ func (t *Tracker) earlyStop(st *state, i int, r *rec) {
 		v := r.sm[SplitVal]
 		if st.bestIdx < 0 || v < st.best-t.cfg.MinDelta {
 			st.best, st.bestIdx, st.bestEpoch, st.pqFired = v, i, epoch, false
+			st.bestTrain = math.NaN()
+			if st.seen&(1<<SplitTrain) != 0 {
+				st.bestTrain = r.sm[SplitTrain]
+			}
 			newBest = true
 		}
 		st.gl = generalizationLoss(v, st.best)
@@ -143,8 +149,29 @@ func (t *Tracker) earlyStop(st *state, i int, r *rec) {
 		st.stripVal, st.stripValOK = r.sm[SplitVal], hasVal
 	}
 
-	improving := r.progress == Improving || (r.diag == HighBias && r.trainProg == Improving)
-	guard := (r.diag == HighBias || r.diag == HighBiasHighVariance) && improving
+	// How far the smoothed validation value stands above its best, and
+	// whether that is beyond its noise (farSigmas).
+	if st.bestIdx >= 0 && st.seen&valBit != 0 {
+		r.rise = r.sm[SplitVal] - st.best
+		sd := r.nzv[SplitVal]
+		r.far = t.cfg.beta() > 0 && finite(sd) && r.rise > farSigmas*sd*(1+eps) && r.rise > t.cfg.MinDelta
+	}
+	t.checkMemorization(st, r)
+	// A run that cannot fit its training set and still improves is given
+	// time, but only on the evidence of a validation curve (it is what the
+	// signal protects: the judged one improving, or the validation loss at
+	// a new low), and only while the rise that met a stopping criterion is
+	// within the judged curve's noise.
+	r.valLossLow = st.auxSeen&(1<<auxLoss) != 0 && r.auxAt(auxLoss) && st.aux[auxLoss].sm == st.aux[auxLoss].low &&
+		st.aux[auxLoss].n > 1 && t.loss != t.metric
+	guard := (r.diag == HighBias || r.diag == HighBiasHighVariance) && r.progOf == SplitVal &&
+		(r.progress == Improving || r.valLossLow) && !r.far
+	// A curve that falls again but has not regained its best (beyond its
+	// noise, or for longer than the patience unless the guard gives it
+	// time) is not "still improving".
+	if r.progress == Improving && r.progOf == SplitVal && (r.far || !guard && st.bestIdx >= 0 && r.since >= t.cfg.Patience) {
+		r.progress = Recovering
+	}
 	switch {
 	case t.metric == nil:
 		r.signal, r.why = Continue, reasonNoMetric
@@ -156,6 +183,8 @@ func (t *Tracker) earlyStop(st *state, i int, r *rec) {
 		r.signal, r.why = Stop, reasonPatience
 	case st.pqFired:
 		r.signal, r.why = Stop, reasonPQ
+	case r.far:
+		r.signal, r.why = Stop, reasonFar
 	case st.bestIdx >= 0 && 2*r.since >= t.cfg.Patience:
 		r.signal, r.why = Watch, reasonAging
 	case st.up >= 1 && !newBest: // a new best contradicts "rising"

@@ -1,6 +1,9 @@
 package diagnose
 
-import "strconv"
+import (
+	"strconv"
+	"strings"
+)
 
 // The enumerations of a judgement. Each has one table, beside its type,
 // holding for every value its machine name (JSON, stable) and its human
@@ -80,16 +83,27 @@ const (
 	HighBiasHighVariance
 	DataMismatch
 	GoodFit
+	// OneSplit: the judged metric is logged on one split only, so bias
+	// and variance cannot be separated; early stopping still works on a
+	// validation curve.
+	OneSplit
+	// Memorizing: the training error still falls while the validation
+	// error rises from its best, the validation error not (yet) well above
+	// the training error (wrong training labels keep the training error
+	// high): variance by another road.
+	Memorizing
 )
 
 var diagnoses = table[Diagnosis]{kind: "diagnosis", words: []wording{
 	TooEarly:             {"too-early", "too early to judge", "a few more epochs are needed", ""},
-	Diverging:            {"diverging", "diverging", "the training curve is blowing up, or a value is not finite", ""},
+	Diverging:            {"diverging", "diverging", "training has broken down: a value is not finite, a training curve has climbed far from its best, or the validation error is back at the chance level", ""},
 	HighBias:             {"high-bias", "underfitting", "high avoidable bias: training error well above the optimal error", ""},
 	HighVariance:         {"high-variance", "overfitting", "high variance: validation error well above training error", ""},
 	HighBiasHighVariance: {"high-bias-high-variance", "underfitting and overfitting", "high avoidable bias and high variance", ""},
 	DataMismatch:         {"data-mismatch", "data mismatch", "train-dev close to training, validation worse", ""},
 	GoodFit:              {"good-fit", "near the optimal error", "little avoidable bias or variance left", ""},
+	OneSplit:             {"one-split", "one split only", "the judged metric is logged on one split only: bias and variance cannot be separated", ""},
+	Memorizing:           {"memorizing", "memorizing", "training error still falling while validation error rises from its best: the model memorizes its training set", ""},
 }}
 
 // String returns the stable machine name used in JSON ("high-variance").
@@ -164,6 +178,10 @@ const (
 	Improving
 	Plateaued
 	Worsening
+	// Recovering: the curve falls again, but has not regained its best:
+	// it stands above it beyond its noise, or has not reached it for
+	// longer than the patience.
+	Recovering
 )
 
 var progresses = table[Progress]{kind: "progress", words: []wording{
@@ -171,6 +189,7 @@ var progresses = table[Progress]{kind: "progress", words: []wording{
 	Improving:       {"improving", "improving", "the validation curve is still improving", ""},
 	Plateaued:       {"plateaued", "plateaued", "the validation curve has plateaued", ""},
 	Worsening:       {"worsening", "worsening", "the validation curve is worsening", ""},
+	Recovering:      {"recovering", "falling back", "the validation curve is falling again but has not regained its best", ""},
 }}
 
 // String returns the stable machine name used in JSON ("plateaued").
@@ -179,8 +198,19 @@ func (p Progress) String() string { return progresses.name(p) }
 // Phrase is the trend in a word or two: "plateaued".
 func (p Progress) Phrase() string { return progresses.phrase(p) }
 
-// Description is the trend as a clause: "the validation curve has plateaued".
+// Description is the trend of the validation curve as a clause: "the
+// validation curve has plateaued".
 func (p Progress) Description() string { return progresses.about(p) }
+
+// Of is the trend as a clause naming the curve it describes: Of(SplitTrain)
+// is "the training curve has plateaued".
+func (p Progress) Of(s Split) string {
+	d := progresses.about(p)
+	if s == SplitVal || s == SplitNone {
+		return d
+	}
+	return strings.Replace(d, "the validation curve", "the "+s.Phrase()+" curve", 1)
+}
 
 // MarshalText makes a Progress a JSON string.
 func (p Progress) MarshalText() ([]byte, error) { return []byte(p.String()), nil }

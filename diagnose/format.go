@@ -60,6 +60,10 @@ func (w *text) gap(v float64) *text {
 	return w.s(" points")
 }
 
+// pctOf appends a rate in percent whatever the judged metric (the chance
+// level and the validation error rate beside a judged loss).
+func (w *text) pctOf(v float64) *text { return w.pct(v).s("%") }
+
 // pct appends 100·v as AppendPercent does.
 func (w *text) pct(v float64) *text {
 	w.b = AppendPercent(w.b, v)

@@ -47,10 +47,19 @@ type JudgementJSON struct {
 	ValHigh       Num `json:"val_high"`       // upper end of the same interval
 	GapSE         Num `json:"gap_se"`         // standard error of the train/validation gap (needs --val-size)
 
-	Diagnosis Diagnosis   `json:"diagnosis"` // the regime judged
-	Problems  []Component `json:"problems"`  // the components judged high, largest first
-	Focus     Component   `json:"focus"`     // the component to work on first
-	Progress  Progress    `json:"progress"`  // the trend of the smoothed validation curve
+	ChanceError     Num    `json:"chance_error"`     // the chance level 1 − 1/K of a K-class task, as a fraction; null when K is unknown
+	Classes         OptInt `json:"classes"`          // K, given or inferred; null when unknown
+	ClassesInferred bool   `json:"classes_inferred"` // K was inferred from the log (a validation accuracy near 1/K with a validation loss near ln K, at two points in a row), not given
+	ChanceNote      string `json:"chance_note"`      // where K comes from, in words; empty when unknown
+	ValRate         Num    `json:"val_rate"`         // a smoothed validation error rate logged without a training counterpart beside the judged metric (accuracy on validation only, a loss judged): shown, not judged; null when none
+	ValRateRaw      Num    `json:"val_rate_raw"`     // its value logged at the point
+	ValRateMetric   string `json:"val_rate_metric"`  // how output names it: "error (1 − acc)"; empty when none
+
+	Diagnosis     Diagnosis   `json:"diagnosis"`      // the regime judged
+	Problems      []Component `json:"problems"`       // the components judged high, largest first
+	Focus         Component   `json:"focus"`          // the component to work on first
+	Progress      Progress    `json:"progress"`       // the trend of the smoothed curve named by progress_curve
+	ProgressCurve string      `json:"progress_curve"` // the curve progress describes: "val", or "train" when no validation value is logged ("none" before any)
 
 	EarlyStop EarlyStopJSON `json:"early_stop"` // the early-stopping signal and the numbers behind it
 	Actions   []Action      `json:"actions"`    // the next actions, most promising first, each with its evidence
@@ -101,12 +110,23 @@ func (j Judgement) JSONForm() JudgementJSON {
 		ValHigh:       j.ValHigh,
 		GapSE:         j.GapSE,
 
-		Diagnosis: j.Diagnosis,
-		Problems:  append([]Component{}, j.Problems...),
-		Focus:     j.Focus,
-		Progress:  j.Progress,
-		Actions:   make([]Action, len(j.Actions)),
-		Warnings:  make([]string, len(j.Warnings)),
+		ChanceError:     j.Chance.Error,
+		ClassesInferred: j.Chance.Inferred,
+		ChanceNote:      Printable(j.Chance.Note),
+		ValRate:         j.ValRate.Smooth,
+		ValRateRaw:      j.ValRate.Raw,
+		ValRateMetric:   Printable(j.RateMetric.Label),
+
+		Diagnosis:     j.Diagnosis,
+		Problems:      append([]Component{}, j.Problems...),
+		Focus:         j.Focus,
+		Progress:      j.Progress,
+		ProgressCurve: j.ProgressCurve.String(),
+		Actions:       make([]Action, len(j.Actions)),
+		Warnings:      make([]string, len(j.Warnings)),
+	}
+	if j.Chance.Classes > 0 {
+		f.Classes = SomeInt(j.Chance.Classes)
 	}
 	if j.Judged() {
 		f.Epoch = SomeInt(j.Epoch)

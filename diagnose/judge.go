@@ -42,6 +42,15 @@ func (t *verdict) judgement() Judgement {
 		Diagnosis:       r.diag,
 		Focus:           r.focus,
 		Progress:        r.progress,
+		ProgressCurve:   r.progOf,
+		Chance:          t.chanceOf(st),
+	}
+	if t.rate != nil && t.rate != t.metric && t.rate.splits&(1<<SplitTrain) == 0 && st.auxSeen&(1<<auxRate) != 0 {
+		j.RateMetric = metricOf(t.rate)
+		j.ValRate.Smooth = Some(st.aux[auxRate].sm)
+		if r.auxAt(auxRate) {
+			j.ValRate.Raw = Some(r.auxRaw[auxRate])
+		}
 	}
 	est := func(s Split) Estimate {
 		var e Estimate
@@ -108,7 +117,22 @@ func (t *verdict) reasonText() string {
 	case reasonTooEarly:
 		w.s("too early: ").n(int(st.judged)).s(" of ").n(minPoints).s(" points")
 	case reasonDiverged:
-		w.s("diverged at epoch ").n(t.hist.epoch(t.i))
+		switch r.blowup {
+		case blowChance:
+			w.s("collapsed at epoch ").n(t.hist.epoch(t.i)).s(": smoothed validation ").s(t.chanceName()).s(" ").
+				pctOf(st.aux[auxRate].sm).s(" is back at the chance level ").pctOf(t.chanceLevel()).s(", with no NaN")
+		case blowOrders:
+			l := &st.aux[r.blowLoss]
+			w.s("diverged at epoch ").n(t.hist.epoch(t.i)).s(": smoothed ").s(t.blowLossName()).s(" ").plain(l.sm).
+				s(" is ").f(l.sm/l.low, 0).s(" times its best ").plain(l.low).s(", with no NaN")
+		case blowBack, blowStart:
+			w.s("diverged at epoch ").n(t.hist.epoch(t.i)).s(": the training ").s(name).s(" climbs far from its best")
+		default:
+			w.s("diverged at epoch ").n(t.hist.epoch(t.i)).s(": a value is not finite")
+		}
+	case reasonFar:
+		w.s("smoothed validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is up ").gap(r.rise).s(" from its best ").val(st.best).
+			s(" at epoch ").n(st.bestEpoch).s(", more than ").f(farSigmas, 0).s(" times its epoch-to-epoch noise ").gap(r.nzv[SplitVal])
 	case reasonPatience:
 		w.s("no improvement of the smoothed validation ").s(name)
 		if t.cfg.MinDelta > 0 {
@@ -119,9 +143,15 @@ func (t *verdict) reasonText() string {
 		w.s("Prechelt's PQ criterion: GL/P").n(t.cfg.Strip).s(" = ").f(st.pq.V, 2).s(" > ").f(t.cfg.StopPQ, 2).
 			s(" at the end of a strip (generalization loss outgrows training progress)")
 	case reasonGuard:
-		w.s("a stopping criterion is met, but the run is high-bias and still improving: keep training")
+		w.s("a stopping criterion is met, but the run is high-bias and the validation ")
+		if r.progress == Improving {
+			w.s(name).s(" is still improving")
+		} else {
+			w.s(Printable(t.loss.name)).s(" still reaches new lows while the validation ").s(name).s(" stays within its noise of its best")
+		}
+		w.s(": keep training")
 	case reasonAging:
-		w.s("best epoch was ").n(r.since).s(" epochs ago (patience ").n(t.cfg.Patience).s(")")
+		w.s("the best smoothed validation ").s(name).s(" was ").n(r.since).s(" epochs ago (patience ").n(t.cfg.Patience).s(")")
 	case reasonUP:
 		w.s("validation ").s(name).s(" rose over the last ").n(int(st.up)).s(" strip(s) of ").n(t.cfg.Strip)
 	case reasonGL:
@@ -129,13 +159,16 @@ func (t *verdict) reasonText() string {
 		w.s("smoothed validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is up ").f(st.gl.V, 1).s("% relative to its best ").
 			val(st.best).s(" at epoch ").n(st.bestEpoch).s(" (generalization loss)")
 	case reasonPlateau:
-		w.s("validation ").s(name).s(" has plateaued")
+		w.s(r.progOf.Phrase()).s(" ").s(name).s(" has plateaued")
 	case reasonNewBest:
 		return w.s("new best validation ").s(name).s(" ").val(st.best).done()
 	default:
-		w.s("validation ").s(name).s(" still improving")
+		w.s(r.progOf.Phrase()).s(" ").s(name).s(" still improving")
 	}
-	if st.bestIdx >= 0 {
+	switch {
+	case st.bestIdx >= 0 && r.why == reasonGuard:
+		w.s(" (best epoch so far ").n(st.bestEpoch).s(")")
+	case st.bestIdx >= 0:
 		w.s("; restore epoch ").n(st.bestEpoch)
 	}
 	return w.done()

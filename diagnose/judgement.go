@@ -94,17 +94,46 @@ type Judgement struct {
 	// GapSE is the standard error of the train/validation gap, when known.
 	GapSE Num
 
+	// Chance is the chance level, when the number of classes is given or
+	// was inferred from the log.
+	Chance Chance
+	// RateMetric and ValRate: a validation error rate logged without a
+	// training counterpart beside a judged metric that has one (an
+	// accuracy on validation only, beside a loss on both splits), shown
+	// beside the verdict, not judged.
+	RateMetric Metric
+	ValRate    Estimate
+
 	Diagnosis Diagnosis
 	Problems  []Component
 	Focus     Component
 	Progress  Progress
-	EarlyStop EarlyStop
-	Actions   []Action
-	Warnings  []string
+	// ProgressCurve is the curve Progress describes: the validation curve,
+	// or the training curve when no validation value is logged.
+	ProgressCurve Split
+	EarlyStop     EarlyStop
+	Actions       []Action
+	Warnings      []string
+}
+
+// Chance is the chance level of a classification run: the error of a
+// guess that carries no information, 1 − 1/K for K classes.
+type Chance struct {
+	// Error is 1 − 1/K, absent when K is unknown.
+	Error   Num
+	Classes int
+	// Inferred says K was inferred from the log (a point with an accuracy
+	// near 1/K and a loss near ln K), not given; Note says from which.
+	Inferred bool
+	Note     string
 }
 
 // Judged reports whether j judges a point (not NoJudgement).
 func (j Judgement) Judged() bool { return j.Index >= 0 }
+
+// Trend is the trend of the curve the judgement's progress describes, as a
+// clause that names it: "the validation curve has plateaued".
+func (j Judgement) Trend() string { return j.Progress.Of(j.ProgressCurve) }
 
 // Estimate returns the values of split s (train to test).
 func (j Judgement) Estimate(s Split) Estimate {

@@ -71,11 +71,14 @@ func TestEnums_Tables(t *testing.T) {
 // deliberately not written.
 func TestJudgementJSON_EveryFieldIsWritten(t *testing.T) {
 	notWritten := map[string]bool{
-		"Index":              true, // a position in one process's history
-		"Segment":            true, // a reader's count; the source's warnings say when the log restarted
-		"Metric.Fraction":    true, // error_rate and metric say it
-		"EarlyStop.MinDelta": true, // a setting, as given on the command line
-		"EarlyStop.Strip":    true, // Prechelt's k; p5 keeps its name
+		"Index":               true, // a position in one process's history
+		"Segment":             true, // a reader's count; the source's warnings say when the log restarted
+		"Metric.Fraction":     true, // error_rate and metric say it
+		"EarlyStop.MinDelta":  true, // a setting, as given on the command line
+		"EarlyStop.Strip":     true, // Prechelt's k; p5 keeps its name
+		"RateMetric.Base":     true, // val_rate_metric names it
+		"RateMetric.Error":    true, // val_rate is always an error rate
+		"RateMetric.Fraction": true, // and always a fraction
 	}
 	base := NoJudgement(Config{})
 	base.Index = 0

@@ -50,14 +50,20 @@ func kindOf(c Column) metricKind {
 // tolerance is absolute.
 func (k metricKind) bounded() bool { return k == kindErrorRate || k == kindShortfall }
 
-// rank orders candidates for the automatic choice: a metric with a
-// validation split first, then an error rate, then the conventional "loss",
-// then any other lower-is-better metric; higher-is-better scores only when
-// nothing else is logged. Ties go to the first seen. Higher ranks win.
+// rank orders candidates for the automatic choice: a metric logged on both
+// the training and the validation split first (only it separates bias
+// from variance: a loss on both beats an accuracy on validation only),
+// then one with a validation split; within each, an error rate, then the
+// conventional "loss", then any other lower-is-better metric;
+// higher-is-better scores only when nothing else is logged. Ties go to the
+// first seen. Higher ranks win.
 func (b *baseInfo) rank() int {
 	r := 0
 	if b.splits&(1<<SplitVal) != 0 {
 		r += 100
+		if b.splits&(1<<SplitTrain) != 0 {
+			r += 100
+		}
 	}
 	switch b.kind {
 	case kindErrorRate:

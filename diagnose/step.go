@@ -20,6 +20,21 @@ const (
 	// at least watch: GL_5, the least eager GL criterion of Prechelt
 	// (1998), is beyond the epoch-to-epoch noise of most runs.
 	watchGL = 5.0
+	// farSigmas: a smoothed validation value this many per-epoch noise
+	// standard deviations above its best has risen beyond doubt. White
+	// noise moves the smoothed value (β = 0.6) with s.d. σ/2, so this is
+	// ten of its standard deviations; a single spike of size s raises σ
+	// itself to about 0.18·s (ρ = 0.8 running mean of the residuals) while
+	// it lifts the smoothed value by 0.4·s, so one bad epoch is not
+	// enough. Such a rise stops the run once the best is half the patience
+	// old, and no guard holds it back (design choice).
+	farSigmas = 5.0
+	// memoSigmas: since the best epoch, the validation value has risen by
+	// this many per-epoch noise standard deviations (four of the smoothed
+	// value's) and by the tolerance, while the training value fell by the
+	// tolerance: the run memorizes (design choice; a run whose curves
+	// only wander within their noise shows neither).
+	memoSigmas = 2.0
 	// A finite training curve is judged diverging only on clear evidence
 	// (design choice: a warm restart of the learning rate or a few noisy
 	// epochs give a bump, not a sustained return to where training began):
@@ -84,10 +99,12 @@ type series struct {
 type state struct {
 	run  [nSplits]series
 	seen uint8 // splits with a smoothed value so far
-	aux  [2]ema
-	// auxSeen: bit k set when aux[k] has a value; auxStart their first.
-	auxSeen  uint8
-	auxStart [2]float64
+	// aux holds the auxiliary series (auxLoss …, chance.go); auxSeen has
+	// bit k set once aux[k] has a value.
+	aux     [nAux]track
+	auxSeen uint8
+	// chance is the chance level inferred so far (chance.go).
+	chance chance
 
 	judged   int32   // points where the judged metric had a finite value
 	start    float64 // first finite smoothed train (else val) value
@@ -95,9 +112,8 @@ type state struct {
 
 	// sm, se, nzv: the latest smoothed value of each split, its standard
 	// error and the split's noise (NaN before three values), carried over
-	// points where the split is absent; auxSm likewise for aux.
+	// points where the split is absent.
 	sm, se, nzv [nSplits]float64
-	auxSm       [2]float64
 
 	// trend holds the last smoothed values each trend is fitted to: the
 	// training and validation curves of the judged metric (where logged and
@@ -120,6 +136,9 @@ type state struct {
 	bestIdx   int // point of the best smoothed validation value; -1 none
 	bestEpoch int // its epoch
 	best      float64
+	// bestTrain is the smoothed training value at the best epoch (NaN
+	// when none was logged by then), for the memorization check.
+	bestTrain float64
 	gl        Num // generalization loss against the best smoothed value
 	pk, pq    Num // as of the last completed strip
 	up        int32
@@ -172,7 +191,7 @@ func (w *window) at(k int) (int, float64) {
 // ckptEvery is how many points apart a copy of the state is kept. Asking
 // for a past judgement restores the copy at or before the point and judges
 // at most ckptEvery−1 points again, and so does a rewind. A state copy is
-// about 1.3 kB, so this costs about 10 bytes per point (design choice:
+// about 1.7 kB, so this costs about 14 bytes per point (design choice:
 // rebuilding a judgement stays near 20 µs, far inside the 1 ms an
 // inspection may take).
 const ckptEvery = 128
@@ -188,38 +207,42 @@ type rec struct {
 	se  [nSplits]float64 // standard error of each smoothed value
 	nzv [nSplits]float64 // noise estimate of each split; NaN before 3 values
 
-	auxSm  [2]float64
-	auxHit uint8 // bit k: aux series k logged at this point
+	auxRaw [nAux]float64 // the auxiliary values logged at this point
+	auxHit uint8         // bit k: aux series k logged (finite) at this point
 
 	tol       float64 // tolerance in the metric's units
 	comp      [5]Num  // the components by Component, as defined
 	high      uint8   // bit per Component judged high
+	reach     uint8   // bit per Component that reaches its threshold, large or not
 	problems  [4]Component
 	nprob     uint8
 	focus     Component
 	diag      Diagnosis
 	progress  Progress
+	progOf    Split // the curve progress describes: validation, else training
 	trainProg Progress
-	signal    Signal
-	why       reason
-	since     int // epochs since the best
-	warn      warnSet
-	badPoint  bool // a metric value of the point is NaN or ±Inf
-	blowup    blowup
-	overconf  bool
+	rise      float64 // smoothed validation value above its best
+	far       bool    // rise beyond farSigmas of the validation noise
+	memorize  bool    // training error falling while validation error rises
+	// valLossLow: the validation loss (not the judged metric) reached a
+	// new low at this point.
+	valLossLow bool
+	signal     Signal
+	why        reason
+	since      int // epochs since the best
+	warn       warnSet
+	badPoint   bool // a metric value of the point is NaN or ±Inf
+	blowup     blowup
+	blowLoss   uint8 // the aux series of a blowOrders collapse
+	overconf   bool
 }
-
-const (
-	auxLoss = 0
-	auxRate = 1
-)
 
 // step judges point i: it fills r from st, the state before the point,
 // and the point's inputs, and leaves st as the state after it. It reads
 // the Tracker and changes nothing of it, so rebuilding a past judgement
 // is safe beside other readers.
 func (t *Tracker) step(st *state, i int, r *rec) {
-	*r = rec{sm: st.sm, se: st.se, nzv: st.nzv, auxSm: st.auxSm}
+	*r = rec{sm: st.sm, se: st.se, nzv: st.nzv}
 	beta := t.cfg.beta()
 
 	// Read the point.
@@ -238,16 +261,19 @@ func (t *Tracker) step(st *state, i int, r *rec) {
 			}
 		}
 	}
-	if t.loss != nil {
-		if v, ok := t.hist.value(t.loss.series[SplitVal], i); ok && finite(v) {
-			addAux(st, r, auxLoss, v, beta)
+	for _, a := range [...]struct {
+		k     int
+		base  *baseInfo
+		split Split
+	}{{auxLoss, t.loss, SplitVal}, {auxRate, t.rate, SplitVal}, {auxTrainLoss, t.lossT, SplitTrain}, {auxTrainRate, t.rate, SplitTrain}} {
+		if a.base == nil {
+			continue
+		}
+		if v, ok := t.hist.value(a.base.series[a.split], i); ok && finite(v) {
+			addAux(st, r, a.k, judgedValue(a.base, v), beta)
 		}
 	}
-	if t.rate != nil {
-		if v, ok := t.hist.value(t.rate.series[SplitVal], i); ok && finite(v) {
-			addAux(st, r, auxRate, judgedValue(t.rate, v), beta)
-		}
-	}
+	t.inferChance(st, i, r)
 
 	// Smooth and estimate the noise of each split of the judged metric.
 	for s := SplitTrain; s <= SplitTest; s++ {
@@ -283,14 +309,15 @@ func (t *Tracker) step(st *state, i int, r *rec) {
 	if r.has&^r.bad&valBit != 0 {
 		st.trend[trendVal].push(i, r.sm[SplitVal])
 	}
-	for k := range 2 {
+	for _, k := range [...]int{auxLoss, auxRate} {
 		if r.auxAt(k) {
-			st.trend[trendLoss+k].push(i, r.auxSm[k])
+			st.trend[trendLoss+k].push(i, st.aux[k].sm)
 		}
 	}
-	st.sm, st.se, st.nzv, st.auxSm = r.sm, r.se, r.nzv, r.auxSm
+	st.sm, st.se, st.nzv = r.sm, r.se, r.nzv
 
 	t.checkBlowup(st, r)
+	t.checkCollapse(st, r)
 	t.classify(st, r)
 	t.judgeProgress(st, i, r)
 	t.earlyStop(st, i, r)
@@ -299,21 +326,20 @@ func (t *Tracker) step(st *state, i int, r *rec) {
 
 func addAux(st *state, r *rec, k int, v, beta float64) {
 	st.aux[k].add(v, beta)
-	r.auxSm[k] = st.aux[k].value()
+	r.auxRaw[k] = v
 	r.auxHit |= 1 << k
-	if st.auxSeen&(1<<k) == 0 {
-		st.auxSeen |= 1 << k
-		st.auxStart[k] = r.auxSm[k]
-	}
+	st.auxSeen |= 1 << k
 }
 
 // blowup says which rule judged a finite training curve diverging.
 type blowup uint8
 
 const (
-	blowNone  blowup = iota
-	blowBack         // climbed back more than half-way from its best to its start
-	blowStart        // above blowupStart (three) times its start
+	blowNone   blowup = iota
+	blowBack          // climbed back more than half-way from its best to its start
+	blowStart         // above blowupStart (three) times its start
+	blowChance        // validation error back at the chance level (chance.go)
+	blowOrders        // a loss an order of magnitude above its best (chance.go)
 )
 
 // checkBlowup flags a training curve that climbs far above its best and

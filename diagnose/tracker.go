@@ -14,7 +14,7 @@ import "sort"
 // Cost: the Tracker keeps the inputs of each point compactly (its epoch,
 // its line and the values of each judgeable series: about 48 bytes for a
 // log of train and validation loss and accuracy) and a copy of its running
-// state every ckptEvery points (about 10 bytes per point), never a Point
+// state every ckptEvery points (about 14 bytes per point), never a Point
 // or a judgement. Add does O(1) work from the state of the previous point
 // plus one strip of look-back at strip ends; At(i) restores the copy at or
 // before i and judges at most ckptEvery−1 points again (tens of µs); a
@@ -40,7 +40,10 @@ type Tracker struct {
 
 	metric *baseInfo // judged metric, nil when none is judgeable yet
 	loss   *baseInfo // a validation loss, for the overconfidence check
-	rate   *baseInfo // a validation error rate, for the same check
+	rate   *baseInfo // a validation error rate, for the same check and the chance level
+	// lossT is a loss logged on the training split (loss when it has one):
+	// a loss grown by orders of magnitude is a collapse (chance.go).
+	lossT *baseInfo
 	// missing is set when Config.Metric names a metric not (yet) logged.
 	missing bool
 	// desc describes the judged metric for output (built once per choice).
@@ -278,13 +281,13 @@ func (t *Tracker) learn(p *Point) bool {
 		}
 		if !b.percent && b.kind.bounded() && (c.Percent || s.Value > 1 && finite(s.Value)) {
 			b.percent = true
-			flipped = flipped || b == t.metric || b == t.loss || b == t.rate
+			flipped = flipped || b == t.metric || b == t.loss || b == t.rate || b == t.lossT
 		}
 	}
 	if grew {
-		m, l, r, miss := t.metric, t.loss, t.rate, t.missing
+		m, l, r, lt, miss := t.metric, t.loss, t.rate, t.lossT, t.missing
 		t.choose()
-		grew = t.metric != m || t.loss != l || t.rate != r || t.missing != miss
+		grew = t.metric != m || t.loss != l || t.rate != r || t.lossT != lt || t.missing != miss
 	}
 	return grew || flipped || listed && t.missing
 }
@@ -292,7 +295,7 @@ func (t *Tracker) learn(p *Point) bool {
 // choose picks the judged metric and the two series of the
 // overconfidence check from the bases seen.
 func (t *Tracker) choose() {
-	t.metric, t.loss, t.rate, t.missing = nil, nil, nil, false
+	t.metric, t.loss, t.rate, t.lossT, t.missing = nil, nil, nil, nil, false
 	if t.cfg.Metric != "" {
 		if b := t.bases[t.cfg.Metric]; b != nil && b.kind != kindNone {
 			t.metric = b
@@ -319,7 +322,7 @@ func (t *Tracker) choose() {
 		name := Printable(t.cfg.Metric)
 		t.desc = Metric{Base: name, Label: name}
 	}
-	const val = uint8(1) << SplitVal
+	const val, train = uint8(1) << SplitVal, uint8(1) << SplitTrain
 	for _, b := range t.order {
 		if b.splits&val == 0 {
 			continue
@@ -329,6 +332,14 @@ func (t *Tracker) choose() {
 		}
 		if t.rate == nil && b.kind == kindErrorRate {
 			t.rate = b
+		}
+	}
+	if t.loss != nil && t.loss.splits&train != 0 {
+		t.lossT = t.loss
+	}
+	for _, b := range t.order {
+		if t.lossT == nil && b.splits&train != 0 && b.kind == kindLower && isLossName(b.name) {
+			t.lossT = b
 		}
 	}
 }

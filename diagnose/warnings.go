@@ -23,6 +23,8 @@ const (
 	warnNoTrain
 	warnOutOfRange
 	warnBayesPercent
+	warnMemorize
+	warnAtChance
 )
 
 // overconfident reports the pattern of miscalibration of Guo et al.
@@ -32,10 +34,11 @@ const (
 // relative rise must be under a quarter of the loss's: when both rise in
 // proportion the run is simply overfitting (design choice).
 func (t *Tracker) overconfident(st *state, i int) bool {
-	if t.loss == nil || t.rate == nil || t.loss == t.rate || st.auxSeen != 3 {
+	const both = 1<<auxLoss | 1<<auxRate
+	if t.loss == nil || t.rate == nil || t.loss == t.rate || st.auxSeen&both != both {
 		return false
 	}
-	lossTol := t.cfg.RelTolerance * math.Abs(st.auxStart[auxLoss])
+	lossTol := t.cfg.RelTolerance * math.Abs(st.aux[auxLoss].start)
 	if !(lossTol > 0) {
 		return false
 	}
@@ -62,11 +65,18 @@ func (t *Tracker) collectWarnings(st *state, i int, r *rec) {
 	if r.blowup != blowNone {
 		w |= warnBlowup
 	}
-	if t.metric != nil && !t.cfg.BayesErrorGiven && r.comp[AvoidableBias].OK {
+	if t.metric != nil && !t.cfg.BayesErrorGiven && r.comp[AvoidableBias].OK && r.diag != Diverging {
 		w |= warnBayesAssumed
 	}
 	if t.bayesPercent {
 		w |= warnBayesPercent
+	}
+	if r.memorize {
+		w |= warnMemorize
+	}
+	if c, ok := t.chanceError(st); ok && r.blowup != blowChance && st.auxSeen&(1<<auxRate) != 0 &&
+		st.aux[auxRate].sm >= c-t.cfg.Tolerance*(1+eps) {
+		w |= warnAtChance
 	}
 	if st.judged < minPoints {
 		// The components of the first points are not judged yet (a
@@ -99,7 +109,7 @@ func (t *Tracker) collectWarnings(st *state, i int, r *rec) {
 			w |= warnBaseline
 		}
 	}
-	if t.overconfident(st, i) {
+	if r.diag != Diverging && t.overconfident(st, i) {
 		r.overconf = true
 		w |= warnOverconfident
 	}
@@ -160,13 +170,23 @@ func (t *verdict) warningTexts() []string {
 		add(w.s(": training has diverged or the inputs hold NaN/Inf"))
 	}
 	if r.warn&warnBlowup != 0 {
-		w := t.text().s("training ").s(name).s(" has risen for two epochs: smoothed ").val(r.sm[SplitTrain]).s(" is ")
-		if r.blowup == blowStart {
-			w.s("more than three times its start ").val(st.trStart)
+		out = append(out, t.blowupText())
+	}
+	if r.warn&warnAtChance != 0 {
+		v := &st.aux[auxRate]
+		w := t.text().s("validation ").s(t.chanceName()).s(" ").pctOf(v.sm).s(" is at the chance level ").
+			pctOf(t.chanceLevel()).s(" (").s(t.chanceNote()).s(")")
+		if c := t.chanceLevel(); c-v.low >= collapseSpanBands*v.band(t.cfg.Tolerance)*(1-eps) {
+			w.s(", back from its best ").pctOf(v.low).s(": what the model had learned is lost")
 		} else {
-			w.s("more than half-way back from its best ").val(st.trMin).s(" to its start ").val(st.trStart)
+			w.s(": the model has not learned anything that generalizes yet")
 		}
-		add(w.s(", ").gap(r.sm[SplitTrain] - st.trMin).s(" above its best, beyond its epoch-to-epoch noise: diverging"))
+		add(w)
+	}
+	if r.warn&warnMemorize != 0 {
+		add(t.text().s("training ").s(name).s(" still falling while validation ").s(name).s(" is up ").gap(r.rise).
+			s(" from its best ").val(st.best).s(" at epoch ").n(st.bestEpoch).
+			s(": the model memorizes its training set (wrong labels, or too few examples); more capacity or training would not help"))
 	}
 	if r.warn&warnBayesAssumed != 0 {
 		add(t.text().s("optimal error not given: taken as 0, so the avoidable bias ").gap(r.comp[AvoidableBias].V).
@@ -175,7 +195,7 @@ func (t *verdict) warningTexts() []string {
 	if r.warn&warnNegVariance != 0 {
 		add(t.text().s("validation ").s(name).s(" ").val(r.sm[SplitVal]).s(" is below training ").val(r.sm[SplitTrain]).
 			s(" (variance ").gap(r.comp[Variance].V).s("): common with dropout or other regularization that acts only in training, ").
-			s("or a training value averaged over an epoch while the model improved; it is not evidence of a good fit"))
+			s("a training value averaged over an epoch while the model improved, or wrong labels in the training set only; it is not evidence of a good fit"))
 	}
 	if r.warn&warnNegBias != 0 {
 		add(t.text().s("training ").s(name).s(" ").val(r.sm[SplitTrain]).s(" is below the optimal error ").val(t.bayes).
@@ -197,7 +217,7 @@ func (t *verdict) warningTexts() []string {
 		add(t.text().s("no validation split of ").s(name).s(" is logged: variance cannot be estimated"))
 	}
 	if r.warn&warnNoTrain != 0 {
-		add(t.text().s("no training split of ").s(name).s(" is logged: bias and variance cannot be separated"))
+		add(t.text().s("validation ").s(Printable(t.metric.name)).s(" only: no training counterpart, so bias and variance cannot be separated"))
 	}
 	if r.warn&warnBayesPercent != 0 {
 		add(t.text().s("optimal error ").f(t.cfg.BayesError, 4).s(" is above 1 for a rate: read as ").val(t.bayes).s(" (write a percent with %)"))
@@ -214,3 +234,31 @@ func (t *verdict) metricName() string {
 }
 
 func quote(s string) string { return "\"" + Printable(s) + "\"" }
+
+// blowupText says why a run with finite values is judged diverging, with
+// the numbers.
+func (t *verdict) blowupText() string {
+	r, st := t.r, t.st
+	name := t.metricName()
+	switch r.blowup {
+	case blowChance:
+		v := &st.aux[auxRate]
+		w := t.text().s("validation ").s(t.chanceName()).s(" ").pctOf(v.sm).s(" is back at the chance level ").pctOf(t.chanceLevel()).
+			s(" (").s(t.chanceNote()).s(") from its best ").pctOf(v.low)
+		if st.auxSeen&(1<<auxTrainRate) != 0 {
+			w.s(", and the training ").s(t.chanceName()).s(" is up at ").pctOf(st.aux[auxTrainRate].sm)
+		}
+		return w.s(": the run has collapsed, diverging without a NaN (most often a learning rate too high for the model)").done()
+	case blowOrders:
+		l := &st.aux[r.blowLoss]
+		return t.text().s("smoothed ").s(t.blowLossName()).s(" ").plain(l.sm).s(" is ").f(l.sm/l.low, 0).s(" times its best ").plain(l.low).
+			s(", an order of magnitude or more: diverging without a NaN (most often a learning rate too high for the model)").done()
+	}
+	w := t.text().s("training ").s(name).s(" has risen for two epochs: smoothed ").val(r.sm[SplitTrain]).s(" is ")
+	if r.blowup == blowStart {
+		w.s("more than three times its start ").val(st.trStart)
+	} else {
+		w.s("more than half-way back from its best ").val(st.trMin).s(" to its start ").val(st.trStart)
+	}
+	return w.s(", ").gap(r.sm[SplitTrain] - st.trMin).s(" above its best, beyond its epoch-to-epoch noise: diverging").done()
+}

@@ -57,7 +57,7 @@ func (s Summary) Markdown() string {
 	if j.Diagnosis != diagnose.Diverging {
 		// The trend of a diverging run is beside the point (and with a
 		// NaN it is the trend of the values before it).
-		b.WriteString(". " + sentence(j.Progress.Description()))
+		b.WriteString(". " + sentence(j.Trend()))
 	}
 	b.WriteString(".\n\n")
 
@@ -69,6 +69,12 @@ func (s Summary) Markdown() string {
 			continue
 		}
 		b.WriteString("| " + sp.String() + " | " + v.value(e.Smooth) + " | " + v.value(e.Raw) + " |\n")
+	}
+	if j.RateMetric.Label != "" && (j.ValRate.Smooth.OK || j.ValRate.Raw.OK) {
+		// Shown, not judged: it has no training counterpart.
+		rv := values{fraction: true}
+		b.WriteString("\nAlso logged: validation " + inline(j.RateMetric.Label) + " " + rv.value(j.ValRate.Smooth) +
+			" smoothed, " + rv.value(j.ValRate.Raw) + " logged (not judged: no training counterpart).\n")
 	}
 	b.WriteString("\n| estimate | value |\n|---|---:|\n")
 	opt := v.value(diagnose.Some(j.BayesError))
@@ -101,6 +107,9 @@ func (s Summary) Markdown() string {
 	}
 	if j.BaselineError.OK {
 		b.WriteString("| majority-class baseline | " + v.value(j.BaselineError) + " |\n")
+	}
+	if c := j.Chance; c.Error.OK {
+		b.WriteString("| chance level | " + pct(c.Error.V, "%") + " (" + inline(c.Note) + ") |\n")
 	}
 
 	es := j.EarlyStop

@@ -224,6 +224,15 @@ func (m *Model) valuesLine(j diagnose.Judgement) string {
 	add("train", j.Train)
 	add("val", j.Val)
 	add("train-dev", j.TrainDev)
+	// A validation error rate logged beside a judged loss, shown (not
+	// judged: it has no training counterpart).
+	if r := j.ValRate; j.RateMetric.Label != "" && (r.Smooth.OK || r.Raw.OK) {
+		v := r.Smooth
+		if !v.OK {
+			v = r.Raw
+		}
+		parts = append(parts, "val "+clean(j.RateMetric.Label)+" "+diagnose.Percent(v.V)+"%")
+	}
 	if len(parts) == 0 {
 		return "no values of the judged metric yet"
 	}
@@ -247,7 +256,10 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 	}
 	vl := m.valuesLine(j)
 	if p := j.Progress; p != diagnose.ProgressUnknown {
-		vl += " · " + p.Phrase()
+		// Name the curve the trend is of: the validation curve, or the
+		// training curve when no validation value is logged. A no-break
+		// space keeps the name with its trend when the line wraps.
+		vl += " · " + j.ProgressCurve.String() + "\u00a0" + p.Phrase()
 	}
 	verdict = append(verdict, wrap(clean(vl), w)...)
 

@@ -32,6 +32,7 @@ func TestRun_UsageErrors(t *testing.T) {
 		{"UnknownFlag", []string{"report", "--jsno", "x.csv"}, exitUsage, "unknown flag --jsno, did you mean --json?"},
 		{"UnknownFlagOnDefaultCommand", []string{"--bayes", "x.csv"}, exitUsage, "did you mean --bayes-error?"},
 		{"BadRate", []string{"report", "--bayes-error", "abc", "x.csv"}, exitUsage, "--bayes-error"},
+		{"OneClass", []string{"report", "--classes", "1", "x.csv"}, exitUsage, "--classes: must be at least 2"},
 		{"NoFile", []string{"report"}, exitUsage, "no log given"},
 		{"TwoFiles", []string{"report", "a.csv", "b.csv"}, exitUsage, "one log at a time"},
 		{"BadFormat", []string{"report", "--format", "xml", "x.csv"}, exitUsage, "--format"},

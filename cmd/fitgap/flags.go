@@ -79,6 +79,7 @@ type judgeFlags struct {
 	valSize       int
 	trainSize     int
 	smoothing     float64
+	classes       int
 	defaultConfig diagnose.Config
 }
 
@@ -100,6 +101,7 @@ func (j *judgeFlags) register(fs *flag.FlagSet) {
 	fs.IntVar(&j.valSize, "val-size", 0, "number of validation `examples`: gives the validation error a confidence interval")
 	fs.IntVar(&j.trainSize, "train-size", 0, "number of training `examples` (with --val-size: the standard error of the gap)")
 	fs.Float64Var(&j.smoothing, "smoothing", d.Smoothing, "`beta` of the debiased moving average the judgement smooths with (0 = no smoothing)")
+	fs.IntVar(&j.classes, "classes", 0, "number of `classes` K of a classification task: the chance level is 1 − 1/K (default: inferred when the log shows a uniform guess, up to 15 classes)")
 }
 
 func (j *judgeFlags) config() (diagnose.Config, error) {
@@ -120,7 +122,10 @@ func (j *judgeFlags) config() (diagnose.Config, error) {
 		return c, usageErrorf("--val-size and --train-size: must not be negative")
 	case j.smoothing < 0 || j.smoothing >= 1:
 		return c, usageErrorf("--smoothing: must be in [0, 1), got %g", j.smoothing)
+	case j.classes == 1 || j.classes < 0:
+		return c, usageErrorf("--classes: must be at least 2, got %d", j.classes)
 	}
+	c.Classes = j.classes
 	if j.tolerance.set {
 		c.SetTolerance(j.tolerance.v)
 	}

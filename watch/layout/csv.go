@@ -24,6 +24,9 @@ const (
 	cellEpoch
 	cellStep
 	cellTime
+	// cellSummary marks a key found only in a record that sums up the
+	// whole training run (keyed layouts): the record is no evaluation.
+	cellSummary
 )
 
 // csvDecoder reads a delimited log with a header row.

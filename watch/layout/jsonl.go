@@ -75,7 +75,7 @@ func (d *jsonDecoder) Decode(line []byte, n int) {
 		d.r.bad(n, reason, line)
 		return
 	}
-	d.asm.EndRow(n)
+	d.endRecord(n)
 }
 
 // record reads the top-level object.

@@ -28,6 +28,9 @@ type keyed struct {
 	// (run names, paths): column.Parse said so once, not on every line.
 	// Bounded like keys.
 	textKeys map[string]struct{}
+	// summary is set when the record being read sums up the whole run
+	// (it has a key of runSummaryKeys): its values are no epoch's.
+	summary bool
 }
 
 // keyRole is what a flattened key feeds: a cell role and, for values and
@@ -43,7 +46,25 @@ func newKeyed(r *Reader) keyed {
 }
 
 // startRecord begins a record: keys are counted again from the first.
-func (d *keyed) startRecord() { d.nth = 0 }
+func (d *keyed) startRecord() { d.nth, d.summary = 0, false }
+
+// runSummaryKeys are keys that a training loop writes only in the record
+// that closes the whole run, beside the run's mean training loss (for
+// example {'train_runtime': 5.9, 'train_loss': 0.47, 'epoch': 30.0}, as
+// captured in testdata/frameworks/dictlines-*.log). Taking that mean for
+// the last epoch's training loss would misjudge the run, so such a record
+// is read as an event and filed nowhere.
+var runSummaryKeys = map[string]bool{
+	"train_runtime": true, "train_samples_per_second": true, "train_steps_per_second": true, "total_flos": true,
+}
+
+// endRecord files the record's row, unless it sums up the run.
+func (d *keyed) endRecord(line int) {
+	if d.summary {
+		return // the next BeginRow drops the row
+	}
+	d.asm.EndRow(line)
+}
 
 // role looks up (or learns) what the current key feeds.
 func (d *keyed) role() (cellRole, int) {
@@ -71,6 +92,21 @@ const maxJSONKeys = 1024
 func (d *keyed) learn(name string) keyRole {
 	col := d.r.roles.Column(name)
 	kr := keyRole{key: name, col: -1}
+	switch {
+	case runSummaryKeys[name]:
+		kr.role = cellSummary
+	default:
+		kr = d.learnColumn(name, col)
+	}
+	if len(d.keys) < 2*points.MaxColumns { // bounded like the column table
+		d.keys[name] = kr
+	}
+	return kr
+}
+
+// learnColumn is what a key that is no run-summary key feeds.
+func (d *keyed) learnColumn(name string, col diagnose.Column) keyRole {
+	kr := keyRole{key: name, col: -1}
 	switch col.Kind {
 	case diagnose.KindEpoch:
 		kr.role = cellEpoch
@@ -80,9 +116,6 @@ func (d *keyed) learn(name string) keyRole {
 		kr.role, kr.col = cellTime, d.asm.Column(name)
 	default:
 		kr.role, kr.col = cellValue, d.asm.Column(name)
-	}
-	if len(d.keys) < 2*points.MaxColumns { // bounded like the column table
-		d.keys[name] = kr
 	}
 	return kr
 }
@@ -98,6 +131,8 @@ func (d *keyed) number(v float64) {
 		d.asm.TimeNumber(ci, v)
 	case cellValue:
 		d.asm.Value(ci, v)
+	case cellSummary:
+		d.summary = true
 	}
 }
 

@@ -91,7 +91,7 @@ func (d *pyDictDecoder) Decode(line []byte, n int) {
 		d.r.bad(n, reason, line)
 		return
 	}
-	d.asm.EndRow(n)
+	d.endRecord(n)
 }
 
 func (d *pyDictDecoder) space() {
