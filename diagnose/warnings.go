@@ -42,12 +42,12 @@ func (t *Tracker) overconfident(st *state, i int) bool {
 	if !(lossTol > 0) {
 		return false
 	}
-	l, lMove, lLevel := t.windowTrend(i, lossTol, &st.trend[trendLoss])
-	e, eMove, eLevel := t.windowTrend(i, t.cfg.Tolerance, &st.trend[trendRate])
-	if l != Worsening || e == Worsening || e == ProgressUnknown || !(lLevel > 0) || !(eLevel > 0) {
+	l := t.windowTrend(i, lossTol, &st.trend[trendLoss])
+	e := t.windowTrend(i, t.cfg.Tolerance, &st.trend[trendRate])
+	if l.prog != Worsening || e.prog == Worsening || e.prog == ProgressUnknown || !(l.level > 0) || !(e.level > 0) {
 		return false
 	}
-	return eMove/eLevel < lMove/lLevel/4
+	return e.move/e.level < l.move/l.level/4
 }
 
 // auxAt reports whether aux series k was logged at this point.

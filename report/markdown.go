@@ -59,6 +59,9 @@ func (s Summary) Markdown() string {
 		// NaN it is the trend of the values before it).
 		b.WriteString(". " + sentence(j.Trend()))
 	}
+	if j.Provisional != "" {
+		b.WriteString(". Provisional: " + inline(j.Provisional))
+	}
 	b.WriteString(".\n\n")
 
 	v := values{fraction: j.Metric.Fraction}
@@ -78,8 +81,11 @@ func (s Summary) Markdown() string {
 	}
 	b.WriteString("\n| estimate | value |\n|---|---:|\n")
 	opt := v.value(diagnose.Some(j.BayesError))
-	if !j.BayesErrorGiven {
+	switch {
+	case !j.BayesErrorGiven:
 		opt += " (not given: taken as 0)"
+	case j.BayesNote != "":
+		opt += " (" + inline(j.BayesNote) + ")"
 	}
 	b.WriteString("| " + diagnose.OptimalError.Phrase() + " | " + opt + " |\n")
 	bias := v.gap(j.AvoidableBias)

@@ -23,7 +23,7 @@ func (m *Model) compactBody(j diagnose.Judgement, idx int, warns []string, h int
 	if idx < 0 {
 		head = st.paint(clsDim, "no evaluation point yet")
 	} else {
-		head = st.paint(diagnosisClass(j.Diagnosis), j.Diagnosis.Phrase()) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
+		head = st.paint(diagnosisClass(j.Diagnosis), verdictHead(j)) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
 		es = append(es,
 			entry{m.valuesLine(j), clsPlain},
 			entry{signalWords(j.EarlyStop), signalClass(j.EarlyStop.Signal)},

@@ -8,6 +8,16 @@ import (
 	"github.com/fitgap/fitgap/diagnose"
 )
 
+// verdictHead is the diagnosis as the panels head it: its phrase, marked
+// provisional while a verdict of bias may still change (the reason is in
+// the wide panel's description and the report).
+func verdictHead(j diagnose.Judgement) string {
+	if j.Provisional != "" {
+		return j.Diagnosis.Phrase() + " (provisional)"
+	}
+	return j.Diagnosis.Phrase()
+}
+
 func diagnosisClass(d diagnose.Diagnosis) class {
 	switch d {
 	case diagnose.Diverging:
@@ -247,7 +257,10 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		out := []string{st.paint(clsHeading, "VERDICT"), st.paint(clsDim, "no evaluation point yet")}
 		return out
 	}
-	head, detail := j.Diagnosis.Phrase(), j.Diagnosis.Description()
+	head, detail := verdictHead(j), j.Diagnosis.Description()
+	if j.Provisional != "" {
+		detail += "; provisional: " + clean(j.Provisional)
+	}
 	var verdict []string
 	verdict = append(verdict, st.paint(clsHeading, m.epochHeading(j, idx)))
 	verdict = append(verdict, st.paint(diagnosisClass(j.Diagnosis), head))
@@ -388,7 +401,7 @@ func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []str
 	if idx < 0 {
 		return append([]string{st.paint(clsDim, "verdict: no evaluation point yet")}, make([]string, rows-1)...)
 	}
-	head := j.Diagnosis.Phrase()
+	head := verdictHead(j)
 	l1 := st.paint(diagnosisClass(j.Diagnosis), head) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
 	if m.cursor >= 0 {
 		l1 += st.paint(clsDim, " as judged then")
