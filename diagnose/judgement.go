@@ -116,8 +116,8 @@ type Judgement struct {
 	// bias, or is settled.
 	Provisional string
 	Problems    []Component
-	Focus     Component
-	Progress  Progress
+	Focus       Component
+	Progress    Progress
 	// ProgressCurve is the curve Progress describes: the validation curve,
 	// or the training curve when no validation value is logged.
 	ProgressCurve Split
