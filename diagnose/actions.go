@@ -199,9 +199,9 @@ func (t *verdict) labelCheck(add func(text, why string)) {
 	name := t.metricName()
 	w := t.text().s("training ").s(name).s(" ").val(r.sm[SplitTrain])
 	switch {
-	case t.cfg.BayesErrorGiven && r.sm[SplitTrain] < t.bayes:
+	case t.bayesGiven && r.sm[SplitTrain] < t.bayes:
 		w.s(" is below the optimal error ").val(t.bayes).s(": the model fits noise in its labels, or the optimal-error estimate is too high")
-	case t.cfg.BayesErrorGiven:
+	case t.bayesGiven:
 		w.s(" vs optimal ").val(t.bayes).s(", falling while the validation ").s(name).s(" rises")
 	default:
 		w.s(" falls while the validation ").s(name).s(" rises; give the optimal error (the label-noise rate, if known) to judge it against")

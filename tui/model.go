@@ -168,6 +168,9 @@ type Model struct {
 	help   help.Model
 	input  textinput.Model
 	typing bool // an optimal error is being typed
+	// inputErr says why the typed optimal error was refused; shown above
+	// the prompt until the text is edited.
+	inputErr string
 
 	hist History
 	// explore judges the points again while the user tries settings other

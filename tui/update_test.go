@@ -122,8 +122,21 @@ func TestModel_NewOptimalError(t *testing.T) {
 			}
 			mm = press(t, mm, "enter")
 			if !tt.ok {
-				if !mm.typing || !mm.flashErr || !strings.Contains(mm.flash, tt.reason) {
-					t.Fatalf("typed %q: typing %v, message %q, want an error mentioning %q and the input kept open", tt.typed, mm.typing, mm.flash, tt.reason)
+				if !mm.typing || !strings.Contains(mm.inputErr, tt.reason) {
+					t.Fatalf("typed %q: typing %v, error %q, want an error mentioning %q and the input kept open", tt.typed, mm.typing, mm.inputErr, tt.reason)
+				}
+				// The reason shows above the prompt, which keeps the text.
+				lines := strings.Split(mm.View(), "\n")
+				if n := len(lines); n < 2 || !strings.Contains(lines[n-2], tt.reason) || !strings.HasPrefix(lines[n-1], "optimal error") ||
+					!strings.Contains(lines[n-1], strings.TrimSpace(tt.typed)) {
+					t.Fatalf("typed %q: the screen's last lines are %q", tt.typed, lines[max(n-2, 0):])
+				}
+				// An edit clears the reason; esc and b open an empty field.
+				if mm = press(t, mm, "backspace"); mm.inputErr != "" {
+					t.Errorf("an edit kept the error %q", mm.inputErr)
+				}
+				if mm = press(t, mm, "esc", "b"); mm.input.Value() != "" || mm.inputErr != "" || !mm.typing {
+					t.Errorf("reopened with %q, error %q", mm.input.Value(), mm.inputErr)
 				}
 				return
 			}

@@ -44,7 +44,10 @@ func (m Model) View() string {
 		return ""
 	}
 	bottom := f.bottom
-	if m.typing {
+	switch {
+	case m.typing && m.inputErr != "" && f.body == "":
+		bottom = fit(m.st.paint(clsWarn, clean(m.inputErr)), m.width) // no line above the prompt
+	case m.typing:
 		bottom = fit(m.input.View(), m.width)
 	}
 	var b strings.Builder
@@ -83,6 +86,11 @@ func (m *Model) rebuild() {
 		body = m.stackedBody(j, idx, warns, sparks)
 	case modeWide:
 		body = m.wideBody(j, idx, warns, sparks)
+	}
+	if m.typing && m.inputErr != "" && len(body) > 0 {
+		// Why the typed value was refused, just above the prompt that
+		// stays open for a correction.
+		body[len(body)-1] = m.st.paint(clsWarn, "! "+clean(m.inputErr))
 	}
 	for i := range body {
 		body[i] = fit(body[i], m.width)

@@ -211,6 +211,9 @@ func (m *Model) optimalNote(j diagnose.Judgement) string {
 	if !j.BayesErrorGiven {
 		return "taken as 0"
 	}
+	if j.BayesNote != "" {
+		return clean(j.BayesNote) // the judgement turned a rate into this metric's optimal value
+	}
 	if m.opts.BayesNote != "" {
 		return clean(m.opts.BayesNote)
 	}
