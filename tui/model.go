@@ -189,7 +189,8 @@ type Model struct {
 	newPaused  int // points that arrived while paused
 	cursor     int // inspected row; -1 follows the latest shown
 	logY       bool
-	fullHelp   bool
+	helpPage   helpPage // the help page open (`?`), helpClosed when none
+	helpScroll int      // the first line of the help page shown (↑/↓)
 	flash      string
 	flashErr   bool
 	flashID    int

@@ -222,7 +222,13 @@ func (m Model) handleKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(msg, k.Save):
 		cmd = m.save()
 	case key.Matches(msg, k.Help):
-		m.fullHelp = !m.fullHelp
+		m.helpPage, m.helpScroll = (m.helpPage+1)%nHelpPages, 0
+	case key.Matches(msg, k.Cancel) && m.helpPage != helpClosed:
+		m.helpPage = helpClosed
+	case key.Matches(msg, k.ScrollUp) && m.helpPage != helpClosed:
+		m.helpScroll = max(m.helpScroll-1, 0)
+	case key.Matches(msg, k.ScrollDown) && m.helpPage != helpClosed:
+		m.helpScroll++ // helpLines keeps it inside the page
 	default:
 		return m, nil
 	}

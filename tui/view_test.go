@@ -65,6 +65,12 @@ func TestView_Golden(t *testing.T) {
 		{"compact_50x14", 50, 14, goldenRun, nil, false, false},
 		{"inspect_120x40", 120, 40, goldenRun, []string{"left", "left", "left", "left", "left", "left", "left", "left", "left", "left"}, false, false},
 		{"help_100x30", 100, 30, goldenRun, []string{"?"}, false, false},
+		// The second help page: the screen explained, one line each.
+		{"screen_help_80x24", 80, 24, goldenRun, []string{"?", "?"}, false, false},
+		// Below 60×16 the help still opens, over the whole text view.
+		{"compact_help_50x14", 50, 14, goldenRun, []string{"?"}, false, false},
+		// At 60 columns lines drop whole parts, never a number cut in two.
+		{"stacked_60x20", 60, 20, goldenRun, nil, false, false},
 		{"waiting_80x24", 80, 24, runSpec{}, nil, false, false},
 		// Without colour: the first epoch off the scale (arrow and value),
 		// the inspected epoch as a line on the chart and in every sparkline.
