@@ -33,7 +33,7 @@ func newKeyMap() keyMap {
 		Prev:       key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/h", "earlier epoch")),
 		Next:       key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "later epoch")),
 		First:      key.NewBinding(key.WithKeys("home"), key.WithHelp("home", "first epoch")),
-		Last:       key.NewBinding(key.WithKeys("end"), key.WithHelp("end", "last epoch")),
+		Last:       key.NewBinding(key.WithKeys("end"), key.WithHelp("end", "newest epoch")),
 		Metric:     key.NewBinding(key.WithKeys("m"), key.WithHelp("m", "judged metric")),
 		LogY:       key.NewBinding(key.WithKeys("g"), key.WithHelp("g", "log scale")),
 		Optimal:    key.NewBinding(key.WithKeys("b"), key.WithHelp("b", "optimal error")),

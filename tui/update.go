@@ -201,7 +201,11 @@ func (m Model) handleKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 			m.cursor = 0
 		}
 	case key.Matches(msg, k.Last):
-		if m.pause(); m.shown() > 0 {
+		// The newest epoch read, also those that arrived while paused: the
+		// paused view moves up to it.
+		m.pause()
+		m.frozen, m.newPaused = len(m.data.rows), 0
+		if m.shown() > 0 {
 			m.cursor = m.shown() - 1
 		}
 	case key.Matches(msg, k.Metric):

@@ -14,6 +14,28 @@ import (
 
 var overfitRun = runSpec{epochs: 30, total: 50, stepsPer: 8, turn: 15, trainBase: 0.05, valBase: 0.1}
 
+// TestModel_EndGoesToTheNewestEpoch: End while paused inspects the newest
+// epoch read, including those that arrived while paused, not the epoch
+// where the screen was paused; Home goes to the first.
+func TestModel_EndGoesToTheNewestEpoch(t *testing.T) {
+	m := newTestModel(t, 100, 30, Options{})
+	pts := overfitRun.points()
+	m = settle(t, send(t, m, FeedMsg{Points: pts[:10], Source: liveSource(11)}))
+	m = press(t, m, "space")
+	m = settle(t, send(t, m, FeedMsg{Points: pts[10:13], Source: liveSource(14)}))
+	m = press(t, m, "home")
+	if got := m.judgementAt(m.inspected()).Epoch; got != 1 {
+		t.Errorf("home inspects epoch %d, want 1", got)
+	}
+	m = press(t, m, "end")
+	if got := m.judgementAt(m.inspected()).Epoch; got != 13 || m.shown() != 13 || m.newPaused != 0 {
+		t.Errorf("end inspects epoch %d with %d shown, %d new; want the newest, 13, all shown", got, m.shown(), m.newPaused)
+	}
+	if v := m.View(); !strings.Contains(v, "INSPECTING epoch 13") {
+		t.Errorf("the status does not say epoch 13:\n%s", v)
+	}
+}
+
 func TestModel_PauseKeepsReading(t *testing.T) {
 	m := newTestModel(t, 100, 30, Options{})
 	pts := overfitRun.points()

@@ -190,3 +190,39 @@ func TestErrorBar(t *testing.T) {
 		t.Errorf("no parts: %q", empty)
 	}
 }
+
+// TestStatus_PathShortensFirst: a long path gives way first, down to its
+// file name, before the percent and the time left; the progress bar takes
+// room left over (at 80 columns with a demo's path in a temporary
+// directory, everything else stays).
+func TestStatus_PathShortensFirst(t *testing.T) {
+	long := "/tmp/fitgap-demo-2982065161/train-overfit.csv"
+	tests := []struct {
+		w    int
+		want []string
+		not  []string
+	}{
+		{80, []string{"…/train-overfit.csv", "epoch 36/60", "60%", "eta 12m", "live"}, []string{"/tmp/"}},
+		{130, []string{long, "60%", "eta 12m", "━━━━━━━─────"}, nil},
+		{50, []string{"train-overfit.csv", "live"}, nil},
+	}
+	for _, tt := range tests {
+		t.Run(itoa(tt.w), func(t *testing.T) {
+			m := newTestModel(t, tt.w, 24, Options{})
+			src := liveSource(37)
+			src.Name = long
+			m = settle(t, send(t, m, FeedMsg{Points: goldenRun.points(), Source: src}))
+			status := strings.SplitN(m.View(), "\n", 2)[0]
+			for _, w := range tt.want {
+				if !strings.Contains(status, w) {
+					t.Errorf("width %d: status %q lacks %q", tt.w, status, w)
+				}
+			}
+			for _, w := range tt.not {
+				if strings.Contains(status, w) {
+					t.Errorf("width %d: status %q has %q", tt.w, status, w)
+				}
+			}
+		})
+	}
+}
