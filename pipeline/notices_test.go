@@ -19,6 +19,9 @@ func TestRun_NoticesReachTheSummary(t *testing.T) {
 	at := time.Unix(1700000000, 0)
 	polling := watch.Notice{Time: at, Text: "cannot watch /logs (too many open files): checking every 250ms"}
 	trunc := watch.Notice{Time: at, Text: "run.csv truncated: reading from the start (segment 2)"}
+	waitingStats := stats
+	waitingStats.State = watch.StateWaiting
+	waiting := watch.Notice{Time: at, Text: "waiting for run.csv"}
 	tests := []struct {
 		name    string
 		batches []watch.Batch
@@ -31,8 +34,13 @@ func TestRun_NoticesReachTheSummary(t *testing.T) {
 		{"Load", []watch.Batch{{Points: pts, Notices: []watch.Notice{trunc}, Stats: stats}}, true, []string{trunc.Text}, nil},
 		{"RepeatsOnce", []watch.Batch{{Points: pts, Notices: []watch.Notice{trunc, trunc, trunc}, Stats: stats}}, false,
 			[]string{trunc.Text + " (3 times)"}, nil},
-		{"BeforeAnyPoint", []watch.Batch{{Notices: []watch.Notice{{Time: at, Text: "waiting for run.csv"}}, Stats: stats}}, false,
+		{"BeforeAnyPoint", []watch.Batch{{Notices: []watch.Notice{{Time: at, Text: "waiting for run.csv"}}, Stats: waitingStats}}, false,
 			[]string{"waiting for run.csv"}, nil},
+		// A wait that ended is not a warning: the file arrived.
+		{"WaitGoesOn", []watch.Batch{{Notices: []watch.Notice{waiting}, Stats: waitingStats}}, false,
+			[]string{"waiting for run.csv"}, nil},
+		{"WaitEnded", []watch.Batch{{Notices: []watch.Notice{waiting, polling}, Stats: waitingStats}, {Points: pts, Stats: stats}}, false,
+			[]string{polling.Text}, []string{"waiting for run.csv"}},
 		{"Flood", []watch.Batch{{Points: pts, Notices: flood(100), Stats: stats}}, false,
 			[]string{"notice 0", "notice 7", "notice 99", "84 more notices"}, []string{"notice 50"}},
 	}

@@ -86,6 +86,10 @@ type FeedMsg struct {
 	Steps    []diagnose.StepRow
 	Source   SourceInfo
 	Notices  []string
+	// WaitNotices are notices that say the reader waits for the file
+	// ("waiting for run.csv"): shown as the others, and dropped once the
+	// source is read again, when they would be stale.
+	WaitNotices []string
 }
 
 // History is the run's judged history, shared with whoever judges the run:
@@ -178,7 +182,7 @@ type Model struct {
 	explore *diagnose.Tracker
 	data    *store
 	src     SourceInfo
-	notices []string // sanitized, newest last, at most maxNotices
+	notices []notice // sanitized, newest last, at most maxNotices
 	batches int      // FeedMsgs received
 	ended   bool     // the feed channel closed
 
@@ -203,6 +207,13 @@ type Model struct {
 
 	feed   <-chan FeedMsg
 	reason ExitReason
+}
+
+// notice is a reader's notice as the warnings panel keeps it; wait says it
+// describes a wait for the file, which ends when the file is read.
+type notice struct {
+	text string
+	wait bool
 }
 
 // maxNotices bounds the notices kept for the warnings panel: the screen

@@ -2,6 +2,7 @@ package tui
 
 import (
 	"errors"
+	"slices"
 	"strings"
 	"time"
 
@@ -108,10 +109,16 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 		m.data.addStep(s)
 	}
 	m.mergeSource(msg.Source)
-	for _, n := range msg.Notices {
-		if n = clean(n); n != "" {
-			m.notices = append(m.notices, n)
+	for k, ns := range [][]string{msg.Notices, msg.WaitNotices} {
+		for _, n := range ns {
+			if n = clean(n); n != "" {
+				m.notices = append(m.notices, notice{n, k == 1})
+			}
 		}
+	}
+	if m.src.State != Waiting && m.src.State != Removed {
+		// The file is read again: a "waiting for" would be stale.
+		m.notices = slices.DeleteFunc(m.notices, func(n notice) bool { return n.wait })
 	}
 	if over := len(m.notices) - maxNotices; over > 0 {
 		m.notices = append(m.notices[:0], m.notices[over:]...)

@@ -71,9 +71,9 @@ func (m *Model) rebuild() {
 	f.builds++
 	idx := m.inspected()
 	j := m.judgementAt(idx)
-	warns := m.warnings(j)
+	warns := m.warnings(idx, j)
 	sparks := m.sparkColumns()
-	f.lay = computeLayout(m.width, m.height, len(sparks), len(warns))
+	f.lay = computeLayout(m.width, m.height, len(sparks), warnBudget)
 	lay := f.lay
 	var body []string
 	switch {

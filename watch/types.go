@@ -2,6 +2,7 @@ package watch
 
 import (
 	"fmt"
+	"strings"
 	"time"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -123,6 +124,12 @@ type Notice struct {
 	Time time.Time
 	Text string
 }
+
+// Waits reports whether the notice says that the reader waits for the
+// file: not there yet, removed, or not a regular file (every such notice
+// of watch/tail says "waiting for"). It describes how things stood until
+// the file is read again, and is stale after that.
+func (n Notice) Waits() bool { return strings.Contains(n.Text, "waiting for ") }
 
 // Batch is what the reader hands on: the points, rows and notices read since
 // the last batch, and the counters so far.

@@ -220,9 +220,14 @@ func relay(ctx context.Context, run *pipeline.Run, batches <-chan watch.Batch, f
 // screenFeed is an update in the screen's terms. A stop file that could
 // not be created is said with the update that reached stop, at once.
 func screenFeed(run *pipeline.Run, u pipeline.Update) tui.FeedMsg {
-	notices := make([]string, len(u.Notices), len(u.Notices)+1)
-	for i, n := range u.Notices {
-		notices[i] = n.Text
+	notices := make([]string, 0, len(u.Notices)+1)
+	var waits []string
+	for _, n := range u.Notices {
+		if n.Waits() {
+			waits = append(waits, n.Text)
+		} else {
+			notices = append(notices, n.Text)
+		}
 	}
 	if u.Stop != nil && u.Stop.Err != nil {
 		notices = append(notices, diagnose.Printable(stopFailure(u.Stop)))
@@ -232,11 +237,12 @@ func screenFeed(run *pipeline.Run, u pipeline.Update) tui.FeedMsg {
 		examples[i] = x.Error()
 	}
 	return tui.FeedMsg{
-		Points:     u.Points,
-		Judgements: u.Judgements,
-		Rejudged:   u.Rejudged,
-		Steps:      u.Steps,
-		Notices:    notices,
+		Points:      u.Points,
+		Judgements:  u.Judgements,
+		Rejudged:    u.Rejudged,
+		Steps:       u.Steps,
+		Notices:     notices,
+		WaitNotices: waits,
 		Source: tui.SourceInfo{
 			Name:      diagnose.Printable(run.Name()),
 			Format:    u.Stats.Format.String(),
