@@ -52,7 +52,10 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			cmd := m.say(true, "summary not saved: "+clean(msg.err.Error()))
 			return m, cmd
 		}
-		cmd := m.say(false, "summary saved to "+clean(msg.path))
+		// The whole path when it fits, else its end: the file name is
+		// what the user looks for.
+		lead := "summary saved to "
+		cmd := m.say(false, lead+cutLeft(clean(msg.path), max(m.width-ansiLen(lead), 2)))
 		return m, cmd
 	case closeMsg:
 		m.reason = msg.reason

@@ -293,6 +293,12 @@ func TestModel_SaveKey(t *testing.T) {
 	if !m.flashErr || !strings.Contains(m.View(), "disk full") {
 		t.Errorf("a failed save is not reported: %q", m.flash)
 	}
+	// A long absolute path keeps its end, the file name, in view.
+	long := "/home/someone/experiments/2026/sweeps/width-and-depth/run-0042/fitgap-summary-3.md"
+	m = send(t, m, savedMsg{path: long})
+	if bottom := m.View()[strings.LastIndexByte(m.View(), '\n')+1:]; !strings.HasSuffix(bottom, "run-0042/fitgap-summary-3.md") {
+		t.Errorf("saved to a long path: the screen says %q", bottom)
+	}
 	// The message goes away after its time.
 	m = send(t, m, flashOff{id: m.flashID})
 	if m.flash != "" {

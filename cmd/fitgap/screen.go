@@ -6,6 +6,7 @@ import (
 	"flag"
 	"fmt"
 	"os"
+	"path/filepath"
 	"syscall"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -73,7 +74,9 @@ type screenSpec struct {
 	writerDone <-chan struct{}
 }
 
-// defaultSummaryFile is where the s key saves the summary without --summary.
+// defaultSummaryFile is where the s key saves the summary without
+// --summary, in the current directory; fitgap-summary-2.md and so on when
+// it exists (never overwritten).
 const defaultSummaryFile = "fitgap-summary.md"
 
 // runScreen runs the log's pipeline with the screen as its sink until the
@@ -123,11 +126,16 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 		BayesNote: spec.bayesNote,
 		NoColor:   spec.flags.noColor || os.Getenv("NO_COLOR") != "",
 		SaveSummary: func(s report.Summary) (string, error) {
-			p := outs.summary
-			if p == "" {
-				p = defaultSummaryFile
+			if outs.summary != "" {
+				// The file asked for: the s key and the exit both write it.
+				p, err := filepath.Abs(outs.summary)
+				if err != nil {
+					p = outs.summary
+				}
+				return p, pipeline.SaveSummary(outs.summary, outs.log, s, outs.stop)
 			}
-			return p, pipeline.SaveSummary(p, outs.log, s, outs.stop)
+			// In the current directory, under a name no file has yet.
+			return pipeline.SaveNewSummary(defaultSummaryFile, outs.log, s, outs.stop)
 		},
 	})
 	final, reason, err := tui.Run(ctx, m, feed, closes, stdout)
