@@ -28,21 +28,20 @@ type noticeLog struct {
 type keptNotice struct {
 	text  string
 	count int
-	// wait: the notice says the reader waits for the file (not there
-	// yet, removed, not a regular file): it goes once the file is read
-	// again.
+	// wait: the notice says the reader waits (for the file: not there
+	// yet, removed, not a regular file; for a silent pipe): it goes once
+	// evaluation points come again.
 	wait bool
 }
 
-// add files the notices of a batch whose reader stands at state. Once the
-// file is read again (any state but waiting or removed), the notices of a
-// wait (watch.Notice.Waits) are dropped: "waiting for run.csv" would be
-// stale.
-func (l *noticeLog) add(ns []watch.Notice, state watch.State) {
+// add files the notices of a batch that brought points evaluation points.
+// Once points come again, the notices of a wait (watch.Notice.Waits) are
+// dropped: "waiting for run.csv" would be stale.
+func (l *noticeLog) add(ns []watch.Notice, points int) {
 	for _, n := range ns {
 		l.file(n.Text, n.Waits())
 	}
-	if state != watch.StateWaiting && state != watch.StateRemoved {
+	if points > 0 {
 		l.endWait()
 	}
 }

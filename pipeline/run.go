@@ -114,7 +114,7 @@ func (r *Run) Apply(b watch.Batch) Update {
 	stopAt := -1 // the first point of the batch that says stop, for the stop file
 	r.mu.Lock()
 	r.stats = b.Stats
-	r.notices.add(b.Notices, b.Stats.State)
+	r.notices.add(b.Notices, len(b.Points))
 	u.Stats = r.statsLocked()
 	if len(b.Points) > 0 {
 		u.Judgements = make([]diagnose.Judgement, 0, len(b.Points))
@@ -156,7 +156,7 @@ func (r *Run) Load(b watch.Batch) {
 	r.mu.Lock()
 	defer r.mu.Unlock()
 	r.stats = b.Stats
-	r.notices.add(b.Notices, b.Stats.State)
+	r.notices.add(b.Notices, len(b.Points))
 	for _, p := range b.Points {
 		r.tracker.Push(p)
 	}

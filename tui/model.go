@@ -86,9 +86,9 @@ type FeedMsg struct {
 	Steps    []diagnose.StepRow
 	Source   SourceInfo
 	Notices  []string
-	// WaitNotices are notices that say the reader waits for the file
-	// ("waiting for run.csv"): shown as the others, and dropped once the
-	// source is read again, when they would be stale.
+	// WaitNotices are notices that say the reader waits ("waiting for
+	// run.csv"): shown as the others, and dropped once evaluation points
+	// come again, when they would be stale.
 	WaitNotices []string
 }
 
@@ -210,7 +210,7 @@ type Model struct {
 }
 
 // notice is a reader's notice as the warnings panel keeps it; wait says it
-// describes a wait for the file, which ends when the file is read.
+// describes a wait, which ends when evaluation points come.
 type notice struct {
 	text string
 	wait bool

@@ -119,8 +119,8 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 			}
 		}
 	}
-	if m.src.State != Waiting && m.src.State != Removed {
-		// The file is read again: a "waiting for" would be stale.
+	if len(msg.Points) > 0 {
+		// Points come again: a "waiting for" would be stale.
 		m.notices = slices.DeleteFunc(m.notices, func(n notice) bool { return n.wait })
 	}
 	if over := len(m.notices) - maxNotices; over > 0 {

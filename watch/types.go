@@ -125,10 +125,10 @@ type Notice struct {
 	Text string
 }
 
-// Waits reports whether the notice says that the reader waits for the
-// file: not there yet, removed, or not a regular file (every such notice
-// of watch/tail says "waiting for"). It describes how things stood until
-// the file is read again, and is stale after that.
+// Waits reports whether the notice says that the reader waits: for the
+// file (not there yet, removed, not a regular file: every such notice of
+// watch/tail says "waiting for"), or for a silent pipe. It describes how
+// things stood until evaluation points come again, and is stale after.
 func (n Notice) Waits() bool { return strings.Contains(n.Text, "waiting for ") }
 
 // Batch is what the reader hands on: the points, rows and notices read since
