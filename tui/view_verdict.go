@@ -236,10 +236,10 @@ func (m *Model) barTotal(j diagnose.Judgement, comps []component) (string, strin
 		// The parts are differences of these values: they add up to one
 		// of them up to rounding.
 		if e := j.Estimate(sp).Smooth; e.OK && math.Abs(e.V-total) <= 1e-9*math.Max(1, math.Abs(total)) {
-			return m.fmtValue(total), sp.String()
+			return diagnose.FormatValue(diagnose.Some(total), j.Metric.Fraction), sp.String()
 		}
 	}
-	return m.fmtValue(total), strings.Join(drawn, "+")
+	return diagnose.FormatValue(diagnose.Some(total), j.Metric.Fraction), strings.Join(drawn, "+")
 }
 
 // optimalNote says where the optimal error came from.

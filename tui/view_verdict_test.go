@@ -36,3 +36,34 @@ func TestVerdict_ProvisionalBias(t *testing.T) {
 		}
 	}
 }
+
+// TestBarTotal: the error bar says which total it adds up to: the
+// validation error when every part is positive, the training error when
+// validation beats training (the negative variance takes no room), and
+// the parts drawn when it is no split's value.
+func TestBarTotal(t *testing.T) {
+	m := newTestModel(t, 80, 24, Options{})
+	est := func(v float64) diagnose.Estimate { return diagnose.Estimate{Smooth: diagnose.Some(v)} }
+	tests := []struct {
+		name       string
+		j          diagnose.Judgement
+		total, tot string
+	}{
+		{"Validation", diagnose.Judgement{BayesError: 0.05, BayesErrorGiven: true, Train: est(0.15), Val: est(0.25),
+			AvoidableBias: diagnose.Some(0.10), Variance: diagnose.Some(0.10)}, "25.0%", "val"},
+		{"ValidationBeatsTraining", diagnose.Judgement{BayesError: 0.05, BayesErrorGiven: true, Train: est(0.22), Val: est(0.213),
+			AvoidableBias: diagnose.Some(0.17), Variance: diagnose.Some(-0.007)}, "22.0%", "train"},
+		{"TrainingBelowOptimal", diagnose.Judgement{BayesError: 0.05, BayesErrorGiven: true, Train: est(0.001), Val: est(0.214),
+			AvoidableBias: diagnose.Some(-0.049), Variance: diagnose.Some(0.213)}, "26.3%", "opt+var"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			j := tt.j
+			j.Metric.Fraction = true
+			total, name := m.barTotal(j, components(j))
+			if total != tt.total || name != tt.tot {
+				t.Errorf("bar total %q %q, want %q %q", total, name, tt.total, tt.tot)
+			}
+		})
+	}
+}
