@@ -1,0 +1,106 @@
+package figure
+
+import (
+	"bytes"
+	"fmt"
+	"path/filepath"
+	"strings"
+
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// Format is the encoding of a picture.
+type Format uint8
+
+const (
+	// PNG is a raster image, for merge requests and artifact pages that
+	// show images inline.
+	PNG Format = iota + 1
+	// SVG is a vector image: sharp at any zoom, and its texts are text.
+	SVG
+)
+
+// String returns the format's usual file extension without the dot.
+func (f Format) String() string {
+	switch f {
+	case PNG:
+		return "png"
+	case SVG:
+		return "svg"
+	}
+	return fmt.Sprintf("format(%d)", uint8(f))
+}
+
+// FormatOf returns the format a file name asks for by its extension, .png
+// or .svg in any case.
+func FormatOf(path string) (Format, error) {
+	switch ext := strings.ToLower(filepath.Ext(path)); ext {
+	case ".png":
+		return PNG, nil
+	case ".svg":
+		return SVG, nil
+	case "":
+		return 0, fmt.Errorf("no extension: name a .svg or .png file")
+	default:
+		return 0, fmt.Errorf("pictures are .svg or .png, not %s", ext)
+	}
+}
+
+// Size is a picture's size in pixels (CSS pixels for SVG).
+type Size struct{ W, H int }
+
+// DefaultSize fits a merge request's or an artifact page's column and
+// stays readable there (the sizes of type are chosen for it).
+var DefaultSize = Size{W: 800, H: 500}
+
+// Bounds of a picture's size, in pixels: below the least the texts no
+// longer fit beside the curves; above the most a PNG would take hundreds of
+// megabytes of memory.
+const (
+	minSide = 200
+	maxSide = 8000
+)
+
+func (s Size) orDefault() Size {
+	if s.W == 0 && s.H == 0 {
+		return DefaultSize
+	}
+	return s
+}
+
+func (s Size) check() error {
+	if s.W < minSide || s.H < minSide || s.W > maxSide || s.H > maxSide {
+		return fmt.Errorf("picture size %d×%d: each side must be %d to %d pixels", s.W, s.H, minSide, maxSide)
+	}
+	return nil
+}
+
+// dpi is the raster's resolution: 96 dots per inch makes one CSS pixel of
+// the SVG one pixel of the PNG, so both formats lay out alike.
+const dpi = 96
+
+// points converts pixels to the canvas's unit.
+func points(px int) vg.Length { return vg.Length(px) * vg.Inch / dpi }
+
+// newCanvas returns an empty canvas of the format and size.
+func newCanvas(f Format, s Size) (vg.CanvasWriterTo, error) {
+	w, h := points(s.W), points(s.H)
+	switch f {
+	case PNG:
+		return vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(dpi))}, nil
+	case SVG:
+		return vgsvg.NewWith(vgsvg.UseWH(w, h)), nil
+	}
+	return nil, fmt.Errorf("picture format %s: want png or svg", f)
+}
+
+// encode returns the canvas's bytes.
+func encode(c vg.CanvasWriterTo) ([]byte, error) {
+	var b bytes.Buffer
+	if _, err := c.WriteTo(&b); err != nil {
+		return nil, fmt.Errorf("encode picture: %w", err)
+	}
+	return b.Bytes(), nil
+}
