@@ -97,10 +97,22 @@ func newCanvas(f Format, s Size) (vg.CanvasWriterTo, error) {
 }
 
 // encode returns the canvas's bytes.
-func encode(c vg.CanvasWriterTo) ([]byte, error) {
+func encode(c vg.CanvasWriterTo, f Format) ([]byte, error) {
 	var b bytes.Buffer
 	if _, err := c.WriteTo(&b); err != nil {
 		return nil, fmt.Errorf("encode picture: %w", err)
 	}
+	if f == SVG {
+		return bytes.ReplaceAll(b.Bytes(), svgFonts, []byte(svgFamilies)), nil
+	}
 	return b.Bytes(), nil
 }
+
+// An SVG names its fonts rather than embedding them (that would add some
+// 700 kB). Where the Liberation fonts the layout was measured with are not
+// installed, the viewer takes the next family named: Arial and Helvetica
+// have the same widths (Liberation Sans was drawn to match Arial's), and
+// any sans-serif comes close; the texts keep some room for it (textRoom).
+var svgFonts = []byte("font-family:Liberation Sans;")
+
+const svgFamilies = "font-family:'Liberation Sans',Arial,Helvetica,sans-serif;"

@@ -66,7 +66,7 @@ func (r Run) Draw(f Format, s Size) (out []byte, err error) {
 	if err := r.paint(c, s); err != nil {
 		return nil, err
 	}
-	return encode(cv)
+	return encode(cv, f)
 }
 
 // The layout, in points from the canvas' edges.
@@ -81,6 +81,22 @@ type runCurves struct {
 	hasTrainDev          bool
 	x0, x1               float64 // epochs shown
 	y0, y1               float64 // values shown
+	// offs are each split's leading values off the axis (train,
+	// train-dev, val).
+	offs [3][]plotter.XY
+}
+
+// splits are the curves of a run's picture, in the order drawn.
+var splits = [3]diagnose.Split{diagnose.SplitTrain, diagnose.SplitTrainDev, diagnose.SplitVal}
+
+// marked reports whether any value is off the axis, and whether any is
+// not finite.
+func (cur runCurves) marked() (off, notFinite bool) {
+	for k, t := range [3]trace{cur.train, cur.trainDev, cur.val} {
+		off = off || len(cur.offs[k]) > 0
+		notFinite = notFinite || len(t.broken) > 0
+	}
+	return off, notFinite
 }
 
 func (r Run) paint(c draw.Canvas, s Size) error {
@@ -166,7 +182,6 @@ func (r Run) curves(w int, fc *forecast.Forecast) (runCurves, error) {
 		cur.x0, cur.x1 = cur.x0-1, cur.x0+1
 	}
 	all, rest := emptySpan(), emptySpan()
-	splits := []diagnose.Split{diagnose.SplitTrain, diagnose.SplitTrainDev, diagnose.SplitVal}
 	traces := []*trace{&cur.train, &cur.trainDev, &cur.val}
 	for k, sp := range splits {
 		a, rs, cnt := spans(split{h, sp})
@@ -182,7 +197,7 @@ func (r Run) curves(w int, fc *forecast.Forecast) (runCurves, error) {
 			rest.add(rs.lo)
 			rest.add(rs.hi)
 		}
-		t, err := reduce(split{h, sp}, cur.x0, cur.x1, w)
+		t, err := reduce(split{h, sp}, cur.x0, cur.x1, columnsPerPixel*w)
 		if err != nil {
 			return cur, fmt.Errorf("%s curve: %w", sp, err)
 		}
@@ -203,6 +218,9 @@ func (r Run) curves(w int, fc *forecast.Forecast) (runCurves, error) {
 		}
 	}
 	cur.y0, cur.y1 = valueAxis(all, rest)
+	for k, sp := range splits {
+		cur.offs[k] = offAxis(split{h, sp}, cur.y0, cur.y1)
+	}
 	return cur, nil
 }
 
@@ -260,14 +278,9 @@ func (r Run) plotCurves(p *plot.Plot, cur runCurves, fc *forecast.Forecast) erro
 		}
 	}
 	// Marks at the edges: leading values off the axis, values not finite.
-	sps := []diagnose.Split{diagnose.SplitTrain, diagnose.SplitTrainDev, diagnose.SplitVal}
 	traces := []trace{cur.train, cur.trainDev, cur.val}
 	inks := []color.Color{inkTrain, inkTrainDev, inkVal}
-	offs := make([][]plotter.XY, len(sps))
-	for k, sp := range sps {
-		offs[k] = offAxis(split{r.History, sp}, cur.y0, cur.y1)
-	}
-	for k, marks := range offMarks(offs, cur.y1, fraction) {
+	for k, marks := range offMarks(cur.offs[:], cur.y1, fraction) {
 		var up, down []edgeMark
 		for _, m := range marks {
 			if m.up {
@@ -425,6 +438,14 @@ func (r Run) keys(cur runCurves, fcOK bool) []key {
 	}
 	if j.EarlyStop.BestVal.OK {
 		keys = append(keys, key{label: "epoch to restore", line: line(lineStyle(inkRestore, widthRule, dotted)), glyph: draw.RingGlyph{}, ink: inkRestore})
+	}
+	if off, notFinite := cur.marked(); off || notFinite {
+		if off {
+			keys = append(keys, key{label: "off the axis", glyph: draw.TriangleGlyph{}, ink: inkMuted})
+		}
+		if notFinite {
+			keys = append(keys, key{label: "NaN or ±Inf", glyph: draw.BoxGlyph{}, ink: inkMuted})
+		}
 	}
 	switch fc := r.Forecast; {
 	case fcOK:

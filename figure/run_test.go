@@ -184,3 +184,71 @@ func TestRun_DrawBadInput(t *testing.T) {
 		t.Errorf("empty run: %v, want ErrNothingToDraw", err)
 	}
 }
+
+// TestRun_HostileName: a run's name comes from a command line or a log;
+// what reaches the picture is printable, and a long name keeps its end.
+func TestRun_HostileName(t *testing.T) {
+	tr := overfitting(12)
+	names := []string{
+		"evil\x1b]0;pwned\x07\x1b[2J\x9b31m.csv",
+		"rtl\u202eexe.csv\x00\r\n",
+		"<script>alert(1)</script>&amp;.csv",
+		strings.Repeat("very-long-directory/", 40) + "run-7.csv",
+		"训练日志-🚀.csv",
+		"caf\xe9.csv",
+	}
+	for _, name := range names {
+		r := runOf(name, tr, nil)
+		for _, f := range []Format{PNG, SVG} {
+			b, err := r.Draw(f, Size{})
+			if err != nil {
+				t.Fatalf("%q as %s: %v", name, f, err)
+			}
+			if f == PNG {
+				decodePNG(t, b, DefaultSize)
+				continue
+			}
+			doc := parseSVG(t, b)
+			title := doc.texts[0]
+			for _, r := range title {
+				if r < 0x20 || (r >= 0x7f && r < 0xa0) || (r >= 0x202a && r <= 0x202e) || (r >= 0x2066 && r <= 0x2069) {
+					t.Errorf("%q: title %q holds control %U", name, title, r)
+				}
+			}
+			if strings.Contains(name, "run-7") && (!strings.HasPrefix(title, "…") || !strings.HasSuffix(title, "run-7.csv")) {
+				t.Errorf("long name drawn as %q, want its end after …", title)
+			}
+			if strings.HasPrefix(name, "<script>") && title != name {
+				t.Errorf("markup in a name drawn as %q, want it as text", title)
+			}
+		}
+	}
+}
+
+// TestRun_NotFinite: a run that diverges is drawn up to the last finite
+// value, with its non-finite epochs marked, and without a decomposition
+// of a NaN.
+func TestRun_NotFinite(t *testing.T) {
+	tr := diagnose.New(diagnose.Config{})
+	for e := 1; e <= 20; e++ {
+		v := 0.5 / float64(e)
+		if e > 15 {
+			v = math.NaN()
+		}
+		tr.Add(diagnose.Point{Epoch: e, EpochLogged: true, Samples: []diagnose.Sample{
+			metricSample("err", "err", diagnose.SplitTrain, v),
+			metricSample("val_err", "err", diagnose.SplitVal, v*1.2),
+		}})
+	}
+	r := runOf("diverged.csv", tr, nil)
+	if r.Judgement.Diagnosis != diagnose.Diverging {
+		t.Fatalf("diagnosis %s, want diverging", r.Judgement.Diagnosis)
+	}
+	for _, f := range []Format{PNG, SVG} {
+		b, err := r.Draw(f, Size{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		keep(t, "diverged."+f.String(), b)
+	}
+}

@@ -91,7 +91,7 @@ func (rs Runs) Draw(f Format, s Size) (out []byte, err error) {
 	if err := rs.paint(c, s); err != nil {
 		return nil, err
 	}
-	return encode(cv)
+	return encode(cv, f)
 }
 
 func (rs Runs) check() error {
@@ -221,10 +221,10 @@ func (rs Runs) paint(c draw.Canvas, s Size) error {
 	var crossInk []color.Color
 	for _, i := range drawOrder {
 		l := &rs.Lines[i]
-		cols := s.W
+		cols := columnsPerPixel * s.W
 		style := lineStyle(ink[i], widthCurve, nil)
 		if ink[i] == nil {
-			cols = s.W / 2 // faint context needs less detail
+			cols = s.W // faint context needs less detail
 			style = lineStyle(inkFaint, widthFaint, nil)
 		}
 		t, err := reduce(line{l}, x0, x1, cols)

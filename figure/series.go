@@ -157,4 +157,10 @@ func reduce(s series, x0, x1 float64, cols int) (trace, error) {
 	return t, nil
 }
 
+// columnsPerPixel is how many columns a curve is reduced to per pixel of
+// the picture's width: at one, anti-aliasing makes 0.6 % of the pixels of
+// a noisy curve differ from the curve drawn whole; at two, 0.14 %
+// (TestReduce_DrawsTheSamePixels).
+const columnsPerPixel = 2
+
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

@@ -50,8 +50,14 @@ func clean(s string, max int) string {
 	return s
 }
 
+// textRoom is the share of a width that fit and wrap fill: an SVG viewer
+// without the Liberation fonts draws the text in a sans-serif of its own,
+// up to a tenth wider (DejaVu Sans, measured on our labels).
+const textRoom = 0.9
+
 // fit shortens s from its start, with "…", until t writes it within w.
 func (t vgText) fit(s string, w vg.Length) string {
+	w *= textRoom
 	if t.width(s) <= w {
 		return s
 	}
@@ -67,6 +73,7 @@ func (t vgText) fit(s string, w vg.Length) string {
 
 // wrap breaks s at spaces into lines that t writes within w.
 func (t vgText) wrap(s string, w vg.Length) []string {
+	w *= textRoom
 	var lines []string
 	line := ""
 	for _, word := range strings.Fields(s) {
