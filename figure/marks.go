@@ -38,7 +38,7 @@ func (r vRule) Plot(c draw.Canvas, p *plot.Plot) {
 	if x+gap+w > c.Max.X {
 		at.X = x - gap - w
 	}
-	r.style.draw(c, at, r.label)
+	r.style.drawBacked(c, at, r.label)
 }
 
 // hRule is a horizontal line across the data area at y: the optimal
@@ -95,7 +95,7 @@ func (m edgeMarks) Plot(c draw.Canvas, p *plot.Plot) {
 			if w := m.style.width(mk.label); at.X+w > c.Max.X {
 				at.X = x - 2*m.radius - w
 			}
-			m.style.draw(c, at, mk.label)
+			m.style.drawBacked(c, at, mk.label)
 		}
 	}
 }

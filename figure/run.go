@@ -84,6 +84,8 @@ type runCurves struct {
 	// offs are each split's leading values off the axis (train,
 	// train-dev, val).
 	offs [3][]plotter.XY
+	// counts are each split's values.
+	counts [3]int
 }
 
 // splits are the curves of a run's picture, in the order drawn.
@@ -185,6 +187,7 @@ func (r Run) curves(w int, fc *forecast.Forecast) (runCurves, error) {
 	traces := []*trace{&cur.train, &cur.trainDev, &cur.val}
 	for k, sp := range splits {
 		a, rs, cnt := spans(split{h, sp})
+		cur.counts[k] = cnt
 		if cnt == 0 {
 			continue
 		}
@@ -219,7 +222,7 @@ func (r Run) curves(w int, fc *forecast.Forecast) (runCurves, error) {
 	}
 	cur.y0, cur.y1 = valueAxis(all, rest)
 	for k, sp := range splits {
-		cur.offs[k] = offAxis(split{h, sp}, cur.y0, cur.y1)
+		cur.offs[k] = offAxis(split{h, sp}, leadPoints(cur.counts[k]), cur.y0, cur.y1)
 	}
 	return cur, nil
 }
@@ -363,7 +366,7 @@ func (l pointLabel) Plot(c draw.Canvas, p *plot.Plot) {
 	if at.Y > c.Max.Y-l.style.size/2 {
 		at.Y = y - l.style.size
 	}
-	l.style.draw(c, at, l.text)
+	l.style.drawBacked(c, at, l.text)
 }
 
 func math32(a, b vg.Length) vg.Length { return max(a, b) }
@@ -379,11 +382,9 @@ func loggedAt(h History, epoch int, sp diagnose.Split) (float64, bool) {
 	return v.V, v.OK && finite(v.V)
 }
 
-// offAxis returns a series' leading values beyond the axis [y0, y1]: x
-// is the epoch, y the value.
-func offAxis(s series, y0, y1 float64) []plotter.XY {
-	_, _, n := spans(s)
-	lead := leadPoints(n)
+// offAxis returns a series' lead leading values that lie beyond the axis
+// [y0, y1]: x is the epoch, y the value.
+func offAxis(s series, lead int, y0, y1 float64) []plotter.XY {
 	var out []plotter.XY
 	for i, k := 0, 0; i < s.len() && k < lead; i++ {
 		x, y := s.at(i)

@@ -103,20 +103,31 @@ func (epochTicks) Ticks(lo, hi float64) []plot.Tick {
 }
 
 // roundTicks returns ticks at multiples of a step of 1, 2 or 5 times a
-// power of ten, at least least, chosen for about tickCount ticks in
-// [lo, hi]; when two neighbours would print alike (a step finer than the
-// labels show) the step grows until they do not.
+// power of ten (Heckbert, "Nice numbers for graph labels", Graphics Gems,
+// 1990), at least least: of the three steps from the largest nice one
+// below (hi − lo)/tickCount, the one whose count of ticks in [lo, hi] is
+// nearest tickCount (fewer on a tie). When two neighbours would print
+// alike (a step finer than the labels show) the step grows until they do
+// not.
 func roundTicks(lo, hi, least float64, label func(float64) string) []plot.Tick {
 	if !(hi > lo) || math.IsInf(hi-lo, 0) {
 		return nil
 	}
-	step := math.Max(niceStep((hi-lo)/tickCount), least)
+	step := math.Max(niceFloor((hi-lo)/tickCount), least)
+	best, bestOff := step, math.Inf(1)
+	for s, k := step, 0; k < 3; s, k = nextNice(s), k+1 {
+		n := math.Floor(hi/s+1e-9) - math.Ceil(lo/s-1e-9) + 1
+		if off := math.Abs(n - tickCount); off < bestOff || (off == bestOff && s > best) {
+			best, bestOff = s, off
+		}
+	}
+	step = best
 	for tries := 0; tries < 40; tries++ {
 		ticks, clash := ticksAt(lo, hi, step, label)
 		if !clash {
 			return ticks
 		}
-		step = niceStep(step * 1.5)
+		step = nextNice(step)
 	}
 	return nil
 }
@@ -138,18 +149,30 @@ func ticksAt(lo, hi, step float64, label func(float64) string) ([]plot.Tick, boo
 	return ticks, false
 }
 
-// niceStep returns the least of 1, 2 and 5 times a power of ten that is at
-// least raw (Heckbert, "Nice numbers for graph labels", Graphics Gems,
-// 1990, with the rounding up that keeps the count at or below the target).
-func niceStep(raw float64) float64 {
+// niceFloor returns the largest of 1, 2 and 5 times a power of ten that
+// is at most raw; 1 for a raw that is not a positive number.
+func niceFloor(raw float64) float64 {
 	if !(raw > 0) || math.IsInf(raw, 0) {
 		return 1
 	}
 	p := math.Pow(10, math.Floor(math.Log10(raw)))
-	for _, m := range [...]float64{1, 2, 5, 10} {
-		if m*p >= raw*(1-1e-12) {
-			return m * p
-		}
+	switch f := raw / p * (1 + 1e-12); {
+	case f >= 5:
+		return 5 * p
+	case f >= 2:
+		return 2 * p
+	}
+	return p
+}
+
+// nextNice returns the nice step after s: 1 → 2 → 5 → 10.
+func nextNice(s float64) float64 {
+	p := math.Pow(10, math.Floor(math.Log10(s)+1e-9))
+	switch math.Round(s / p) {
+	case 1:
+		return 2 * p
+	case 2:
+		return 5 * p
 	}
 	return 10 * p
 }

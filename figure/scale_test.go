@@ -10,16 +10,21 @@ import (
 	"github.com/fitgap/fitgap/report"
 )
 
-func TestNiceStep(t *testing.T) {
+func TestNiceSteps(t *testing.T) {
 	// Source: Heckbert, "Nice numbers for graph labels", Graphics Gems
-	// (1990): steps of 1, 2 and 5 times a power of ten (we round up).
-	tests := []struct{ raw, want float64 }{
-		{0.07, 0.1}, {0.012, 0.02}, {0.02, 0.02}, {3, 5}, {7, 10}, {1, 1}, {1e-7, 1e-7}, {4.4e6, 5e6},
-		{0, 1}, {-1, 1}, {math.NaN(), 1}, {math.Inf(1), 1},
+	// (1990): steps of 1, 2 and 5 times a power of ten.
+	floors := []struct{ raw, want float64 }{
+		{0.07, 0.05}, {0.052, 0.05}, {0.012, 0.01}, {0.02, 0.02}, {2.9, 2}, {5, 5}, {9.9, 5}, {1, 1},
+		{1e-7, 1e-7}, {4.4e6, 2e6}, {0, 1}, {-1, 1}, {math.NaN(), 1}, {math.Inf(1), 1},
 	}
-	for _, tt := range tests {
-		if got := niceStep(tt.raw); math.Abs(got-tt.want) > 1e-12*tt.want {
-			t.Errorf("niceStep(%g) = %g, want %g", tt.raw, got, tt.want)
+	for _, tt := range floors {
+		if got := niceFloor(tt.raw); math.Abs(got-tt.want) > 1e-12*tt.want {
+			t.Errorf("niceFloor(%g) = %g, want %g", tt.raw, got, tt.want)
+		}
+	}
+	for s, want := range map[float64]float64{0.01: 0.02, 0.02: 0.05, 0.05: 0.1, 1: 2, 5: 10, 1e5: 2e5, 0.001: 0.002} {
+		if got := nextNice(s); math.Abs(got-want) > 1e-12*want {
+			t.Errorf("nextNice(%g) = %g, want %g", s, got, want)
 		}
 	}
 }
@@ -40,6 +45,7 @@ func TestValueTicks(t *testing.T) {
 		want     []string
 	}{
 		{"ErrorRates", true, 0, 0.35, []string{"0.0%", "10.0%", "20.0%", "30.0%"}},
+		{"FiveToThirty", true, 0.04, 0.30, []string{"5.0%", "10.0%", "15.0%", "20.0%", "25.0%", "30.0%"}},
 		{"BelowOnePercent", true, 0.001, 0.009, []string{"0.20%", "0.40%", "0.60%", "0.80%"}},
 		// A narrow range: 0.05% steps would print 5.2% twice (the report
 		// writes one decimal from 1%), so the step grows to 0.1 points.

@@ -40,28 +40,35 @@ func (s split) at(i int) (float64, diagnose.Num) {
 }
 
 // spans returns the span of every finite value of s and the span of those
-// after its leading points (valueAxis), and how many values it has.
+// after its leading points (valueAxis), and how many values it has, in one
+// pass over s: the few leading values wait aside until the count says how
+// many of them lead.
 func spans(s series) (all, rest span, n int) {
 	all, rest = emptySpan(), emptySpan()
-	for i := 0; i < s.len(); i++ {
-		if _, y := s.at(i); y.OK {
-			n++
-		}
-	}
-	lead := leadPoints(n)
-	k := 0
+	var first [leadMax]float64 // the first values, NaN when not finite
 	for i := 0; i < s.len(); i++ {
 		_, y := s.at(i)
 		if !y.OK {
 			continue
 		}
-		if finite(y.V) {
+		ok := finite(y.V)
+		if ok {
 			all.add(y.V)
-			if k >= lead {
-				rest.add(y.V)
-			}
 		}
-		k++
+		switch {
+		case n < leadMax && ok:
+			first[n] = y.V
+		case n < leadMax:
+			first[n] = math.NaN()
+		case ok:
+			rest.add(y.V)
+		}
+		n++
+	}
+	for k := leadPoints(n); k < min(n, leadMax); k++ {
+		if !math.IsNaN(first[k]) {
+			rest.add(first[k])
+		}
 	}
 	return all, rest, n
 }

@@ -32,6 +32,15 @@ func (t vgText) draw(c draw.Canvas, pt vg.Point, s string) {
 	c.FillText(t.sty, pt, s)
 }
 
+// drawBacked writes s as draw does on a white patch, so a label over the
+// chart's grid lines and curves stays readable.
+func (t vgText) drawBacked(c draw.Canvas, pt vg.Point, s string) {
+	pad := t.size * 0.15
+	c.SetColor(color.White)
+	c.Fill(rect(pt.X-pad, pt.Y-t.size*0.6, pt.X+t.width(s)+pad, pt.Y+t.size*0.6).Path())
+	t.draw(c, pt, s)
+}
+
 // with returns t in another ink.
 func (t vgText) with(ink color.Color) vgText {
 	t.sty.Color = ink

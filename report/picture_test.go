@@ -2,8 +2,10 @@ package report
 
 import (
 	"bytes"
+	"net/url"
 	"strings"
 	"testing"
+	"testing/quick"
 
 	"github.com/fitgap/fitgap/diagnose"
 )
@@ -46,6 +48,24 @@ func TestPictureURL(t *testing.T) {
 				t.Errorf("pictureURL(%q) = %q, want %q", tt.path, got, tt.want)
 			}
 		})
+	}
+}
+
+// TestPictureURL_Decodes: net/url reads every path back as it was, and
+// the link holds only unreserved characters, / and escapes.
+func TestPictureURL_Decodes(t *testing.T) {
+	check := func(path string) bool {
+		got := pictureURL(path)
+		back, err := url.PathUnescape(got)
+		return err == nil && back == path && strings.Trim(got, "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789-._~/%") == ""
+	}
+	if err := quick.Check(check, &quick.Config{MaxCount: 2000}); err != nil {
+		t.Error(err)
+	}
+	for _, p := range []string{"a b(1).png", "x\x00\xff/y.svg", "../out/é ü.png"} {
+		if !check(p) {
+			t.Errorf("%q → %q does not decode back", p, pictureURL(p))
+		}
 	}
 }
 
