@@ -66,6 +66,26 @@ func addGlyphs(p *plot.Plot, pts plotter.XYs, ink color.Color, shape draw.GlyphD
 	return nil
 }
 
+// addBand adds a band between lo and hi (at the same x as mid) filled in
+// fill, and the line through mid in line: a forecast and its interval.
+func addBand(p *plot.Plot, mid, lo, hi plotter.XYs, fill color.Color, line draw.LineStyle) error {
+	if len(mid) < 2 {
+		return nil
+	}
+	ring := append(plotter.XYs{}, hi...)
+	for k := len(lo) - 1; k >= 0; k-- {
+		ring = append(ring, lo[k])
+	}
+	band, err := plotter.NewPolygon(ring)
+	if err != nil {
+		return fmt.Errorf("draw a band: %w", err)
+	}
+	band.Color = fill
+	band.LineStyle.Width = 0
+	p.Add(band)
+	return addLine(p, trace{stretches: []plotter.XYs{mid}}, line)
+}
+
 // area returns a canvas on the rectangle r of c.
 func area(c draw.Canvas, r vg.Rectangle) draw.Canvas {
 	return draw.Canvas{Canvas: c.Canvas, Rectangle: r}
@@ -74,19 +94,4 @@ func area(c draw.Canvas, r vg.Rectangle) draw.Canvas {
 // rect is a rectangle from its left, bottom, right and top.
 func rect(x0, y0, x1, y1 vg.Length) vg.Rectangle {
 	return vg.Rectangle{Min: vg.Point{X: x0, Y: y0}, Max: vg.Point{X: x1, Y: y1}}
-}
-
-// fill paints the whole canvas white: an SVG has no background of its own
-// and a viewer's dark theme would show through.
-func fill(c draw.Canvas) {
-	c.SetColor(color.White)
-	c.Fill(c.Rectangle.Path())
-}
-
-// recovered turns a panic of the drawing library (a case its checks
-// missed) into an error: a bad picture must never crash a report.
-func recovered(err *error) {
-	if r := recover(); r != nil {
-		*err = fmt.Errorf("draw picture: %v", r)
-	}
 }

@@ -3,10 +3,12 @@ package figure
 import (
 	"bytes"
 	"fmt"
+	"image/color"
 	"path/filepath"
 	"strings"
 
 	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 	"gonum.org/v1/plot/vg/vgsvg"
 )
@@ -94,6 +96,28 @@ func newCanvas(f Format, s Size) (vg.CanvasWriterTo, error) {
 		return vgsvg.NewWith(vgsvg.UseWH(w, h)), nil
 	}
 	return nil, fmt.Errorf("picture format %s: want png or svg", f)
+}
+
+// render paints a picture on a white canvas of the format and size and
+// returns its bytes; a panic of the drawing library (a case its checks
+// missed) becomes an error: a bad picture must never crash a report.
+func render(f Format, s Size, paint func(c draw.Canvas, s Size) error) (out []byte, err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			out, err = nil, fmt.Errorf("draw picture: %v", r)
+		}
+	}()
+	cv, err := newCanvas(f, s)
+	if err != nil {
+		return nil, err
+	}
+	c := draw.New(cv)
+	c.SetColor(color.White) // an SVG has no background: a dark viewer would show through
+	c.Fill(c.Rectangle.Path())
+	if err := paint(c, s); err != nil {
+		return nil, err
+	}
+	return encode(cv, f)
 }
 
 // encode returns the canvas's bytes.

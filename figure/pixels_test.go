@@ -49,24 +49,20 @@ func near(c color.Color, ink color.RGBA) bool {
 
 // columns counts, for each column of box, the pixels near ink.
 func columns(img image.Image, box image.Rectangle, ink color.RGBA) map[int]int {
-	out := map[int]int{}
-	for x := box.Min.X; x < box.Max.X; x++ {
-		for y := box.Min.Y; y < box.Max.Y; y++ {
-			if near(img.At(x, y), ink) {
-				out[x]++
-			}
-		}
-	}
-	return out
+	return count(img, box, ink, func(x, _ int) int { return x })
 }
 
 // rows counts, for each row of box, the pixels near ink.
 func rows(img image.Image, box image.Rectangle, ink color.RGBA) map[int]int {
+	return count(img, box, ink, func(_, y int) int { return y })
+}
+
+func count(img image.Image, box image.Rectangle, ink color.RGBA, key func(x, y int) int) map[int]int {
 	out := map[int]int{}
 	for y := box.Min.Y; y < box.Max.Y; y++ {
 		for x := box.Min.X; x < box.Max.X; x++ {
 			if near(img.At(x, y), ink) {
-				out[y]++
+				out[key(x, y)]++
 			}
 		}
 	}

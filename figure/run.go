@@ -48,8 +48,7 @@ const nameMax = 200
 
 // Draw returns the picture in format f at size s (the zero Size is
 // DefaultSize).
-func (r Run) Draw(f Format, s Size) (out []byte, err error) {
-	defer recovered(&err)
+func (r Run) Draw(f Format, s Size) ([]byte, error) {
 	s = s.orDefault()
 	if err := s.check(); err != nil {
 		return nil, err
@@ -57,16 +56,7 @@ func (r Run) Draw(f Format, s Size) (out []byte, err error) {
 	if r.History == nil || r.History.Len() == 0 || !r.Judgement.Judged() {
 		return nil, ErrNothingToDraw
 	}
-	cv, err := newCanvas(f, s)
-	if err != nil {
-		return nil, err
-	}
-	c := draw.New(cv)
-	fill(c)
-	if err := r.paint(c, s); err != nil {
-		return nil, err
-	}
-	return encode(cv, f)
+	return render(f, s, r.paint)
 }
 
 // The layout, in points from the canvas' edges.
@@ -112,18 +102,11 @@ func (r Run) paint(c draw.Canvas, s Size) error {
 		return err
 	}
 
-	W, H := c.Max.X, c.Max.Y
-	title := newText(sansBold, sizeTitle, inkText)
-	body := newText(sans, sizeText, inkText)
+	W := c.Max.X
 	small := newText(sans, sizeSmall, inkText)
-
 	// Title: the run, then the verdict and the stop signal as the report
 	// words them.
-	y := H - margin - title.lineHeight()/2
-	title.draw(c, vg.Point{X: margin, Y: y}, title.fit(clean(r.Name, nameMax), W-2*margin))
-	y -= body.lineHeight()
-	body.draw(c, vg.Point{X: margin, Y: y}, body.fit(verdictLine(j), W-2*margin))
-	y -= body.lineHeight() * 0.6
+	y := drawHeading(c, r.Name, verdictLine(j))
 
 	// The legend, under the title across the curves' width.
 	chartRight := W * (1 - panelShare)
@@ -146,6 +129,20 @@ func (r Run) paint(c draw.Canvas, s Size) error {
 	heading := rect(chartRight+margin, top, W-margin, y)
 	drawParts(c, panel, heading, p, j)
 	return nil
+}
+
+// drawHeading writes a picture's title (a name from a log: made
+// printable, shortened from its start to fit) and the line under it, and
+// returns the height below them.
+func drawHeading(c draw.Canvas, name, line string) vg.Length {
+	W, H := c.Max.X, c.Max.Y
+	title := newText(sansBold, sizeTitle, inkText)
+	body := newText(sans, sizeText, inkText)
+	y := H - margin - title.lineHeight()/2
+	title.draw(c, vg.Point{X: margin, Y: y}, title.fit(clean(name, nameMax), W-2*margin))
+	y -= body.lineHeight()
+	body.draw(c, vg.Point{X: margin, Y: y}, body.fit(line, W-2*margin))
+	return y - body.lineHeight()*0.6
 }
 
 // verdictLine is the diagnosis and the early-stopping signal in the
@@ -320,18 +317,7 @@ func addForecast(p *plot.Plot, fc *forecast.Forecast, fraction bool) error {
 	if len(mid) < 2 {
 		return nil
 	}
-	ring := append(plotter.XYs{}, hi...)
-	for k := len(lo) - 1; k >= 0; k-- {
-		ring = append(ring, lo[k])
-	}
-	band, err := plotter.NewPolygon(ring)
-	if err != nil {
-		return fmt.Errorf("draw the forecast: %w", err)
-	}
-	band.Color = faded(inkVal, 0.16)
-	band.LineStyle.Width = 0
-	p.Add(band)
-	if err := addLine(p, trace{stretches: []plotter.XYs{mid}}, lineStyle(inkVal, widthRule, dashed)); err != nil {
+	if err := addBand(p, mid, lo, hi, faded(inkVal, 0.16), lineStyle(inkVal, widthRule, dashed)); err != nil {
 		return err
 	}
 	end := mid[len(mid)-1]

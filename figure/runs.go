@@ -73,8 +73,7 @@ func (s line) at(i int) (float64, diagnose.Num) {
 
 // Draw returns the picture in format f at size s (the zero Size is
 // DefaultSize).
-func (rs Runs) Draw(f Format, s Size) (out []byte, err error) {
-	defer recovered(&err)
+func (rs Runs) Draw(f Format, s Size) ([]byte, error) {
 	s = s.orDefault()
 	if err := s.check(); err != nil {
 		return nil, err
@@ -82,16 +81,7 @@ func (rs Runs) Draw(f Format, s Size) (out []byte, err error) {
 	if err := rs.check(); err != nil {
 		return nil, err
 	}
-	cv, err := newCanvas(f, s)
-	if err != nil {
-		return nil, err
-	}
-	c := draw.New(cv)
-	fill(c)
-	if err := rs.paint(c, s); err != nil {
-		return nil, err
-	}
-	return encode(cv, f)
+	return render(f, s, rs.paint)
 }
 
 func (rs Runs) check() error {
@@ -167,15 +157,9 @@ func (rs Runs) paint(c draw.Canvas, s Size) error {
 		ink[i] = inkRanks[r]
 	}
 
-	W, H := c.Max.X, c.Max.Y
-	title := newText(sansBold, sizeTitle, inkText)
-	body := newText(sans, sizeText, inkText)
+	W := c.Max.X
 	small := newText(sans, sizeSmall, inkText)
-	y := H - margin - title.lineHeight()/2
-	title.draw(c, vg.Point{X: margin, Y: y}, title.fit(clean(rs.Title, nameMax), W-2*margin))
-	y -= body.lineHeight()
-	body.draw(c, vg.Point{X: margin, Y: y}, body.fit(rs.subtitle(best), W-2*margin))
-	y -= body.lineHeight() * 0.6
+	y := drawHeading(c, rs.Title, rs.subtitle(best))
 
 	chartRight := W - margin
 	sizes := rs.differentSizes()

@@ -64,6 +64,11 @@ func valueAxis(all, rest span) (lo, hi float64) {
 		hi = math.Min(hi, rest.hi+room)
 		lo = math.Max(lo, rest.lo-room)
 	}
+	// Values near ±MaxFloat64 (a blow-up logged as a number) must not
+	// make the span overflow to infinity: the axis keeps a quarter of
+	// the float range each way.
+	const far = math.MaxFloat64 / 4
+	lo, hi = math.Max(lo, -far), math.Min(hi, far)
 	if hi-lo <= 0 {
 		d := flatRoom(hi)
 		lo, hi = lo-d, hi+d

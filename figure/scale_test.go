@@ -128,11 +128,12 @@ func TestValueAxis(t *testing.T) {
 		{"Flat", []float64{0.2, 0.2, 0.2}, 0.2 - 0.05 - 0.1*0.04, 0.25 + 0.1*0.04},
 		{"Negative", []float64{-3, -2, -1}, -3 - 0.08, -1 + 0.08},
 		{"None", nil, 0, 1},
+		{"Extremes", []float64{-1e308, 1e308}, -math.MaxFloat64/4 - math.MaxFloat64/2*0.04, math.MaxFloat64/4 + math.MaxFloat64/2*0.04},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			lo, hi := axis(tt.vs...)
-			if math.Abs(lo-tt.lo) > 1e-9 || math.Abs(hi-tt.hi) > 1e-9 {
+			if math.Abs(lo-tt.lo) > 1e-9*math.Max(1, math.Abs(tt.lo)) || math.Abs(hi-tt.hi) > 1e-9*math.Max(1, math.Abs(tt.hi)) {
 				t.Errorf("axis %g–%g, want %g–%g", lo, hi, tt.lo, tt.hi)
 			}
 		})

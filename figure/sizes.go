@@ -1,7 +1,6 @@
 package figure
 
 import (
-	"fmt"
 	"image/color"
 	"math"
 	"strconv"
@@ -86,21 +85,8 @@ func (rs Runs) paintSizes(c draw.Canvas, box vg.Rectangle, ink []color.Color) er
 	if rs.Optimal.OK && finite(rs.Optimal.V) {
 		p.Add(hRule{y: rs.Optimal.V, line: lineStyle(inkOptimal, widthRule, dashed)})
 	}
-	if len(mid) > 1 {
-		ring := append(plotter.XYs{}, hi...)
-		for k := len(lo) - 1; k >= 0; k-- {
-			ring = append(ring, lo[k])
-		}
-		band, err := plotter.NewPolygon(ring)
-		if err != nil {
-			return fmt.Errorf("draw the data-size fit: %w", err)
-		}
-		band.Color = faded(inkBlack, 0.10)
-		band.LineStyle.Width = 0
-		p.Add(band)
-		if err := addLine(p, trace{stretches: []plotter.XYs{mid}}, lineStyle(inkMuted, widthRule, dashed)); err != nil {
-			return err
-		}
+	if err := addBand(p, mid, lo, hi, faded(inkBlack, 0.10), lineStyle(inkMuted, widthRule, dashed)); err != nil {
+		return err
 	}
 	if err := addGlyphs(p, faint, inkMuted, draw.RingGlyph{}, vg.Points(2.5)); err != nil {
 		return err
