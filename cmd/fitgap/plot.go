@@ -100,6 +100,9 @@ type forecastInputs struct {
 	lr     []float64
 	haveLR bool
 	total  int
+	// isLR caches forecast.IsLearningRate by column name: it builds
+	// strings, and a log has a handful of names for millions of rows.
+	isLR map[string]bool
 }
 
 func (f *forecastInputs) observe(b watch.Batch) {
@@ -111,7 +114,18 @@ func (f *forecastInputs) observe(b watch.Batch) {
 			f.total = p.Total
 		}
 		for _, s := range p.Samples {
-			if s.Column.Kind == diagnose.KindOther && forecast.IsLearningRate(s.Column.Name) {
+			if s.Column.Kind != diagnose.KindOther {
+				continue
+			}
+			lr, seen := f.isLR[s.Column.Name]
+			if !seen {
+				if f.isLR == nil {
+					f.isLR = map[string]bool{}
+				}
+				lr = forecast.IsLearningRate(s.Column.Name)
+				f.isLR[s.Column.Name] = lr
+			}
+			if lr {
 				f.lr[k], f.haveLR = s.Last, true
 				break
 			}
