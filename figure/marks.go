@@ -4,8 +4,12 @@ import (
 	"image/color"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/report"
 )
 
 // The marks below are plot.Plotters of our own: lines across the whole
@@ -113,4 +117,69 @@ func (downGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 	p.Close()
 	c.SetColor(sty.Color)
 	c.Fill(p)
+}
+
+// pointLabel writes text just above a point, ending at it (a label at a
+// curve's right end).
+type pointLabel struct {
+	at    plotter.XY
+	text  string
+	style vgText
+}
+
+func (l pointLabel) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	x, y := trX(l.at.X), trY(l.at.Y)
+	if !c.Contains(vg.Point{X: x, Y: y}) {
+		return
+	}
+	w := l.style.width(l.text)
+	at := vg.Point{X: max(x-w, c.Min.X), Y: y + l.style.size}
+	if at.Y > c.Max.Y-l.style.size/2 {
+		at.Y = y - l.style.size
+	}
+	l.style.drawBacked(c, at, l.text)
+}
+
+// offAxis returns a series' lead leading values that lie beyond the axis
+// [y0, y1]: x is the epoch, y the value.
+func offAxis(s series, lead int, y0, y1 float64) []plotter.XY {
+	var out []plotter.XY
+	for i, k := 0, 0; i < s.len() && k < lead; i++ {
+		x, y := s.at(i)
+		if !y.OK {
+			continue
+		}
+		k++
+		if finite(y.V) && (y.V > y1 || y.V < y0) {
+			out = append(out, plotter.XY{X: x, Y: y.V})
+		}
+	}
+	return out
+}
+
+// offMarks turns the values off the axis of each series into edge marks,
+// writing the value beside the most extreme one each way, as the report
+// writes values: the reader sees that they exist, where, and how far off.
+func offMarks(offs [][]plotter.XY, y1 float64, fraction bool) [][]edgeMark {
+	out := make([][]edgeMark, len(offs))
+	top, bottom := [2]int{-1, -1}, [2]int{-1, -1}
+	for s, o := range offs {
+		for i, v := range o {
+			up := v.Y > y1
+			out[s] = append(out[s], edgeMark{x: v.X, up: up})
+			switch {
+			case up && (top[0] < 0 || v.Y > offs[top[0]][top[1]].Y):
+				top = [2]int{s, i}
+			case !up && (bottom[0] < 0 || v.Y < offs[bottom[0]][bottom[1]].Y):
+				bottom = [2]int{s, i}
+			}
+		}
+	}
+	for _, at := range [][2]int{top, bottom} {
+		if at[0] >= 0 {
+			out[at[0]][at[1]].label = report.Value(fraction, diagnose.Some(offs[at[0]][at[1]].Y))
+		}
+	}
+	return out
 }

@@ -224,25 +224,6 @@ func (r Run) curves(w int, fc *forecast.Forecast) (runCurves, error) {
 	return cur, nil
 }
 
-// bandEpochs are the epochs where the forecast's band is drawn: from the
-// last epoch to the target, at most bandPoints of them.
-func bandEpochs(fc *forecast.Forecast) []int {
-	const bandPoints = 120 // a smooth band at 800 pixels
-	from, to := fc.LastEpoch, fc.Target
-	if to <= from {
-		return nil
-	}
-	n := min(to-from, bandPoints)
-	out := make([]int, 0, n+1)
-	for k := 0; k <= n; k++ {
-		e := from + int(math.Round(float64(k)*float64(to-from)/float64(n)))
-		if len(out) == 0 || e > out[len(out)-1] {
-			out = append(out, e)
-		}
-	}
-	return out
-}
-
 func (r Run) plotCurves(p *plot.Plot, cur runCurves, fc *forecast.Forecast) error {
 	j := r.Judgement
 	fraction := j.Metric.Fraction
@@ -300,63 +281,6 @@ func (r Run) plotCurves(p *plot.Plot, cur runCurves, fc *forecast.Forecast) erro
 	return nil
 }
 
-// addForecast adds the band of the forecast and its expected curve, with
-// the value at the target written at its end.
-func addForecast(p *plot.Plot, fc *forecast.Forecast, fraction bool) error {
-	var mid, lo, hi plotter.XYs
-	for _, e := range bandEpochs(fc) {
-		iv, ok := fc.Band(e)
-		if !ok || !finite(iv.Value) || !finite(iv.Lo) || !finite(iv.Hi) {
-			continue
-		}
-		x := float64(e)
-		mid = append(mid, plotter.XY{X: x, Y: iv.Value})
-		lo = append(lo, plotter.XY{X: x, Y: iv.Lo})
-		hi = append(hi, plotter.XY{X: x, Y: iv.Hi})
-	}
-	if len(mid) < 2 {
-		return nil
-	}
-	if err := addBand(p, mid, lo, hi, faded(inkVal, 0.16), lineStyle(inkVal, widthRule, dashed)); err != nil {
-		return err
-	}
-	end := mid[len(mid)-1]
-	p.Add(pointLabel{at: end, text: forecastAt(fc, fraction), style: newText(sans, sizeSmall, inkVal)})
-	return nil
-}
-
-// forecastAt writes the forecast at its target as the report writes the
-// forecast: "epoch 120: 5.1% [3.2, 7.0]".
-func forecastAt(fc *forecast.Forecast, fraction bool) string {
-	bare := func(v float64) string { return strings.TrimSuffix(report.Value(fraction, diagnose.Some(v)), "%") }
-	return "epoch " + strconv.Itoa(fc.Target) + ": " + report.Value(fraction, diagnose.Some(fc.At.Value)) +
-		" [" + bare(fc.At.Lo) + ", " + bare(fc.At.Hi) + "]"
-}
-
-// pointLabel writes text just above a point, ending at it (a label at a
-// curve's right end).
-type pointLabel struct {
-	at    plotter.XY
-	text  string
-	style vgText
-}
-
-func (l pointLabel) Plot(c draw.Canvas, p *plot.Plot) {
-	trX, trY := p.Transforms(&c)
-	x, y := trX(l.at.X), trY(l.at.Y)
-	if !c.Contains(vg.Point{X: x, Y: y}) {
-		return
-	}
-	w := l.style.width(l.text)
-	at := vg.Point{X: math32(x-w, c.Min.X), Y: y + l.style.size}
-	if at.Y > c.Max.Y-l.style.size/2 {
-		at.Y = y - l.style.size
-	}
-	l.style.drawBacked(c, at, l.text)
-}
-
-func math32(a, b vg.Length) vg.Length { return max(a, b) }
-
 // loggedAt returns the value logged at an epoch on a split.
 func loggedAt(h History, epoch int, sp diagnose.Split) (float64, bool) {
 	n := h.Len()
@@ -366,49 +290,6 @@ func loggedAt(h History, epoch int, sp diagnose.Split) (float64, bool) {
 	}
 	v := h.Logged(i, sp)
 	return v.V, v.OK && finite(v.V)
-}
-
-// offAxis returns a series' lead leading values that lie beyond the axis
-// [y0, y1]: x is the epoch, y the value.
-func offAxis(s series, lead int, y0, y1 float64) []plotter.XY {
-	var out []plotter.XY
-	for i, k := 0, 0; i < s.len() && k < lead; i++ {
-		x, y := s.at(i)
-		if !y.OK {
-			continue
-		}
-		k++
-		if finite(y.V) && (y.V > y1 || y.V < y0) {
-			out = append(out, plotter.XY{X: x, Y: y.V})
-		}
-	}
-	return out
-}
-
-// offMarks turns the values off the axis of each series into edge marks,
-// writing the value beside the most extreme one each way, as the report
-// writes values: the reader sees that they exist, where, and how far off.
-func offMarks(offs [][]plotter.XY, y1 float64, fraction bool) [][]edgeMark {
-	out := make([][]edgeMark, len(offs))
-	top, bottom := [2]int{-1, -1}, [2]int{-1, -1}
-	for s, o := range offs {
-		for i, v := range o {
-			up := v.Y > y1
-			out[s] = append(out[s], edgeMark{x: v.X, up: up})
-			switch {
-			case up && (top[0] < 0 || v.Y > offs[top[0]][top[1]].Y):
-				top = [2]int{s, i}
-			case !up && (bottom[0] < 0 || v.Y < offs[bottom[0]][bottom[1]].Y):
-				bottom = [2]int{s, i}
-			}
-		}
-	}
-	for _, at := range [][2]int{top, bottom} {
-		if at[0] >= 0 {
-			out[at[0]][at[1]].label = report.Value(fraction, diagnose.Some(offs[at[0]][at[1]].Y))
-		}
-	}
-	return out
 }
 
 // keys is the legend of a run's picture.
