@@ -6,6 +6,7 @@ import "testing"
 // its validation forecast, in both formats: every picture decodes at its
 // size (run with -look DIR to see them).
 func TestRun_DrawDemoScenarios(t *testing.T) {
+	t.Parallel()
 	for _, sc := range []string{"overfit", "balanced", "underfit", "mismatch"} {
 		t.Run(sc, func(t *testing.T) {
 			tr, pts := demoRun(t, sc, 1)
@@ -29,6 +30,7 @@ func TestRun_DrawDemoScenarios(t *testing.T) {
 // TestRuns_DrawSizeSeries draws the committed data-size series as several
 // runs with the data-size fit.
 func TestRuns_DrawSizeSeries(t *testing.T) {
+	t.Parallel()
 	rs := sizeSeries(t)
 	for _, f := range []Format{PNG, SVG} {
 		b, err := rs.Draw(f, Size{})

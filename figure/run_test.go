@@ -46,6 +46,7 @@ func boolf(b bool) float64 {
 // between the optimal error's line and the top of the decomposition bar
 // (the smoothed validation error), which shares the curves' scale.
 func TestRun_PNGPixels(t *testing.T) {
+	t.Parallel()
 	tr := overfitting(60)
 	r := runOf("runs/overfit.csv", tr, nil)
 	j := r.Judgement
@@ -107,6 +108,7 @@ func TestRun_PNGPixels(t *testing.T) {
 // curves as paths of their inks with a point per epoch, and every number
 // written as the report writes it.
 func TestRun_SVGTexts(t *testing.T) {
+	t.Parallel()
 	tr := overfitting(60)
 	r := runOf("runs/overfit.csv", tr, nil)
 	j := r.Judgement
@@ -156,6 +158,7 @@ func TestRun_SVGTexts(t *testing.T) {
 }
 
 func TestRun_DrawBadInput(t *testing.T) {
+	t.Parallel()
 	tr := overfitting(10)
 	j, _ := tr.Latest()
 	tests := []struct {
@@ -188,6 +191,7 @@ func TestRun_DrawBadInput(t *testing.T) {
 // TestRun_HostileName: a run's name comes from a command line or a log;
 // what reaches the picture is printable, and a long name keeps its end.
 func TestRun_HostileName(t *testing.T) {
+	t.Parallel()
 	tr := overfitting(12)
 	names := []string{
 		"evil\x1b]0;pwned\x07\x1b[2J\x9b31m.csv",
@@ -229,6 +233,7 @@ func TestRun_HostileName(t *testing.T) {
 // value, with its non-finite epochs marked, and without a decomposition
 // of a NaN.
 func TestRun_NotFinite(t *testing.T) {
+	t.Parallel()
 	tr := diagnose.New(diagnose.Config{})
 	for e := 1; e <= 20; e++ {
 		v := 0.5 / float64(e)

@@ -30,6 +30,7 @@ func sweep(n int, size func(k int) float64) Runs {
 }
 
 func TestRuns_Ranked(t *testing.T) {
+	t.Parallel()
 	rs := sweep(12, func(int) float64 { return 0 })
 	rs.Lines[3].Best = diagnose.None // ranks last
 	got := rs.ranked()
@@ -51,6 +52,7 @@ func TestRuns_Ranked(t *testing.T) {
 // the rest faint, the hopeless counted, and no data-size panel when the
 // runs share their size.
 func TestRuns_SVG(t *testing.T) {
+	t.Parallel()
 	rs := sweep(12, func(int) float64 { return 5000 })
 	b, err := rs.Draw(SVG, Size{})
 	if err != nil {
@@ -94,6 +96,7 @@ func TestRuns_SVG(t *testing.T) {
 // TestRuns_SizePanel: runs that differ in training-set size get the panel
 // with the fit's answer in the report's numbers; a refused fit says why.
 func TestRuns_SizePanel(t *testing.T) {
+	t.Parallel()
 	rs := sweep(8, func(k int) float64 { return 100 * math.Pow(2, float64(7-k)) })
 	var pts []forecast.SizePoint
 	for _, l := range rs.Lines {
@@ -132,6 +135,7 @@ func TestRuns_SizePanel(t *testing.T) {
 }
 
 func TestRuns_DrawBadInput(t *testing.T) {
+	t.Parallel()
 	nan := math.NaN()
 	tests := []struct {
 		name  string

@@ -11,6 +11,7 @@ import (
 )
 
 func TestNiceSteps(t *testing.T) {
+	t.Parallel()
 	// Source: Heckbert, "Nice numbers for graph labels", Graphics Gems
 	// (1990): steps of 1, 2 and 5 times a power of ten.
 	floors := []struct{ raw, want float64 }{
@@ -38,6 +39,7 @@ func labels(ts []plot.Tick) []string {
 }
 
 func TestValueTicks(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		name     string
 		fraction bool
@@ -75,6 +77,7 @@ func TestValueTicks(t *testing.T) {
 }
 
 func TestEpochTicks(t *testing.T) {
+	t.Parallel()
 	tests := []struct {
 		lo, hi float64
 		want   []string
@@ -104,6 +107,7 @@ func TestEpochTicks(t *testing.T) {
 // practice), is left off a run that then falls to 0.3; an ordinary decay
 // keeps its start; values that are not negative get no axis below 0.
 func TestValueAxis(t *testing.T) {
+	t.Parallel()
 	axis := func(vs ...float64) (float64, float64) {
 		s := line{&Line{Epochs: make([]int, len(vs)), Values: vs}}
 		for i := range vs {

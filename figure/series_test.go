@@ -51,6 +51,7 @@ func m4Reference(xs, ys []float64, x0, x1 float64, cols int) []map[int]*columnSt
 }
 
 func TestReduce_KeepsEachColumnsFirstLastAndExtremes(t *testing.T) {
+	t.Parallel()
 	rng := rand.New(rand.NewPCG(1, 2))
 	for trial := 0; trial < 300; trial++ {
 		n := 1 + rng.IntN(60)
@@ -125,6 +126,7 @@ func ysOf(xy plotter.XYs) []float64 {
 }
 
 func TestReduce_Breaks(t *testing.T) {
+	t.Parallel()
 	nan, inf := math.NaN(), math.Inf(-1)
 	tests := []struct {
 		name      string
@@ -167,6 +169,7 @@ func TestReduce_Breaks(t *testing.T) {
 // without anti-aliasing; measured here: 0.6 % of the pixels differ at one
 // column a pixel, 0.14 % at two, 0.02 % at four.)
 func TestReduce_DrawsTheSamePixels(t *testing.T) {
+	t.Parallel()
 	const n, w, h = 6000, 800, 300
 	rng := rand.New(rand.NewPCG(3, 4))
 	l := &Line{}
