@@ -42,6 +42,7 @@ func (s Summary) Markdown() string {
 	}
 	b.WriteString("; gaps measured in " + inline(orDash(j.Metric.Label)) + "\n\n")
 
+	s.writePicture(&b)
 	b.WriteString("## Verdict\n\n")
 	b.WriteString("**" + sentence(j.Diagnosis.Phrase()) + "** (" + j.Diagnosis.Description() + ")")
 	if j.Focus != diagnose.NoComponent {

@@ -34,6 +34,10 @@ type Summary struct {
 	// Judgement is the judgement summarized; diagnose.NoJudgement when no
 	// point was read.
 	Judgement diagnose.Judgement
+	// Picture is where the picture of the run lies, relative to where the
+	// Markdown will be read ("curves.png"), with / between names; the
+	// Markdown shows it. "" for none. The JSON form leaves it out.
+	Picture string
 }
 
 // Build summarizes the latest judgement of t. With no point judged, the
