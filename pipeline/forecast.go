@@ -23,6 +23,10 @@ type extras struct {
 	lr     changes[float64] // the learning rate logged at each point; NaN where none
 	total  changes[int]     // the last epoch announced at each point; 0 where none
 	haveLR bool             // a learning rate was logged at some point
+	// isLR remembers which column names are learning rates: a log has a
+	// few names, and reading one costs a map lookup instead of parsing
+	// the name at every point.
+	isLR map[string]bool
 }
 
 // add records point p as the Tracker's point i: every point from i on is
@@ -31,7 +35,18 @@ type extras struct {
 func (x *extras) add(i int, p *diagnose.Point) {
 	rate := math.NaN()
 	for _, s := range p.Samples {
-		if s.Column.Kind == diagnose.KindOther && forecast.IsLearningRate(s.Column.Name) {
+		if s.Column.Kind != diagnose.KindOther {
+			continue
+		}
+		lr, known := x.isLR[s.Column.Name]
+		if !known {
+			if x.isLR == nil {
+				x.isLR = map[string]bool{}
+			}
+			lr = forecast.IsLearningRate(s.Column.Name)
+			x.isLR[s.Column.Name] = lr
+		}
+		if lr {
 			rate = s.Last
 			x.haveLR = x.haveLR || s.Last > 0
 			break
