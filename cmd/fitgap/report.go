@@ -8,7 +8,6 @@ import (
 	"io/fs"
 	"strings"
 
-	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/pipeline"
 	"github.com/fitgap/fitgap/watch"
 )
@@ -34,7 +33,7 @@ Exit status 0 after a report; 2 on a usage error or an unreadable or empty log.`
 			if err != nil {
 				return err
 			}
-			run, err := judgeWholeLog(pipeline.Source{Path: path, Stdin: e.stdin, Read: opts}, cfg)
+			run, err := judgeWholeLog(pipeline.Source{Path: path, Stdin: e.stdin, Read: opts}, pipeline.Options{Judge: cfg, Epochs: log.epochs})
 			if err != nil {
 				return err
 			}
@@ -54,15 +53,17 @@ func onePath(args []string) (string, error) {
 	return "", usageErrorf("one log at a time, got %d: %s", len(args), strings.Join(args, " "))
 }
 
-// judgeWholeLog reads a finished log (or a pipe to its end) and judges it,
-// handing each batch to the run as it is read.
-func judgeWholeLog(src pipeline.Source, cfg diagnose.Config) (*pipeline.Run, error) {
+// judgeWholeLog reads a finished log (or a pipe to its end) and judges it
+// with opts (its name is the source's), handing each batch to the run as
+// it is read.
+func judgeWholeLog(src pipeline.Source, opts pipeline.Options) (*pipeline.Run, error) {
 	src.Read.Follow = false
 	batches, err := src.Follow(context.Background())
 	if err != nil {
 		return nil, readError(src.Name(), err)
 	}
-	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: cfg})
+	opts.Name = src.Name()
+	run := pipeline.New(opts)
 	for b := range batches {
 		run.Load(b)
 	}
