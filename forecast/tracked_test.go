@@ -185,7 +185,8 @@ func TestForecast_Decide(t *testing.T) {
 	}{
 		{"WatchBecomesStop", &stop, judged(diagnose.Watch, true), diagnose.Stop,
 			"even the optimistic forecast, "},
-		{"ContinueBecomesStop", &stop, judged(diagnose.Continue, true), diagnose.Stop, "; restore epoch 61"},
+		{"WatchNamesTheEpochToRestore", &stop, judged(diagnose.Watch, true), diagnose.Stop, "; restore epoch 61"},
+		{"ContinueStays", &stop, judged(diagnose.Continue, true), diagnose.Continue, "plateaued"},
 		{"StopStaysItsOwn", &stop, judged(diagnose.Stop, true), diagnose.Stop, "validation error has plateaued"},
 		{"NoBestNoStop", &stop, judged(diagnose.Watch, false), diagnose.Watch, "plateaued"},
 		{"ForecastGoesOn", &goOn, judged(diagnose.Watch, true), diagnose.Watch, "plateaued"},

@@ -56,8 +56,8 @@ const glyphForecast = '~'
 // forecastLayers adds the forecast f to the chart: its band and its
 // expected curve from the epoch it was made at, and the x axis extended
 // towards its target. n is the number of rows shown (the index the y
-// range gives the forecast's values).
-func (m *Model) forecastLayers(spec *chart.Spec, rng *chart.YRange, f *forecast.Forecast, n int) {
+// range gives the forecast's values), width the chart's width.
+func (m *Model) forecastLayers(spec *chart.Spec, rng *chart.YRange, f *forecast.Forecast, n, width int) {
 	if !m.showForecast || !m.cache.forecastMade || f.Status != forecast.OK || f.Target <= f.LastEpoch {
 		return
 	}
@@ -68,11 +68,20 @@ func (m *Model) forecastLayers(spec *chart.Spec, rng *chart.YRange, f *forecast.
 		return
 	}
 	fb := m.cache.band.sample(f, from, to, m.logY, m.plotted)
+	if len(fb.xs) == 0 {
+		return
+	}
+	// The expected curve at evenly spaced epochs, two a column, so that
+	// its glyph is spaced as the logged curves' are.
 	pts := m.cache.ahead[:0]
-	for k, x := range fb.xs {
-		pts = append(pts, chart.Point{X: x, Y: fb.mid[k]})
-		if isFinite(fb.mid[k]) {
-			rng.Add(n, fb.mid[k])
+	k := max(2*width, 2)
+	last := fb.xs[len(fb.xs)-1]
+	for i := 0; i < k; i++ {
+		x := fb.xs[0] + (last-fb.xs[0])*float64(i)/float64(k-1)
+		v := fb.interp(fb.mid, x)
+		pts = append(pts, chart.Point{X: x, Y: v})
+		if isFinite(v) {
+			rng.Add(n, v)
 		}
 	}
 	m.cache.ahead = pts

@@ -38,8 +38,8 @@ func (h forecastingHistory) ForecastAt(t *diagnose.Tracker, i int, split diagnos
 	return forecast.Tracked(t, i, split, nil, 80, forecast.Options{})
 }
 
-func newForecasting(given *forecast.Forecast) forecastingHistory {
-	return forecastingHistory{sharedHistory: sharedHistory{diagnose.New(diagnose.Config{})}, asked: &[]forecastCall{}, given: given}
+func newForecasting(cfg diagnose.Config, given *forecast.Forecast) forecastingHistory {
+	return forecastingHistory{sharedHistory: sharedHistory{diagnose.New(cfg)}, asked: &[]forecastCall{}, given: given}
 }
 
 // feedShared judges the run's points in h and hands them to the screen.
@@ -67,7 +67,7 @@ func lastXLabel(view string) string {
 // point it shows, draws it up to the run's last epoch, and the f key hides
 // the drawing, the line and the axis's extension.
 func TestModel_Forecast(t *testing.T) {
-	h := newForecasting(nil)
+	h := newForecasting(diagnose.Config{}, nil)
 	m := newTestModel(t, 120, 40, Options{History: h})
 	m = feedShared(t, m, h, forecastRun)
 	calls := *h.asked
@@ -103,11 +103,12 @@ func TestModel_Forecast(t *testing.T) {
 }
 
 // TestModel_ForecastStop: the forecast's reason to stop shows in the
-// signal, as the run's stop file acts on it.
+// signal, as the run's stop file acts on it. (A patience of 2 puts the
+// run under watch one epoch after its best.)
 func TestModel_ForecastStop(t *testing.T) {
 	stop := forecast.Forecast{Status: forecast.OK, Level: 0.8, LastEpoch: 30, Target: 80, Stop: true,
 		StopReason: "stop: even the optimistic forecast, 9.0% at epoch 80, does not beat the best 9.4%"}
-	h := newForecasting(&stop)
+	h := newForecasting(diagnose.Config{Patience: 2}, &stop)
 	m := newTestModel(t, 80, 24, Options{History: h})
 	m = feedShared(t, m, h, forecastRun)
 	v := ansi.Strip(m.View())

@@ -92,7 +92,7 @@ func (m *Model) chartLines(j diagnose.Judgement, w, h int) []string {
 		}
 	}
 	if len(rows) > 0 {
-		m.forecastLayers(&spec, &rng, &f.forecast, len(rows))
+		m.forecastLayers(&spec, &rng, &f.forecast, len(rows), w)
 		lo, hi = rng.Limits()
 	}
 	if spec.XMax <= spec.XMin {
