@@ -8,26 +8,28 @@ import (
 )
 
 // Long curves are thinned before they are fitted, so that one forecast
-// costs about the same at ten thousand points as at two thousand (the
-// fit bins what it is given, but finding breaks, turns and the noise
-// reads every point). The latest points are kept one by one, where a
-// learning-rate step or a turn shows first; before them, one point of
-// each block of a power-of-two stride counted from the first point, so
-// the kept points stay the same from one update to the next (a stride
-// anchored at the latest point would change them all at each epoch and
-// make the forecast jitter). Uniform thinning keeps each stretch's share
-// of the points, hence its weight in the fit; what it loses is the
-// averaging of the noise over the dropped points, which widens the
-// interval a little (design choice; measured in BenchmarkFromTracker).
+// costs about the same at a million points as at a thousand (the fit bins
+// what it is given, but finding breaks, turns and the noise, and the
+// residuals' correlation, read every point). The latest points are kept
+// one by one, where a learning-rate step or a turn shows first; before
+// them, one point of each block of a power-of-two stride counted from the
+// first point, so the kept points stay the same from one update to the
+// next (a stride anchored at the latest point would change them all at
+// each epoch and make the forecast jitter). Uniform thinning keeps each
+// stretch's share of the points, hence its weight in the fit; what it
+// loses is the averaging of the noise over the dropped points, which
+// widens the interval a little (TestFromTracker_ThinningKeepsForecast).
 const (
 	// MaxFitted is the most points a curve read from a Tracker holds.
-	// About 0.5 ms of fitting on the development machine (1 000 points:
-	// 0.55 ms, 10 000: 1.8 ms), inside the 1 ms an update may cost.
-	MaxFitted = 2048
-	// recentKept is how many of the latest points are always kept: more
-	// than MinPoints after a learning-rate step for any run whose steps
-	// are at least this far apart.
-	recentKept = 512
+	// Measured (CPU per update, pipeline's BenchmarkRun_Forecast, 2
+	// shared cores): 0.37 ms at 300 points; with 1024 kept, 0.65 ms at
+	// 3 000 and 0.55 ms at 100 000 points; with 2048 kept, 0.94 and 0.80
+	// ms, too near the 1 ms an update may cost.
+	MaxFitted = 1024
+	// recentKept is how many of the latest points are always kept: far
+	// more than MinPoints after a learning-rate step for any run whose
+	// steps are at least this far apart.
+	recentKept = 256
 )
 
 // FromTracker builds the curve of split as a Tracker judged it up to
@@ -163,6 +165,15 @@ func (f *Forecast) Decide(j diagnose.Judgement) diagnose.Judgement {
 	j.EarlyStop.Reason = strings.TrimPrefix(f.StopReason, stopPrefix) +
 		"; restore epoch " + strconv.Itoa(es.BestEpoch)
 	return j
+}
+
+// Bare returns f without its fitted ensemble: its numbers and words stay
+// (Phrase, Brief, Decide), while Band and Chance then answer as for no
+// forecast. A summary keeps its forecasts bare, so that a follow batch
+// of thousands of points holds their numbers, not their fits.
+func (f Forecast) Bare() Forecast {
+	f.ens = nil
+	return f
 }
 
 // Brief says the forecast in the few words of one screen line: what the

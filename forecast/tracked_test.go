@@ -216,6 +216,16 @@ func TestForecast_Brief(t *testing.T) {
 	if got, want := f.Brief(), "80 more epochs: -1.5 points [-3.4, +0.35] · plateau 4.0%"; got != want {
 		t.Errorf("got %q, want %q", got, want)
 	}
+	bare := f.Bare()
+	if bare.Brief() != f.Brief() || bare.Phrase() != f.Phrase() || bare.Status != OK {
+		t.Errorf("bare: %q, %q", bare.Brief(), bare.Phrase())
+	}
+	if _, ok := bare.Band(60); ok || !math.IsNaN(bare.Chance(0.05)) {
+		t.Error("a bare forecast still draws a band or gives a chance")
+	}
+	if _, ok := f.Band(60); !ok {
+		t.Error("Bare changed the forecast it was called on")
+	}
 	for _, s := range Statuses()[1:] {
 		r := Forecast{Status: s}
 		if got := r.Brief(); got != "no forecast: "+s.Phrase() || s.Phrase() == "" || s.Description() == "" {

@@ -16,11 +16,13 @@ type Forecasts struct {
 	Val, Train forecast.Forecast
 }
 
-// WithForecasts returns s with the forecasts of its curves, and with the
+// WithForecasts returns s with the forecasts of its curves (bare: their
+// numbers, not their fits), and with the
 // validation forecast's reason to stop added to its judgement
 // (forecast.Forecast.Decide): the summary then says what the run's stop
 // file and --exit-on-stop act on.
 func (s Summary) WithForecasts(fc Forecasts) Summary {
+	fc.Val, fc.Train = fc.Val.Bare(), fc.Train.Bare()
 	s.Forecasts = &fc
 	if s.Judgement.Judged() {
 		s.Judgement = fc.Val.Decide(s.Judgement)
@@ -161,7 +163,7 @@ func (s Summary) writeForecasts(b *strings.Builder) {
 	}
 	b.WriteString("\n")
 	if horizon {
-		b.WriteString("No last epoch was announced: the forecasts look as many epochs ahead as they fitted (--epochs sets the last epoch). ")
+		b.WriteString("With no last epoch ahead (none announced by the log, none given by --epochs, or reached), the forecasts look as many epochs ahead as they fitted. ")
 	}
 	b.WriteString("A heuristic aid: it extrapolates the shape the curve had so far and cannot see a turn before it starts.\n")
 }
