@@ -271,6 +271,35 @@ func TestChart_ValidationWinsSharedCells(t *testing.T) {
 	}
 }
 
+// TestChart_Bands: each band is drawn in its own ink, and listed in the
+// legend only when it has a label; a curve without a glyph or a label has
+// neither markers nor a legend entry.
+func TestChart_Bands(t *testing.T) {
+	const inkAhead = inkBad + 10 // an ink of the caller's, apart from the chart's own
+	spec := fullSpec()
+	var ahead []Point
+	for x := 30.0; x <= 60; x += 0.25 {
+		ahead = append(ahead, Point{X: x, Y: 0.06})
+	}
+	spec.XMax, spec.HasCursor, spec.Off, spec.Bad = 60, false, nil, nil
+	spec.Bands = append(spec.Bands, BandLayer{Band: sliceBand{ahead}, Ink: inkAhead})
+	spec.Curves = append(spec.Curves, Curve{Ink: inkAhead, Points: []Point{{X: 30, Y: 0.12}, {X: 60, Y: 0.12}}})
+	var c Chart
+	lines := c.Draw(90, 16, spec, plainPalette{})
+	if strings.Count(lines[0], "⠤") != 1 {
+		t.Errorf("legend %q: want one band entry (the labelled one)", lines[0])
+	}
+	m := c.inkMap()
+	if !strings.ContainsRune(m, rune('0'+inkAhead)) || !strings.ContainsRune(m, rune('0'+inkBand)) {
+		t.Errorf("both bands' inks should show:\n%s", m)
+	}
+	for _, r := range c.grid.r {
+		if r == 0 {
+			t.Fatal("a marker of a curve without a glyph was drawn as a NUL")
+		}
+	}
+}
+
 func TestGrid_Lines(t *testing.T) {
 	var g Grid
 	g.Reset(8, 2)
