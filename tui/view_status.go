@@ -209,7 +209,9 @@ func (m *Model) renderStatus() {
 		if total > 0 {
 			parts = append(parts, statusPart{progressBar(last.epoch, total, 12), clsTrain, 7})
 			parts = append(parts, statusPart{itoa(min(100, 100*max(last.epoch, 0)/total)) + "%", clsPlain, 4})
-			if p, ok := m.pace(); ok && last.epoch < total && m.src.State == Live {
+			// (A total far off, given or announced, must not overflow the
+			// duration: beyond a century the ETA says nothing.)
+			if p, ok := m.pace(); ok && last.epoch < total && m.src.State == Live && float64(total-last.epoch)*float64(p) < float64(100*365*24*time.Hour) {
 				parts = append(parts, statusPart{"eta " + ago(time.Duration(total-last.epoch)*p), clsPlain, 3})
 			}
 		}
