@@ -48,16 +48,7 @@ func FromTracker(t *diagnose.Tracker, i int, split diagnose.Split, lr func(k int
 		return c
 	}
 	j := t.At(i)
-	c.Fraction = j.Metric.Fraction
-	c.MinDelta = j.EarlyStop.MinDelta
-	if split == diagnose.SplitVal {
-		// The diagnosis estimates the noise and keeps the best value of
-		// the validation curve only.
-		if j.Noise.OK {
-			c.Noise = j.Noise.V
-		}
-		c.Best = j.EarlyStop.BestVal
-	}
+	c.setJudged(j, split)
 	if !j.Estimate(split).Smooth.OK {
 		return c // nothing logged on split so far
 	}
