@@ -5,6 +5,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -136,5 +138,38 @@ func TestReport_ForecastRefusals(t *testing.T) {
 				t.Errorf("Markdown lacks the refusal %q:\n%s", tt.reason, md)
 			}
 		})
+	}
+}
+
+// TestFollow_ExitOnTheForecastsStop: a plateau that patience alone would
+// let run to its end, with a minimum improvement the forecast says the
+// remaining epochs cannot bring: follow creates the stop file and ends on
+// the forecast's reason.
+func TestFollow_ExitOnTheForecastsStop(t *testing.T) {
+	t.Parallel()
+	plateau := func(e int) float64 { return 0.1 + 0.3*math.Exp(-float64(e)/4) }
+	stop := filepath.Join(t.TempDir(), "run.stop")
+	stdout, stderr, code := runCLI(t, forecastLog(80, plateau, constantRate),
+		"follow", "--epochs", "100", "--min-delta", "1%", "--patience", "60", "--exit-on-stop", "--stop-file", stop, "-")
+	if code != 0 {
+		t.Fatalf("follow: exit %d: %s", code, stderr)
+	}
+	lines := strings.Split(strings.TrimSpace(stdout), "\n")
+	var last struct {
+		Epoch     int `json:"epoch"`
+		EarlyStop struct {
+			Signal string `json:"signal"`
+			Reason string `json:"reason"`
+		} `json:"early_stop"`
+	}
+	if err := json.Unmarshal([]byte(lines[len(lines)-1]), &last); err != nil {
+		t.Fatal(err)
+	}
+	if last.EarlyStop.Signal != "stop" || !strings.HasPrefix(last.EarlyStop.Reason, "even the optimistic forecast") || last.Epoch >= 60 {
+		t.Errorf("ended at epoch %d on %s: %q; want the forecast's stop before patience", last.Epoch, last.EarlyStop.Signal, last.EarlyStop.Reason)
+	}
+	b, err := os.ReadFile(stop)
+	if err != nil || !strings.Contains(string(b), "optimistic forecast") {
+		t.Errorf("stop file %q (%v)", b, err)
 	}
 }
