@@ -83,7 +83,9 @@ func New(opts Options) *Run {
 
 // Update is what one batch changed, once judged. Points[i] was judged as
 // Judgements[i], in order; a point whose epoch is not above the one before
-// replaces the judgements from Judgements[i].Index on.
+// replaces the judgements from Judgements[i].Index on. The judgements where
+// the forecast was weighed (every point with Options.Summaries, else the
+// batch's last) carry its reason to stop, as the stop file does.
 type Update struct {
 	Points     []diagnose.Point
 	Judgements []diagnose.Judgement
