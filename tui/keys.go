@@ -5,19 +5,20 @@ import "github.com/charmbracelet/bubbles/key"
 // keyMap holds every key of the screen. The same bindings feed the key
 // help line and the full help, so the help cannot drift from the keys.
 type keyMap struct {
-	Pause   key.Binding
-	Prev    key.Binding
-	Next    key.Binding
-	First   key.Binding
-	Last    key.Binding
-	Metric  key.Binding
-	LogY    key.Binding
-	Optimal key.Binding
-	Save    key.Binding
-	Help    key.Binding
-	Quit    key.Binding
-	Abort   key.Binding
-	Suspend key.Binding
+	Pause    key.Binding
+	Prev     key.Binding
+	Next     key.Binding
+	First    key.Binding
+	Last     key.Binding
+	Metric   key.Binding
+	LogY     key.Binding
+	Forecast key.Binding
+	Optimal  key.Binding
+	Save     key.Binding
+	Help     key.Binding
+	Quit     key.Binding
+	Abort    key.Binding
+	Suspend  key.Binding
 
 	// While typing an optimal error.
 	Accept key.Binding
@@ -26,21 +27,22 @@ type keyMap struct {
 
 func newKeyMap() keyMap {
 	return keyMap{
-		Pause:   key.NewBinding(key.WithKeys(" "), key.WithHelp("space", "pause/resume")),
-		Prev:    key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/h", "earlier epoch")),
-		Next:    key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "later epoch")),
-		First:   key.NewBinding(key.WithKeys("home"), key.WithHelp("home", "first epoch")),
-		Last:    key.NewBinding(key.WithKeys("end"), key.WithHelp("end", "last epoch")),
-		Metric:  key.NewBinding(key.WithKeys("m"), key.WithHelp("m", "judged metric")),
-		LogY:    key.NewBinding(key.WithKeys("g"), key.WithHelp("g", "log scale")),
-		Optimal: key.NewBinding(key.WithKeys("b"), key.WithHelp("b", "optimal error")),
-		Save:    key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save summary")),
-		Help:    key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "all keys")),
-		Quit:    key.NewBinding(key.WithKeys("q"), key.WithHelp("q", "quit")),
-		Abort:   key.NewBinding(key.WithKeys("ctrl+c"), key.WithHelp("ctrl+c", "quit (interrupted)")),
-		Suspend: key.NewBinding(key.WithKeys("ctrl+z"), key.WithHelp("ctrl+z", "suspend (fg resumes)")),
-		Accept:  key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "apply")),
-		Cancel:  key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel")),
+		Pause:    key.NewBinding(key.WithKeys(" "), key.WithHelp("space", "pause/resume")),
+		Prev:     key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/h", "earlier epoch")),
+		Next:     key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "later epoch")),
+		First:    key.NewBinding(key.WithKeys("home"), key.WithHelp("home", "first epoch")),
+		Last:     key.NewBinding(key.WithKeys("end"), key.WithHelp("end", "last epoch")),
+		Metric:   key.NewBinding(key.WithKeys("m"), key.WithHelp("m", "judged metric")),
+		LogY:     key.NewBinding(key.WithKeys("g"), key.WithHelp("g", "log scale")),
+		Forecast: key.NewBinding(key.WithKeys("f"), key.WithHelp("f", "forecast on/off")),
+		Optimal:  key.NewBinding(key.WithKeys("b"), key.WithHelp("b", "optimal error")),
+		Save:     key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save summary")),
+		Help:     key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "all keys")),
+		Quit:     key.NewBinding(key.WithKeys("q"), key.WithHelp("q", "quit")),
+		Abort:    key.NewBinding(key.WithKeys("ctrl+c"), key.WithHelp("ctrl+c", "quit (interrupted)")),
+		Suspend:  key.NewBinding(key.WithKeys("ctrl+z"), key.WithHelp("ctrl+z", "suspend (fg resumes)")),
+		Accept:   key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "apply")),
+		Cancel:   key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel")),
 	}
 }
 
@@ -60,17 +62,17 @@ func (k keyMap) shortHelp() ([]key.Binding, []int) {
 	}
 	inspect := key.NewBinding(key.WithKeys("left", "right"), key.WithHelp("←/→", "inspect"))
 	return []key.Binding{
-			short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"),
+			short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"), short(k.Forecast, "forecast"),
 			short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "keys"), short(k.Quit, "quit"),
 		},
-		[]int{3, 4, 5, 7, 6, 8, 1, 0}
+		[]int{3, 4, 5, 8, 7, 6, 9, 1, 0}
 }
 
 // FullHelp is the key list shown by `?`, in columns.
 func (k keyMap) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Pause, k.Prev, k.Next, k.First, k.Last},
-		{k.Metric, k.LogY, k.Optimal, k.Save},
+		{k.Metric, k.LogY, k.Forecast, k.Optimal, k.Save},
 		{k.Help, k.Quit, k.Abort, k.Suspend},
 	}
 }

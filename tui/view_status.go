@@ -195,16 +195,24 @@ func (m *Model) renderStatus() {
 	rows := m.data.rows
 	if n := len(rows); n > 0 {
 		last := rows[n-1]
+		// The last epoch announced by the log, else the one given
+		// (--epochs).
+		total := last.total
+		if total <= 0 {
+			total = m.opts.Epochs
+		}
 		ep := "epoch " + itoa(last.epoch)
-		if last.total > 0 {
-			ep += "/" + itoa(last.total)
+		if total > 0 {
+			ep += "/" + itoa(total)
 		}
 		parts = append(parts, statusPart{ep, clsPlain, 1})
-		if last.total > 0 {
-			parts = append(parts, statusPart{progressBar(last.epoch, last.total, 12), clsTrain, 7})
-			parts = append(parts, statusPart{itoa(min(100, 100*max(last.epoch, 0)/last.total)) + "%", clsPlain, 4})
-			if p, ok := m.pace(); ok && last.epoch < last.total && m.src.State == Live {
-				parts = append(parts, statusPart{"eta " + ago(time.Duration(last.total-last.epoch)*p), clsPlain, 3})
+		if total > 0 {
+			parts = append(parts, statusPart{progressBar(last.epoch, total, 12), clsTrain, 7})
+			parts = append(parts, statusPart{itoa(min(100, 100*max(last.epoch, 0)/total)) + "%", clsPlain, 4})
+			// (A total far off, given or announced, must not overflow the
+			// duration: beyond a century the ETA says nothing.)
+			if p, ok := m.pace(); ok && last.epoch < total && m.src.State == Live && float64(total-last.epoch)*float64(p) < float64(100*365*24*time.Hour) {
+				parts = append(parts, statusPart{"eta " + ago(time.Duration(total-last.epoch)*p), clsPlain, 3})
 			}
 		}
 	}

@@ -89,10 +89,10 @@ func demoJudgeConfig(f trainer.Facts) diagnose.Config {
 }
 
 // reportCommandLine is the report command that judges a demo log with what
-// the demo knows about its data.
-func reportCommandLine(f trainer.Facts, path string) string {
-	return fmt.Sprintf("fitgap report --bayes-error %g --val-size %d --train-size %d %s",
-		f.BayesError, f.ValSize, f.TrainSize, path)
+// the demo knows about its data and its length.
+func reportCommandLine(f trainer.Facts, epochs int, path string) string {
+	return fmt.Sprintf("fitgap report --bayes-error %g --val-size %d --train-size %d --epochs %d %s",
+		f.BayesError, f.ValSize, f.TrainSize, epochs, path)
 }
 
 func writeDemoLog(ctx context.Context, e *env, cfg trainer.Config, path string) error {
@@ -108,7 +108,7 @@ func writeDemoLog(ctx context.Context, e *env, cfg trainer.Config, path string) 
 		return runErr
 	}
 	fmt.Fprintf(e.stderr, "fitgap demo: wrote %d epochs of the %s scenario to %s\njudge it with: %s\n",
-		cfg.Epochs, cfg.Scenario, path, reportCommandLine(cfg.Facts(), path))
+		cfg.Epochs, cfg.Scenario, path, reportCommandLine(cfg.Facts(), cfg.Epochs, path))
 	return nil
 }
 
@@ -157,6 +157,7 @@ func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format strin
 		path:       path,
 		opts:       watch.Options{Follow: true},
 		cfg:        demoJudgeConfig(facts),
+		epochs:     cfg.Epochs,
 		bayesNote:  fmt.Sprintf("known: the demo flips %.0f%% of labels", facts.BayesError*100),
 		flags:      scr,
 		after:      after,
@@ -166,6 +167,6 @@ func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format strin
 	if errors.As(err, &nt) {
 		return &noTerminalError{err: fmt.Errorf("%w; for a headless demo: fitgap demo --pace 0 --write run.csv, then fitgap report run.csv", nt.err)}
 	}
-	fmt.Fprintf(e.stderr, "fitgap demo: the log is kept at %s\njudge it again with: %s\n", path, reportCommandLine(facts, path))
+	fmt.Fprintf(e.stderr, "fitgap demo: the log is kept at %s\njudge it again with: %s\n", path, reportCommandLine(facts, cfg.Epochs, path))
 	return err
 }

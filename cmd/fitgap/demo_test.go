@@ -51,7 +51,7 @@ func judgeDemo(t *testing.T, sc trainer.Scenario, format string, epochs int) dem
 	t.Helper()
 	path := trainDemo(t, sc, format, epochs)
 	facts := trainer.Config{Scenario: sc}.Facts()
-	report := strings.Fields(reportCommandLine(facts, path))[1:]
+	report := strings.Fields(reportCommandLine(facts, epochs, path))[1:]
 	report = append([]string{report[0], "--json"}, report[1:]...)
 	stdout, stderr, code := runCLI(t, "", report...)
 	if code != 0 {

@@ -2,17 +2,13 @@ package main
 
 import (
 	"io"
-	"math"
 	"os"
 	"path/filepath"
-	"sort"
 	"strconv"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/figure"
-	"github.com/fitgap/fitgap/forecast"
 	"github.com/fitgap/fitgap/pipeline"
-	"github.com/fitgap/fitgap/watch"
 )
 
 // plotOutput is `report --plot FILE`: the picture of the run beside the
@@ -20,7 +16,6 @@ import (
 type plotOutput struct {
 	path   string
 	format figure.Format
-	inputs forecastInputs
 }
 
 // checkPlot refuses, before anything is read, a picture path fitgap could
@@ -50,9 +45,10 @@ func checkPlot(path, log string, stdout io.Writer) (*plotOutput, error) {
 func (p *plotOutput) save(run *pipeline.Run, log string, stdout io.Writer) (string, error) {
 	var b []byte
 	var err error
+	fc := run.Forecast(diagnose.SplitVal) // outside Read: it takes the run's lock
 	run.Read(func(t *diagnose.Tracker) {
 		j, _ := t.Latest()
-		b, err = figure.Run{Name: run.Name(), History: t, Judgement: j, Forecast: p.inputs.valForecast(t)}.Draw(p.format, figure.Size{})
+		b, err = figure.Run{Name: run.Name(), History: t, Judgement: j, Forecast: &fc}.Draw(p.format, figure.Size{})
 	})
 	if err != nil {
 		return "", err
@@ -88,85 +84,4 @@ func pictureRef(path string, stdout io.Writer) string {
 		return filepath.ToSlash(abs)
 	}
 	return filepath.ToSlash(rel)
-}
-
-// forecastInputs keeps, while the log is read, what the validation
-// forecast needs that the Tracker does not keep: the learning rate by
-// epoch (a column forecast.IsLearningRate names) and the announced last
-// epoch. A resumed run's epochs replace the ones from its resume on, as
-// in the Tracker.
-type forecastInputs struct {
-	epochs []int
-	lr     []float64
-	haveLR bool
-	total  int
-	// isLR caches forecast.IsLearningRate by column name: it builds
-	// strings, and a log has a handful of names for millions of rows.
-	isLR map[string]bool
-}
-
-func (f *forecastInputs) observe(b watch.Batch) {
-	for i := range b.Points {
-		p := &b.Points[i]
-		k := sort.SearchInts(f.epochs, p.Epoch)
-		f.epochs, f.lr = append(f.epochs[:k], p.Epoch), append(f.lr[:k], math.NaN())
-		if p.Total > 0 {
-			f.total = p.Total
-		}
-		for _, s := range p.Samples {
-			if s.Column.Kind != diagnose.KindOther {
-				continue
-			}
-			lr, seen := f.isLR[s.Column.Name]
-			if !seen {
-				if f.isLR == nil {
-					f.isLR = map[string]bool{}
-				}
-				lr = forecast.IsLearningRate(s.Column.Name)
-				f.isLR[s.Column.Name] = lr
-			}
-			if lr {
-				f.lr[k], f.haveLR = s.Last, true
-				break
-			}
-		}
-	}
-}
-
-// lrAt returns the learning rate logged at an epoch, NaN when none.
-func (f *forecastInputs) lrAt(epoch int) float64 {
-	k := sort.SearchInts(f.epochs, epoch)
-	if k < len(f.epochs) && f.epochs[k] == epoch {
-		return f.lr[k]
-	}
-	return math.NaN()
-}
-
-// valForecast forecasts the run's validation curve for the picture, from
-// the judged series as forecast.FromJudged builds it (the values logged,
-// the judgement's noise, best value and minimum improvement) without
-// rebuilding every past judgement. It stands in for the pipeline's own
-// forecast until the pipeline keeps one; nil when nothing is judged.
-func (f *forecastInputs) valForecast(t *diagnose.Tracker) *forecast.Forecast {
-	j, ok := t.Latest()
-	if !ok {
-		return nil
-	}
-	c := forecast.Curve{Total: f.total, Fraction: j.Metric.Fraction, MinDelta: j.EarlyStop.MinDelta, Best: j.EarlyStop.BestVal}
-	if j.Noise.OK {
-		c.Noise = j.Noise.V
-	}
-	for i := 0; i < t.Len(); i++ {
-		v := t.Logged(i, diagnose.SplitVal)
-		if !v.OK {
-			continue
-		}
-		e := t.Epoch(i)
-		c.Epochs, c.Values = append(c.Epochs, e), append(c.Values, v.V)
-		if f.haveLR {
-			c.LR = append(c.LR, f.lrAt(e))
-		}
-	}
-	fc := forecast.Epochs(c, forecast.Options{})
-	return &fc
 }

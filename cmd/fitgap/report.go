@@ -42,14 +42,12 @@ or a picture path that cannot be written; 1 when drawing or writing it fails.`,
 				return err
 			}
 			var pic *plotOutput
-			observe := func(watch.Batch) {}
 			if plot != "" {
 				if pic, err = checkPlot(plot, path, e.stdout); err != nil {
 					return err
 				}
-				observe = pic.inputs.observe
 			}
-			run, err := judgeWholeLog(pipeline.Source{Path: path, Stdin: e.stdin, Read: opts}, cfg, observe)
+			run, err := judgeWholeLog(pipeline.Source{Path: path, Stdin: e.stdin, Read: opts}, pipeline.Options{Judge: cfg, Epochs: log.epochs})
 			if err != nil {
 				return err
 			}
@@ -80,17 +78,18 @@ func onePath(args []string) (string, error) {
 	return "", usageErrorf("one log at a time, got %d: %s", len(args), strings.Join(args, " "))
 }
 
-// judgeWholeLog reads a finished log (or a pipe to its end) and judges it,
-// handing each batch to the run as it is read, and to observe first.
-func judgeWholeLog(src pipeline.Source, cfg diagnose.Config, observe func(watch.Batch)) (*pipeline.Run, error) {
+// judgeWholeLog reads a finished log (or a pipe to its end) and judges it
+// with opts (its name is the source's), handing each batch to the run as
+// it is read.
+func judgeWholeLog(src pipeline.Source, opts pipeline.Options) (*pipeline.Run, error) {
 	src.Read.Follow = false
 	batches, err := src.Follow(context.Background())
 	if err != nil {
 		return nil, readError(src.Name(), err)
 	}
-	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: cfg})
+	opts.Name = src.Name()
+	run := pipeline.New(opts)
 	for b := range batches {
-		observe(b)
 		run.Load(b)
 	}
 	if run.Len() == 0 {
