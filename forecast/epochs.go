@@ -95,14 +95,50 @@ const (
 	BadInput
 )
 
-var statusNames = [...]string{"ok", "too-few-points", "turned", "diverging", "no-fit", "lr-rising", "bad-input"}
+// statusWords are each status's machine name, its phrase (a few words
+// for a screen line: "no forecast: the curve has turned") and what it
+// means (the JSON reference).
+var statusWords = [...]struct{ name, phrase, about string }{
+	OK:        {"ok", "a forecast with its intervals", "a forecast was made; every number comes with its interval"},
+	TooFew:    {"too-few-points", "too few epochs", "too few epochs to fit, since the start or since a break in the curve"},
+	Turned:    {"turned", "the curve has turned", "the curve has turned upward (overfitting, or a blow-up beginning): extrapolating a falling curve would hide it"},
+	Diverging: {"diverging", "diverging", "the latest value is NaN or infinite"},
+	NoFit:     {"no-fit", "no curve family fits", "no learning-curve family could be fitted to the curve"},
+	LRRising:  {"lr-rising", "the learning rate is rising", "the learning rate keeps rising (a range test, a warm-up, the rising half of a cycle): the curve's shape is still changing with it"},
+	BadInput:  {"bad-input", "inconsistent input", "the series given are inconsistent (their lengths differ)"},
+}
+
+// Statuses lists every status, in order.
+func Statuses() []Status {
+	out := make([]Status, len(statusWords))
+	for i := range out {
+		out[i] = Status(i)
+	}
+	return out
+}
 
 // String returns the stable machine name used in JSON ("turned").
 func (s Status) String() string {
-	if int(s) < len(statusNames) {
-		return statusNames[s]
+	if int(s) < len(statusWords) {
+		return statusWords[s].name
 	}
 	return fmt.Sprintf("status(%d)", uint8(s))
+}
+
+// Phrase says the status in a few words ("the curve has turned").
+func (s Status) Phrase() string {
+	if int(s) < len(statusWords) {
+		return statusWords[s].phrase
+	}
+	return s.String()
+}
+
+// Description says what the status means.
+func (s Status) Description() string {
+	if int(s) < len(statusWords) {
+		return statusWords[s].about
+	}
+	return s.String()
 }
 
 // MarshalText makes a Status a JSON string.
@@ -180,6 +216,9 @@ type Forecast struct {
 	// Target is the epoch forecast: the announced last epoch, or the
 	// horizon past the last.
 	Target int `json:"target_epoch"`
+	// TargetGiven says Target is the run's last epoch as given (Curve.Total:
+	// announced by the log, or set by the user), not the default horizon.
+	TargetGiven bool `json:"target_given"`
 	// At is the value the log will show at Target: the expected value and
 	// the interval that holds the logged value (curve and noise).
 	At Interval `json:"at_target"`
@@ -265,6 +304,7 @@ func Epochs(c Curve, o Options) Forecast {
 	f.Points = len(win)
 	f.Noise = math.Sqrt(ens.noise2) * ens.scale
 	f.Target = target(c.Total, o.Horizon, f.LastEpoch, ep[0])
+	f.TargetGiven = c.Total > f.LastEpoch
 	f.fill(c)
 	return f
 }

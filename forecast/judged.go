@@ -44,19 +44,25 @@ func FromJudged(js []diagnose.Judgement, pts []diagnose.Point, split diagnose.Sp
 		c.LR = lr
 	}
 	if n := len(js); n > 0 {
-		last := js[n-1]
-		c.Fraction = last.Metric.Fraction
-		c.MinDelta = last.EarlyStop.MinDelta
-		if split == diagnose.SplitVal {
-			// The diagnosis estimates the noise and keeps the best value
-			// of the validation curve only.
-			if last.Noise.OK {
-				c.Noise = last.Noise.V
-			}
-			c.Best = last.EarlyStop.BestVal
-		}
+		c.setJudged(js[n-1], split)
 	}
 	return c
+}
+
+// setJudged takes from the judgement of the curve's last point what the
+// forecast needs of it: the metric's kind, the minimum improvement, and,
+// for the validation curve, the noise and the best value.
+func (c *Curve) setJudged(last diagnose.Judgement, split diagnose.Split) {
+	c.Fraction = last.Metric.Fraction
+	c.MinDelta = last.EarlyStop.MinDelta
+	if split == diagnose.SplitVal {
+		// The diagnosis estimates the noise and keeps the best value of
+		// the validation curve only.
+		if last.Noise.OK {
+			c.Noise = last.Noise.V
+		}
+		c.Best = last.EarlyStop.BestVal
+	}
 }
 
 func splitEstimate(j diagnose.Judgement, split diagnose.Split) diagnose.Estimate {

@@ -45,7 +45,7 @@ func (f *Forecast) fill(c Curve) {
 		optimistic := e.value(mixtureQuantile(cs, qhi))
 		if gain := f.Best - optimistic; gain < c.MinDelta || gain <= 0 {
 			f.Stop = true
-			f.StopReason = "stop: even the optimistic forecast, " + f.format(optimistic) + " at epoch " +
+			f.StopReason = stopPrefix + "even the optimistic forecast, " + f.format(optimistic) + " at epoch " +
 				strconv.Itoa(f.Target) + ", " + f.gainWords(gain, c.MinDelta)
 		}
 	}

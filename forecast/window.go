@@ -44,6 +44,18 @@ func (b BreakCause) String() string {
 // MarshalText makes a BreakCause a JSON string.
 func (b BreakCause) MarshalText() ([]byte, error) { return []byte(b.String()), nil }
 
+// BreakCauses lists every cause of a break, NoBreak first.
+func BreakCauses() []BreakCause {
+	out := make([]BreakCause, len(breakNames))
+	for i := range out {
+		out[i] = BreakCause(i)
+	}
+	return out
+}
+
+// Phrase says what happened at the break ("the learning-rate step").
+func (b BreakCause) Phrase() string { return b.phrase() }
+
 // phrase says what happened at the break, for the reason texts.
 func (b BreakCause) phrase() string {
 	switch b {

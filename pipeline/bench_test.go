@@ -85,3 +85,27 @@ func benchIdle(b *testing.B, epochs int) {
 		runtime.KeepAlive(kept)
 	}
 }
+
+// BenchmarkRun_Forecast is one forecast update of the validation curve
+// (what the screen asks at most once per rebuild tick, report once, follow
+// once per point for each curve) on runs of n points with a learning rate
+// logged: the curve read from the Tracker (thinned beyond
+// forecast.MaxFitted points) and fitted. The target is 1 ms at 300 points.
+func BenchmarkRun_Forecast(b *testing.B) {
+	for _, n := range []int{30, 300, 3000, 100_000, 1_000_000} {
+		b.Run(fmt.Sprintf("Points=%d", n), func(b *testing.B) {
+			pts := runPoints(n, 2*n, falling, stepAt(n/2))
+			run := New(Options{Name: "run.csv"})
+			for i := 0; i < len(pts); i += 10_000 {
+				run.Load(watch.Batch{Points: pts[i:min(i+10_000, len(pts))]})
+			}
+			b.ReportAllocs()
+			for b.Loop() {
+				run.mu.Lock()
+				run.gen++ // as after a new point: nothing kept
+				run.mu.Unlock()
+				run.Forecast(diagnose.SplitVal)
+			}
+		})
+	}
+}

@@ -52,6 +52,9 @@ type Options struct {
 	WriterDone <-chan struct{}
 	// IdleEnd ends Drive after this long without a new line; 0 never.
 	IdleEnd time.Duration
+	// Epochs is the run's last epoch when the log announces none
+	// (--epochs): the epoch the forecasts look to.
+	Epochs int
 }
 
 // Run is one training run: its Tracker, the reader's latest counts and the
@@ -60,11 +63,18 @@ type Options struct {
 type Run struct {
 	opts Options
 
-	mu       sync.Mutex // guards tracker, stats and notices
+	mu       sync.Mutex // guards tracker, stats, notices, extras, gen and cached
 	tracker  *diagnose.Tracker
 	stats    watch.Stats
 	notices  noticeLog // the reader's notices, for the summary
 	finished bool      // WriterDone was closed
+
+	// The forecast's inputs beyond the Tracker, and the last forecasts
+	// made (forecast.go). gen counts the points taken: a forecast is kept
+	// until the next one.
+	extras extras
+	gen    uint64
+	cached [2]cachedForecast
 }
 
 // New returns a run with no point judged yet.
@@ -74,7 +84,9 @@ func New(opts Options) *Run {
 
 // Update is what one batch changed, once judged. Points[i] was judged as
 // Judgements[i], in order; a point whose epoch is not above the one before
-// replaces the judgements from Judgements[i].Index on.
+// replaces the judgements from Judgements[i].Index on. The judgements where
+// the forecast was weighed (every point with Options.Summaries, else the
+// batch's last) carry its reason to stop, as the stop file does.
 type Update struct {
 	Points     []diagnose.Point
 	Judgements []diagnose.Judgement
@@ -108,7 +120,12 @@ type StopEvent struct {
 
 // Apply judges one batch: every point goes through the Tracker, the stop
 // file is created when the signal first reaches stop, and the Update says
-// what changed. The lock is held only while judging, never during file I/O.
+// what changed. The forecast's reason to stop (forecast.Forecast.Decide)
+// is weighed at every point when summaries are asked for (follow), else
+// at the batch's last point: a backlog read in one batch is judged as of
+// its end, and a live log brings its epochs one batch each. The lock is
+// held while judging a point, never while fitting a forecast or writing
+// a file.
 func (r *Run) Apply(b watch.Batch) Update {
 	u := Update{Steps: b.Steps, Notices: b.Notices}
 	stopAt := -1 // the first point of the batch that says stop, for the stop file
@@ -116,20 +133,35 @@ func (r *Run) Apply(b watch.Batch) Update {
 	r.stats = b.Stats
 	r.notices.add(b.Notices, len(b.Points))
 	u.Stats = r.statsLocked()
+	r.mu.Unlock()
 	if len(b.Points) > 0 {
 		u.Judgements = make([]diagnose.Judgement, 0, len(b.Points))
 	}
-	for i, p := range b.Points {
+	for i := range b.Points {
+		p := &b.Points[i]
+		r.mu.Lock()
 		revision := r.tracker.Revision()
-		j := r.tracker.Add(p)
+		j := r.tracker.Add(*p)
+		r.took(p)
 		if r.tracker.Revision() != revision && r.tracker.Len() > 1 {
 			u.Rejudged = true // the points before p were judged again
 		}
+		var sum report.Summary
+		if r.opts.Summaries {
+			sum = r.summaryLocked()
+		}
+		r.mu.Unlock()
+		switch {
+		case r.opts.Summaries:
+			fc := r.Forecasts(nil, -1)
+			j = fc.Val.Decide(j)
+			u.Summaries = append(u.Summaries, sum.WithForecasts(fc))
+		case i == len(b.Points)-1:
+			f := r.Forecast(diagnose.SplitVal)
+			j = f.Decide(j)
+		}
 		u.Points = b.Points[:i+1]
 		u.Judgements = append(u.Judgements, j)
-		if r.opts.Summaries {
-			u.Summaries = append(u.Summaries, r.summaryLocked())
-		}
 		if j.EarlyStop.Signal != diagnose.Stop {
 			continue
 		}
@@ -141,11 +173,17 @@ func (r *Run) Apply(b watch.Batch) Update {
 			break
 		}
 	}
-	r.mu.Unlock()
 	if stopAt >= 0 {
 		u.Stop = r.opts.StopFile.create(u.Judgements[stopAt])
 	}
 	return u
+}
+
+// took records, under the lock, what the forecast needs of the point the
+// Tracker just took.
+func (r *Run) took(p *diagnose.Point) {
+	r.extras.add(r.tracker.Len()-1, p)
+	r.gen++
 }
 
 // Load judges one batch of a whole log being read (report): every point,
@@ -157,8 +195,9 @@ func (r *Run) Load(b watch.Batch) {
 	defer r.mu.Unlock()
 	r.stats = b.Stats
 	r.notices.add(b.Notices, len(b.Points))
-	for _, p := range b.Points {
-		r.tracker.Push(p)
+	for i := range b.Points {
+		r.tracker.Push(b.Points[i])
+		r.took(&b.Points[i])
 	}
 }
 

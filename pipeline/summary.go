@@ -21,11 +21,13 @@ import (
 // This file is where a run becomes a summary and a summary becomes bytes:
 // the one place of the wiring that calls into report.
 
-// Summary returns the snapshot summary as of the latest point.
+// Summary returns the snapshot summary as of the latest point, with the
+// forecasts of its curves.
 func (r *Run) Summary() report.Summary {
 	r.mu.Lock()
-	defer r.mu.Unlock()
-	return r.summaryLocked()
+	s := r.summaryLocked()
+	r.mu.Unlock()
+	return s.WithForecasts(r.Forecasts(nil, -1))
 }
 
 func (r *Run) summaryLocked() report.Summary {

@@ -42,6 +42,7 @@ func (s Summary) Markdown() string {
 	}
 	b.WriteString("; gaps measured in " + inline(orDash(j.Metric.Label)) + "\n\n")
 
+	s.writePicture(&b)
 	b.WriteString("## Verdict\n\n")
 	b.WriteString("**" + sentence(j.Diagnosis.Phrase()) + "** (" + j.Diagnosis.Description() + ")")
 	if j.Focus != diagnose.NoComponent {
@@ -135,6 +136,7 @@ func (s Summary) Markdown() string {
 	b.WriteString("Prechelt's criteria: GL " + num(es.GL, 1) + "%, P" + strconv.Itoa(strip) + " " + num(es.PK, 1) + "‰, PQ " + num(es.PQ, 2) +
 		", UP " + strconv.Itoa(es.UP) + "; patience " + strconv.Itoa(es.Patience) + " epochs.\n")
 
+	s.writeForecasts(&b)
 	if len(j.Actions) > 0 {
 		b.WriteString("\n## Next actions\n\n")
 		for i, a := range j.Actions {

@@ -34,6 +34,13 @@ type Summary struct {
 	// Judgement is the judgement summarized; diagnose.NoJudgement when no
 	// point was read.
 	Judgement diagnose.Judgement
+	// Picture is where the picture of the run lies, relative to where the
+	// Markdown will be read ("curves.png"), with / between names; the
+	// Markdown shows it. "" for none. The JSON form leaves it out.
+	Picture string
+	// Forecasts are what more epochs would buy the run's curves as of the
+	// point (WithForecasts); nil when the summary was made without them.
+	Forecasts *Forecasts
 }
 
 // Build summarizes the latest judgement of t. With no point judged, the
@@ -72,7 +79,8 @@ type Document struct {
 	Points       int    `json:"points"`        // evaluation points read
 	SkippedLines int    `json:"skipped_lines"` // lines that could not be read
 	diagnose.JudgementJSON
-	Warnings []string `json:"warnings"` // the reader's warnings, then the judgement's
+	Forecast *ForecastsJSON `json:"forecast" jsonschema:"nullable"` // what more epochs would buy the validation and training curves, with 80% intervals, or why there is no forecast; null when the summary was made without forecasts
+	Warnings []string       `json:"warnings"`                       // the reader's warnings, then the judgement's
 }
 
 // Document returns the JSON form of s. Every text is made printable.
@@ -83,6 +91,10 @@ func (s Summary) Document() Document {
 		Points:        s.Source.Points,
 		SkippedLines:  s.Source.SkippedLines,
 		JudgementJSON: s.Judgement.JSONForm(),
+	}
+	if s.Forecasts != nil {
+		fc := s.Forecasts.JSONForm(s.Judgement.Judged())
+		d.Forecast = &fc
 	}
 	d.Warnings = make([]string, 0, len(s.Source.Warnings)+len(d.JudgementJSON.Warnings))
 	for _, w := range s.Source.Warnings {

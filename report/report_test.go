@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/forecast"
 )
 
 var update = flag.Bool("update", false, "rewrite the golden files")
@@ -77,22 +78,53 @@ func hostileRun() *diagnose.Tracker {
 	return tr
 }
 
+// plateauRun is an invented run whose validation error settles at 10%
+// by epoch 20 and stays there to epoch 60 of an announced 100: with a
+// minimum improvement of one point, the forecast says stop.
+func plateauRun() *diagnose.Tracker {
+	tr := diagnose.New(diagnose.Config{MinDelta: 0.01, Patience: 50})
+	for e := 1; e <= 60; e++ {
+		ve := 0.1 + 0.3*math.Exp(-float64(e)/4) + 0.002*wiggle(e)
+		tr.Add(diagnose.Point{Epoch: e, EpochLogged: true, Total: 100, Line: e + 1, Samples: []diagnose.Sample{
+			sample("train_acc", "acc", diagnose.SplitTrain, true, diagnose.HigherIsBetter, 1-ve+0.02),
+			sample("val_acc", "acc", diagnose.SplitVal, true, diagnose.HigherIsBetter, 1-ve),
+		}})
+	}
+	return tr
+}
+
+// forecasted adds the forecasts of tr's curves as of point i (−1: the
+// latest) to s, as the pipeline does (without learning rates).
+func forecasted(s Summary, tr *diagnose.Tracker, i, total int) Summary {
+	if i < 0 {
+		i = tr.Len() - 1
+	}
+	return s.WithForecasts(Forecasts{
+		Val:   forecast.Tracked(tr, i, diagnose.SplitVal, nil, total, forecast.Options{}),
+		Train: forecast.Tracked(tr, i, diagnose.SplitTrain, nil, total, forecast.Options{}),
+	})
+}
+
 func TestSummary_Golden(t *testing.T) {
 	tests := []struct {
 		name string
 		src  Source
 		tr   *diagnose.Tracker
 		at   int // -1: latest
+		// total is the run's last epoch, which the pipeline keeps beside
+		// the Tracker; 0 for none.
+		total int
 	}{
 		{"overfit", Source{Name: "runs/pump-sensors.csv", Format: "csv", Points: 40, SkippedLines: 2,
 			Warnings: []string{"line 17: 3 fields, want 5"}},
-			overfitRun(diagnose.Config{BayesError: 0.03, BayesErrorGiven: true, ValSize: 5000, TrainSize: 45000}, 40), -1},
+			overfitRun(diagnose.Config{BayesError: 0.03, BayesErrorGiven: true, ValSize: 5000, TrainSize: 45000}, 40), -1, 0},
 		{"overfit-at-epoch-8", Source{Name: "runs/pump-sensors.csv", Format: "csv", Points: 40},
-			overfitRun(diagnose.Config{BayesError: 0.03, BayesErrorGiven: true, ValSize: 5000, TrainSize: 45000}, 40), 7},
-		{"no-bayes", Source{Name: "-", Format: "jsonl", Points: 20}, overfitRun(diagnose.Config{}, 20), -1},
-		{"mismatch", Source{Name: "speech.tsv", Format: "tsv", Points: 12}, mismatchRun(), -1},
-		{"hostile", Source{Name: "evil\x1b[2J.log", Format: "text", Points: 4, Warnings: []string{"bad \x9b31m line"}}, hostileRun(), -1},
-		{"empty", Source{Name: "empty.csv", Format: "csv"}, diagnose.New(diagnose.Config{}), -1},
+			overfitRun(diagnose.Config{BayesError: 0.03, BayesErrorGiven: true, ValSize: 5000, TrainSize: 45000}, 40), 7, 0},
+		{"no-bayes", Source{Name: "-", Format: "jsonl", Points: 20}, overfitRun(diagnose.Config{}, 20), -1, 0},
+		{"mismatch", Source{Name: "speech.tsv", Format: "tsv", Points: 12}, mismatchRun(), -1, 0},
+		{"hostile", Source{Name: "evil\x1b[2J.log", Format: "text", Points: 4, Warnings: []string{"bad \x9b31m line"}}, hostileRun(), -1, 0},
+		{"empty", Source{Name: "empty.csv", Format: "csv"}, diagnose.New(diagnose.Config{}), -1, 0},
+		{"forecast-stop", Source{Name: "runs/plateau.csv", Format: "csv", Points: 60}, plateauRun(), -1, 100},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -100,6 +132,7 @@ func TestSummary_Golden(t *testing.T) {
 			if tc.at >= 0 {
 				s = BuildAt(tc.src, tc.tr, tc.at)
 			}
+			s = forecasted(s, tc.tr, tc.at, tc.total)
 			js, err := s.JSON()
 			if err != nil {
 				t.Fatal(err)

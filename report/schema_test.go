@@ -14,6 +14,7 @@ import (
 	validator "github.com/santhosh-tekuri/jsonschema/v6"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/forecast"
 )
 
 // The published schemas are generated from the Go types of the JSON forms
@@ -46,7 +47,29 @@ func schemaFor(t *testing.T, v any, title string) *jsonschema.Schema {
 	}
 	s := r.Reflect(v)
 	s.Title = title
+	hoistNullable(s)
 	return s
+}
+
+// hoistNullable moves the description of a nullable field (a pointer
+// tagged `jsonschema:"nullable"`, reflected as oneOf [the type, null])
+// from the type to the field, where the reference reads it.
+func hoistNullable(s *jsonschema.Schema) {
+	if s == nil {
+		return
+	}
+	if len(s.OneOf) == 2 && s.OneOf[1].Type == "null" && s.Description == "" {
+		s.Description, s.OneOf[0].Description = s.OneOf[0].Description, ""
+	}
+	for _, o := range s.OneOf {
+		hoistNullable(o)
+	}
+	hoistNullable(s.Items)
+	if s.Properties != nil {
+		for pair := s.Properties.Oldest(); pair != nil; pair = pair.Next() {
+			hoistNullable(pair.Value)
+		}
+	}
 }
 
 func nullable(s *jsonschema.Schema) *jsonschema.Schema {
@@ -70,6 +93,15 @@ func mapType(t reflect.Type) *jsonschema.Schema {
 		return enum(diagnose.Progresses(), diagnose.Progress.Description)
 	case reflect.TypeOf(diagnose.Signal(0)):
 		return enum(diagnose.Signals(), diagnose.Signal.Description)
+	case reflect.TypeOf(forecast.Status(0)):
+		return enum(forecast.Statuses(), forecast.Status.Description)
+	case reflect.TypeOf(forecast.BreakCause(0)):
+		return enum(forecast.BreakCauses(), func(b forecast.BreakCause) string {
+			if b == forecast.NoBreak {
+				return "no break: the fit starts at the first epoch logged"
+			}
+			return "the fit starts after " + b.Phrase()
+		})
 	}
 	return nil
 }
@@ -202,7 +234,7 @@ func writeValues(b *strings.Builder, prefix string, s *jsonschema.Schema) {
 		return
 	}
 	for pair := s.Properties.Oldest(); pair != nil; pair = pair.Next() {
-		key, p := prefix+pair.Key, pair.Value
+		key, p := prefix+pair.Key, unwrapNull(pair.Value)
 		if p.Type == "array" && p.Items != nil {
 			p = p.Items
 		}
@@ -225,6 +257,7 @@ func writeKeys(b *strings.Builder, prefix string, s *jsonschema.Schema) {
 	for pair := s.Properties.Oldest(); pair != nil; pair = pair.Next() {
 		key, p := prefix+pair.Key, pair.Value
 		b.WriteString("| `" + key + "` | " + typeOf(p) + " | " + strings.ReplaceAll(p.Description, "|", "\\|") + " |\n")
+		p = unwrapNull(p)
 		switch {
 		case p.Type == "object":
 			writeKeys(b, key+".", p)
@@ -232,6 +265,15 @@ func writeKeys(b *strings.Builder, prefix string, s *jsonschema.Schema) {
 			writeKeys(b, key+"[].", p.Items)
 		}
 	}
+}
+
+// unwrapNull returns the type of a nullable object (oneOf [object,
+// null]), whose keys the reference lists; other schemas as they are.
+func unwrapNull(s *jsonschema.Schema) *jsonschema.Schema {
+	if len(s.OneOf) == 2 && s.OneOf[1].Type == "null" && s.OneOf[0].Type == "object" {
+		return s.OneOf[0]
+	}
+	return s
 }
 
 func typeOf(s *jsonschema.Schema) string {

@@ -3,6 +3,7 @@ package tui
 import (
 	"math"
 	"runtime"
+	"strings"
 	"testing"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -61,6 +62,31 @@ func BenchmarkRebuild(b *testing.B) {
 			b.ReportAllocs()
 			b.ResetTimer()
 			for i := 0; i < b.N; i++ {
+				m.rebuild()
+			}
+		})
+	}
+}
+
+// BenchmarkRebuild_Forecast is a rebuild after a new point with the
+// validation forecast drawn: the forecast made again (the screen's own
+// Tracker here; the run's pipeline has usually made it already, for its
+// stop decision) and its band sampled again.
+func BenchmarkRebuild_Forecast(b *testing.B) {
+	for _, s := range []struct {
+		name     string
+		w, h, ep int
+	}{{"200x60_10kEpochs", 200, 60, 10000}, {"120x40_300Epochs", 120, 40, 300}, {"80x24_100Epochs", 80, 24, 100}} {
+		b.Run(s.name, func(b *testing.B) {
+			m := newTestModel(b, s.w, s.h, Options{})
+			m = feed(b, m, runSpec{epochs: s.ep, total: 2 * s.ep, trainBase: 0.05, valBase: 0.1})
+			if !strings.Contains(m.View(), "~ forecast") {
+				b.Fatal("no forecast drawn")
+			}
+			b.ReportAllocs()
+			b.ResetTimer()
+			for i := 0; i < b.N; i++ {
+				m.cache.band.key = bandKey{} // as after a new point
 				m.rebuild()
 			}
 		})

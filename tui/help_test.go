@@ -56,7 +56,7 @@ func TestHelp_LegendExplainsTheScreen(t *testing.T) {
 		}
 	}
 	for _, word := range []string{"GL", "PQ", "pp", "◂", "focus", "smoothed", "logged", "patience", "provisional",
-		"░ opt", "▒ bias", "▓ var", "█ mismatch", "*", "│", "↑", "!", "⠤", "CONTINUE", "WATCH", "STOP", "= "} {
+		"░ opt", "▒ bias", "▓ var", "█ mismatch", "*", "│", "↑", "!", "⠤", "CONTINUE", "WATCH", "STOP", "= ", "~ forecast", "more"} {
 		if !strings.Contains(text.String(), word) {
 			t.Errorf("the legend does not explain %q", word)
 		}

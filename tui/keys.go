@@ -5,16 +5,17 @@ import "github.com/charmbracelet/bubbles/key"
 // keyMap holds every key of the screen. The same bindings feed the key
 // help line and the full help, so the help cannot drift from the keys.
 type keyMap struct {
-	Pause   key.Binding
-	Prev    key.Binding
-	Next    key.Binding
-	First   key.Binding
-	Last    key.Binding
-	Metric  key.Binding
-	LogY    key.Binding
-	Optimal key.Binding
-	Save    key.Binding
-	Help    key.Binding
+	Pause    key.Binding
+	Prev     key.Binding
+	Next     key.Binding
+	First    key.Binding
+	Last     key.Binding
+	Metric   key.Binding
+	LogY     key.Binding
+	Forecast key.Binding
+	Optimal  key.Binding
+	Save     key.Binding
+	Help     key.Binding
 	// While the help is open and longer than the screen.
 	ScrollUp   key.Binding
 	ScrollDown key.Binding
@@ -36,6 +37,7 @@ func newKeyMap() keyMap {
 		Last:       key.NewBinding(key.WithKeys("end"), key.WithHelp("end", "newest epoch")),
 		Metric:     key.NewBinding(key.WithKeys("m"), key.WithHelp("m", "judged metric")),
 		LogY:       key.NewBinding(key.WithKeys("g"), key.WithHelp("g", "log scale")),
+		Forecast:   key.NewBinding(key.WithKeys("f"), key.WithHelp("f", "forecast on/off")),
 		Optimal:    key.NewBinding(key.WithKeys("b"), key.WithHelp("b", "optimal error")),
 		Save:       key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save summary")),
 		Help:       key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "help: keys, then the screen explained")),
@@ -65,17 +67,17 @@ func (k keyMap) shortHelp() ([]key.Binding, []int) {
 	}
 	inspect := key.NewBinding(key.WithKeys("left", "right"), key.WithHelp("←/→", "inspect"))
 	return []key.Binding{
-			short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"),
+			short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"), short(k.Forecast, "forecast"),
 			short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "help"), short(k.Quit, "quit"),
 		},
-		[]int{3, 4, 5, 7, 6, 8, 1, 0}
+		[]int{3, 4, 5, 8, 7, 6, 9, 1, 0}
 }
 
 // FullHelp is the key list shown by `?`, in columns.
 func (k keyMap) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Pause, k.Prev, k.Next, k.First, k.Last},
-		{k.Metric, k.LogY, k.Optimal, k.Save},
+		{k.Metric, k.LogY, k.Forecast, k.Optimal, k.Save},
 		{k.Help, k.Cancel, key.NewBinding(key.WithKeys("up", "down"), key.WithHelp("↑/↓", "scroll the help")), k.Quit, k.Abort, k.Suspend},
 	}
 }

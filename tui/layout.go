@@ -22,7 +22,8 @@ const (
 	// labels and at least five plot rows.
 	minChartH = 8
 	// stackedVerdictRows: diagnosis, early-stopping signal, error bar and
-	// the first next action, one line each.
+	// the first next action, one line each; the forecast's line, when
+	// shown, is one more.
 	stackedVerdictRows = 4
 	// sparkMinW is the narrowest useful sparkline column: a name, 12 blocks
 	// and a value.
@@ -58,8 +59,9 @@ type layout struct {
 }
 
 // computeLayout arranges a w×h screen that has nSpark extra numeric
-// columns to draw and nWarn warnings to show.
-func computeLayout(w, h, nSpark, nWarn int) layout {
+// columns to draw and nWarn warnings to show; forecastRow gives the
+// stacked verdict a row for the forecast.
+func computeLayout(w, h, nSpark, nWarn int, forecastRow bool) layout {
 	l := layout{w: max(w, 0), h: max(h, 0)}
 	switch {
 	case w <= 0 || h <= 0:
@@ -90,6 +92,9 @@ func computeLayout(w, h, nSpark, nWarn int) layout {
 
 	l.mainW = w
 	l.verdictRows = stackedVerdictRows
+	if forecastRow {
+		l.verdictRows++
+	}
 	l.warnRows = min(nWarn, 1)
 	left := body - l.verdictRows - l.warnRows
 	l.sparkCols = max(1, min(3, w/sparkMinW))

@@ -20,11 +20,13 @@ func TestComputeLayout(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			l := computeLayout(tt.w, tt.h, tt.nSpark, tt.nWarn)
-			if l.mode != tt.want {
-				t.Fatalf("computeLayout(%d, %d) mode = %v, want %v", tt.w, tt.h, l.mode, tt.want)
+			for _, fc := range []bool{false, true} {
+				l := computeLayout(tt.w, tt.h, tt.nSpark, tt.nWarn, fc)
+				if l.mode != tt.want {
+					t.Fatalf("computeLayout(%d, %d) mode = %v, want %v", tt.w, tt.h, l.mode, tt.want)
+				}
+				checkLayout(t, l, tt.w, tt.h)
 			}
-			checkLayout(t, l, tt.w, tt.h)
 		})
 	}
 }
@@ -54,7 +56,7 @@ func TestComputeLayout_AllSizes(t *testing.T) {
 	for w := 0; w <= 220; w++ {
 		for h := 0; h <= 70; h++ {
 			for _, n := range []int{0, 1, 7, 40} {
-				checkLayout(t, computeLayout(w, h, n, n/2), w, h)
+				checkLayout(t, computeLayout(w, h, n, n/2, n%2 == 1), w, h)
 			}
 		}
 	}

@@ -121,6 +121,9 @@ type Options struct {
 	SaveSummary func(report.Summary) (string, error)
 	// Now is the clock; nil means time.Now. Tests fix it.
 	Now func() time.Time
+	// Epochs is the run's last epoch when the log announces none
+	// (--epochs): the status line's progress and the forecast's target.
+	Epochs int
 }
 
 // ExitReason says why the screen closed.
@@ -188,17 +191,19 @@ type Model struct {
 
 	width, height int
 
-	paused     bool
-	frozen     int // points shown while paused
-	newPaused  int // points that arrived while paused
-	cursor     int // inspected row; -1 follows the latest shown
-	logY       bool
-	helpPage   helpPage // the help page open (`?`), helpClosed when none
-	helpScroll int      // the first line of the help page shown (↑/↓)
-	flash      string
-	flashErr   bool
-	flashID    int
-	metricNote string // why the judged metric is what it is, after `m`
+	paused    bool
+	frozen    int // points shown while paused
+	newPaused int // points that arrived while paused
+	cursor    int // inspected row; -1 follows the latest shown
+	logY      bool
+	// showForecast draws the validation forecast and its line (the f key).
+	showForecast bool
+	helpPage     helpPage // the help page open (`?`), helpClosed when none
+	helpScroll   int      // the first line of the help page shown (↑/↓)
+	flash        string
+	flashErr     bool
+	flashID      int
+	metricNote   string // why the judged metric is what it is, after `m`
 
 	dirty       bool // data changed since the last rebuild
 	tickPending bool
@@ -241,6 +246,8 @@ func New(opts Options) Model {
 		cursor: -1,
 		cache:  &frame{},
 		dirty:  true,
+
+		showForecast: true,
 	}
 	if m.hist == nil {
 		m.hist = ownHistory{diagnose.New(opts.Config)}
@@ -353,6 +360,7 @@ func (m Model) Reason() ExitReason { return m.reason }
 // the screen judges with.
 func (m Model) Summary() report.Summary {
 	var s report.Summary
+	last := -1
 	m.read(func(t *diagnose.Tracker) {
 		s = report.Build(report.Source{
 			Name:         m.src.Name,
@@ -361,6 +369,7 @@ func (m Model) Summary() report.Summary {
 			SkippedLines: m.src.Skipped,
 			Warnings:     m.sourceWarnings(),
 		}, t)
+		last = t.Len() - 1
 	})
-	return s
+	return s.WithForecasts(report.Forecasts{Val: m.forecastAt(last, diagnose.SplitVal), Train: m.forecastAt(last, diagnose.SplitTrain)})
 }

@@ -225,6 +225,8 @@ func (m Model) handleKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 		if m.logY && !m.hasPositive() {
 			cmd = m.say(true, "log scale shows only values above 0; none are shown yet")
 		}
+	case key.Matches(msg, k.Forecast):
+		m.showForecast = !m.showForecast
 	case key.Matches(msg, k.Optimal):
 		m.typing, m.inputErr = true, ""
 		m.input.Prompt = m.optimalPrompt()

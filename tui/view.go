@@ -7,6 +7,7 @@ import (
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/forecast"
 	"github.com/fitgap/fitgap/tui/chart"
 )
 
@@ -28,6 +29,13 @@ type frame struct {
 	runes  []rune
 	sparks []chart.Sparkline // one per sparkline slot
 	knots  []chart.Point
+
+	// The forecast of the inspected point (forecastMade: there is one to
+	// show, made or refused), its band and its expected curve.
+	forecast     forecast.Forecast
+	forecastMade bool
+	band         forecastBand
+	ahead        []chart.Point
 
 	keyLine   string  // the short key help, for keyLineW columns and keyLineSt
 	keyLineW  int     //
@@ -71,9 +79,13 @@ func (m *Model) rebuild() {
 	f.builds++
 	idx := m.inspected()
 	j := m.judgementAt(idx)
+	// The forecast as of the inspected point, and its reason to stop in
+	// the signal, as the run's pipeline decided it then.
+	f.forecast, f.forecastMade = m.forecastAt(idx, diagnose.SplitVal), idx >= 0 && j.Judged()
+	j = f.forecast.Decide(j)
 	warns := m.warnings(idx, j)
 	sparks := m.sparkColumns()
-	f.lay = computeLayout(m.width, m.height, len(sparks), warnBudget)
+	f.lay = computeLayout(m.width, m.height, len(sparks), warnBudget, m.forecastLine() != "")
 	lay := f.lay
 	var body []string
 	switch {

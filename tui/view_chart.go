@@ -75,9 +75,9 @@ func (m *Model) chartLines(j diagnose.Judgement, w, h int) []string {
 	if len(rows) > 0 {
 		spec.XMin, spec.XMax = float64(rows[0].epoch), float64(rows[len(rows)-1].epoch)
 	}
-	lo, hi := rng.Limits()
+	lo, hi := math.Inf(1), math.Inf(-1)
 	if band := m.band(metric); band != nil {
-		spec.Band, spec.BandLabel = band, "per step"
+		spec.Bands = append(spec.Bands, chart.BandLayer{Band: band, Label: "per step", Ink: clsSteps})
 		last := band.series.lastStep()
 		endX := epochAt(band.knots, float64(last))
 		if len(rows) == 0 {
@@ -90,6 +90,10 @@ func (m *Model) chartLines(j diagnose.Judgement, w, h int) []string {
 			// The epoch in progress: its steps extend the axis.
 			spec.XMax = endX
 		}
+	}
+	if len(rows) > 0 {
+		m.forecastLayers(&spec, &rng, &f.forecast, len(rows), w)
+		lo, hi = rng.Limits()
 	}
 	if spec.XMax <= spec.XMin {
 		if spec.XMin >= 1 {
@@ -147,7 +151,7 @@ var (
 
 // chartInks are the classes of the main chart's own marks.
 var chartInks = chart.Inks{
-	Title: clsHeading, Legend: clsDim, Axis: clsAxis, Band: clsSteps,
+	Title: clsHeading, Legend: clsDim, Axis: clsAxis,
 	Cursor: clsCursor, Best: clsBest, Bad: clsBad,
 }
 

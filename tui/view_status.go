@@ -194,18 +194,27 @@ func (m *Model) renderStatus() {
 	}
 	rows := m.data.rows
 	barAt := -1 // where the progress bar goes, when there is room for it
+	var barDone, barTotal int
 	if n := len(rows); n > 0 {
 		last := rows[n-1]
+		// The last epoch announced by the log, else the one given
+		// (--epochs).
+		total := last.total
+		if total <= 0 {
+			total = m.opts.Epochs
+		}
 		ep := "epoch " + itoa(last.epoch)
-		if last.total > 0 {
-			ep += "/" + itoa(last.total)
+		if total > 0 {
+			ep += "/" + itoa(total)
 		}
 		parts = append(parts, statusPart{ep, clsPlain, 1})
-		if last.total > 0 {
-			barAt = len(parts)
-			parts = append(parts, statusPart{itoa(min(100, 100*max(last.epoch, 0)/last.total)) + "%", clsPlain, 4})
-			if p, ok := m.pace(); ok && last.epoch < last.total && m.src.State == Live {
-				parts = append(parts, statusPart{"eta " + ago(time.Duration(last.total-last.epoch)*p), clsPlain, 3})
+		if total > 0 {
+			barAt, barDone, barTotal = len(parts), last.epoch, total
+			parts = append(parts, statusPart{itoa(min(100, 100*max(last.epoch, 0)/total)) + "%", clsPlain, 4})
+			// (A total far off, given or announced, must not overflow the
+			// duration: beyond a century the ETA says nothing.)
+			if p, ok := m.pace(); ok && last.epoch < total && m.src.State == Live && float64(total-last.epoch)*float64(p) < float64(100*365*24*time.Hour) {
+				parts = append(parts, statusPart{"eta " + ago(time.Duration(total-last.epoch)*p), clsPlain, 3})
 			}
 		}
 	}
@@ -251,7 +260,7 @@ func (m *Model) renderStatus() {
 					parts[nameAt].text = short
 				}
 			}
-			f.status = m.withProgressBar(parts, barAt, line, width)
+			f.status = m.withProgressBar(parts, barAt, barDone, barTotal, line, width)
 			return
 		}
 		worst := -1
@@ -286,16 +295,15 @@ const (
 	statusBarMax = 12
 )
 
-// withProgressBar puts the progress bar before the percent at barAt when
-// the line (of width columns) leaves room for at least statusBarMin cells.
-func (m *Model) withProgressBar(parts []statusPart, barAt int, line string, width int) string {
-	rows := m.data.rows
+// withProgressBar puts the progress bar of done/total epochs before the
+// percent at barAt when the line (of width columns) leaves room for at
+// least statusBarMin cells.
+func (m *Model) withProgressBar(parts []statusPart, barAt, done, total int, line string, width int) string {
 	room := m.width - width - 3 // " · " before it
-	if barAt < 0 || room < statusBarMin || len(rows) == 0 || rows[len(rows)-1].total <= 0 {
+	if barAt < 0 || room < statusBarMin || total <= 0 {
 		return line
 	}
-	last := rows[len(rows)-1]
-	bar := statusPart{progressBar(last.epoch, last.total, min(room, statusBarMax)), clsTrain, 0}
+	bar := statusPart{progressBar(done, total, min(room, statusBarMax)), clsTrain, 0}
 	with := append(append(append([]statusPart{}, parts[:barAt]...), bar), parts[barAt:]...)
 	l, _ := m.joinStatus(with)
 	return l

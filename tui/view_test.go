@@ -51,6 +51,10 @@ func checkFits(t *testing.T, view string, w, h int) {
 
 var goldenRun = runSpec{epochs: 36, total: 60, stepsPer: 25, turn: 18, trainBase: 0.06, valBase: 0.11}
 
+// forecastRun is still improving 30 epochs into a run of 80: its
+// validation curve is forecast to the end.
+var forecastRun = runSpec{epochs: 30, total: 80, trainBase: 0.04, valBase: 0.09}
+
 func TestView_Golden(t *testing.T) {
 	tests := []struct {
 		name    string
@@ -75,6 +79,14 @@ func TestView_Golden(t *testing.T) {
 		// Without colour: the first epoch off the scale (arrow and value),
 		// the inspected epoch as a line on the chart and in every sparkline.
 		{"nocolor_offscale_inspect_80x24", 80, 24, goldenRun, []string{"left", "left", "left", "left", "left", "left"}, true, true},
+		// The forecast: a band and its expected curve to the run's last
+		// epoch; as of an inspected epoch (overlapping what came after);
+		// hidden by f. The goldenRun screens above show a refusal (the
+		// curve has turned).
+		{"forecast_80x24", 80, 24, forecastRun, nil, false, false},
+		{"forecast_120x40", 120, 40, forecastRun, nil, false, false},
+		{"forecast_inspect_120x40", 120, 40, forecastRun, []string{"left", "left", "left", "left", "left", "left", "left", "left", "left", "left"}, true, false},
+		{"forecast_off_80x24", 80, 24, forecastRun, []string{"f"}, false, false},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

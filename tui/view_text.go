@@ -31,6 +31,9 @@ func (m *Model) compactBody(j diagnose.Judgement, idx int, warns []string, h int
 		if d := m.stopNumbers(j.EarlyStop, false); d != "" {
 			es = append(es, entry{d, clsDim})
 		}
+		if fl := m.forecastLine(); fl != "" {
+			es = append(es, entry{fl, clsPlain})
+		}
 		line := "error:"
 		for _, c := range components(j) {
 			line += " " + c.kind.Short() + " " + m.fmtPart(c)

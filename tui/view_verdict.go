@@ -324,6 +324,7 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 	var stop []string
 	stop = append(stop, st.paint(signalClass(j.EarlyStop.Signal), signalWords(j.EarlyStop)))
 	stop = append(stop, wrap(m.stopNumbers(j.EarlyStop, false), w)...)
+	stop = append(stop, wrap(m.forecastLine(), w)...)
 	var reason []string
 	if r := clean(j.EarlyStop.Reason); r != "" {
 		for _, l := range wrap(r, w) {
@@ -512,7 +513,11 @@ func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []str
 	} else {
 		l4 += st.paint(clsDim, "keep training")
 	}
-	out := []string{joinFit(l1, l1Drop, w), joinFit(l2, l2Drop, w), joinFit(l3, l3Drop, w), l4}
+	out := []string{joinFit(l1, l1Drop, w), joinFit(l2, l2Drop, w)}
+	if fl := m.forecastLine(); fl != "" {
+		out = append(out, fl)
+	}
+	out = append(out, joinFit(l3, l3Drop, w), l4)
 	if rows < len(out) {
 		out = out[:rows]
 	}

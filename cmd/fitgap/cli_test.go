@@ -36,6 +36,7 @@ func TestRun_UsageErrors(t *testing.T) {
 		{"NoFile", []string{"report"}, exitUsage, "no log given"},
 		{"TwoFiles", []string{"report", "a.csv", "b.csv"}, exitUsage, "one log at a time"},
 		{"BadFormat", []string{"report", "--format", "xml", "x.csv"}, exitUsage, "--format"},
+		{"NegativeEpochs", []string{"follow", "--epochs", "-3", "x.csv"}, exitUsage, "--epochs: must not be negative"},
 		{"DemoBadScenario", []string{"demo", "--scenario", "nope"}, exitUsage, "--scenario"},
 		{"HelpUnknown", []string{"help", "nope"}, exitUsage, "unknown command"},
 		{"HelpTypo", []string{"help", "repot"}, exitUsage, `unknown command "repot", did you mean report?`},

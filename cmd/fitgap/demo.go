@@ -92,10 +92,10 @@ func demoJudgeConfig(f trainer.Facts) diagnose.Config {
 }
 
 // reportCommandLine is the report command that judges a demo log with what
-// the demo knows about its data.
-func reportCommandLine(f trainer.Facts, path string) string {
-	return fmt.Sprintf("fitgap report --bayes-error %g%% --classes %d --val-size %d --train-size %d %s",
-		f.BayesError*100, f.Classes, f.ValSize, f.TrainSize, path)
+// the demo knows about its data and its length.
+func reportCommandLine(f trainer.Facts, epochs int, path string) string {
+	return fmt.Sprintf("fitgap report --bayes-error %g%% --classes %d --val-size %d --train-size %d --epochs %d %s",
+		f.BayesError*100, f.Classes, f.ValSize, f.TrainSize, epochs, path)
 }
 
 func writeDemoLog(ctx context.Context, e *env, cfg trainer.Config, path string) error {
@@ -115,7 +115,7 @@ func writeDemoLog(ctx context.Context, e *env, cfg trainer.Config, path string) 
 		stopped = fmt.Sprintf(" (of %d asked: stopped early, %s)", cfg.Epochs, out.Stopped)
 	}
 	fmt.Fprintf(e.stderr, "fitgap demo: wrote %s of the %s scenario to %s%s\njudge it with: %s\n",
-		plural(out.Epochs, "epoch", "epochs"), cfg.Scenario, path, stopped, reportCommandLine(cfg.Facts(), path))
+		plural(out.Epochs, "epoch", "epochs"), cfg.Scenario, path, stopped, reportCommandLine(cfg.Facts(), cfg.Epochs, path))
 	return nil
 }
 
@@ -164,6 +164,7 @@ func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format strin
 		path:       path,
 		opts:       watch.Options{Follow: true},
 		cfg:        demoJudgeConfig(facts),
+		epochs:     cfg.Epochs,
 		bayesNote:  fmt.Sprintf("known: the demo flips %.0f%% of labels", facts.BayesError*100),
 		flags:      scr,
 		after:      after,
@@ -173,7 +174,7 @@ func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format strin
 	if errors.As(err, &nt) {
 		return &noTerminalError{err: fmt.Errorf("%w; for a headless demo: fitgap demo --pace 0 --write run.csv, then fitgap report run.csv", nt.err)}
 	}
-	fmt.Fprintf(e.stderr, "fitgap demo: the log is kept at %s\njudge it again with: %s\n", path, reportCommandLine(facts, path))
+	fmt.Fprintf(e.stderr, "fitgap demo: the log is kept at %s\njudge it again with: %s\n", path, reportCommandLine(facts, cfg.Epochs, path))
 	return err
 }
 

@@ -54,7 +54,7 @@ func judgeDemo(t *testing.T, sc trainer.Scenario, format string, epochs int) dem
 	t.Helper()
 	path := trainDemo(t, sc, format, epochs)
 	facts := trainer.Config{Scenario: sc}.Facts()
-	report := strings.Fields(reportCommandLine(facts, path))[1:]
+	report := strings.Fields(reportCommandLine(facts, epochs, path))[1:]
 	report = append([]string{report[0], "--json"}, report[1:]...)
 	stdout, stderr, code := runCLI(t, "", report...)
 	if code != 0 {
@@ -162,7 +162,7 @@ func TestDemo_OptimalLoss(t *testing.T) {
 	t.Parallel()
 	path := trainDemo(t, trainer.Balanced, "csv", 6)
 	facts := trainer.Config{Scenario: trainer.Balanced}.Facts()
-	args := strings.Fields(reportCommandLine(facts, path))[1:]
+	args := strings.Fields(reportCommandLine(facts, 6, path))[1:]
 	args = append([]string{args[0], "--json", "--metric", "loss"}, args[1:]...)
 	stdout, stderr, code := runCLI(t, "", args...)
 	if code != 0 {

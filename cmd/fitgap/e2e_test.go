@@ -197,7 +197,7 @@ func TestE2E_WatchKeysAndQuit(t *testing.T) {
 	p.keys("?")
 	p.waitScreen("the keys", "KEYS", "earlier epoch", "optimal error")
 	p.keys("?")
-	p.waitScreen("the screen explained", "THE SCREEN", "GL", "percentage points")
+	p.waitScreen("the screen explained", "THE SCREEN", "GL", "patience a/b")
 	p.keys("Escape")
 	p.waitScreen("the help closed", "└", "VERDICT")
 

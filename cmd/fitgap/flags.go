@@ -15,11 +15,15 @@ import (
 type logFlags struct {
 	src   sourceFlags
 	judge judgeFlags
+	// epochs is the run's last epoch when the log announces none: the
+	// forecasts' target and the screen's progress.
+	epochs int
 }
 
 func (l *logFlags) register(fs *flag.FlagSet) {
 	l.src.register(fs)
 	l.judge.register(fs)
+	fs.IntVar(&l.epochs, "epochs", 0, "the run's last `epoch`, when the log does not announce it (as \"Epoch 3/50\" does): the epoch the forecasts look to, and the screen's progress and ETA (default: the forecasts look as many epochs ahead as they fitted)")
 }
 
 // parse checks the positional arguments (one log) and the flags' values.
@@ -27,6 +31,9 @@ func (l *logFlags) parse(args []string, follow bool) (string, watch.Options, dia
 	path, err := onePath(args)
 	if err != nil {
 		return "", watch.Options{}, diagnose.Config{}, err
+	}
+	if l.epochs < 0 {
+		return "", watch.Options{}, diagnose.Config{}, usageErrorf("--epochs: must not be negative, got %d", l.epochs)
 	}
 	opts, err := l.src.options(follow)
 	if err != nil {

@@ -63,7 +63,7 @@ Exit status 0 at the end of a pipe, after --idle-exit or --exit-on-stop;
 			}
 			run := pipeline.New(pipeline.Options{
 				Name: src.Name(), Judge: cfg, StopFile: stop,
-				EndOnStop: exitOnStop, Summaries: true, IdleEnd: idleExit,
+				EndOnStop: exitOnStop, Summaries: true, IdleEnd: idleExit, Epochs: log.epochs,
 			})
 			p := &printer{out: e.stdout, errOut: e.stderr, now: time.Now}
 			err = run.Drive(ctx, batches, p.print)

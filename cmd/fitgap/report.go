@@ -19,26 +19,50 @@ var reportCommand = &command{
 	summary: "read a whole log and print the snapshot summary (Markdown, or --json)",
 	about: `Reads the whole log (CSV/TSV, JSON Lines or console text; FILE "-" reads standard
 input), judges every evaluation point and prints the summary as of the last one.
-Exit status 0 after a report; 2 on a usage error or an unreadable or empty log.`,
+--plot FILE.svg or FILE.png also draws the run; the Markdown shows the picture
+by its path from where the Markdown goes (the file standard output is
+redirected to, else the working directory).
+Exit status 0 after a report; 2 on a usage error, an unreadable or empty log,
+or a picture path that cannot be written; 1 when drawing or writing it fails.`,
 	example: `  fitgap report --bayes-error 4% runs/resnet-small.csv
-  fitgap report --json --val-size 5000 train.log | jq .diagnosis`,
+  fitgap report --json --val-size 5000 train.log | jq .diagnosis
+  fitgap report --plot out/curves.png runs/resnet-small.csv > out/report.md`,
 	flags: func(fs *flag.FlagSet) func(context.Context, *env, []string) error {
 		var (
 			log    logFlags
 			asJSON bool
+			plot   string
 		)
 		log.register(fs)
 		fs.BoolVar(&asJSON, "json", false, "print one JSON object instead of Markdown")
+		fs.StringVar(&plot, "plot", "", "also draw the run to this `file` (.svg or .png): curves, optimal error, epoch to restore, forecast, and the parts of the validation error; the Markdown shows it")
 		return func(ctx context.Context, e *env, args []string) error {
 			path, opts, cfg, err := log.parse(args, false)
 			if err != nil {
 				return err
 			}
-			run, err := judgeWholeLog(pipeline.Source{Path: path, Stdin: e.stdin, Read: opts}, cfg)
+			var pic *plotOutput
+			if plot != "" {
+				if pic, err = checkPlot(plot, path, e.stdout); err != nil {
+					return err
+				}
+			}
+			run, err := judgeWholeLog(pipeline.Source{Path: path, Stdin: e.stdin, Read: opts}, pipeline.Options{Judge: cfg, Epochs: log.epochs})
 			if err != nil {
 				return err
 			}
-			return pipeline.WriteSummary(e.stdout, run.Summary(), asJSON)
+			sum := run.Summary()
+			var plotErr error
+			if pic != nil {
+				sum.Picture, plotErr = pic.save(run, path, e.stdout)
+			}
+			if err := pipeline.WriteSummary(e.stdout, sum, asJSON); err != nil {
+				return err
+			}
+			if plotErr != nil {
+				return fmt.Errorf("--plot %s: %s", diagnose.Printable(plot), diagnose.Printable(plotErr.Error()))
+			}
+			return nil
 		}
 	},
 }
@@ -54,15 +78,17 @@ func onePath(args []string) (string, error) {
 	return "", usageErrorf("one log at a time, got %d: %s", len(args), strings.Join(args, " "))
 }
 
-// judgeWholeLog reads a finished log (or a pipe to its end) and judges it,
-// handing each batch to the run as it is read.
-func judgeWholeLog(src pipeline.Source, cfg diagnose.Config) (*pipeline.Run, error) {
+// judgeWholeLog reads a finished log (or a pipe to its end) and judges it
+// with opts (its name is the source's), handing each batch to the run as
+// it is read.
+func judgeWholeLog(src pipeline.Source, opts pipeline.Options) (*pipeline.Run, error) {
 	src.Read.Follow = false
 	batches, err := src.Follow(context.Background())
 	if err != nil {
 		return nil, readError(src.Name(), err)
 	}
-	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: cfg})
+	opts.Name = src.Name()
+	run := pipeline.New(opts)
 	for b := range batches {
 		run.Load(b)
 	}

@@ -41,7 +41,7 @@ the SSH link drops (SIGHUP) or on SIGTERM.`,
 			if err != nil {
 				return err
 			}
-			return runScreen(ctx, e, screenSpec{path: path, opts: opts, cfg: cfg, flags: scr})
+			return runScreen(ctx, e, screenSpec{path: path, opts: opts, cfg: cfg, epochs: log.epochs, flags: scr})
 		}
 	},
 }
@@ -63,6 +63,7 @@ type screenSpec struct {
 	path      string
 	opts      watch.Options
 	cfg       diagnose.Config
+	epochs    int // the run's last epoch when the log announces none
 	bayesNote string
 	flags     screenFlags
 	// after runs once the screen is closed, before the summary is printed
@@ -112,7 +113,7 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 		return readError(src.Name(), err)
 	}
 
-	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: spec.cfg, StopFile: stop, WriterDone: spec.writerDone})
+	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: spec.cfg, StopFile: stop, WriterDone: spec.writerDone, Epochs: spec.epochs})
 	feed := make(chan tui.FeedMsg, 4)
 	var stopErr error
 	relayed := make(chan struct{})
@@ -123,6 +124,7 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 
 	m := tui.New(tui.Options{
 		History:   run,
+		Epochs:    spec.epochs,
 		BayesNote: spec.bayesNote,
 		NoColor:   spec.flags.noColor || os.Getenv("NO_COLOR") != "",
 		SaveSummary: func(s report.Summary) (string, error) {

@@ -10,14 +10,15 @@ import (
 
 // Curve is one series of the main chart, already downsampled.
 type Curve struct {
-	Label  string
-	Glyph  rune // marker drawn on the curve so series differ without colour
+	Label  string // the legend entry; "" for none
+	Glyph  rune   // marker drawn on the curve so series differ without colour; 0 for none
 	Ink    Ink
 	Points []Point // X in epochs, Y in plotted units (log10 when the axis is logarithmic); NaN Y is a gap
 }
 
 // Band is a dense series drawn as a faint band behind the curves (the
-// per-step training values): its envelope under each braille column.
+// per-step training values, a forecast's interval): its envelope under
+// each braille column.
 type Band interface {
 	// Envelope returns the least and the greatest value, in plotted
 	// units, of the samples whose place on the x axis lies in [x0, x1).
@@ -25,12 +26,19 @@ type Band interface {
 	Envelope(x0, x1 float64) (lo, hi float64, ok bool)
 }
 
-// Inks are the inks of the chart's own marks; the curves carry theirs.
+// BandLayer is one band of the chart with its ink and legend entry.
+type BandLayer struct {
+	Band  Band
+	Label string // the legend entry; "" for none
+	Ink   Ink    // the band and its legend glyph
+}
+
+// Inks are the inks of the chart's own marks; the curves and bands carry
+// theirs.
 type Inks struct {
 	Title  Ink // the title
 	Legend Ink // the legend's words
 	Axis   Ink // axes, tick labels, the legend's off-scale entry
-	Band   Ink // the band and its legend glyph
 	Cursor Ink // the inspected epoch's line
 	Best   Ink // the best epoch's marker
 	Bad    Ink // a non-finite value's marker
@@ -39,9 +47,8 @@ type Inks struct {
 // Spec is everything one frame of the main chart shows.
 type Spec struct {
 	Title      string
-	Curves     []Curve // drawn in order: the last wins a shared cell
-	Band       Band    // nil for none
-	BandLabel  string  // the band's legend entry
+	Curves     []Curve     // drawn in order: the last wins a shared cell
+	Bands      []BandLayer // drawn in order, behind the curves
 	XMin, XMax float64
 	YMin, YMax float64 // plotted units
 	LogY       bool    // y values are log10 of the values shown
@@ -167,9 +174,9 @@ func (c *Chart) Draw(w, h int, spec *Spec, p Palette) []string {
 	clear(c.owner)
 
 	l := newLayer(pm, c.owner)
-	if spec.Band != nil {
-		l.ink = spec.Inks.Band
-		c.drawBand(spec, box, l)
+	for _, b := range spec.Bands {
+		l.ink = b.Ink
+		c.drawBand(spec, b.Band, box, l)
 	}
 	for _, cv := range spec.Curves {
 		l.ink = cv.Ink
@@ -211,7 +218,7 @@ func (c *Chart) Draw(w, h int, spec *Spec, p Palette) []string {
 // max of the samples under each braille column (min/max downsampling keeps
 // the spikes that averaging would hide). Values outside the y range are
 // clipped: the range follows the curves, not the band's noise.
-func (c *Chart) drawBand(spec *Spec, box plotBox, l *layer) {
+func (c *Chart) drawBand(spec *Spec, band Band, box plotBox, l *layer) {
 	W2 := box.pw * 2
 	if cap(c.lo) < W2 {
 		c.lo, c.hi = make([]float64, W2), make([]float64, W2)
@@ -224,7 +231,7 @@ func (c *Chart) drawBand(spec *Spec, box plotBox, l *layer) {
 	prev := spec.XMin - half
 	for col := 0; col < W2; col++ {
 		next := spec.XMin + float64(col)*xspan/float64(W2-1) + half
-		l, h, ok := spec.Band.Envelope(prev, next)
+		l, h, ok := band.Envelope(prev, next)
 		prev = next
 		lo[col], hi[col] = math.NaN(), math.NaN()
 		if !ok || !isFinite(l) || !isFinite(h) {
@@ -259,6 +266,9 @@ func (c *Chart) drawBand(spec *Spec, box plotBox, l *layer) {
 // points are sparse enough to tell apart, else every markerSpacing columns
 // (staggered by ink so two curves' markers rarely share a column).
 func (c *Chart) markers(cv Curve, box plotBox, pm plotMap) {
+	if cv.Glyph == 0 {
+		return
+	}
 	g := &c.grid
 	dotX, dotY := pm.dotX, pm.dotY
 	finite := 0
@@ -407,11 +417,15 @@ func (c *Chart) legend(spec *Spec, from, w int) {
 		text  string
 	}
 	var items []item
-	if spec.Band != nil {
-		items = append(items, item{glyphBand, spec.Inks.Band, spec.BandLabel})
+	for _, b := range spec.Bands {
+		if b.Label != "" {
+			items = append(items, item{glyphBand, b.Ink, b.Label})
+		}
 	}
 	for _, cv := range spec.Curves {
-		items = append(items, item{cv.Glyph, cv.Ink, cv.Label})
+		if cv.Label != "" {
+			items = append(items, item{cv.Glyph, cv.Ink, cv.Label})
+		}
 	}
 	if spec.HasBest {
 		items = append(items, item{glyphBest, spec.Inks.Best, "best"})

@@ -25,7 +25,7 @@ const (
 	inkVal
 )
 
-var testInks = Inks{Title: inkTitle, Legend: inkLegend, Axis: inkAxis, Band: inkBand, Cursor: inkCursor, Best: inkBest, Bad: inkBad}
+var testInks = Inks{Title: inkTitle, Legend: inkLegend, Axis: inkAxis, Cursor: inkCursor, Best: inkBest, Bad: inkBad}
 
 // tagPalette wraps a run of ink n in "<n" and ">" so a test can read the
 // runs; plainPalette adds nothing.
@@ -74,8 +74,8 @@ func fullSpec() *Spec {
 	return &Spec{
 		Title:  "error by epoch",
 		Curves: []Curve{{Label: "train", Glyph: 'o', Ink: inkTrain, Points: train}, {Label: "val", Glyph: 'x', Ink: inkVal, Points: val}},
-		Band:   sliceBand{band}, BandLabel: "per step",
-		XMin: 1, XMax: 30, YMin: 0, YMax: 0.2,
+		Bands:  []BandLayer{{Band: sliceBand{band}, Label: "per step", Ink: inkBand}},
+		XMin:   1, XMax: 30, YMin: 0, YMax: 0.2,
 		Percent: true,
 		Best:    Point{X: 30, Y: val[29].Y}, HasBest: true,
 		Cursor: 12, HasCursor: true,
@@ -167,7 +167,7 @@ func TestChart_Draw(t *testing.T) {
 			}
 		}},
 		{"OffScaleValues", 64, 16, func(s *Spec) {
-			s.Band = nil
+			s.Bands = nil
 			s.Off = []OffMark{{X: 15, Y: 0.39, Up: true, Ink: inkTrain}, {X: 15, Y: 0.25, Up: true, Ink: inkVal}, {X: 25, Y: -0.1, Ink: inkVal}}
 		}, func(t *testing.T, lines []string) {
 			// The most extreme value each way is written beside its arrow.
@@ -178,7 +178,7 @@ func TestChart_Draw(t *testing.T) {
 				t.Errorf("bottom plot row %q: want the arrow and -10%%", bottom)
 			}
 		}},
-		{"CursorColumn", 64, 16, func(s *Spec) { s.Band = nil }, func(t *testing.T, lines []string) {
+		{"CursorColumn", 64, 16, func(s *Spec) { s.Bands = nil }, func(t *testing.T, lines []string) {
 			n := 0
 			for _, l := range lines[1 : len(lines)-2] {
 				n += strings.Count(l, string(GlyphCursor))
@@ -196,7 +196,7 @@ func TestChart_Draw(t *testing.T) {
 				}
 				s.Curves[i].Points = pts
 			}
-			s.Band, s.Off, s.HasBest = nil, nil, false
+			s.Bands, s.Off, s.HasBest = nil, nil, false
 			s.YMin, s.YMax = math.Log10(0.05), math.Log10(0.4)
 		}, func(t *testing.T, lines []string) {
 			text := strings.Join(lines, "\n")
@@ -267,6 +267,35 @@ func TestChart_ValidationWinsSharedCells(t *testing.T) {
 	for i, r := range c.grid.r {
 		if r >= 0x2800 && r <= 0x28ff && c.grid.c[i] != inkVal {
 			t.Fatalf("a braille cell both curves drew has ink %d, want the last curve's %d:\n%s", c.grid.c[i], inkVal, c.inkMap())
+		}
+	}
+}
+
+// TestChart_Bands: each band is drawn in its own ink, and listed in the
+// legend only when it has a label; a curve without a glyph or a label has
+// neither markers nor a legend entry.
+func TestChart_Bands(t *testing.T) {
+	const inkAhead = inkBad + 10 // an ink of the caller's, apart from the chart's own
+	spec := fullSpec()
+	var ahead []Point
+	for x := 30.0; x <= 60; x += 0.25 {
+		ahead = append(ahead, Point{X: x, Y: 0.06})
+	}
+	spec.XMax, spec.HasCursor, spec.Off, spec.Bad = 60, false, nil, nil
+	spec.Bands = append(spec.Bands, BandLayer{Band: sliceBand{ahead}, Ink: inkAhead})
+	spec.Curves = append(spec.Curves, Curve{Ink: inkAhead, Points: []Point{{X: 30, Y: 0.12}, {X: 60, Y: 0.12}}})
+	var c Chart
+	lines := c.Draw(90, 16, spec, plainPalette{})
+	if strings.Count(lines[0], "⠤") != 1 {
+		t.Errorf("legend %q: want one band entry (the labelled one)", lines[0])
+	}
+	m := c.inkMap()
+	if !strings.ContainsRune(m, rune('0'+inkAhead)) || !strings.ContainsRune(m, rune('0'+inkBand)) {
+		t.Errorf("both bands' inks should show:\n%s", m)
+	}
+	for _, r := range c.grid.r {
+		if r == 0 {
+			t.Fatal("a marker of a curve without a glyph was drawn as a NUL")
 		}
 	}
 }
