@@ -4,7 +4,8 @@ import "math"
 
 // The remedies and their order follow Machine Learning Yearning: ch. 23
 // (the simplest remedy first: a bigger model for bias, more data for
-// variance), ch. 25 (bias: bigger model, less regularization, a new
+// variance; here training longer comes first while the training curve
+// still falls steeply, since the model has not yet shown what it can fit), ch. 25 (bias: bigger model, less regularization, a new
 // architecture; more data does not help), ch. 27 (variance: more data,
 // regularization, early stopping, a smaller model last), ch. 40 (data
 // mismatch: make the training data more like the validation data); the
@@ -105,11 +106,26 @@ func (t *verdict) actions() []Action {
 		w := why(c)
 		switch c {
 		case AvoidableBias:
-			add("train a larger model (more layers or units)", w)
-			switch r.trainProg {
-			case Improving:
+			// While the training curve still falls steeply, or still falls
+			// before a trend window has passed, the model has not shown
+			// what it can fit: training longer comes first. A sentence
+			// that cites the trend window's evidence is written only once
+			// the window is full.
+			longerFirst := r.steep || r.trainProg == Improving && r.trainN < slopeWindow
+			switch {
+			case r.steep && r.trainN == slopeWindow:
+				add("train longer: the training "+name+" is still falling steeply",
+					t.text().s(w).s(", down ").gap(r.trainFall).s(" over the last ").n(slopeWindow).s(" epochs").done())
+			case r.steep:
+				add("train longer: the training "+name+" is still falling steeply", w)
+			case longerFirst:
 				add("train longer: the training "+name+" is still falling", w)
-			case Plateaued, Worsening:
+			}
+			add("train a larger model (more layers or units)", w)
+			switch {
+			case r.trainProg == Improving && !longerFirst:
+				add("train longer: the training "+name+" is still falling", w)
+			case (r.trainProg == Plateaued || r.trainProg == Worsening) && r.trainN == slopeWindow:
 				add("tune the optimizer and learning rate: the training "+name+" has stopped falling",
 					t.text().s(w).s(", no progress over the last ").n(slopeWindow).s(" epochs").done())
 			}
@@ -183,9 +199,9 @@ func (t *verdict) labelCheck(add func(text, why string)) {
 	name := t.metricName()
 	w := t.text().s("training ").s(name).s(" ").val(r.sm[SplitTrain])
 	switch {
-	case t.cfg.BayesErrorGiven && r.sm[SplitTrain] < t.bayes:
+	case t.bayesGiven && r.sm[SplitTrain] < t.bayes:
 		w.s(" is below the optimal error ").val(t.bayes).s(": the model fits noise in its labels, or the optimal-error estimate is too high")
-	case t.cfg.BayesErrorGiven:
+	case t.bayesGiven:
 		w.s(" vs optimal ").val(t.bayes).s(", falling while the validation ").s(name).s(" rises")
 	default:
 		w.s(" falls while the validation ").s(name).s(" rises; give the optimal error (the label-noise rate, if known) to judge it against")

@@ -12,7 +12,7 @@ func (t *Tracker) tolerance(st *state) float64 {
 		return t.cfg.Tolerance
 	}
 	scale := 0.0
-	if t.cfg.BayesErrorGiven && t.bayes > 0 {
+	if t.bayesGiven && t.bayes > 0 {
 		scale = t.bayes
 	} else if st.hasStart {
 		scale = math.Abs(st.start)

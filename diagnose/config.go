@@ -46,6 +46,13 @@ type Config struct {
 	// the avoidable bias is an upper bound).
 	BayesError      float64
 	BayesErrorGiven bool
+	// BayesErrorRate says BayesError was given as an error rate (a
+	// percent, or a label-noise rate such as the demo's) rather than in
+	// the units of whatever metric is judged. For a judged cross-entropy
+	// loss with Classes known it becomes the optimal loss, the entropy of
+	// that label noise (LabelNoiseLoss); for another loss it is not used,
+	// and a warning says so.
+	BayesErrorRate bool
 	// BaselineError is the majority-class error, when given.
 	BaselineError Num
 	// Classes is the number of classes K of a classification task, when
@@ -139,7 +146,7 @@ func (c Config) normalized() Config {
 		c.BayesError, c.BayesErrorGiven = 0, false
 	}
 	if !c.BayesErrorGiven {
-		c.BayesError = 0
+		c.BayesError, c.BayesErrorRate = 0, false
 	}
 	if c.BaselineError.OK && (math.IsNaN(c.BaselineError.V) || math.IsInf(c.BaselineError.V, 0)) {
 		c.BaselineError = None

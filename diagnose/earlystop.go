@@ -31,8 +31,20 @@ func (t *Tracker) judgeProgress(st *state, i int, r *rec) {
 	if st.seen&(1<<SplitVal) == 0 {
 		w, r.progOf = &st.trend[trendTrain], SplitTrain
 	}
-	r.progress, _, _ = t.windowTrend(i, r.tol, w)
-	r.trainProg, _, _ = t.windowTrend(i, r.tol, &st.trend[trendTrain])
+	r.progress = t.windowTrend(i, r.tol, w).prog
+	tr := t.windowTrend(i, r.tol, &st.trend[trendTrain])
+	r.trainProg, r.trainFall, r.trainN = tr.prog, -tr.move, uint8(tr.n)
+	r.steep = tr.prog == Improving && -tr.move >= math.Max(r.tol, steepBiasFrac*r.comp[AvoidableBias].V)*(1-eps)
+}
+
+// trend is a curve judged over its window: the progress, how far the
+// least-squares line moves over the epochs the window covers (negative
+// when it falls), the mean level of the window, and how many values the
+// window held (slopeWindow when full).
+type trend struct {
+	prog        Progress
+	move, level float64
+	n           int
 }
 
 // windowTrend judges a curve from the least-squares slope over its last
@@ -40,9 +52,9 @@ func (t *Tracker) judgeProgress(st *state, i int, r *rec) {
 // of points (so a series logged rarely still costs O(1) per point):
 // improving or worsening when the slope, projected over the epochs the
 // window covers, moves the curve by plateauFrac of tol or more, else
-// plateaued. It also returns that move and the mean level of the window
-// (for the overconfidence check).
-func (t *Tracker) windowTrend(i int, tol float64, w *window) (Progress, float64, float64) {
+// plateaued. It also returns that move, the mean level of the window
+// (for the overconfidence check) and how many values it held.
+func (t *Tracker) windowTrend(i int, tol float64, w *window) trend {
 	var xs, ys [slopeWindow]float64
 	n := 0
 	for k := 0; k < int(w.n); k++ {
@@ -54,11 +66,11 @@ func (t *Tracker) windowTrend(i int, tol float64, w *window) (Progress, float64,
 		n++
 	}
 	if n < minPoints {
-		return ProgressUnknown, 0, 0
+		return trend{n: n}
 	}
 	m := slope(xs[:n], ys[:n])
 	if math.IsNaN(m) {
-		return ProgressUnknown, 0, 0
+		return trend{n: n}
 	}
 	level := 0.0
 	for _, y := range ys[:n] {
@@ -66,13 +78,14 @@ func (t *Tracker) windowTrend(i int, tol float64, w *window) (Progress, float64,
 	}
 	level /= float64(n)
 	move := m * (xs[0] - xs[n-1]) // xs[0] is the newest epoch
+	tr := trend{prog: Plateaued, move: move, level: level, n: n}
 	switch {
 	case move <= -plateauFrac*tol*(1-eps):
-		return Improving, move, level
+		tr.prog = Improving
 	case move >= plateauFrac*tol*(1-eps):
-		return Worsening, move, level
+		tr.prog = Worsening
 	}
-	return Plateaued, move, level
+	return tr
 }
 
 // earlyStop updates the best epoch, Prechelt's criteria and the signal.

@@ -94,6 +94,52 @@ func AppendPercent(b []byte, v float64) []byte {
 // Percent is AppendPercent as a string.
 func Percent(v float64) string { return string(AppendPercent(nil, v)) }
 
+// FormatValue writes a value of the judged metric the way every output of
+// fitgap shows one (the report, the screen's panels, the picture): a rate
+// (fraction: an error rate, the shortfall of a bounded score) in percent by
+// AppendPercent ("19.2%", "0.00%"), any other metric with four significant
+// digits in its own units ("0.04162"); "–" when absent, "n/a" for NaN,
+// "∞" and "-∞" for the infinities.
+func FormatValue(n Num, fraction bool) string {
+	if s, ok := formatAbsent(n); ok {
+		return s
+	}
+	if fraction {
+		return Percent(n.V) + "%"
+	}
+	return strconv.FormatFloat(n.V, 'g', 4, 64)
+}
+
+// FormatGap writes a difference of two values of the judged metric: for
+// rates in percentage points, the number by AppendPercent followed by
+// points (" points" in the report, " pp" where a panel is narrow), for
+// other metrics as FormatValue does.
+func FormatGap(n Num, fraction bool, points string) string {
+	if s, ok := formatAbsent(n); ok {
+		return s
+	}
+	if fraction {
+		return Percent(n.V) + points
+	}
+	return strconv.FormatFloat(n.V, 'g', 4, 64)
+}
+
+// formatAbsent writes what FormatValue writes for a value that is absent
+// or not finite.
+func formatAbsent(n Num) (string, bool) {
+	switch {
+	case !n.OK:
+		return "–", true
+	case math.IsNaN(n.V):
+		return "n/a", true
+	case math.IsInf(n.V, 1):
+		return "∞", true
+	case math.IsInf(n.V, -1):
+		return "-∞", true
+	}
+	return "", false
+}
+
 func allZeroDigits(b []byte) bool {
 	for _, c := range b {
 		if c != '0' && c != '.' {

@@ -35,6 +35,7 @@ type JudgementJSON struct {
 
 	BayesError      float64 `json:"bayes_error"`       // the optimal (Bayes) error in use, in the metric's units
 	BayesErrorGiven bool    `json:"bayes_error_given"` // the optimal error was given; when false it is taken as 0 and avoidable_bias is an upper bound
+	BayesNote       string  `json:"bayes_error_note"`  // how bayes_error was obtained when it is not the value given as such: the entropy of a label-noise rate given for a cross-entropy loss; empty otherwise
 	BaselineError   Num     `json:"baseline_error"`    // the majority-class error, when given
 	Tolerance       float64 `json:"tolerance"`         // the gap a component must reach to be judged high, in the metric's units
 
@@ -56,6 +57,7 @@ type JudgementJSON struct {
 	ValRateMetric   string `json:"val_rate_metric"`  // how output names it: "error (1 − acc)"; empty when none
 
 	Diagnosis     Diagnosis   `json:"diagnosis"`      // the regime judged
+	Provisional   string      `json:"provisional"`    // why a verdict of high bias may still change (the training curve still falls steeply, or has fewer points than its 8-point trend window); empty when settled or not a verdict of bias
 	Problems      []Component `json:"problems"`       // the components judged high, largest first
 	Focus         Component   `json:"focus"`          // the component to work on first
 	Progress      Progress    `json:"progress"`       // the trend of the smoothed curve named by progress_curve
@@ -98,6 +100,7 @@ func (j Judgement) JSONForm() JudgementJSON {
 
 		BayesError:      j.BayesError,
 		BayesErrorGiven: j.BayesErrorGiven,
+		BayesNote:       Printable(j.BayesNote),
 		BaselineError:   j.BaselineError,
 		Tolerance:       j.Tolerance,
 
@@ -118,6 +121,7 @@ func (j Judgement) JSONForm() JudgementJSON {
 		ValRateMetric:   Printable(j.RateMetric.Label),
 
 		Diagnosis:     j.Diagnosis,
+		Provisional:   Printable(j.Provisional),
 		Problems:      append([]Component{}, j.Problems...),
 		Focus:         j.Focus,
 		Progress:      j.Progress,

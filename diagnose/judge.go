@@ -32,7 +32,8 @@ func (t *verdict) judgement() Judgement {
 		Segment:         t.hist.segment(i),
 		Metric:          t.desc,
 		BayesError:      t.bayes,
-		BayesErrorGiven: t.cfg.BayesErrorGiven,
+		BayesErrorGiven: t.bayesGiven,
+		BayesNote:       t.bayesNote,
 		BaselineError:   t.cfg.BaselineError,
 		Tolerance:       r.tol,
 		AvoidableBias:   r.comp[AvoidableBias],
@@ -99,10 +100,34 @@ func (t *verdict) judgement() Judgement {
 		j.EarlyStop.BestVal = Some(st.best)
 		j.EarlyStop.EpochsSinceBest = r.since
 	}
+	j.Provisional = t.provisional()
 	j.EarlyStop.Reason = t.reasonText()
 	j.Actions = t.actions()
 	j.Warnings = t.warningTexts()
 	return j
+}
+
+// provisional says why a verdict of high bias may still change: the
+// training curve still falls steeply (the model has not shown what it can
+// fit), or its trend window is not full yet. The numbers of the fall are
+// cited only from a full window.
+func (t *verdict) provisional() string {
+	r := t.r
+	if r.diag != HighBias && r.diag != HighBiasHighVariance {
+		return ""
+	}
+	w := t.text()
+	switch {
+	case r.steep && r.trainN == slopeWindow:
+		w.s("the training ").s(t.metricName()).s(" is still falling steeply, ").gap(r.trainFall).s(" over the last ").n(slopeWindow).s(" epochs")
+	case r.steep:
+		w.s("the training ").s(t.metricName()).s(" is still falling steeply")
+	case r.trainN < slopeWindow:
+		w.s("the training curve has ").n(int(r.trainN)).s(" of the ").n(slopeWindow).s(" points a settled trend needs")
+	default:
+		return ""
+	}
+	return w.done()
 }
 
 // reasonText explains the early-stopping signal of the point, naming the

@@ -70,6 +70,11 @@ type Judgement struct {
 
 	BayesError      float64
 	BayesErrorGiven bool
+	// BayesNote says how BayesError was obtained when it is not the value
+	// given as such: an optimal error given as a rate (label noise) for a
+	// judged cross-entropy loss is the entropy of that noise ("entropy of
+	// 5.0% label noise over 2 classes"). Empty otherwise.
+	BayesNote string
 	// BaselineError is the majority-class error, when given.
 	BaselineError Num
 
@@ -105,9 +110,14 @@ type Judgement struct {
 	ValRate    Estimate
 
 	Diagnosis Diagnosis
-	Problems  []Component
-	Focus     Component
-	Progress  Progress
+	// Provisional says why a verdict of high bias may still change: the
+	// training curve still falls steeply, or holds fewer points than its
+	// trend window (slopeWindow, 8). Empty when the verdict is not one of
+	// bias, or is settled.
+	Provisional string
+	Problems    []Component
+	Focus       Component
+	Progress    Progress
 	// ProgressCurve is the curve Progress describes: the validation curve,
 	// or the training curve when no validation value is logged.
 	ProgressCurve Split

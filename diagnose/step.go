@@ -16,6 +16,12 @@ const (
 	// projected over the window, moves it by less than this fraction of
 	// the tolerance (a quarter of 2 points is half a point per 8 epochs).
 	plateauFrac = 0.25
+	// steepBiasFrac: a training curve falls steeply when its
+	// least-squares line falls, over the window, by the tolerance and by
+	// this fraction of the avoidable bias: at that pace the bias would be
+	// gone within four windows (32 epochs), so training longer is the
+	// first remedy and a larger model can wait (design choice).
+	steepBiasFrac = 0.25
 	// watchGL is the generalization loss (percent) at which the signal is
 	// at least watch: GL_5, the least eager GL criterion of Prechelt
 	// (1998), is beyond the epoch-to-epoch noise of most runs.
@@ -221,6 +227,9 @@ type rec struct {
 	progress  Progress
 	progOf    Split // the curve progress describes: validation, else training
 	trainProg Progress
+	trainFall float64 // how far the training curve's line fell over its window
+	trainN    uint8   // values in the training curve's window (slopeWindow when full)
+	steep     bool    // the training curve falls steeply (steepBiasFrac)
 	rise      float64 // smoothed validation value above its best
 	far       bool    // rise beyond farSigmas of the validation noise
 	memorize  bool    // training error falling while validation error rises

@@ -48,10 +48,17 @@ type Tracker struct {
 	missing bool
 	// desc describes the judged metric for output (built once per choice).
 	desc Metric
-	// bayes is the optimal error in use: Config.BayesError, read as a
-	// percent when it exceeds 1 for a rate (bayesPercent says so).
+	// bayes is the optimal error in use (chooseBayes): Config.BayesError,
+	// read as a percent when it exceeds 1 for a rate (bayesPercent says
+	// so), or turned from a label-noise rate into the optimal loss
+	// (bayesNote says how); bayesGiven says it was given for the judged
+	// metric, bayesUnused that a rate was given for a loss it cannot
+	// apply to.
 	bayes        float64
+	bayesGiven   bool
 	bayesPercent bool
+	bayesUnused  bool
+	bayesNote    string
 
 	// last caches the judgement of the last point: Latest and At(n−1)
 	// after Add return it without building the texts again.
@@ -313,10 +320,6 @@ func (t *Tracker) choose() {
 			}
 		}
 	}
-	t.bayes, t.bayesPercent = t.cfg.BayesError, false
-	if t.metric != nil && t.metric.kind.bounded() && t.bayes > 1 && t.bayes <= 100 {
-		t.bayes, t.bayesPercent = t.bayes/100, true
-	}
 	t.desc = metricOf(t.metric)
 	if t.metric == nil && t.cfg.Metric != "" {
 		name := Printable(t.cfg.Metric)
@@ -342,4 +345,5 @@ func (t *Tracker) choose() {
 			t.lossT = b
 		}
 	}
+	t.chooseBayes()
 }

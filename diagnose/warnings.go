@@ -25,6 +25,7 @@ const (
 	warnBayesPercent
 	warnMemorize
 	warnAtChance
+	warnBayesUnused
 )
 
 // overconfident reports the pattern of miscalibration of Guo et al.
@@ -42,12 +43,12 @@ func (t *Tracker) overconfident(st *state, i int) bool {
 	if !(lossTol > 0) {
 		return false
 	}
-	l, lMove, lLevel := t.windowTrend(i, lossTol, &st.trend[trendLoss])
-	e, eMove, eLevel := t.windowTrend(i, t.cfg.Tolerance, &st.trend[trendRate])
-	if l != Worsening || e == Worsening || e == ProgressUnknown || !(lLevel > 0) || !(eLevel > 0) {
+	l := t.windowTrend(i, lossTol, &st.trend[trendLoss])
+	e := t.windowTrend(i, t.cfg.Tolerance, &st.trend[trendRate])
+	if l.prog != Worsening || e.prog == Worsening || e.prog == ProgressUnknown || !(l.level > 0) || !(e.level > 0) {
 		return false
 	}
-	return eMove/eLevel < lMove/lLevel/4
+	return e.move/e.level < l.move/l.level/4
 }
 
 // auxAt reports whether aux series k was logged at this point.
@@ -65,11 +66,14 @@ func (t *Tracker) collectWarnings(st *state, i int, r *rec) {
 	if r.blowup != blowNone {
 		w |= warnBlowup
 	}
-	if t.metric != nil && !t.cfg.BayesErrorGiven && r.comp[AvoidableBias].OK && r.diag != Diverging {
+	if t.metric != nil && !t.bayesGiven && !t.bayesUnused && r.comp[AvoidableBias].OK && r.diag != Diverging {
 		w |= warnBayesAssumed
 	}
 	if t.bayesPercent {
 		w |= warnBayesPercent
+	}
+	if t.bayesUnused {
+		w |= warnBayesUnused
 	}
 	if r.memorize {
 		w |= warnMemorize
@@ -92,7 +96,7 @@ func (t *Tracker) collectWarnings(st *state, i int, r *rec) {
 			w |= warnNegVariance
 		}
 	}
-	if b := r.comp[AvoidableBias]; b.OK && b.V < 0 && t.cfg.BayesErrorGiven && -b.V > z95*u[SplitTrain] {
+	if b := r.comp[AvoidableBias]; b.OK && b.V < 0 && t.bayesGiven && -b.V > z95*u[SplitTrain] {
 		w |= warnNegBias
 	}
 	if m := r.comp[Mismatch]; m.OK && m.V < 0 {
@@ -221,6 +225,10 @@ func (t *verdict) warningTexts() []string {
 	}
 	if r.warn&warnBayesPercent != 0 {
 		add(t.text().s("optimal error ").f(t.cfg.BayesError, 4).s(" is above 1 for a rate: read as ").val(t.bayes).s(" (write a percent with %)"))
+	}
+	if r.warn&warnBayesUnused != 0 {
+		what, how := t.rateUnused(t.cfg.BayesError)
+		out = append(out, what+": taken as 0 ("+how+")")
 	}
 	if r.warn&warnOutOfRange != 0 {
 		add(t.text().s(name).s(" has values outside 0–1 after conversion: is it really a rate?"))

@@ -39,7 +39,7 @@ func createFileAtomic(path string, data []byte) error {
 		return nil
 	}
 	if errors.Is(err, fs.ErrExist) {
-		return fmt.Errorf("create %s: it already exists, and fitgap does not overwrite a file it did not create", path)
+		return existsError{path}
 	}
 	f, ferr := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
 	if ferr != nil {
@@ -51,6 +51,16 @@ func createFileAtomic(path string, data []byte) error {
 	}
 	return f.Close()
 }
+
+// existsError says that createFileAtomic found a file at its path; it is
+// fs.ErrExist.
+type existsError struct{ path string }
+
+func (e existsError) Error() string {
+	return fmt.Sprintf("create %s: it already exists, and fitgap does not overwrite a file it did not create", e.path)
+}
+
+func (e existsError) Is(target error) bool { return target == fs.ErrExist }
 
 func writeTemp(path string, data []byte) (string, error) {
 	dir, base := filepath.Split(path)

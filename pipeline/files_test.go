@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -128,6 +129,45 @@ func TestSaveSummary(t *testing.T) {
 	}
 	if st, _ := os.Stat(log); !st.ModTime().Equal(old) {
 		t.Errorf("the log's modification time changed")
+	}
+	assertNoTemp(t, dir)
+}
+
+// TestSaveNewSummary: the s key's summary goes to a file of its own: the
+// name asked for while it is free, then name-2, name-3 …, never over an
+// existing file, and the path written comes back absolute; the log and the
+// stop file are never written.
+func TestSaveNewSummary(t *testing.T) {
+	pts, stats := readCSV(t, overfitCSV(6))
+	run := New(Options{Name: "run.csv"})
+	run.Load(watch.Batch{Points: pts, Stats: stats})
+	s := run.Summary()
+	dir := t.TempDir()
+	t.Chdir(dir)
+	if err := os.WriteFile("fitgap-summary.md", []byte("mine\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	stop := filepath.Join(dir, "fitgap-summary-2.md") // the stop file's path: skipped
+	var got []string
+	for range 2 {
+		p, err := SaveNewSummary("fitgap-summary.md", filepath.Join(dir, "run.csv"), s, stop)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got = append(got, p)
+	}
+	want := []string{filepath.Join(dir, "fitgap-summary-3.md"), filepath.Join(dir, "fitgap-summary-4.md")}
+	if !slices.Equal(got, want) {
+		t.Errorf("written to %q, want %q", got, want)
+	}
+	if b, _ := os.ReadFile("fitgap-summary.md"); string(b) != "mine\n" {
+		t.Errorf("an existing file was overwritten: %q", b)
+	}
+	if b, _ := os.ReadFile(want[0]); !strings.HasPrefix(string(b), "# ") {
+		t.Errorf("%s is not the summary: %.40q", want[0], b)
+	}
+	if _, err := SaveNewSummary("run.csv", "run.csv", s); err == nil {
+		t.Error("SaveNewSummary accepted the log's path")
 	}
 	assertNoTemp(t, dir)
 }

@@ -28,29 +28,63 @@ type noticeLog struct {
 type keptNotice struct {
 	text  string
 	count int
+	// wait: the notice says the reader waits (for the file: not there
+	// yet, removed, not a regular file; for a silent pipe): it goes once
+	// evaluation points come again.
+	wait bool
 }
 
-// add files the notices of a batch.
-func (l *noticeLog) add(ns []watch.Notice) {
+// add files the notices of a batch that brought points evaluation points.
+// Once points come again, the notices of a wait (watch.Notice.Waits) are
+// dropped: "waiting for run.csv" would be stale.
+func (l *noticeLog) add(ns []watch.Notice, points int) {
 	for _, n := range ns {
-		l.file(n.Text)
+		l.file(n.Text, n.Waits())
+	}
+	if points > 0 {
+		l.endWait()
 	}
 }
 
-func (l *noticeLog) file(text string) {
+func (l *noticeLog) file(text string, wait bool) {
 	if k := l.find(text); k != nil {
 		k.count++
+		k.wait = wait
 		return
 	}
 	if len(l.first) < noticesFirst {
-		l.first = append(l.first, keptNotice{text: text, count: 1})
+		l.first = append(l.first, keptNotice{text: text, count: 1, wait: wait})
 		return
 	}
 	if l.lastN >= noticesLast {
 		l.dropped++
 	}
-	l.last[l.lastN%noticesLast] = keptNotice{text: text, count: 1}
+	l.last[l.lastN%noticesLast] = keptNotice{text: text, count: 1, wait: wait}
 	l.lastN++
+}
+
+// endWait drops the notices of a wait that has ended.
+func (l *noticeLog) endWait() {
+	first := l.first[:0]
+	for _, k := range l.first {
+		if !k.wait {
+			first = append(first, k)
+		}
+	}
+	l.first = first
+	n := min(l.lastN, noticesLast)
+	var last []keptNotice
+	for k := l.lastN - n; k < l.lastN; k++ {
+		if kept := l.last[k%noticesLast]; !kept.wait {
+			last = append(last, kept)
+		}
+	}
+	if len(last) == n {
+		return
+	}
+	l.last = [noticesLast]keptNotice{}
+	l.lastN = len(last)
+	copy(l.last[:], last)
 }
 
 // find returns the kept notice with this text, or nil.

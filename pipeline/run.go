@@ -131,7 +131,7 @@ func (r *Run) Apply(b watch.Batch) Update {
 	stopAt := -1 // the first point of the batch that says stop, for the stop file
 	r.mu.Lock()
 	r.stats = b.Stats
-	r.notices.add(b.Notices)
+	r.notices.add(b.Notices, len(b.Points))
 	u.Stats = r.statsLocked()
 	r.mu.Unlock()
 	if len(b.Points) > 0 {
@@ -194,7 +194,7 @@ func (r *Run) Load(b watch.Batch) {
 	r.mu.Lock()
 	defer r.mu.Unlock()
 	r.stats = b.Stats
-	r.notices.add(b.Notices)
+	r.notices.add(b.Notices, len(b.Points))
 	for i := range b.Points {
 		r.tracker.Push(b.Points[i])
 		r.took(&b.Points[i])

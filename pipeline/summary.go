@@ -2,10 +2,14 @@ package pipeline
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
+	"slices"
+	"strconv"
 	"strings"
 	"time"
 
@@ -116,6 +120,48 @@ type followLine struct {
 // lineTime is the layout of a line's time: RFC 3339 in UTC with
 // milliseconds, fixed width so lines align.
 const lineTime = "2006-01-02T15:04:05.000Z07:00"
+
+// maxSummaryNames bounds the names SaveNewSummary tries: run-2.md to
+// run-99.md after run.md.
+const maxSummaryNames = 99
+
+// SaveNewSummary writes the summary to a new file and returns its
+// absolute path: path itself, or when a file is there already the first
+// free of path with -2, -3 … before its extension, so that no file is
+// overwritten (each name is created atomically, never over a file that
+// appeared meanwhile). The checks are SaveSummary's.
+func SaveNewSummary(path, log string, s report.Summary, others ...string) (string, error) {
+	b, err := SummaryBytes(s, strings.EqualFold(filepath.Ext(path), ".json"))
+	if err != nil {
+		return "", err
+	}
+	ext := filepath.Ext(path)
+	stem := strings.TrimSuffix(path, ext)
+	for n := 1; n <= maxSummaryNames; n++ {
+		p := path
+		if n > 1 {
+			p = stem + "-" + strconv.Itoa(n) + ext
+		}
+		if err := NotTheLog(p, log); err != nil {
+			return "", err
+		}
+		if slices.ContainsFunc(others, func(o string) bool { return o != "" && samePath(p, o) }) {
+			continue
+		}
+		err := createFileAtomic(resolve(p), b)
+		if errors.Is(err, fs.ErrExist) {
+			continue
+		}
+		if err != nil {
+			return "", err
+		}
+		if abs, aerr := filepath.Abs(p); aerr == nil {
+			p = abs
+		}
+		return p, nil
+	}
+	return "", fmt.Errorf("write the summary: %s and %d more names after it are taken (give --summary FILE)", printable(path), maxSummaryNames-1)
+}
 
 // AppendLine appends the follow line of s, judged at the time at, and a
 // newline to dst.

@@ -60,6 +60,9 @@ func (s Summary) Markdown() string {
 		// NaN it is the trend of the values before it).
 		b.WriteString(". " + sentence(j.Trend()))
 	}
+	if j.Provisional != "" {
+		b.WriteString(". Provisional: " + inline(j.Provisional))
+	}
 	b.WriteString(".\n\n")
 
 	v := values{fraction: j.Metric.Fraction}
@@ -79,8 +82,11 @@ func (s Summary) Markdown() string {
 	}
 	b.WriteString("\n| estimate | value |\n|---|---:|\n")
 	opt := v.value(diagnose.Some(j.BayesError))
-	if !j.BayesErrorGiven {
+	switch {
+	case !j.BayesErrorGiven:
 		opt += " (not given: taken as 0)"
+	case j.BayesNote != "":
+		opt += " (" + inline(j.BayesNote) + ")"
 	}
 	b.WriteString("| " + diagnose.OptimalError.Phrase() + " | " + opt + " |\n")
 	bias := v.gap(j.AvoidableBias)
@@ -153,30 +159,15 @@ func (s Summary) writeWarnings(b *strings.Builder) {
 	}
 }
 
-// values formats values of the judged metric: percent for fractions.
+// values formats values of the judged metric: percent for fractions, by
+// the one number format of every output (diagnose.FormatValue).
 type values struct{ fraction bool }
 
 // value formats a value of the judged metric.
-func (v values) value(n diagnose.Num) string {
-	if !n.OK {
-		return "–"
-	}
-	if v.fraction {
-		return pct(n.V, "%")
-	}
-	return sig4(n)
-}
+func (v values) value(n diagnose.Num) string { return diagnose.FormatValue(n, v.fraction) }
 
 // gap formats a difference: percentage points for fractions.
-func (v values) gap(n diagnose.Num) string {
-	if !n.OK {
-		return "–"
-	}
-	if v.fraction {
-		return pct(n.V, " points")
-	}
-	return sig4(n)
-}
+func (v values) gap(n diagnose.Num) string { return diagnose.FormatGap(n, v.fraction, " points") }
 
 // pct formats a rate (a fraction) as 100·v with one decimal, two below
 // one, then unit: "%" for a value, " points" for a difference.
@@ -190,12 +181,6 @@ func pct(v float64, unit string) string {
 // num formats n with prec decimals ("–" when absent, "n/a" for NaN).
 func num(n diagnose.Num, prec int) string {
 	return numWith(n, 'f', prec)
-}
-
-// sig4 formats a value of a metric in its own units with four significant
-// digits, as the judgement's texts do.
-func sig4(n diagnose.Num) string {
-	return numWith(n, 'g', 4)
 }
 
 func numWith(n diagnose.Num, fmt byte, prec int) string {

@@ -115,18 +115,38 @@ func (t *trainer) measure(rec *epochRecord) {
 // NaN and Inf as they come, then stops). It returns ctx.Err() when ctx is
 // done first, and the first error of w, wrapped, naming the epoch.
 func Run(ctx context.Context, cfg Config, w io.Writer) error {
+	_, err := Train(ctx, cfg, w)
+	return err
+}
+
+// Outcome is what a run logged: the epochs written, and why it stopped
+// before Config.Epochs ("" when it did not stop early).
+type Outcome struct {
+	Epochs  int
+	Stopped string
+}
+
+// stoppedNonFinite is why a run stops early: its weights diverged.
+const stoppedNonFinite = "the weights are no longer finite numbers"
+
+// Train is Run, and says how many epochs were logged and why training
+// stopped early, if it did (the Diverge scenario writes fewer epochs than
+// asked for).
+func Train(ctx context.Context, cfg Config, w io.Writer) (Outcome, error) {
 	if w == nil {
-		return fmt.Errorf("trainer: nil log writer")
+		return Outcome{}, fmt.Errorf("trainer: nil log writer")
 	}
 	t, err := newTrainer(cfg)
 	if err != nil {
-		return err
+		return Outcome{}, err
 	}
-	return t.run(ctx, w)
+	var out Outcome
+	err = t.run(ctx, w, &out)
+	return out, err
 }
 
-// run trains and logs; see Run.
-func (t *trainer) run(ctx context.Context, w io.Writer) error {
+// run trains and logs; see Run. out counts the epochs written.
+func (t *trainer) run(ctx context.Context, w io.Writer, out *Outcome) error {
 	lw := newLogWriter(w, t.cfg.Format, t.data.trainDev != nil)
 	if err := lw.preamble(t.intro()); err != nil {
 		return fmt.Errorf("write metrics log header: %w", err)
@@ -147,11 +167,13 @@ func (t *trainer) run(ctx context.Context, w io.Writer) error {
 		if err := lw.record(rec); err != nil {
 			return fmt.Errorf("write metrics log, epoch %d: %w", e, err)
 		}
+		out.Epochs = e
 		if math.IsNaN(rec.train.loss) || math.IsInf(rec.train.loss, 0) {
 			nonFinite++
 		}
 		if nonFinite >= nonFiniteEpochs && !t.net.finite() {
-			if err := lw.closing("Stopped early, the weights are no longer finite numbers"); err != nil {
+			out.Stopped = stoppedNonFinite
+			if err := lw.closing("Stopped early, " + stoppedNonFinite); err != nil {
 				return fmt.Errorf("write metrics log, epoch %d: %w", e, err)
 			}
 			return lw.flushErr(e)

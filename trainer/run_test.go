@@ -379,3 +379,28 @@ func TestTrainer_EpochAllocatesNothing(t *testing.T) {
 		})
 	}
 }
+
+// TestTrain_OutcomeCountsEpochsWritten: the outcome says how many epochs
+// the log holds, fewer than asked when the diverge scenario stops itself,
+// and why it stopped.
+func TestTrain_OutcomeCountsEpochsWritten(t *testing.T) {
+	for _, tt := range []struct {
+		sc      Scenario
+		epochs  int
+		stopped bool
+	}{{Diverge, 50, true}, {Underfit, 4, false}} {
+		t.Run(tt.sc.String(), func(t *testing.T) {
+			b, out := trainScaled(t, Config{Scenario: tt.sc, Epochs: tt.epochs, Seed: 1, Format: CSV})
+			rows := strings.Count(string(b), "\n") - 1 // less the header
+			if out.Epochs != rows || (out.Stopped != "") != tt.stopped {
+				t.Errorf("outcome %+v, the log has %d epoch rows", out, rows)
+			}
+			if tt.stopped && out.Epochs >= tt.epochs {
+				t.Errorf("stopped early at epoch %d of %d", out.Epochs, tt.epochs)
+			}
+			if !tt.stopped && out.Epochs != tt.epochs {
+				t.Errorf("wrote %d epochs, asked %d", out.Epochs, tt.epochs)
+			}
+		})
+	}
+}

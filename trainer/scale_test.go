@@ -90,13 +90,21 @@ func scaled(t testing.TB, cfg Config) (recipe, Config) {
 // returns the log bytes.
 func runScaled(t testing.TB, cfg Config) []byte {
 	t.Helper()
+	b, _ := trainScaled(t, cfg)
+	return b
+}
+
+// trainScaled is runScaled, with the run's Outcome.
+func trainScaled(t testing.TB, cfg Config) ([]byte, Outcome) {
+	t.Helper()
 	if err := cfg.Validate(); err != nil {
 		t.Fatalf("config %+v: %v", cfg, err)
 	}
 	r, cfg := scaled(t, cfg)
 	var buf bytes.Buffer
-	if err := newTrainerWith(cfg, r).run(context.Background(), &buf); err != nil {
+	var out Outcome
+	if err := newTrainerWith(cfg, r).run(context.Background(), &buf, &out); err != nil {
 		t.Fatalf("train %+v at test scale: %v", cfg, err)
 	}
-	return buf.Bytes()
+	return buf.Bytes(), out
 }

@@ -191,6 +191,9 @@ type Facts struct {
 	// rate q, since the clean label is a deterministic function of the
 	// readings and each label is flipped with probability q.
 	BayesError float64
+	// Classes is the number of classes: 2 (ok or worn). With BayesError it
+	// gives the optimal cross-entropy, the entropy of the label noise.
+	Classes int
 	// TrainSize, ValSize and TrainDevSize are the numbers of examples of
 	// each split; TrainDevSize is 0 when no train-dev split is logged.
 	TrainSize, ValSize, TrainDevSize int
@@ -207,6 +210,7 @@ func (c Config) Facts() Facts {
 	}
 	return Facts{
 		BayesError:   r.data.noise,
+		Classes:      2,
 		TrainSize:    r.data.train,
 		ValSize:      r.data.val,
 		TrainDevSize: r.data.trainDev,

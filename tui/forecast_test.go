@@ -53,7 +53,11 @@ func lastXLabel(view string) string {
 	lines := strings.Split(ansi.Strip(view), "\n")
 	for i, l := range lines {
 		if strings.Contains(l, "└") && i+1 < len(lines) {
-			f := strings.Fields(lines[i+1])
+			// Only the chart's columns: the side panel may go on to the right.
+			axis, labels := []rune(l), []rune(lines[i+1])
+			end := strings.LastIndexAny(string(axis), "┬┴─") // a byte offset
+			end = len([]rune(string(axis)[:end])) + 3        // the last label may stand out by two
+			f := strings.Fields(string(labels[:min(end, len(labels))]))
 			if len(f) > 0 {
 				return f[len(f)-1]
 			}

@@ -16,9 +16,12 @@ type keyMap struct {
 	Optimal  key.Binding
 	Save     key.Binding
 	Help     key.Binding
-	Quit     key.Binding
-	Abort    key.Binding
-	Suspend  key.Binding
+	// While the help is open and longer than the screen.
+	ScrollUp   key.Binding
+	ScrollDown key.Binding
+	Quit       key.Binding
+	Abort      key.Binding
+	Suspend    key.Binding
 
 	// While typing an optimal error.
 	Accept key.Binding
@@ -27,22 +30,24 @@ type keyMap struct {
 
 func newKeyMap() keyMap {
 	return keyMap{
-		Pause:    key.NewBinding(key.WithKeys(" "), key.WithHelp("space", "pause/resume")),
-		Prev:     key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/h", "earlier epoch")),
-		Next:     key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "later epoch")),
-		First:    key.NewBinding(key.WithKeys("home"), key.WithHelp("home", "first epoch")),
-		Last:     key.NewBinding(key.WithKeys("end"), key.WithHelp("end", "last epoch")),
-		Metric:   key.NewBinding(key.WithKeys("m"), key.WithHelp("m", "judged metric")),
-		LogY:     key.NewBinding(key.WithKeys("g"), key.WithHelp("g", "log scale")),
-		Forecast: key.NewBinding(key.WithKeys("f"), key.WithHelp("f", "forecast on/off")),
-		Optimal:  key.NewBinding(key.WithKeys("b"), key.WithHelp("b", "optimal error")),
-		Save:     key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save summary")),
-		Help:     key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "all keys")),
-		Quit:     key.NewBinding(key.WithKeys("q"), key.WithHelp("q", "quit")),
-		Abort:    key.NewBinding(key.WithKeys("ctrl+c"), key.WithHelp("ctrl+c", "quit (interrupted)")),
-		Suspend:  key.NewBinding(key.WithKeys("ctrl+z"), key.WithHelp("ctrl+z", "suspend (fg resumes)")),
-		Accept:   key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "apply")),
-		Cancel:   key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel")),
+		Pause:      key.NewBinding(key.WithKeys(" "), key.WithHelp("space", "pause/resume")),
+		Prev:       key.NewBinding(key.WithKeys("left", "h"), key.WithHelp("←/h", "earlier epoch")),
+		Next:       key.NewBinding(key.WithKeys("right", "l"), key.WithHelp("→/l", "later epoch")),
+		First:      key.NewBinding(key.WithKeys("home"), key.WithHelp("home", "first epoch")),
+		Last:       key.NewBinding(key.WithKeys("end"), key.WithHelp("end", "newest epoch")),
+		Metric:     key.NewBinding(key.WithKeys("m"), key.WithHelp("m", "judged metric")),
+		LogY:       key.NewBinding(key.WithKeys("g"), key.WithHelp("g", "log scale")),
+		Forecast:   key.NewBinding(key.WithKeys("f"), key.WithHelp("f", "forecast on/off")),
+		Optimal:    key.NewBinding(key.WithKeys("b"), key.WithHelp("b", "optimal error")),
+		Save:       key.NewBinding(key.WithKeys("s"), key.WithHelp("s", "save summary")),
+		Help:       key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "help: keys, then the screen explained")),
+		ScrollUp:   key.NewBinding(key.WithKeys("up", "k"), key.WithHelp("↑/k", "scroll the help up")),
+		ScrollDown: key.NewBinding(key.WithKeys("down", "j"), key.WithHelp("↓/j", "scroll the help down")),
+		Quit:       key.NewBinding(key.WithKeys("q"), key.WithHelp("q", "quit")),
+		Abort:      key.NewBinding(key.WithKeys("ctrl+c"), key.WithHelp("ctrl+c", "quit (interrupted)")),
+		Suspend:    key.NewBinding(key.WithKeys("ctrl+z"), key.WithHelp("ctrl+z", "suspend (fg resumes)")),
+		Accept:     key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "apply")),
+		Cancel:     key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel, close help")),
 	}
 }
 
@@ -63,7 +68,7 @@ func (k keyMap) shortHelp() ([]key.Binding, []int) {
 	inspect := key.NewBinding(key.WithKeys("left", "right"), key.WithHelp("←/→", "inspect"))
 	return []key.Binding{
 			short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"), short(k.Forecast, "forecast"),
-			short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "keys"), short(k.Quit, "quit"),
+			short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "help"), short(k.Quit, "quit"),
 		},
 		[]int{3, 4, 5, 8, 7, 6, 9, 1, 0}
 }
@@ -73,7 +78,7 @@ func (k keyMap) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Pause, k.Prev, k.Next, k.First, k.Last},
 		{k.Metric, k.LogY, k.Forecast, k.Optimal, k.Save},
-		{k.Help, k.Quit, k.Abort, k.Suspend},
+		{k.Help, k.Cancel, key.NewBinding(key.WithKeys("up", "down"), key.WithHelp("↑/↓", "scroll the help")), k.Quit, k.Abort, k.Suspend},
 	}
 }
 

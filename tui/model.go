@@ -86,6 +86,10 @@ type FeedMsg struct {
 	Steps    []diagnose.StepRow
 	Source   SourceInfo
 	Notices  []string
+	// WaitNotices are notices that say the reader waits ("waiting for
+	// run.csv"): shown as the others, and dropped once evaluation points
+	// come again, when they would be stale.
+	WaitNotices []string
 }
 
 // History is the run's judged history, shared with whoever judges the run:
@@ -171,6 +175,9 @@ type Model struct {
 	help   help.Model
 	input  textinput.Model
 	typing bool // an optimal error is being typed
+	// inputErr says why the typed optimal error was refused; shown above
+	// the prompt until the text is edited.
+	inputErr string
 
 	hist History
 	// explore judges the points again while the user tries settings other
@@ -178,7 +185,7 @@ type Model struct {
 	explore *diagnose.Tracker
 	data    *store
 	src     SourceInfo
-	notices []string // sanitized, newest last, at most maxNotices
+	notices []notice // sanitized, newest last, at most maxNotices
 	batches int      // FeedMsgs received
 	ended   bool     // the feed channel closed
 
@@ -191,7 +198,8 @@ type Model struct {
 	logY      bool
 	// showForecast draws the validation forecast and its line (the f key).
 	showForecast bool
-	fullHelp     bool
+	helpPage     helpPage // the help page open (`?`), helpClosed when none
+	helpScroll   int      // the first line of the help page shown (↑/↓)
 	flash        string
 	flashErr     bool
 	flashID      int
@@ -204,6 +212,13 @@ type Model struct {
 
 	feed   <-chan FeedMsg
 	reason ExitReason
+}
+
+// notice is a reader's notice as the warnings panel keeps it; wait says it
+// describes a wait, which ends when evaluation points come.
+type notice struct {
+	text string
+	wait bool
 }
 
 // maxNotices bounds the notices kept for the warnings panel: the screen

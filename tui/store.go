@@ -51,7 +51,14 @@ type store struct {
 
 	// optimal holds the optimal errors given per base metric (flag or `b`),
 	// so cycling the metric does not carry one metric's estimate to another.
-	optimal map[string]float64
+	optimal map[string]givenOptimal
+}
+
+// givenOptimal is an optimal error as given for one metric: its value and
+// whether it was given as a rate (diagnose.Config.BayesErrorRate).
+type givenOptimal struct {
+	v    float64
+	rate bool
 }
 
 func newStore() *store {

@@ -2,6 +2,7 @@ package tui
 
 import (
 	"errors"
+	"slices"
 	"strings"
 	"time"
 
@@ -51,7 +52,10 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			cmd := m.say(true, "summary not saved: "+clean(msg.err.Error()))
 			return m, cmd
 		}
-		cmd := m.say(false, "summary saved to "+clean(msg.path))
+		// The whole path when it fits, else its end: the file name is
+		// what the user looks for.
+		lead := "summary saved to "
+		cmd := m.say(false, lead+cutLeft(clean(msg.path), max(m.width-ansiLen(lead), 2)))
 		return m, cmd
 	case closeMsg:
 		m.reason = msg.reason
@@ -108,10 +112,16 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 		m.data.addStep(s)
 	}
 	m.mergeSource(msg.Source)
-	for _, n := range msg.Notices {
-		if n = clean(n); n != "" {
-			m.notices = append(m.notices, n)
+	for k, ns := range [][]string{msg.Notices, msg.WaitNotices} {
+		for _, n := range ns {
+			if n = clean(n); n != "" {
+				m.notices = append(m.notices, notice{n, k == 1})
+			}
 		}
+	}
+	if len(msg.Points) > 0 {
+		// Points come again: a "waiting for" would be stale.
+		m.notices = slices.DeleteFunc(m.notices, func(n notice) bool { return n.wait })
 	}
 	if over := len(m.notices) - maxNotices; over > 0 {
 		m.notices = append(m.notices[:0], m.notices[over:]...)
@@ -201,7 +211,11 @@ func (m Model) handleKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 			m.cursor = 0
 		}
 	case key.Matches(msg, k.Last):
-		if m.pause(); m.shown() > 0 {
+		// The newest epoch read, also those that arrived while paused: the
+		// paused view moves up to it.
+		m.pause()
+		m.frozen, m.newPaused = len(m.data.rows), 0
+		if m.shown() > 0 {
 			m.cursor = m.shown() - 1
 		}
 	case key.Matches(msg, k.Metric):
@@ -214,7 +228,7 @@ func (m Model) handleKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(msg, k.Forecast):
 		m.showForecast = !m.showForecast
 	case key.Matches(msg, k.Optimal):
-		m.typing = true
+		m.typing, m.inputErr = true, ""
 		m.input.Prompt = m.optimalPrompt()
 		m.input.Width = max(m.width-len(m.input.Prompt)-2, 1)
 		m.input.SetValue("")
@@ -224,7 +238,13 @@ func (m Model) handleKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(msg, k.Save):
 		cmd = m.save()
 	case key.Matches(msg, k.Help):
-		m.fullHelp = !m.fullHelp
+		m.helpPage, m.helpScroll = (m.helpPage+1)%nHelpPages, 0
+	case key.Matches(msg, k.Cancel) && m.helpPage != helpClosed:
+		m.helpPage = helpClosed
+	case key.Matches(msg, k.ScrollUp) && m.helpPage != helpClosed:
+		m.helpScroll = max(m.helpScroll-1, 0)
+	case key.Matches(msg, k.ScrollDown) && m.helpPage != helpClosed:
+		m.helpScroll++ // helpLines keeps it inside the page
 	default:
 		return m, nil
 	}
@@ -288,16 +308,26 @@ func (m *Model) cycleMetric() tea.Cmd {
 	}
 	m.rememberOptimal(cur, cfg)
 	cfg.Metric = next
-	cfg.BayesError, cfg.BayesErrorGiven = 0, false
-	if o, ok := m.optimalFor()[next]; ok {
-		cfg.BayesError, cfg.BayesErrorGiven = o, true
+	switch o, ok := m.optimalFor()[next]; {
+	case ok:
+		cfg.BayesError, cfg.BayesErrorGiven, cfg.BayesErrorRate = o.v, true, o.rate
+	case !cfg.BayesErrorRate:
+		// An optimal value in one metric's units says nothing of another's;
+		// a rate (label noise) carries over, and the judgement turns it into
+		// the optimal cross-entropy when it can.
+		cfg.BayesError, cfg.BayesErrorGiven = 0, false
 	}
 	m.judgeWith(cfg)
-	label := m.currentMetric().Label
-	if !cfg.BayesErrorGiven {
-		return m.say(false, "judging "+clean(label)+" · optimal error taken as 0 (b sets it)")
+	label := clean(m.currentMetric().Label)
+	var j diagnose.Judgement
+	m.read(func(t *diagnose.Tracker) { j, _ = t.Latest() })
+	switch {
+	case !j.BayesErrorGiven:
+		return m.say(false, "judging "+label+" · optimal taken as 0 (b sets it)")
+	case j.BayesNote != "":
+		return m.say(false, "judging "+label+" · optimal "+m.fmtValue(j.BayesError)+": "+clean(j.BayesNote))
 	}
-	return m.say(false, "judging "+clean(label))
+	return m.say(false, "judging "+label)
 }
 
 // judgeWith judges every point with cfg. The command line's settings are
@@ -315,7 +345,7 @@ func (m *Model) judgeWith(cfg diagnose.Config) {
 		}
 	})
 	switch {
-	case sameSettings(cfg, base, baseMetric):
+	case sameSettings(cfg, base, baseMetric, isRateMetric(m.currentMetric())):
 		m.explore = nil
 	case m.explore != nil:
 		m.explore.Reconfigure(cfg)
@@ -328,10 +358,14 @@ func (m *Model) judgeWith(cfg diagnose.Config) {
 
 // sameSettings reports whether cfg judges as the command line's settings
 // base do. A metric picked by name is the same as base's automatic choice
-// when it is the metric that choice judges now (baseMetric).
-func sameSettings(cfg, base diagnose.Config, baseMetric string) bool {
+// when it is the metric that choice judges now (baseMetric); for a rate
+// (rate), an optimal error given as a rate or as a fraction is the same.
+func sameSettings(cfg, base diagnose.Config, baseMetric string, rate bool) bool {
 	if base.Metric == "" && cfg.Metric != "" && cfg.Metric == baseMetric {
 		cfg.Metric = ""
+	}
+	if rate && cfg.Metric == base.Metric && cfg.BayesError == base.BayesError {
+		cfg.BayesErrorRate = base.BayesErrorRate
 	}
 	return cfg == base
 }
@@ -350,25 +384,32 @@ func (m *Model) currentMetric() diagnose.Metric {
 }
 
 // optimalFor returns the optimal errors given per metric, creating the map.
-func (m *Model) optimalFor() map[string]float64 {
+func (m *Model) optimalFor() map[string]givenOptimal {
 	if m.data.optimal == nil {
-		m.data.optimal = map[string]float64{}
+		m.data.optimal = map[string]givenOptimal{}
 	}
 	return m.data.optimal
 }
 
 func (m *Model) rememberOptimal(base string, cfg diagnose.Config) {
 	if base != "" && cfg.BayesErrorGiven {
-		m.optimalFor()[base] = cfg.BayesError
+		m.optimalFor()[base] = givenOptimal{cfg.BayesError, cfg.BayesErrorRate}
 	}
 }
 
-// optimalPrompt names what is being typed in the judged metric's terms.
+// optimalPrompt names what is being typed in the judged metric's terms;
+// for a loss a label-noise rate turns into, it says so.
 func (m *Model) optimalPrompt() string {
 	if isRateMetric(m.currentMetric()) {
 		return "optimal error (0.04 or 4%): "
 	}
-	return "optimal " + clean(m.currentMetric().Label) + ": "
+	p := "optimal " + clean(m.currentMetric().Label)
+	var err error
+	m.read(func(t *diagnose.Tracker) { _, _, err = t.OptimalFromRate(0.05) })
+	if err == nil {
+		p += " (or label noise as 5%)"
+	}
+	return p + ": "
 }
 
 // isRateMetric reports whether the judged values are fractions in [0, 1]:
@@ -383,37 +424,67 @@ func (m Model) handleTyping(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m.reason = ExitInterrupted
 		return m, tea.Quit
 	case key.Matches(msg, m.keys.Cancel):
-		m.typing = false
+		m.typing, m.inputErr = false, ""
 		m.input.Blur()
 		m.renderBottom()
 		return m, nil
 	case key.Matches(msg, m.keys.Accept):
-		v, err := parseOptimal(m.input.Value(), isRateMetric(m.currentMetric()))
+		typed, err := m.parseTyped(m.input.Value())
 		if err != nil {
-			// Keep the text so it can be corrected.
-			cmd := m.say(true, err.Error())
-			return m, cmd
+			// The prompt stays open with the text, to be corrected; the
+			// reason shows above it until the next edit.
+			m.inputErr = err.Error()
+			m.rebuild()
+			return m, nil
 		}
-		m.typing = false
+		m.typing, m.inputErr = false, ""
 		m.input.Blur()
 		cfg := m.judging()
-		cfg.BayesError, cfg.BayesErrorGiven = v, true
+		cfg.BayesError, cfg.BayesErrorGiven, cfg.BayesErrorRate = typed.v, true, typed.rate
 		if b := m.currentMetric().Base; b != "" {
 			if cfg.Metric == "" {
 				cfg.Metric = b // keep judging this metric under the new estimate
 			}
-			m.optimalFor()[b] = v
+			m.optimalFor()[b] = typed
 		}
 		m.judgeWith(cfg)
 		m.opts.BayesNote = "typed in"
 		m.rebuild()
-		cmd := m.say(false, "optimal error set to "+m.fmtValue(v)+": verdict recomputed for every epoch")
+		var j diagnose.Judgement
+		m.read(func(t *diagnose.Tracker) { j, _ = t.Latest() })
+		set := "optimal error set to " + m.fmtValue(j.BayesError)
+		if j.BayesNote != "" {
+			set = "optimal " + clean(m.currentMetric().Label) + " set to " + m.fmtValue(j.BayesError) + " (" + clean(j.BayesNote) + ")"
+		}
+		cmd := m.say(false, set+": verdict recomputed for every epoch")
 		return m, cmd
 	}
 	var cmd tea.Cmd
 	m.input, cmd = m.input.Update(msg)
+	if m.inputErr != "" {
+		m.inputErr = ""
+		m.rebuild()
+	}
 	m.renderBottom()
 	return m, cmd
+}
+
+// parseTyped reads what was typed at the optimal-error prompt for the
+// judged metric: a rate for a rate; for another metric a value in its
+// units, or a percent, a label-noise rate, when the judgement can turn it
+// into the optimal value (diagnose.Tracker.OptimalFromRate).
+func (m *Model) parseTyped(s string) (givenOptimal, error) {
+	rate := isRateMetric(m.currentMetric())
+	if !rate && strings.HasSuffix(strings.TrimSpace(s), "%") {
+		v, err := parseOptimal(s, true)
+		if err != nil {
+			return givenOptimal{}, err
+		}
+		m.read(func(t *diagnose.Tracker) { _, _, err = t.OptimalFromRate(v) })
+		return givenOptimal{v, true}, err
+	}
+	v, err := parseOptimal(s, rate)
+	return givenOptimal{v, rate}, err
 }
 
 // parseOptimal reads a typed optimal error by the rules of every typed

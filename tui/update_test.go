@@ -14,6 +14,28 @@ import (
 
 var overfitRun = runSpec{epochs: 30, total: 50, stepsPer: 8, turn: 15, trainBase: 0.05, valBase: 0.1}
 
+// TestModel_EndGoesToTheNewestEpoch: End while paused inspects the newest
+// epoch read, including those that arrived while paused, not the epoch
+// where the screen was paused; Home goes to the first.
+func TestModel_EndGoesToTheNewestEpoch(t *testing.T) {
+	m := newTestModel(t, 100, 30, Options{})
+	pts := overfitRun.points()
+	m = settle(t, send(t, m, FeedMsg{Points: pts[:10], Source: liveSource(11)}))
+	m = press(t, m, "space")
+	m = settle(t, send(t, m, FeedMsg{Points: pts[10:13], Source: liveSource(14)}))
+	m = press(t, m, "home")
+	if got := m.judgementAt(m.inspected()).Epoch; got != 1 {
+		t.Errorf("home inspects epoch %d, want 1", got)
+	}
+	m = press(t, m, "end")
+	if got := m.judgementAt(m.inspected()).Epoch; got != 13 || m.shown() != 13 || m.newPaused != 0 {
+		t.Errorf("end inspects epoch %d with %d shown, %d new; want the newest, 13, all shown", got, m.shown(), m.newPaused)
+	}
+	if v := m.View(); !strings.Contains(v, "INSPECTING epoch 13") {
+		t.Errorf("the status does not say epoch 13:\n%s", v)
+	}
+}
+
 func TestModel_PauseKeepsReading(t *testing.T) {
 	m := newTestModel(t, 100, 30, Options{})
 	pts := overfitRun.points()
@@ -122,8 +144,21 @@ func TestModel_NewOptimalError(t *testing.T) {
 			}
 			mm = press(t, mm, "enter")
 			if !tt.ok {
-				if !mm.typing || !mm.flashErr || !strings.Contains(mm.flash, tt.reason) {
-					t.Fatalf("typed %q: typing %v, message %q, want an error mentioning %q and the input kept open", tt.typed, mm.typing, mm.flash, tt.reason)
+				if !mm.typing || !strings.Contains(mm.inputErr, tt.reason) {
+					t.Fatalf("typed %q: typing %v, error %q, want an error mentioning %q and the input kept open", tt.typed, mm.typing, mm.inputErr, tt.reason)
+				}
+				// The reason shows above the prompt, which keeps the text.
+				lines := strings.Split(mm.View(), "\n")
+				if n := len(lines); n < 2 || !strings.Contains(lines[n-2], tt.reason) || !strings.HasPrefix(lines[n-1], "optimal error") ||
+					!strings.Contains(lines[n-1], strings.TrimSpace(tt.typed)) {
+					t.Fatalf("typed %q: the screen's last lines are %q", tt.typed, lines[max(n-2, 0):])
+				}
+				// An edit clears the reason; esc and b open an empty field.
+				if mm = press(t, mm, "backspace"); mm.inputErr != "" {
+					t.Errorf("an edit kept the error %q", mm.inputErr)
+				}
+				if mm = press(t, mm, "esc", "b"); mm.input.Value() != "" || mm.inputErr != "" || !mm.typing {
+					t.Errorf("reopened with %q, error %q", mm.input.Value(), mm.inputErr)
 				}
 				return
 			}
@@ -257,6 +292,12 @@ func TestModel_SaveKey(t *testing.T) {
 	m = send(t, nm.(Model), cmd())
 	if !m.flashErr || !strings.Contains(m.View(), "disk full") {
 		t.Errorf("a failed save is not reported: %q", m.flash)
+	}
+	// A long absolute path keeps its end, the file name, in view.
+	long := "/home/someone/experiments/2026/sweeps/width-and-depth/run-0042/fitgap-summary-3.md"
+	m = send(t, m, savedMsg{path: long})
+	if bottom := m.View()[strings.LastIndexByte(m.View(), '\n')+1:]; !strings.HasSuffix(bottom, "run-0042/fitgap-summary-3.md") {
+		t.Errorf("saved to a long path: the screen says %q", bottom)
 	}
 	// The message goes away after its time.
 	m = send(t, m, flashOff{id: m.flashID})

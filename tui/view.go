@@ -52,7 +52,10 @@ func (m Model) View() string {
 		return ""
 	}
 	bottom := f.bottom
-	if m.typing {
+	switch {
+	case m.typing && m.inputErr != "" && f.body == "":
+		bottom = fit(m.st.paint(clsWarn, clean(m.inputErr)), m.width) // no line above the prompt
+	case m.typing:
 		bottom = fit(m.input.View(), m.width)
 	}
 	var b strings.Builder
@@ -80,21 +83,29 @@ func (m *Model) rebuild() {
 	// the signal, as the run's pipeline decided it then.
 	f.forecast, f.forecastMade = m.forecastAt(idx, diagnose.SplitVal), idx >= 0 && j.Judged()
 	j = f.forecast.Decide(j)
-	warns := m.warnings(j)
+	warns := m.warnings(idx, j)
 	sparks := m.sparkColumns()
-	f.lay = computeLayout(m.width, m.height, len(sparks), len(warns), m.forecastLine() != "")
+	f.lay = computeLayout(m.width, m.height, len(sparks), warnBudget, m.forecastLine() != "")
 	lay := f.lay
 	var body []string
-	switch lay.mode {
-	case modeEmpty:
+	switch {
+	case lay.mode == modeEmpty:
 		f.status, f.body, f.bottom = "", "", ""
 		return
-	case modeCompact:
+	case m.helpPage != helpClosed:
+		// The help takes the whole body at every size.
+		body = m.helpLines(m.width, max(m.height-2, 0))
+	case lay.mode == modeCompact:
 		body = m.compactBody(j, idx, warns, max(m.height-2, 0))
-	case modeStacked:
+	case lay.mode == modeStacked:
 		body = m.stackedBody(j, idx, warns, sparks)
-	case modeWide:
+	case lay.mode == modeWide:
 		body = m.wideBody(j, idx, warns, sparks)
+	}
+	if m.typing && m.inputErr != "" && len(body) > 0 {
+		// Why the typed value was refused, just above the prompt that
+		// stays open for a correction.
+		body[len(body)-1] = m.st.paint(clsWarn, "! "+clean(m.inputErr))
 	}
 	for i := range body {
 		body[i] = fit(body[i], m.width)
@@ -109,11 +120,7 @@ func (m *Model) rebuild() {
 func (m *Model) stackedBody(j diagnose.Judgement, idx int, warns []string, sparks []*column) []string {
 	lay := m.cache.lay
 	var out []string
-	if m.fullHelp {
-		out = append(out, m.fullHelpLines(lay.w, lay.chartH)...)
-	} else {
-		out = append(out, m.chartLines(j, lay.w, lay.chartH)...)
-	}
+	out = append(out, m.chartLines(j, lay.w, lay.chartH)...)
 	out = append(out, m.sparkLines(sparks, lay)...)
 	out = append(out, m.verdictCompact(j, idx, lay.w, lay.verdictRows)...)
 	out = append(out, m.warningLines(warns, lay.w, lay.warnRows)...)
@@ -127,12 +134,7 @@ func (m *Model) wideBody(j diagnose.Judgement, idx int, warns []string, sparks [
 	left := m.chartLines(j, lay.mainW, lay.chartH)
 	left = append(left, m.sparkLines(sparks, lay)...)
 	h := lay.chartH + lay.sparkRows
-	var right []string
-	if m.fullHelp {
-		right = m.fullHelpLines(lay.sideW, h)
-	} else {
-		right = m.verdictPanel(j, idx, lay.sideW, h)
-	}
+	right := m.verdictPanel(j, idx, lay.sideW, h)
 	out := make([]string, 0, h+lay.warnRows)
 	for i := 0; i < h; i++ {
 		var l, r string
@@ -146,44 +148,6 @@ func (m *Model) wideBody(j diagnose.Judgement, idx int, warns []string, sparks [
 	}
 	out = append(out, m.warningLines(warns, lay.w, lay.warnRows)...)
 	return out
-}
-
-// fullHelpLines is the key list shown by `?`.
-func (m *Model) fullHelpLines(w, h int) []string {
-	hm := m.help
-	hm.ShowAll = true
-	hm.Width = 0
-	lines := []string{m.st.paint(clsHeading, "keys")}
-	cols := hm.FullHelpView(m.keys.FullHelp())
-	if widest(cols) <= w {
-		lines = append(lines, strings.Split(cols, "\n")...)
-	} else {
-		// Too narrow for the columns (the side panel): one key a line, so
-		// none is cut off.
-		kw := 0
-		for _, col := range m.keys.FullHelp() {
-			for _, b := range col {
-				kw = max(kw, ansiLen(b.Help().Key))
-			}
-		}
-		for _, col := range m.keys.FullHelp() {
-			for _, b := range col {
-				k := b.Help().Key
-				lines = append(lines, m.st.paint(clsKey, k)+pad("", kw-ansiLen(k)+2)+m.st.paint(clsDim, b.Help().Desc))
-			}
-		}
-	}
-	lines = append(lines, "")
-	for _, l := range wrap("Reading goes on while paused or inspecting; space returns to the latest epoch.", w) {
-		lines = append(lines, m.st.paint(clsDim, l))
-	}
-	if len(lines) > h {
-		lines = lines[:max(h, 0)]
-	}
-	for len(lines) < h {
-		lines = append(lines, "")
-	}
-	return lines
 }
 
 // widest is the width of the widest line of s.

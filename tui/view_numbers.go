@@ -5,33 +5,24 @@ import (
 	"github.com/fitgap/fitgap/tui/chart"
 )
 
-// Numbers of the judged metric as the panels print them. A rate's value
-// is a percent ("19.2%"); a difference of two rates is in percentage
-// points ("21.5 pp"), never a percent of anything.
+// Numbers of the judged metric as the panels print them, by the one number
+// format of every output (diagnose.FormatValue, the report's): a rate's
+// value is a percent ("19.2%", "0.00%"); a difference of two rates is in
+// percentage points ("21.5 pp"), never a percent of anything. Only the
+// chart's axes and the sparklines use the chart's own short format.
 
 // fmtValue prints a judged value: error rates (and shortfalls of bounded
 // scores) in percent, as practitioners quote them; other metrics in their
-// units.
+// units with four significant digits.
 func (m *Model) fmtValue(v float64) string {
-	if isRateMetric(m.currentMetric()) && isFinite(v) {
-		return formatNum(v*100, 3) + "%"
-	}
-	return formatNum(v, 4)
+	return diagnose.FormatValue(diagnose.Some(v), isRateMetric(m.currentMetric()))
 }
 
-// fmtGap prints a component of the decomposition, "–" when absent. A
-// component of a rate is a difference of two percentages, so it is in
-// percentage points ("21.5 pp"), written as the report writes its points:
-// one decimal, two below one point. Other metrics get three significant
-// digits in their own units.
+// fmtGap prints a component of the decomposition, "–" when absent: for a
+// rate in percentage points, written "pp" where the report writes
+// "points" (the panels are narrow; the legend page says what pp is).
 func (m *Model) fmtGap(n diagnose.Num) string {
-	if !n.OK {
-		return "–"
-	}
-	if isRateMetric(m.currentMetric()) && isFinite(n.V) {
-		return formatPoints(n.V) + " pp"
-	}
-	return formatNum(n.V, 3)
+	return diagnose.FormatGap(n, isRateMetric(m.currentMetric()), " pp")
 }
 
 // fmtPart prints one entry of the decomposition: the optimal error is a
@@ -46,10 +37,6 @@ func (m *Model) fmtPart(c component) string {
 	return m.fmtGap(c.val)
 }
 
-// formatPoints prints the difference v of two rates (fractions) in
-// percentage points, by the project's one rule (diagnose.Percent).
-func formatPoints(v float64) string { return diagnose.Percent(v) }
-
 // formatNum is the chart's number format, so that a value reads the same
-// on an axis and in a panel.
+// on an axis and in a sparkline.
 func formatNum(v float64, digits int) string { return chart.FormatNum(v, digits) }

@@ -2,34 +2,61 @@ package tui
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"github.com/fitgap/fitgap/diagnose"
 )
 
-// TestFormatPoints: differences of rates are printed in percentage points
-// with the report's precision (one decimal, two below one point) and no
-// negative zero.
-func TestFormatPoints(t *testing.T) {
-	tests := []struct {
-		name string
-		v    float64
-		want string
-	}{
-		{"Zero", 0, "0.0"},
-		{"OneDecimal", 0.215, "21.5"},
-		{"Negative", -0.0498, "-5.0"},
-		{"BelowOnePoint", -0.00226, "-0.23"},
-		{"RoundsToZero", -0.00001, "0.00"},
-		{"WholeRange", 1, "100.0"},
-		{"NaN", math.NaN(), "NaN"},
+// TestNumbers_ScreenAsReport: a value of the judged metric reads the same
+// on the screen as in the report (one number format: a training error of
+// about 1e-8 is "0.00%" in both, never "8.4e-8%"), and a gap the same number
+// of points.
+func TestNumbers_ScreenAsReport(t *testing.T) {
+	acc := func(sp diagnose.Split) diagnose.Column {
+		return metricCol(sp.String()+"_acc", "acc", sp, diagnose.HigherIsBetter, true)
 	}
-	for _, tt := range tests {
-		t.Run(tt.name, func(t *testing.T) {
-			if got := formatPoints(tt.v); got != tt.want {
-				t.Errorf("formatPoints(%v) = %q, want %q", tt.v, got, tt.want)
-			}
-		})
+	var pts []diagnose.Point
+	for e := 1; e <= 30; e++ {
+		train := 0.3 * math.Pow(1e-9, float64(e)/30) // down to 3e-10
+		pts = append(pts, diagnose.Point{Epoch: e, EpochLogged: true, Rows: 1, Samples: []diagnose.Sample{
+			sampleOf(acc(diagnose.SplitTrain), 1-train), sampleOf(acc(diagnose.SplitVal), 1-0.2-0.001*float64(e)),
+		}})
+	}
+	m := newTestModel(t, 120, 40, Options{})
+	m = settle(t, send(t, m, FeedMsg{Points: pts, Source: liveSource(31)}))
+	md := m.Summary().Markdown()
+	j := m.judgementAt(m.inspected())
+	for _, c := range []struct {
+		name  string
+		num   diagnose.Num
+		cell  string // the report's table row that holds it
+		onGap bool
+	}{
+		{"train", j.Train.Smooth, "| train | ", false},
+		{"val", j.Val.Smooth, "| val | ", false},
+		{"variance", j.Variance, "| variance | ", true},
+	} {
+		screen := m.fmtValue(c.num.V)
+		if c.onGap {
+			screen = strings.TrimSuffix(m.fmtGap(c.num), " pp")
+		}
+		if strings.ContainsAny(screen, "e") {
+			t.Errorf("%s: the screen writes %q in scientific notation", c.name, screen)
+		}
+		i := strings.Index(md, c.cell)
+		if i < 0 {
+			t.Fatalf("report has no row %q:\n%s", c.cell, md)
+		}
+		if row := md[i : i+strings.IndexByte(md[i:], '\n')]; !strings.Contains(row, screen) {
+			t.Errorf("%s: the screen writes %q, the report's row is %q", c.name, screen, row)
+		}
+	}
+	if got := m.fmtValue(j.Train.Smooth.V); got != "0.00%" {
+		t.Errorf("a training error of %g reads %q on the screen, want 0.00%%", j.Train.Smooth.V, got)
+	}
+	if v := settle(t, m).View(); !strings.Contains(v, "train 0.00%") {
+		t.Errorf("the verdict does not show train 0.00%%:\n%s", v)
 	}
 }
 

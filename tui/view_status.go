@@ -193,6 +193,8 @@ func (m *Model) renderStatus() {
 		parts = append(parts, statusPart{m.src.Format, clsDim, 5})
 	}
 	rows := m.data.rows
+	barAt := -1 // where the progress bar goes, when there is room for it
+	var barDone, barTotal int
 	if n := len(rows); n > 0 {
 		last := rows[n-1]
 		// The last epoch announced by the log, else the one given
@@ -207,7 +209,7 @@ func (m *Model) renderStatus() {
 		}
 		parts = append(parts, statusPart{ep, clsPlain, 1})
 		if total > 0 {
-			parts = append(parts, statusPart{progressBar(last.epoch, total, 12), clsTrain, 7})
+			barAt, barDone, barTotal = len(parts), last.epoch, total
 			parts = append(parts, statusPart{itoa(min(100, 100*max(last.epoch, 0)/total)) + "%", clsPlain, 4})
 			// (A total far off, given or announced, must not overflow the
 			// duration: beyond a century the ETA says nothing.)
@@ -236,37 +238,35 @@ func (m *Model) renderStatus() {
 		parts = append(parts, statusPart{badge, clsPaused, 0})
 	}
 
-	// Too long: drop the least useful parts first; before the epoch and
-	// the age of the last write go, the log's directory does (the file
-	// name is what tells two panes apart); last, the name is cut from the
-	// left, so the state and the badge always stay in view.
-	shortened := false
+	// Too long: first the log's directory goes (the file name is what
+	// tells two panes apart), then the least useful parts, highest drop
+	// rank first; last, the name is cut from the left, so the state and
+	// the badge always stay in view. The progress bar takes only room that
+	// is left over.
+	if _, width := m.joinStatus(parts); width > m.width {
+		if b := baseName(name); b != name {
+			parts[nameAt].text = "…/" + b
+		}
+	}
 	for {
 		line, width := m.joinStatus(parts)
 		if width <= m.width {
-			if shortened && parts[nameAt].text != name {
+			if short := parts[nameAt].text; short != name {
 				// Dropping parts may have made room for the whole name.
-				short := parts[nameAt].text
 				parts[nameAt].text = name
 				if l, w := m.joinStatus(parts); w <= m.width {
-					line = l
+					line, width = l, w
+				} else {
+					parts[nameAt].text = short
 				}
-				parts[nameAt].text = short
 			}
-			f.status = line
+			f.status = m.withProgressBar(parts, barAt, barDone, barTotal, line, width)
 			return
 		}
 		worst := -1
 		for i, p := range parts {
 			if p.drop > 0 && (worst < 0 || p.drop > parts[worst].drop) {
 				worst = i
-			}
-		}
-		if !shortened && (worst < 0 || parts[worst].drop <= statusDropName) {
-			shortened = true
-			if b := baseName(parts[nameAt].text); b != parts[nameAt].text {
-				parts[nameAt].text = "…/" + b
-				continue
 			}
 		}
 		if worst < 0 {
@@ -278,14 +278,36 @@ func (m *Model) renderStatus() {
 		if worst < nameAt {
 			nameAt--
 		}
+		if worst < barAt {
+			barAt--
+		} else if worst == barAt {
+			barAt = -1 // the percent went: no bar either
+		}
 		parts = append(parts[:worst], parts[worst+1:]...)
 	}
 }
 
-// statusDropName is the drop rank from which the status line shortens the
-// log's path to its file name before dropping more (the age of the last
-// write has rank 2, the epoch 1).
-const statusDropName = 2
+// Widths of the status line's progress bar, in cells: it is drawn only
+// when the line has this much room left over, and never wider than
+// statusBarMax (a finer bar says nothing the percent beside it does not).
+const (
+	statusBarMin = 6
+	statusBarMax = 12
+)
+
+// withProgressBar puts the progress bar of done/total epochs before the
+// percent at barAt when the line (of width columns) leaves room for at
+// least statusBarMin cells.
+func (m *Model) withProgressBar(parts []statusPart, barAt, done, total int, line string, width int) string {
+	room := m.width - width - 3 // " · " before it
+	if barAt < 0 || room < statusBarMin || total <= 0 {
+		return line
+	}
+	bar := statusPart{progressBar(done, total, min(room, statusBarMax)), clsTrain, 0}
+	with := append(append(append([]statusPart{}, parts[:barAt]...), bar), parts[barAt:]...)
+	l, _ := m.joinStatus(with)
+	return l
+}
 
 // baseName is the last element of a slash-separated path.
 func baseName(p string) string {

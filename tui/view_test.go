@@ -69,6 +69,12 @@ func TestView_Golden(t *testing.T) {
 		{"compact_50x14", 50, 14, goldenRun, nil, false, false},
 		{"inspect_120x40", 120, 40, goldenRun, []string{"left", "left", "left", "left", "left", "left", "left", "left", "left", "left"}, false, false},
 		{"help_100x30", 100, 30, goldenRun, []string{"?"}, false, false},
+		// The second help page: the screen explained, one line each.
+		{"screen_help_80x24", 80, 24, goldenRun, []string{"?", "?"}, false, false},
+		// Below 60×16 the help still opens, over the whole text view.
+		{"compact_help_50x14", 50, 14, goldenRun, []string{"?"}, false, false},
+		// At 60 columns lines drop whole parts, never a number cut in two.
+		{"stacked_60x20", 60, 20, goldenRun, nil, false, false},
 		{"waiting_80x24", 80, 24, runSpec{}, nil, false, false},
 		// Without colour: the first epoch off the scale (arrow and value),
 		// the inspected epoch as a line on the chart and in every sparkline.
@@ -194,5 +200,41 @@ func TestErrorBar(t *testing.T) {
 	}
 	if empty := m.errorBar(components(diagnose.Judgement{}), 5); empty != "·····" {
 		t.Errorf("no parts: %q", empty)
+	}
+}
+
+// TestStatus_PathShortensFirst: a long path gives way first, down to its
+// file name, before the percent and the time left; the progress bar takes
+// room left over (at 80 columns with a demo's path in a temporary
+// directory, everything else stays).
+func TestStatus_PathShortensFirst(t *testing.T) {
+	long := "/tmp/fitgap-demo-2982065161/train-overfit.csv"
+	tests := []struct {
+		w    int
+		want []string
+		not  []string
+	}{
+		{80, []string{"…/train-overfit.csv", "epoch 36/60", "60%", "eta 12m", "live"}, []string{"/tmp/"}},
+		{130, []string{long, "60%", "eta 12m", "━━━━━━━─────"}, nil},
+		{50, []string{"train-overfit.csv", "live"}, nil},
+	}
+	for _, tt := range tests {
+		t.Run(itoa(tt.w), func(t *testing.T) {
+			m := newTestModel(t, tt.w, 24, Options{})
+			src := liveSource(37)
+			src.Name = long
+			m = settle(t, send(t, m, FeedMsg{Points: goldenRun.points(), Source: src}))
+			status := strings.SplitN(m.View(), "\n", 2)[0]
+			for _, w := range tt.want {
+				if !strings.Contains(status, w) {
+					t.Errorf("width %d: status %q lacks %q", tt.w, status, w)
+				}
+			}
+			for _, w := range tt.not {
+				if strings.Contains(status, w) {
+					t.Errorf("width %d: status %q has %q", tt.w, status, w)
+				}
+			}
+		})
 	}
 }

@@ -23,7 +23,7 @@ func (m *Model) compactBody(j diagnose.Judgement, idx int, warns []string, h int
 	if idx < 0 {
 		head = st.paint(clsDim, "no evaluation point yet")
 	} else {
-		head = st.paint(diagnosisClass(j.Diagnosis), j.Diagnosis.Phrase()) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
+		head = st.paint(diagnosisClass(j.Diagnosis), verdictHead(j)) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
 		es = append(es,
 			entry{m.valuesLine(j), clsPlain},
 			entry{signalWords(j.EarlyStop), signalClass(j.EarlyStop.Signal)},
@@ -85,13 +85,9 @@ func (m *Model) compactBody(j diagnose.Judgement, idx int, warns []string, h int
 }
 
 // warnings are the texts of the warnings panel: the source's, then the
-// judgement's at the inspected point.
-func (m *Model) warnings(j diagnose.Judgement) []string {
-	out := m.sourceWarnings()
-	for _, w := range j.Warnings {
-		out = append(out, clean(w))
-	}
-	return out
+// judgement's at the inspected point idx, with those that linger.
+func (m *Model) warnings(idx int, j diagnose.Judgement) []string {
+	return append(m.sourceWarnings(), m.judgedWarnings(idx, j)...)
 }
 
 // sourceWarnings are the reader's warnings: skipped lines with the first
@@ -109,15 +105,22 @@ func (m *Model) sourceWarnings() []string {
 		out = append(out, plural(n, "value was", "values were")+" NaN or ±Inf")
 	}
 	for i := len(m.notices) - 1; i >= 0; i-- {
-		out = append(out, m.notices[i])
+		out = append(out, m.notices[i].text)
 	}
 	return out
 }
 
-// warningLines shows up to rows warnings, the last line counting the rest.
+// warningLines shows up to rows warnings, the last line counting the rest;
+// the rows are kept, blank, when there are fewer warnings (the layout's
+// budget holds still).
 func (m *Model) warningLines(warns []string, w, rows int) []string {
-	if rows <= 0 || len(warns) == 0 {
+	if rows <= 0 {
 		return nil
+	}
+	if len(warns) == 0 {
+		out := make([]string, rows)
+		out[0] = m.st.paint(clsDim, fit("no warnings", w))
+		return out
 	}
 	var out []string
 	for i, t := range warns {
@@ -130,6 +133,9 @@ func (m *Model) warningLines(warns []string, w, rows int) []string {
 			line = fit(line, max(w-ansiLen(more), 0)) + more
 		}
 		out = append(out, m.st.paint(clsWarn, fit(line, w)))
+	}
+	for len(out) < rows {
+		out = append(out, "")
 	}
 	return out
 }

@@ -5,8 +5,20 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/charmbracelet/x/ansi"
+
 	"github.com/fitgap/fitgap/diagnose"
 )
+
+// verdictHead is the diagnosis as the panels head it: its phrase, marked
+// provisional while a verdict of bias may still change (the reason is in
+// the wide panel's description and the report).
+func verdictHead(j diagnose.Judgement) string {
+	if j.Provisional != "" {
+		return j.Diagnosis.Phrase() + " (provisional)"
+	}
+	return j.Diagnosis.Phrase()
+}
 
 func diagnosisClass(d diagnose.Diagnosis) class {
 	switch d {
@@ -48,6 +60,12 @@ func signalWords(es diagnose.EarlyStop) string {
 // best, GL, patience and PQ; short drops the words a one-line panel has no
 // room for.
 func (m *Model) stopNumbers(es diagnose.EarlyStop, short bool) string {
+	return strings.Join(m.stopParts(es, short), " · ")
+}
+
+// stopParts are stopNumbers one by one: best value, epochs since best, GL,
+// patience and PQ.
+func (m *Model) stopParts(es diagnose.EarlyStop, short bool) []string {
 	var parts []string
 	if es.BestVal.OK {
 		parts = append(parts, "best "+m.fmtValue(es.BestVal.V))
@@ -66,9 +84,10 @@ func (m *Model) stopNumbers(es diagnose.EarlyStop, short bool) string {
 		parts = append(parts, "patience "+itoa(min(es.EpochsSinceBest, es.Patience))+"/"+itoa(es.Patience))
 	}
 	if es.PQ.OK && !short {
-		parts = append(parts, "PQ "+formatNum(es.PQ.V, 3))
+		// Two decimals, as the report writes it.
+		parts = append(parts, "PQ "+strconv.FormatFloat(es.PQ.V, 'f', 2, 64))
 	}
-	return strings.Join(parts, " · ")
+	return parts
 }
 
 // epochHeading says which epoch the panels show and how.
@@ -196,10 +215,40 @@ func (m *Model) errorBar(comps []component, w int) string {
 	return b.String()
 }
 
+// barTotal is what the error bar adds up to, the sum of its positive
+// parts, and what that is: "val" when every gap is positive (optimal +
+// bias + variance + mismatch is the validation error); "train" when
+// validation beats training (a negative variance takes no room); else the
+// parts drawn ("opt+var" when the training error is below the optimal).
+func (m *Model) barTotal(j diagnose.Judgement, comps []component) (string, string) {
+	total, any := 0.0, false
+	var drawn []string
+	for _, c := range comps {
+		if c.val.OK && c.val.V > 0 && isFinite(c.val.V) {
+			total, any = total+c.val.V, true
+			drawn = append(drawn, c.kind.Short())
+		}
+	}
+	if !any {
+		return "", ""
+	}
+	for _, sp := range []diagnose.Split{diagnose.SplitVal, diagnose.SplitTrain, diagnose.SplitTrainDev} {
+		// The parts are differences of these values: they add up to one
+		// of them up to rounding.
+		if e := j.Estimate(sp).Smooth; e.OK && math.Abs(e.V-total) <= 1e-9*math.Max(1, math.Abs(total)) {
+			return diagnose.FormatValue(diagnose.Some(total), j.Metric.Fraction), sp.String()
+		}
+	}
+	return diagnose.FormatValue(diagnose.Some(total), j.Metric.Fraction), strings.Join(drawn, "+")
+}
+
 // optimalNote says where the optimal error came from.
 func (m *Model) optimalNote(j diagnose.Judgement) string {
 	if !j.BayesErrorGiven {
 		return "taken as 0"
+	}
+	if j.BayesNote != "" {
+		return clean(j.BayesNote) // the judgement turned a rate into this metric's optimal value
 	}
 	if m.opts.BayesNote != "" {
 		return clean(m.opts.BayesNote)
@@ -212,6 +261,15 @@ func (m *Model) optimalNote(j diagnose.Judgement) string {
 // logged values are on the chart), else the logged value while no smoothed
 // one exists.
 func (m *Model) valuesLine(j diagnose.Judgement) string {
+	parts := m.valuesParts(j)
+	if len(parts) == 0 {
+		return "no values of the judged metric yet"
+	}
+	return strings.Join(parts, " · ")
+}
+
+// valuesParts are valuesLine's values one by one.
+func (m *Model) valuesParts(j diagnose.Judgement) []string {
 	parts := []string{}
 	add := func(name string, e diagnose.Estimate) {
 		switch {
@@ -231,12 +289,9 @@ func (m *Model) valuesLine(j diagnose.Judgement) string {
 		if !v.OK {
 			v = r.Raw
 		}
-		parts = append(parts, "val "+clean(j.RateMetric.Label)+" "+diagnose.Percent(v.V)+"%")
+		parts = append(parts, "val "+clean(j.RateMetric.Label)+" "+diagnose.FormatValue(v, true))
 	}
-	if len(parts) == 0 {
-		return "no values of the judged metric yet"
-	}
-	return strings.Join(parts, " · ")
+	return parts
 }
 
 // verdictPanel is the side panel of the wide layout, w×h. Sections are
@@ -247,7 +302,10 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		out := []string{st.paint(clsHeading, "VERDICT"), st.paint(clsDim, "no evaluation point yet")}
 		return out
 	}
-	head, detail := j.Diagnosis.Phrase(), j.Diagnosis.Description()
+	head, detail := verdictHead(j), j.Diagnosis.Description()
+	if j.Provisional != "" {
+		detail += "; provisional: " + clean(j.Provisional)
+	}
 	var verdict []string
 	verdict = append(verdict, st.paint(clsHeading, m.epochHeading(j, idx)))
 	verdict = append(verdict, st.paint(diagnosisClass(j.Diagnosis), head))
@@ -312,6 +370,19 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		legend = append(legend, line)
 	}
 	decomp = append(decomp, legend...)
+	if total, name := m.barTotal(j, comps); total != "" {
+		// What the bar adds up to: the validation error, or another split's
+		// value when a part is negative and takes no room.
+		note := "val"
+		switch name {
+		case diagnose.SplitVal.String():
+		case diagnose.SplitTrain.String(), diagnose.SplitTrainDev.String():
+			note = name + ": val is below it"
+		default:
+			note = name + ": negative parts take no room"
+		}
+		decomp = append(decomp, "= "+pad("total", legendNameW)+pad(total, legendValueW)+" "+st.paint(clsDim, note))
+	}
 	decomp = append(decomp, noteLines...)
 
 	var acts [][]string
@@ -355,15 +426,16 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		return out
 	}
 	nActs := min(len(acts), 3)
-	full := 4 + len(noteLines)
+	rows := len(decomp) - 2 - len(noteLines) // the legend and its total
+	full := rows + len(noteLines)
 	tries := []func() []string{
 		func() []string { return build(true, nActs, true, full) },
 		func() []string { return build(false, nActs, true, full) },
 		func() []string { return build(false, min(nActs, 2), true, full) },
-		func() []string { return build(false, min(nActs, 2), true, 4) },
-		func() []string { return build(false, min(nActs, 1), true, 4) },
-		func() []string { return build(false, min(nActs, 2), false, 4) },
-		func() []string { return build(false, min(nActs, 1), false, 4) },
+		func() []string { return build(false, min(nActs, 2), true, rows) },
+		func() []string { return build(false, min(nActs, 1), true, rows) },
+		func() []string { return build(false, min(nActs, 2), false, rows) },
+		func() []string { return build(false, min(nActs, 1), false, rows) },
 		func() []string { return build(false, min(nActs, 1), false, 0) },
 		func() []string { return build(false, 0, false, 0) },
 	}
@@ -389,19 +461,29 @@ func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []str
 	if idx < 0 {
 		return append([]string{st.paint(clsDim, "verdict: no evaluation point yet")}, make([]string, rows-1)...)
 	}
-	head := j.Diagnosis.Phrase()
-	l1 := st.paint(diagnosisClass(j.Diagnosis), head) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))
+	// Each line is built of whole parts and drops the least needed ones
+	// first when the width is short, so that no number is cut in two.
+	l1 := []string{st.paint(diagnosisClass(j.Diagnosis), verdictHead(j)) + st.paint(clsDim, " · epoch "+itoa(j.Epoch))}
 	if m.cursor >= 0 {
-		l1 += st.paint(clsDim, " as judged then")
+		l1[0] += st.paint(clsDim, " as judged then")
 	}
-	l1 += " · " + m.valuesLine(j)
-	l2 := st.paint(signalClass(j.EarlyStop.Signal), signalWords(j.EarlyStop))
-	if d := m.stopNumbers(j.EarlyStop, true); d != "" {
-		l2 += " · " + d
+	vals := m.valuesParts(j)
+	for _, v := range vals {
+		l1 = append(l1, " · "+v)
 	}
+	l1Drop := make([]int, 0, len(vals))
+	for i := len(vals); i >= 1; i-- {
+		l1Drop = append(l1Drop, i) // the last values first: train and val stay longest
+	}
+	l2 := []string{st.paint(signalClass(j.EarlyStop.Signal), signalWords(j.EarlyStop))}
+	for _, p := range m.stopParts(j.EarlyStop, true) {
+		l2 = append(l2, " · "+p)
+	}
+	l2Drop := dropOrder(l2, "since best", "patience", "best", "GL")
+
 	comps := components(j)
 	barW := clampInt(w/4, 8, 24)
-	l3 := m.errorBar(comps, barW)
+	l3 := []string{""} // the bar, drawn once the room for it is known
 	for _, c := range comps {
 		part := " " + st.paint(c.cls, string(c.glyph)) + c.kind.Short() + " " + m.fmtPart(c)
 		if c.kind == diagnose.OptimalError && !j.BayesErrorGiven {
@@ -410,8 +492,17 @@ func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []str
 		if c.kind == j.Focus {
 			part = st.paint(clsHeading, part+"◂")
 		}
-		l3 += part
+		l3 = append(l3, part)
 	}
+	if total, name := m.barTotal(j, comps); total != "" {
+		l3 = append(l3, st.paint(clsDim, " = "+strings.TrimSpace(name+" "+total)))
+	}
+	l3Drop := dropOrder(l3, "mismatch –", "= ", "mismatch")
+	rest := 0
+	for _, p := range l3[1:] {
+		rest += ansiLen(p)
+	}
+	l3[0] = m.errorBar(comps, clampInt(w-rest, 8, barW))
 	l4 := st.paint(clsDim, "next: ")
 	if len(j.Actions) > 0 {
 		a := j.Actions[0]
@@ -422,13 +513,57 @@ func (m *Model) verdictCompact(j diagnose.Judgement, idx int, w, rows int) []str
 	} else {
 		l4 += st.paint(clsDim, "keep training")
 	}
-	out := []string{l1, l2}
+	out := []string{joinFit(l1, l1Drop, w), joinFit(l2, l2Drop, w)}
 	if fl := m.forecastLine(); fl != "" {
 		out = append(out, fl)
 	}
-	out = append(out, l3, l4)
+	out = append(out, joinFit(l3, l3Drop, w), l4)
 	if rows < len(out) {
 		out = out[:rows]
+	}
+	return out
+}
+
+// joinFit joins the parts of a line in w columns: when they are too wide
+// it drops whole parts, in the order drop gives (indices into parts), and
+// cuts with "…" only what still does not fit.
+func joinFit(parts []string, drop []int, w int) string {
+	keep := make([]bool, len(parts))
+	for i := range keep {
+		keep[i] = true
+	}
+	join := func() string {
+		var b strings.Builder
+		for i, p := range parts {
+			if keep[i] {
+				b.WriteString(p)
+			}
+		}
+		return b.String()
+	}
+	line := join()
+	for _, i := range drop {
+		if ansiLen(line) <= w {
+			break
+		}
+		keep[i] = false
+		line = join()
+	}
+	return fit(line, w)
+}
+
+// dropOrder lists the indices of the parts after the first that contain
+// each word, in the order of the words: which parts of a line go first
+// when it is short (the first part, the line's subject, stays).
+func dropOrder(parts []string, words ...string) []int {
+	var out []int
+	seen := map[int]bool{}
+	for _, word := range words {
+		for i, p := range parts {
+			if i > 0 && !seen[i] && strings.Contains(ansi.Strip(p), word) {
+				out, seen[i] = append(out, i), true
+			}
+		}
 	}
 	return out
 }

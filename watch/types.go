@@ -2,6 +2,7 @@ package watch
 
 import (
 	"fmt"
+	"strings"
 	"time"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -123,6 +124,12 @@ type Notice struct {
 	Time time.Time
 	Text string
 }
+
+// Waits reports whether the notice says that the reader waits: for the
+// file (not there yet, removed, not a regular file: every such notice of
+// watch/tail says "waiting for"), or for a silent pipe. It describes how
+// things stood until evaluation points come again, and is stale after.
+func (n Notice) Waits() bool { return strings.Contains(n.Text, "waiting for ") }
 
 // Batch is what the reader hands on: the points, rows and notices read since
 // the last batch, and the counters so far.

@@ -39,6 +39,10 @@ func TestRun_UsageErrors(t *testing.T) {
 		{"NegativeEpochs", []string{"follow", "--epochs", "-3", "x.csv"}, exitUsage, "--epochs: must not be negative"},
 		{"DemoBadScenario", []string{"demo", "--scenario", "nope"}, exitUsage, "--scenario"},
 		{"HelpUnknown", []string{"help", "nope"}, exitUsage, "unknown command"},
+		{"HelpTypo", []string{"help", "repot"}, exitUsage, `unknown command "repot", did you mean report?`},
+		{"VersionTypo", []string{"--versoin"}, exitUsage, "unknown flag --versoin, did you mean --version?"},
+		{"HelpFlagTypo", []string{"--hepl"}, exitUsage, "did you mean --help?"},
+		{"WatchFlagTypoFirst", []string{"--no-colr", "x.csv"}, exitUsage, "did you mean --no-color?"},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

@@ -80,10 +80,13 @@ func scenarioList() string {
 }
 
 // demoJudgeConfig passes what the demo knows about its data to the
-// diagnosis: the optimal error is the label-noise rate it generated.
+// diagnosis: the optimal error is the label-noise rate it generated, given
+// as a rate over its two classes, so that the optimal loss is known too
+// (the entropy of that noise) when the loss is judged.
 func demoJudgeConfig(f trainer.Facts) diagnose.Config {
 	c := diagnose.DefaultConfig()
-	c.BayesError, c.BayesErrorGiven = f.BayesError, true
+	c.BayesError, c.BayesErrorGiven, c.BayesErrorRate = f.BayesError, true, true
+	c.Classes = f.Classes
 	c.ValSize, c.TrainSize = f.ValSize, f.TrainSize
 	return c
 }
@@ -91,8 +94,8 @@ func demoJudgeConfig(f trainer.Facts) diagnose.Config {
 // reportCommandLine is the report command that judges a demo log with what
 // the demo knows about its data and its length.
 func reportCommandLine(f trainer.Facts, epochs int, path string) string {
-	return fmt.Sprintf("fitgap report --bayes-error %g --val-size %d --train-size %d --epochs %d %s",
-		f.BayesError, f.ValSize, f.TrainSize, epochs, path)
+	return fmt.Sprintf("fitgap report --bayes-error %g%% --classes %d --val-size %d --train-size %d --epochs %d %s",
+		f.BayesError*100, f.Classes, f.ValSize, f.TrainSize, epochs, path)
 }
 
 func writeDemoLog(ctx context.Context, e *env, cfg trainer.Config, path string) error {
@@ -100,15 +103,19 @@ func writeDemoLog(ctx context.Context, e *env, cfg trainer.Config, path string) 
 	if err != nil {
 		return fmt.Errorf("demo: %w", err)
 	}
-	runErr := trainer.Run(ctx, cfg, f)
+	out, runErr := trainer.Train(ctx, cfg, f)
 	if err := f.Close(); runErr == nil && err != nil {
 		runErr = fmt.Errorf("demo: write %s: %w", path, err)
 	}
 	if runErr != nil {
 		return runErr
 	}
-	fmt.Fprintf(e.stderr, "fitgap demo: wrote %d epochs of the %s scenario to %s\njudge it with: %s\n",
-		cfg.Epochs, cfg.Scenario, path, reportCommandLine(cfg.Facts(), cfg.Epochs, path))
+	stopped := ""
+	if out.Stopped != "" {
+		stopped = fmt.Sprintf(" (of %d asked: stopped early, %s)", cfg.Epochs, out.Stopped)
+	}
+	fmt.Fprintf(e.stderr, "fitgap demo: wrote %s of the %s scenario to %s%s\njudge it with: %s\n",
+		plural(out.Epochs, "epoch", "epochs"), cfg.Scenario, path, stopped, reportCommandLine(cfg.Facts(), cfg.Epochs, path))
 	return nil
 }
 
@@ -169,4 +176,12 @@ func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format strin
 	}
 	fmt.Fprintf(e.stderr, "fitgap demo: the log is kept at %s\njudge it again with: %s\n", path, reportCommandLine(facts, cfg.Epochs, path))
 	return err
+}
+
+// plural writes a count with its noun: "1 epoch", "7 epochs".
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return fmt.Sprintf("%d %s", n, many)
 }

@@ -2,6 +2,9 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
+	"math"
+	"os"
 	"os/exec"
 	"path/filepath"
 	"strconv"
@@ -129,4 +132,52 @@ func near(a, b *float64) bool {
 	}
 	d := *a - *b
 	return d < 1e-4 && d > -1e-4
+}
+
+// TestDemo_WriteSaysEpochsWritten: --write reports the epochs the log
+// holds, not the epochs asked for: the diverge scenario stops itself after
+// a few non-finite epochs, and the message says so.
+func TestDemo_WriteSaysEpochsWritten(t *testing.T) {
+	t.Parallel()
+	path := filepath.Join(t.TempDir(), "div.csv")
+	_, stderr, code := runCLI(t, "", "demo", "--scenario", "diverge", "--pace", "0", "--write", path)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows := strings.Count(string(b), "\n") - 1 // less the header
+	want := fmt.Sprintf("wrote %d epochs of the diverge scenario", rows)
+	if rows >= 100 || !strings.Contains(stderr, want) || !strings.Contains(stderr, "of 100 asked: stopped early") {
+		t.Errorf("the log has %d epochs; stderr %q, want %q and why it stopped", rows, stderr, want)
+	}
+}
+
+// TestDemo_OptimalLoss: the demo's report command line gives its optimal
+// error as a label-noise rate over its two classes, so judging the loss
+// takes the entropy of that noise as the optimal loss, not 0.
+func TestDemo_OptimalLoss(t *testing.T) {
+	t.Parallel()
+	path := trainDemo(t, trainer.Balanced, "csv", 6)
+	facts := trainer.Config{Scenario: trainer.Balanced}.Facts()
+	args := strings.Fields(reportCommandLine(facts, 6, path))[1:]
+	args = append([]string{args[0], "--json", "--metric", "loss"}, args[1:]...)
+	stdout, stderr, code := runCLI(t, "", args...)
+	if code != 0 {
+		t.Fatalf("report: exit %d: %s", code, stderr)
+	}
+	var v struct {
+		Bayes float64 `json:"bayes_error"`
+		Given bool    `json:"bayes_error_given"`
+		Note  string  `json:"bayes_error_note"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &v); err != nil {
+		t.Fatal(err)
+	}
+	// Source: CHECKS.md §7 H10, 5% label noise over 2 classes: 0.1985 nats.
+	if !v.Given || math.Abs(v.Bayes-0.1985) > 5e-5 || !strings.Contains(v.Note, "label noise over 2 classes") {
+		t.Errorf("optimal loss %v given %v note %q, want 0.1985 from the label noise", v.Bayes, v.Given, v.Note)
+	}
 }

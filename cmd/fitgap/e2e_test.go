@@ -193,9 +193,13 @@ func TestE2E_WatchKeysAndQuit(t *testing.T) {
 	p.keys("Space")
 	p.waitScreen("the resume", "epoch 16")
 
+	// ? shows the keys, ? again the screen explained, esc closes.
 	p.keys("?")
-	p.waitScreen("the full help", "earlier epoch", "optimal error")
+	p.waitScreen("the keys", "KEYS", "earlier epoch", "optimal error")
 	p.keys("?")
+	p.waitScreen("the screen explained", "THE SCREEN", "GL", "patience a/b")
+	p.keys("Escape")
+	p.waitScreen("the help closed", "└", "VERDICT")
 
 	p.tmux("resize-window", "-t", p.name, "-x", "120", "-y", "40")
 	s = p.waitScreen("the resized screen", "WHERE THE VAL ERROR COMES FROM")
@@ -212,6 +216,54 @@ func TestE2E_WatchKeysAndQuit(t *testing.T) {
 	if !strings.Contains(out, "# Training diagnosis") || strings.Contains(out, "\x1b[") {
 		t.Errorf("standard output should hold only the summary, got:\n%.400q", out)
 	}
+}
+
+// TestE2E_OptimalPromptAndEnd: a bad optimal error shows its reason with
+// the prompt still open on the text typed, esc and b open an empty
+// prompt, and End while paused goes to the newest epoch read.
+func TestE2E_OptimalPromptAndEnd(t *testing.T) {
+	requireTmux(t)
+	dir := t.TempDir()
+
+	log := newLog(t, dir, 1, 12)
+	p := startPane(t, dir, wrapper(binPath, "watch run.csv"), 100, 30)
+	p.waitScreen("the first screen", "epoch 12", "└", "VERDICT")
+
+	p.keys("b")
+	p.waitScreen("the prompt", "optimal error (0.04 or 4%):")
+	p.keys("abc", "Enter")
+	s := p.waitScreen("the reason", "not a number")
+	if last := lastLine(s); !strings.Contains(last, "optimal error (0.04 or 4%): abc") {
+		t.Errorf("after a bad value the prompt is not open on the text: %q", last)
+	}
+	p.keys("Escape")
+	p.waitScreen("the prompt closed", "? help")
+	p.keys("b")
+	s = p.waitScreen("the prompt again", "optimal error (0.04 or 4%):")
+	if last := lastLine(s); strings.Contains(last, "abc") {
+		t.Errorf("the prompt reopened with the old text: %q", last)
+	}
+	p.keys("4%", "Enter")
+	p.waitScreen("the new optimal error", "optimal error set to 4.0%")
+
+	p.keys("Space")
+	p.waitScreen("the pause", "PAUSED")
+	appendEpochs(t, log, 13, 15)
+	p.waitScreen("points counted while paused", "PAUSED · 3 new")
+	p.keys("End")
+	p.waitScreen("the newest epoch", "INSPECTING epoch 15")
+
+	p.keys("q")
+	if rc := strings.TrimSpace(waitFile(t, filepath.Join(dir, "rc"))); rc != "0" {
+		t.Errorf("exit status %s after q, want 0", rc)
+	}
+	checkRestored(t, p, dir)
+}
+
+// lastLine is the last line of a screen with text on it.
+func lastLine(screen string) string {
+	lines := strings.Split(strings.TrimRight(screen, "\n "), "\n")
+	return lines[len(lines)-1]
 }
 
 // sparkRowHas reports whether the screen line that starts with name holds

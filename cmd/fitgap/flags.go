@@ -100,7 +100,7 @@ func (j *judgeFlags) register(fs *flag.FlagSet) {
 	j.baseline.parse = diagnose.ParseRate
 	j.tolerance.parse = levelIn("tolerance")
 	j.minDelta.parse = levelIn("min-delta")
-	fs.Var(&j.bayes, "bayes-error", "the optimal (Bayes) error, estimated from expert or human error or the label-noise rate, in the units of the judged metric: `value` as 0.04 or 4% (default: taken as 0, so the bias figure is an upper bound)")
+	fs.Var(&j.bayes, "bayes-error", "the optimal (Bayes) error, estimated from expert or human error or the label-noise rate, in the units of the judged metric: `value` as 0.04 or 4%; a percent is a rate, which for a judged cross-entropy loss with --classes becomes the entropy of that label noise (default: taken as 0, so the bias figure is an upper bound)")
 	fs.Var(&j.baseline, "baseline-error", "the error of always predicting the most common class: `rate` as 0.05 or 5%")
 	fs.Var(&j.tolerance, "tolerance", fmt.Sprintf("a gap counts as a problem from this `size` on: error-rate points as a fraction (0.02 = 2 points), relative to the scale for other metrics (default %g for error rates, %g relative for losses)", d.Tolerance, d.RelTolerance))
 	fs.IntVar(&j.patience, "patience", d.Patience, "`epochs` without improvement of the smoothed validation value before the signal says stop")
@@ -115,7 +115,7 @@ func (j *judgeFlags) config() (diagnose.Config, error) {
 	c := j.defaultConfig
 	c.Metric = j.metric
 	if j.bayes.set {
-		c.BayesError, c.BayesErrorGiven = j.bayes.v, true
+		c.BayesError, c.BayesErrorGiven, c.BayesErrorRate = j.bayes.v, true, j.bayes.percent
 	}
 	if j.baseline.set {
 		c.BaselineError = diagnose.Some(j.baseline.v)
@@ -151,9 +151,13 @@ func (j *judgeFlags) config() (diagnose.Config, error) {
 // tells a value given from the default, which may depend on what is
 // judged.
 type levelFlag struct {
-	v     float64
-	set   bool
-	parse func(string) (float64, error)
+	v   float64
+	set bool
+	// percent says the value was written as a percent: a rate, whatever
+	// metric is judged (an optimal error of 5% for a judged cross-entropy
+	// loss is turned into the entropy of 5% label noise).
+	percent bool
+	parse   func(string) (float64, error)
 }
 
 // levelIn parses a level of a metric not known yet, named what in errors.
@@ -173,6 +177,6 @@ func (r *levelFlag) Set(s string) error {
 	if err != nil {
 		return err
 	}
-	r.v, r.set = v, true
+	r.v, r.set, r.percent = v, true, strings.HasSuffix(strings.TrimSpace(s), "%")
 	return nil
 }

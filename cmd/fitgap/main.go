@@ -22,9 +22,12 @@ package main
 
 import (
 	"context"
+	"flag"
 	"fmt"
 	"io"
 	"os"
+	"slices"
+	"strings"
 )
 
 func main() {
@@ -58,7 +61,7 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 				fmt.Fprint(stdout, c.usage())
 				return nil
 			}
-			return usageErrorf("unknown command %q (see fitgap --help)", rest[0])
+			return usageErrorf("unknown command %q%s (see fitgap --help)", rest[0], suggest(rest[0], commandNames()))
 		}
 		fmt.Fprint(stdout, topUsage())
 		return nil
@@ -70,6 +73,9 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		return c.run(ctx, e, rest)
 	}
 	if len(name) > 1 && name[0] == '-' {
+		if err := unknownFirstFlag(name); err != nil {
+			return err
+		}
 		// A flag before any command: the default command is watch.
 		return watchCommand.run(ctx, e, args)
 	}
@@ -79,4 +85,22 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		}
 	}
 	return watchCommand.run(ctx, e, args)
+}
+
+// unknownFirstFlag answers a first argument that is a flag neither of the
+// default command nor of fitgap itself (--help, --version), suggesting the
+// nearest of them all: "--versoin" is a typo of --version, not a flag of
+// the live screen.
+func unknownFirstFlag(arg string) error {
+	bare, _, _ := strings.Cut(strings.TrimLeft(arg, "-"), "=")
+	fs, _ := watchCommand.newFlagSet()
+	if bare == "" || fs.Lookup(bare) != nil {
+		return nil
+	}
+	names := []string{"help", "version"}
+	if bare == "h" || bare == "v" || slices.Contains(names, bare) {
+		return nil
+	}
+	fs.VisitAll(func(f *flag.Flag) { names = append(names, f.Name) })
+	return usageErrorf("unknown flag --%s%s (see fitgap --help)", bare, suggest(bare, names, "--"))
 }

@@ -189,7 +189,7 @@ func TestFollow_NoticesOnStderr(t *testing.T) {
 	t.Parallel()
 	p := filepath.Join(t.TempDir(), "later.csv")
 	_, stderr, code := runCLI(t, "", "follow", "--idle-exit", "200ms", p)
-	if code != 0 || !strings.Contains(stderr, "waiting for") {
-		t.Errorf("follow on a log not there yet: exit %d, stderr %q; want 0 and the waiting notice", code, stderr)
+	if code != 0 || strings.Count(stderr, "fitgap: waiting for "+p+"\n") != 1 {
+		t.Errorf("follow on a log not there yet: exit %d, stderr %q; want 0 and the waiting notice once", code, stderr)
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"flag"
 	"fmt"
 	"os"
+	"path/filepath"
 	"syscall"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -74,7 +75,9 @@ type screenSpec struct {
 	writerDone <-chan struct{}
 }
 
-// defaultSummaryFile is where the s key saves the summary without --summary.
+// defaultSummaryFile is where the s key saves the summary without
+// --summary, in the current directory; fitgap-summary-2.md and so on when
+// it exists (never overwritten).
 const defaultSummaryFile = "fitgap-summary.md"
 
 // runScreen runs the log's pipeline with the screen as its sink until the
@@ -125,11 +128,16 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 		BayesNote: spec.bayesNote,
 		NoColor:   spec.flags.noColor || os.Getenv("NO_COLOR") != "",
 		SaveSummary: func(s report.Summary) (string, error) {
-			p := outs.summary
-			if p == "" {
-				p = defaultSummaryFile
+			if outs.summary != "" {
+				// The file asked for: the s key and the exit both write it.
+				p, err := filepath.Abs(outs.summary)
+				if err != nil {
+					p = outs.summary
+				}
+				return p, pipeline.SaveSummary(outs.summary, outs.log, s, outs.stop)
 			}
-			return p, pipeline.SaveSummary(p, outs.log, s, outs.stop)
+			// In the current directory, under a name no file has yet.
+			return pipeline.SaveNewSummary(defaultSummaryFile, outs.log, s, outs.stop)
 		},
 	})
 	final, reason, err := tui.Run(ctx, m, feed, closes, stdout)
@@ -222,9 +230,14 @@ func relay(ctx context.Context, run *pipeline.Run, batches <-chan watch.Batch, f
 // screenFeed is an update in the screen's terms. A stop file that could
 // not be created is said with the update that reached stop, at once.
 func screenFeed(run *pipeline.Run, u pipeline.Update) tui.FeedMsg {
-	notices := make([]string, len(u.Notices), len(u.Notices)+1)
-	for i, n := range u.Notices {
-		notices[i] = n.Text
+	notices := make([]string, 0, len(u.Notices)+1)
+	var waits []string
+	for _, n := range u.Notices {
+		if n.Waits() {
+			waits = append(waits, n.Text)
+		} else {
+			notices = append(notices, n.Text)
+		}
 	}
 	if u.Stop != nil && u.Stop.Err != nil {
 		notices = append(notices, diagnose.Printable(stopFailure(u.Stop)))
@@ -234,11 +247,12 @@ func screenFeed(run *pipeline.Run, u pipeline.Update) tui.FeedMsg {
 		examples[i] = x.Error()
 	}
 	return tui.FeedMsg{
-		Points:     u.Points,
-		Judgements: u.Judgements,
-		Rejudged:   u.Rejudged,
-		Steps:      u.Steps,
-		Notices:    notices,
+		Points:      u.Points,
+		Judgements:  u.Judgements,
+		Rejudged:    u.Rejudged,
+		Steps:       u.Steps,
+		Notices:     notices,
+		WaitNotices: waits,
 		Source: tui.SourceInfo{
 			Name:      diagnose.Printable(run.Name()),
 			Format:    u.Stats.Format.String(),
