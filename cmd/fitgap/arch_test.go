@@ -55,6 +55,8 @@ func TestImportArrows(t *testing.T) {
 		{"tui/chart", [][]string{fsnotify, pkgs("watch", "diagnose", "report", "pipeline")}, [][]string{io, {"github.com/charmbracelet/bubbletea"}}},
 		{"trainer", [][]string{charm, fsnotify, pkgs("watch", "tui", "diagnose", "pipeline")}, nil},
 		{"forecast", [][]string{charm, fsnotify, pkgs("watch", "tui", "report", "pipeline")}, [][]string{io}},
+		// The sweep's domain is pure like diagnose: no files, no screen.
+		{"sweep", [][]string{charm, fsnotify, outside, pkgs("watch", "tui", "report", "pipeline")}, [][]string{io}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.pkg, func(t *testing.T) {
