@@ -57,6 +57,9 @@ func TestImportArrows(t *testing.T) {
 		{"forecast", [][]string{charm, fsnotify, pkgs("watch", "tui", "report", "pipeline")}, [][]string{io}},
 		// The sweep's domain is pure like diagnose: no files, no screen.
 		{"sweep", [][]string{charm, fsnotify, outside, pkgs("watch", "tui", "report", "pipeline")}, [][]string{io}},
+		// Discovery reads directories and configuration files; logs only
+		// through watch.
+		{"sweep/discover", [][]string{charm, outside, pkgs("tui", "report", "pipeline")}, nil},
 	}
 	for _, tt := range tests {
 		t.Run(tt.pkg, func(t *testing.T) {
