@@ -72,6 +72,15 @@ func (c *Curve) upTo(t int) int {
 	return sort.Search(len(c.epochs), func(i int) bool { return int(c.epochs[i]) > t }) - 1
 }
 
+// IndexOf returns the index of the first point at or after epoch e: where
+// points from e on start (Len when none).
+func (c *Curve) IndexOf(e int) int {
+	if e <= math.MinInt32 {
+		return 0
+	}
+	return c.upTo(e-1) + 1
+}
+
 // MeanBy returns the running mean of the finite values at epochs up to t;
 // false when there is none.
 func (c *Curve) MeanBy(t int) (float64, bool) {

@@ -154,7 +154,7 @@ type Row struct {
 }
 
 // Hopeless reports whether a rule flags the run.
-func (r *Row) Hopeless() bool { return len(r.Flags) > 0 }
+func (r Row) Hopeless() bool { return len(r.Flags) > 0 }
 
 // Evaluate judges the sweep as of now: each run's state, the sweep's
 // metric, the ranks and the rules' flags. Rows and the other results read

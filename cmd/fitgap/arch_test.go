@@ -60,6 +60,8 @@ func TestImportArrows(t *testing.T) {
 		// Discovery reads directories and configuration files; logs only
 		// through watch.
 		{"sweep/discover", [][]string{charm, outside, pkgs("tui", "report", "pipeline")}, nil},
+		// The live sweep drives pipelines; the screen is the command's.
+		{"sweep/live", [][]string{charm, outside, pkgs("tui")}, nil},
 	}
 	for _, tt := range tests {
 		t.Run(tt.pkg, func(t *testing.T) {

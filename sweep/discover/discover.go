@@ -211,6 +211,22 @@ func (f *Finder) Dirs() []string {
 	return out
 }
 
+// PendingDirs returns the directories holding files that may become logs
+// (an empty file, a console log before its first metric): where polling
+// must look again, since a file's growth changes no directory.
+func (f *Finder) PendingDirs() []string {
+	set := map[string]bool{}
+	for p := range f.pending {
+		set[filepath.Dir(p)] = true
+	}
+	out := make([]string, 0, len(set))
+	for d := range set {
+		out = append(out, d)
+	}
+	sort.Strings(out)
+	return out
+}
+
 // Notices returns the problems met since the last call (a configuration
 // file that does not parse, a walk cut short), and forgets them.
 func (f *Finder) Notices() []string {
