@@ -15,21 +15,36 @@ import (
 
 var reportCommand = &command{
 	name:    "report",
-	args:    "FILE",
-	summary: "read a whole log and print the snapshot summary (Markdown, or --json)",
+	args:    "FILE | DIR | LOG... | 'GLOB'",
+	summary: "read a whole log and print the snapshot summary (Markdown, or --json); a sweep's runs ranked",
 	about: `Reads the whole log (CSV/TSV, JSON Lines or console text; FILE "-" reads standard
 input), judges every evaluation point and prints the summary as of the last one.
+Given a directory, several logs or a glob (runs/*/metrics.csv, ** for any
+depth), it reads every run of the sweep and prints them ranked: state, best
+value, diagnosis, stop signal, the hyperparameters that differ, the runs the
+median rule or successive halving's rungs find hopeless, and what most runs
+say about the problem (--json: the sweep and one object per run).
 Exit status 0 after a report; 2 on a usage error or an unreadable or empty log.`,
 	example: `  fitgap report --bayes-error 4% runs/resnet-small.csv
-  fitgap report --json --val-size 5000 train.log | jq .diagnosis`,
+  fitgap report --json --val-size 5000 train.log | jq .diagnosis
+  fitgap report runs/`,
 	flags: func(fs *flag.FlagSet) func(context.Context, *env, []string) error {
 		var (
 			log    logFlags
+			sw     sweepFlags
 			asJSON bool
 		)
 		log.register(fs)
+		sw.register(fs)
 		fs.BoolVar(&asJSON, "json", false, "print one JSON object instead of Markdown")
 		return func(ctx context.Context, e *env, args []string) error {
+			if isSweep(args) {
+				opts, err := sweepOptions(args, &log, &sw, false)
+				if err != nil {
+					return err
+				}
+				return runSweepReport(ctx, e, opts, asJSON)
+			}
 			path, opts, cfg, err := log.parse(args, false)
 			if err != nil {
 				return err
