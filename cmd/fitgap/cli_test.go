@@ -33,7 +33,7 @@ func TestRun_UsageErrors(t *testing.T) {
 		{"UnknownFlagOnDefaultCommand", []string{"--bayes", "x.csv"}, exitUsage, "did you mean --bayes-error?"},
 		{"BadRate", []string{"report", "--bayes-error", "abc", "x.csv"}, exitUsage, "--bayes-error"},
 		{"NoFile", []string{"report"}, exitUsage, "no log given"},
-		{"TwoFiles", []string{"report", "a.csv", "b.csv"}, exitUsage, "one log at a time"},
+		{"TwoMissingFiles", []string{"report", "a.csv", "b.csv"}, exitUsage, `a.csv: open log "a.csv": no such file`},
 		{"BadFormat", []string{"report", "--format", "xml", "x.csv"}, exitUsage, "--format"},
 		{"DemoBadScenario", []string{"demo", "--scenario", "nope"}, exitUsage, "--scenario"},
 		{"HelpUnknown", []string{"help", "nope"}, exitUsage, "unknown command"},

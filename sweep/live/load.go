@@ -45,8 +45,21 @@ func (s *Sweep) Load(ctx context.Context) error {
 	close(work)
 	wg.Wait()
 	s.mu.Lock()
+	defer s.mu.Unlock()
 	s.dom.Evaluate(s.now())
-	s.mu.Unlock()
+	judged := 0
+	for _, r := range s.dom.Rows() {
+		if r.Points > 0 {
+			judged++
+		}
+	}
+	if judged == 0 && ctx.Err() == nil {
+		why := ""
+		if len(s.notices) > 0 {
+			why = "; " + s.notices[0]
+		}
+		return fmt.Errorf("%s: no evaluation points in the %d run(s) found%s", s.finder.Root(), len(runs), why)
+	}
 	return ctx.Err()
 }
 
