@@ -18,6 +18,9 @@ type keyMap struct {
 	Quit    key.Binding
 	Abort   key.Binding
 	Suspend key.Binding
+	// Back goes back to the run table; enabled only for a run opened
+	// from a sweep (Options.Back).
+	Back key.Binding
 
 	// While typing an optimal error.
 	Accept key.Binding
@@ -39,6 +42,7 @@ func newKeyMap() keyMap {
 		Quit:    key.NewBinding(key.WithKeys("q"), key.WithHelp("q", "quit")),
 		Abort:   key.NewBinding(key.WithKeys("ctrl+c"), key.WithHelp("ctrl+c", "quit (interrupted)")),
 		Suspend: key.NewBinding(key.WithKeys("ctrl+z"), key.WithHelp("ctrl+z", "suspend (fg resumes)")),
+		Back:    key.NewBinding(key.WithKeys("esc", "backspace"), key.WithHelp("esc", "back to all runs"), key.WithDisabled()),
 		Accept:  key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "apply")),
 		Cancel:  key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel")),
 	}
@@ -59,19 +63,28 @@ func (k keyMap) shortHelp() ([]key.Binding, []int) {
 		return key.NewBinding(key.WithKeys(b.Keys()...), key.WithHelp(b.Help().Key, desc))
 	}
 	inspect := key.NewBinding(key.WithKeys("left", "right"), key.WithHelp("←/→", "inspect"))
-	return []key.Binding{
-			short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"),
-			short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "keys"), short(k.Quit, "quit"),
-		},
-		[]int{3, 4, 5, 7, 6, 8, 1, 0}
+	binds := []key.Binding{
+		short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"),
+		short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "keys"), short(k.Quit, "quit"),
+	}
+	rank := []int{3, 4, 5, 7, 6, 8, 1, 0}
+	if k.Back.Enabled() {
+		binds = append([]key.Binding{short(k.Back, "runs")}, binds...)
+		rank = append([]int{2}, rank...)
+	}
+	return binds, rank
 }
 
 // FullHelp is the key list shown by `?`, in columns.
 func (k keyMap) FullHelp() [][]key.Binding {
+	last := []key.Binding{k.Help, k.Quit, k.Abort, k.Suspend}
+	if k.Back.Enabled() {
+		last = append([]key.Binding{k.Back}, last...)
+	}
 	return [][]key.Binding{
 		{k.Pause, k.Prev, k.Next, k.First, k.Last},
 		{k.Metric, k.LogY, k.Optimal, k.Save},
-		{k.Help, k.Quit, k.Abort, k.Suspend},
+		last,
 	}
 }
 

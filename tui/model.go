@@ -117,6 +117,9 @@ type Options struct {
 	SaveSummary func(report.Summary) (string, error)
 	// Now is the clock; nil means time.Now. Tests fix it.
 	Now func() time.Time
+	// Back shows the key back to the run table (a run opened from a
+	// sweep's table; the table handles the key).
+	Back bool
 }
 
 // ExitReason says why the screen closed.
@@ -230,6 +233,7 @@ func New(opts Options) Model {
 	if m.hist == nil {
 		m.hist = ownHistory{diagnose.New(opts.Config)}
 	}
+	m.keys.Back.SetEnabled(opts.Back)
 	m.setRenderer(lipgloss.DefaultRenderer())
 	return m
 }
