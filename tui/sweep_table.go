@@ -45,7 +45,7 @@ type tableCol struct {
 const (
 	maxRunWidth   = 32
 	minRunWidth   = 10
-	runShrinkTo   = 18
+	runShrinkTo   = 24
 	maxParamWidth = 14
 	maxFlagWidth  = 24
 	colGap        = 2
@@ -73,16 +73,16 @@ func columns(rows []sweep.Row, differing []string) []tableCol {
 		{id: tcRank, title: "#", width: 3, right: true, drop: 0},
 		{id: tcRun, title: "run", width: runW, drop: 0},
 		{id: tcState, title: "state", width: 8, drop: 7},
-		{id: tcEpoch, title: "epoch", width: 7, right: true, drop: 9},
+		{id: tcEpoch, title: "epoch", width: 7, right: true, drop: 8},
 		{id: tcBest, title: "best (ep)", width: 13, right: true, drop: 1},
-		{id: tcNow, title: "now", width: 6, right: true, drop: 10},
-		{id: tcDiagnosis, title: "diagnosis", width: 14, drop: 8},
-		{id: tcSignal, title: "signal", width: 8, drop: 11},
+		{id: tcNow, title: "now", width: 6, right: true, drop: 9},
+		{id: tcDiagnosis, title: "diagnosis", width: 14, drop: 4},
+		{id: tcSignal, title: "signal", width: 8, drop: 10},
 	}
-	// The first three differing hyperparameters go after the flags and
-	// before the run's state; more go first.
+	// The first differing hyperparameter goes after the flags, the next
+	// two after the diagnosis, the others first of all.
 	for i, k := range differing {
-		drop := 3 + i
+		drop := []int{3, 5, 6}[min(i, 2)]
 		if i >= 3 {
 			drop = 12 + i
 		}
