@@ -68,7 +68,9 @@ func (r demoSweepRun) config(base trainer.Config) trainer.Config {
 }
 
 // demoSweepDir names run i's directory.
-func demoSweepDir(root string, i int) string { return filepath.Join(root, fmt.Sprintf("run-%02d", i+1)) }
+func demoSweepDir(root string, i int) string {
+	return filepath.Join(root, fmt.Sprintf("run-%02d", i+1))
+}
 
 // trainSweep trains the demo's runs into root, parallel at a time, each
 // in its own directory with its settings in hparams.json, calling ended
