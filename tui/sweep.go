@@ -26,6 +26,9 @@ type SweepSource interface {
 	Polling() (int, string)
 	// DataOptions are the data forecast's options.
 	DataOptions() forecast.DataOptions
+	// Progress says how many runs' logs were read to their end once, of
+	// how many found.
+	Progress() (read, total int)
 }
 
 // RunScreen is a run opened from the table: its judged history and a feed

@@ -43,6 +43,8 @@ type snapshot struct {
 	notices   []string
 	polled    int
 	pollWhy   string
+	read      int
+	total     int
 	// curves are the validation curves of the runs the chart shows.
 	curves map[int][]chart.Point
 }
@@ -81,6 +83,7 @@ func (t *tableState) read(src SweepSource) {
 	})
 	s.notices = src.Notices()
 	s.polled, s.pollWhy = src.Polling()
+	s.read, s.total = src.Progress()
 	t.snap = s
 	t.reorder()
 	want := t.chartRuns()

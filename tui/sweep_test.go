@@ -24,6 +24,7 @@ type fakeSweep struct {
 	notices  []string
 	polled   int
 	why      string
+	unread   int
 }
 
 func (f *fakeSweep) Read(fn func(*sweep.Sweep)) {
@@ -34,6 +35,7 @@ func (f *fakeSweep) Read(fn func(*sweep.Sweep)) {
 func (f *fakeSweep) Notices() []string                 { return f.notices }
 func (f *fakeSweep) Polling() (int, string)            { return f.polled, f.why }
 func (f *fakeSweep) DataOptions() forecast.DataOptions { return forecast.DataOptions{} }
+func (f *fakeSweep) Progress() (int, int)              { return f.s.Len() - f.unread, f.s.Len() }
 
 // sweepRun is an invented run of a sweep.
 type sweepRun struct {
@@ -307,8 +309,12 @@ func TestSweepView_Notices(t *testing.T) {
 	src := newFakeSweep(t, runs)
 	src.polled, src.why = 12, "the kernel's limit fs.inotify.max_user_watches = 8192 is reached"
 	src.notices = []string{"a\x1b[2Jb: cannot read"}
+	src.unread = 3
 	m := newSweepModel(t, src, 140, 40, SweepOptions{})
 	v := m.View()
+	if !strings.Contains(v, "reading 5/8") {
+		t.Errorf("no reading progress:\n%s", v)
+	}
 	if !strings.Contains(v, "polling 12 run directories instead of watching them: the kernel's limit fs.inotify.max_user_watches") {
 		t.Errorf("no polling notice:\n%s", v)
 	}

@@ -165,6 +165,9 @@ func (m *SweepModel) statusLine() string {
 		}
 	}
 	parts := []string{strconv.Itoa(len(t.snap.rows)) + " runs"}
+	if t.snap.read < t.snap.total {
+		parts = append(parts, st.Watch.Render("reading "+strconv.Itoa(t.snap.read)+"/"+strconv.Itoa(t.snap.total)))
+	}
 	for _, s := range []sweep.State{sweep.Live, sweep.Quiet, sweep.Finished, sweep.Waiting, sweep.Removed} {
 		if n := counts[s]; n > 0 {
 			parts = append(parts, strconv.Itoa(n)+" "+s.String())

@@ -35,6 +35,8 @@ type entry struct {
 	// batches that brought points, for the run's pace.
 	added    time.Time
 	arrivals []time.Time
+	// read: the first batch came, so the log was read to its end once.
+	read bool
 }
 
 // params are the run's hyperparameters: discovery's, then the log's

@@ -138,6 +138,10 @@ func (s *Sweep) apply(b watch.Tagged) Update {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	e := s.runs[b.Tag]
+	if !e.read {
+		e.read = true
+		s.read++
+	}
 	u := Update{Run: e.id, Name: e.found.Name}
 	fromEpoch, revision := math.MaxInt, uint64(0)
 	e.run.Read(func(t *diagnose.Tracker) { revision = t.Revision() })

@@ -72,6 +72,8 @@ type Sweep struct {
 	ctx     context.Context
 	// observed are the directories already watched for new runs.
 	observed map[string]bool
+	// read counts the runs whose log was read to its end once.
+	read int
 }
 
 // maxNotices bounds the notices kept for the screen.
@@ -152,6 +154,14 @@ func (s *Sweep) Polling() (int, string) {
 	return g.Polling()
 }
 
+// Progress says how many runs' logs were read to their end once, of how
+// many found: the table is complete when they are equal.
+func (s *Sweep) Progress() (read, total int) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.read, len(s.runs)
+}
+
 // Path returns run id's log.
 func (s *Sweep) Path(id int) string {
 	s.mu.Lock()
@@ -219,6 +229,8 @@ func (s *Sweep) add(found []discover.Run, u *Update) {
 		if s.group != nil {
 			if err := s.group.FollowTagged(s.ctx, e.id, f.Path, s.opts.Read, s.tagged); err != nil {
 				s.notice(fmt.Sprintf("%s: %v", f.Name, err))
+				e.read = true // nothing to wait for
+				s.read++
 			}
 		}
 	}

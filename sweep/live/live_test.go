@@ -157,6 +157,9 @@ func TestSweep_Follow(t *testing.T) {
 		}
 	}()
 	waitFor(t, c, "two runs read", func() bool { r := rowsByName(s); return r["a"].Epoch == 2 && r["b"].Epoch == 2 })
+	if read, total := s.Progress(); read != 2 || total != 2 {
+		t.Errorf("progress %d/%d", read, total)
+	}
 	// Epoch 3 is the first rung; a late run c joins, worst of all.
 	appendLine(t, a, epochLine(3, 0.5, 0.1))
 	appendLine(t, b, epochLine(3, 0.5, 0.4))

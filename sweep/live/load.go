@@ -71,6 +71,8 @@ func (s *Sweep) loadOne(ctx context.Context, e *entry) {
 	if err != nil {
 		s.mu.Lock()
 		s.notice(fmt.Sprintf("%s: %v", e.found.Name, err))
+		e.read = true
+		s.read++
 		s.mu.Unlock()
 		return
 	}
@@ -100,6 +102,8 @@ func (s *Sweep) loadOne(ctx context.Context, e *entry) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	e.stats, e.consts, e.total = last.Stats, c, total
+	e.read = true
+	s.read++
 	s.dom.SetParams(e.id, e.params())
 	s.observeFrom(e, math.MinInt, revisionOf(e))
 }
