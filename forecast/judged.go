@@ -91,12 +91,15 @@ func TrainSize(pts []diagnose.Point) (float64, bool) {
 // case, - or space for _), the names training scripts give it (common
 // practice).
 func IsTrainSizeName(name string) bool {
-	switch strings.NewReplacer("-", "_", " ", "_").Replace(strings.ToLower(strings.TrimSpace(name))) {
+	switch nameSeparators.Replace(strings.ToLower(strings.TrimSpace(name))) {
 	case "train_size", "n_train", "num_train", "train_examples", "train_samples", "n_train_samples", "num_train_samples":
 		return true
 	}
 	return false
 }
+
+// nameSeparators are the separators IsTrainSizeName reads as "_".
+var nameSeparators = strings.NewReplacer("-", "_", " ", "_")
 
 // IsLearningRate reports whether a column name is a learning rate as
 // training scripts name it: lr, learning_rate (any case, - or space for

@@ -1,8 +1,9 @@
 package sweep
 
 import (
+	"cmp"
 	"math"
-	"sort"
+	"slices"
 )
 
 // Successive halving (Jamieson and Talwalkar, "Non-stochastic Best Arm
@@ -97,24 +98,33 @@ type rungEntry struct {
 // Halving judges every run by the rungs, each at the highest rung it has
 // reached. curves[id] is run id's curve (nil for a run not compared).
 func Halving(r Rungs, curves []*Curve) map[int]RungCheck {
+	return halving(r, curves, func(id, e int) (float64, bool) {
+		_, v, ok := curves[id].From(e)
+		return v, ok
+	})
+}
+
+// halving is Halving with the value of run id at rung epoch e given by at
+// (the sweep keeps each run's rung values between evaluations).
+func halving(r Rungs, curves []*Curve, at func(id, e int) (float64, bool)) map[int]RungCheck {
 	out := map[int]RungCheck{}
 	if !r.valid() {
 		return out
 	}
 	// The rung each run is judged at.
-	at := map[int][]int{} // rung → ids judged there
+	judged := map[int][]int{} // rung → ids judged there
 	top := -1
 	for id, c := range curves {
 		if c == nil || c.Len() == 0 {
 			continue
 		}
 		if k := r.Highest(c.LastEpoch()); k >= 0 {
-			at[k] = append(at[k], id)
+			judged[k] = append(judged[k], id)
 			top = max(top, k)
 		}
 	}
 	for k := 0; k <= top; k++ {
-		if len(at[k]) == 0 {
+		if len(judged[k]) == 0 {
 			continue
 		}
 		e, _ := r.Epoch(k)
@@ -125,14 +135,19 @@ func Halving(r Rungs, curves []*Curve) map[int]RungCheck {
 			if c == nil {
 				continue
 			}
-			if _, v, ok := c.From(e); ok {
+			if v, ok := at(id, e); ok {
 				if !finite(v) {
 					v = math.Inf(1) // a diverged run ranks last
 				}
 				rung = append(rung, rungEntry{id, v})
 			}
 		}
-		sort.SliceStable(rung, func(i, j int) bool { return rung[i].v < rung[j].v })
+		slices.SortFunc(rung, func(a, b rungEntry) int {
+			if c := cmp.Compare(a.v, b.v); c != 0 {
+				return c
+			}
+			return a.id - b.id
+		})
 		keep := len(rung) / r.Eta
 		bar := math.NaN()
 		if keep > 0 {
@@ -142,8 +157,8 @@ func Halving(r Rungs, curves []*Curve) map[int]RungCheck {
 		for i, x := range rung {
 			place[x.id] = i + 1
 		}
-		for _, id := range at[k] {
-			_, v, _ := curves[id].From(e)
+		for _, id := range judged[k] {
+			v, _ := at(id, e)
 			chk := RungCheck{Rung: k, Epoch: e, Value: v, Place: place[id], Reached: len(rung), Keep: keep, Bar: bar}
 			// Ties with the last run kept are kept.
 			chk.Hopeless = keep > 0 && chk.Place > keep && !(finite(v) && v <= bar)

@@ -39,25 +39,41 @@ type MedianCheck struct {
 // whose values are all non-finite (diverged from the start) has no best
 // value and is judged worse than any median.
 func Median(run *Curve, completed []*Curve) (MedianCheck, bool) {
-	t := run.LastEpoch()
 	if run.Len() == 0 {
 		return MedianCheck{}, false
 	}
-	means := make([]float64, 0, len(completed))
+	med, n, ok := MedianAt(run.LastEpoch(), completed, nil)
+	if !ok {
+		return MedianCheck{}, false
+	}
+	return medianCheck(run, med, n), true
+}
+
+// MedianAt returns the median of the completed runs' running means up to
+// epoch t and how many runs it took; false when none has a value by t.
+// scratch, when not nil, is reused for the means.
+func MedianAt(t int, completed []*Curve, scratch []float64) (med float64, n int, ok bool) {
+	means := scratch[:0]
 	for _, c := range completed {
 		if m, ok := c.MeanBy(t); ok {
 			means = append(means, m)
 		}
 	}
 	if len(means) == 0 {
-		return MedianCheck{}, false
+		return 0, 0, false
 	}
-	med := median(means)
+	return median(means), len(means), true
+}
+
+// medianCheck judges run, at its latest epoch, against the median med of
+// n completed runs.
+func medianCheck(run *Curve, med float64, n int) MedianCheck {
+	t := run.LastEpoch()
 	best, ok := run.BestBy(t)
 	if !ok {
 		best = math.Inf(1)
 	}
-	return MedianCheck{Epoch: t, Best: best, Median: med, Completed: len(means), Hopeless: best > med}, true
+	return MedianCheck{Epoch: t, Best: best, Median: med, Completed: n, Hopeless: best > med}
 }
 
 // median returns the median of v, the mean of the two middle values for

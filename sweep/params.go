@@ -153,8 +153,11 @@ func normKey(k string) string {
 	if i := strings.LastIndexByte(k, '.'); i >= 0 {
 		k = k[i+1:]
 	}
-	return strings.NewReplacer("-", "_", " ", "_").Replace(k)
+	return keySeparators.Replace(k)
 }
+
+// keySeparators are the separators normKey folds into "_".
+var keySeparators = strings.NewReplacer("-", "_", " ", "_")
 
 // TrainSize returns the training-set size a run's params give, if any.
 func (p Params) TrainSize() (float64, bool) {

@@ -1,11 +1,14 @@
 package sweep
 
 import (
+	"cmp"
+	"slices"
 	"sort"
 	"strings"
 	"time"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/forecast"
 )
 
 // Config chooses the rules that flag hopeless runs.
@@ -50,6 +53,12 @@ type run struct {
 	// created because the run was flagged (not for its own early stop).
 	stopFile    string
 	stopForFlag bool
+	// Cached between evaluations: the run's length (from the log or its
+	// params) and its values at the rungs, made again when the curve or
+	// the params change.
+	length     int
+	rungVals   []float64 // value at rung k; NaN: not reached
+	rungsStale bool
 }
 
 // Sweep holds the runs of a sweep and judges them side by side. It is not
@@ -64,6 +73,26 @@ type Sweep struct {
 	metric    diagnose.Metric
 	differing []string
 	dirty     bool // data changed since the rules were last applied
+	// gen counts the evaluations that changed something; the data
+	// forecast is kept for the generation and options it was made for.
+	gen      uint64
+	dataGen  uint64
+	dataOpts forecast.DataOptions
+	dataOK   bool
+	data     forecast.DataForecast
+	// paramsDirty: params changed since Differing was worked out.
+	paramsDirty bool
+	// medians caches the median rule's median by epoch while the finished
+	// runs and their curves stay the same; finished is that set.
+	medians  map[int]medianAt
+	finished []int
+}
+
+// medianAt is the median rule's median at one epoch.
+type medianAt struct {
+	v  float64
+	n  int
+	ok bool
 }
 
 // New returns an empty sweep judged with cfg.
@@ -74,8 +103,10 @@ func (s *Sweep) Config() Config { return s.cfg }
 
 // Add adds a run and returns its id (0, 1, …). name is untrusted text.
 func (s *Sweep) Add(name string, p Params) int {
-	s.runs = append(s.runs, &run{name: name, params: Sorted(append(Params(nil), p...))})
-	s.dirty = true
+	r := &run{name: name, params: Sorted(append(Params(nil), p...)), rungsStale: true}
+	r.length = r.total()
+	s.runs = append(s.runs, r)
+	s.dirty, s.paramsDirty = true, true
 	return len(s.runs) - 1
 }
 
@@ -87,8 +118,10 @@ func (s *Sweep) Name(id int) string { return s.runs[id].name }
 
 // SetParams replaces run id's hyperparameters.
 func (s *Sweep) SetParams(id int, p Params) {
-	s.runs[id].params = Sorted(append(Params(nil), p...))
-	s.dirty = true
+	r := s.runs[id]
+	r.params = Sorted(append(Params(nil), p...))
+	r.length = r.total()
+	s.dirty, s.paramsDirty = true, true
 }
 
 // Params returns run id's hyperparameters.
@@ -96,7 +129,9 @@ func (s *Sweep) Params(id int) Params { return s.runs[id].params }
 
 // Observe records what the caller knows of run id now.
 func (s *Sweep) Observe(id int, o Observation) {
-	s.runs[id].obs = o
+	r := s.runs[id]
+	r.obs = o
+	r.length = r.total()
 	s.dirty = true
 }
 
@@ -104,11 +139,22 @@ func (s *Sweep) Observe(id int, o Observation) {
 // Curve.Set).
 func (s *Sweep) SetCurve(id, from int, epochs []int, vals []float64) {
 	s.runs[id].curve.Set(from, epochs, vals)
+	s.CurveChanged(id)
+}
+
+// CurveChanged says that the caller changed run id's curve in place
+// (through Curve).
+func (s *Sweep) CurveChanged(id int) {
+	s.runs[id].rungsStale = true
 	s.dirty = true
+	if _, ok := slices.BinarySearch(s.finished, id); ok {
+		s.medians = nil // a finished run's running means changed
+	}
 }
 
 // Curve returns run id's validation curve; the caller must not keep it
-// past its next call into the Sweep.
+// past its next call into the Sweep, and calls CurveChanged after
+// changing it.
 func (s *Sweep) Curve(id int) *Curve { return &s.runs[id].curve }
 
 // MarkStopFile records that a stop file was created for run id, and
@@ -158,8 +204,10 @@ func (r Row) Hopeless() bool { return len(r.Flags) > 0 }
 
 // Evaluate judges the sweep as of now: each run's state, the sweep's
 // metric, the ranks and the rules' flags. Rows and the other results read
-// what it found.
-func (s *Sweep) Evaluate(now time.Time) {
+// what it found. It reports whether anything changed since the last call
+// (new data, or a state that time changed); when nothing did, it does no
+// more than work out the states.
+func (s *Sweep) Evaluate(now time.Time) bool {
 	states := s.states(now)
 	changed := s.dirty || len(s.rows) != len(s.runs)
 	for id := range s.runs {
@@ -169,7 +217,7 @@ func (s *Sweep) Evaluate(now time.Time) {
 		}
 	}
 	if !changed {
-		return
+		return false
 	}
 	s.dirty = false
 	s.rows = s.rows[:0]
@@ -179,7 +227,7 @@ func (s *Sweep) Evaluate(now time.Time) {
 	for id, r := range s.runs {
 		j := r.obs.Latest
 		row := Row{ID: id, Name: r.name, State: states[id], Epoch: r.curve.LastEpoch(), Points: r.obs.Points,
-			Total: r.total(), Judged: j.Judged() && r.obs.Points > 0, Params: r.params, StopFile: r.stopFile}
+			Total: r.length, Judged: j.Judged() && r.obs.Points > 0, Params: r.params, StopFile: r.stopFile}
 		if row.Judged {
 			row.Metric, row.Diagnosis, row.Signal = j.Metric, j.Diagnosis, j.EarlyStop.Signal
 			row.Best, row.BestEpoch, row.Now = j.EarlyStop.BestVal, j.EarlyStop.BestEpoch, j.Val.Smooth
@@ -213,22 +261,30 @@ func (s *Sweep) Evaluate(now time.Time) {
 			ranked = append(ranked, id)
 		}
 	}
-	sort.SliceStable(ranked, func(a, b int) bool {
-		ra, rb := &s.rows[ranked[a]], &s.rows[ranked[b]]
-		if ra.Best.V != rb.Best.V {
-			return ra.Best.V < rb.Best.V
+	slices.SortFunc(ranked, func(a, b int) int {
+		ra, rb := &s.rows[a], &s.rows[b]
+		if c := cmp.Compare(ra.Best.V, rb.Best.V); c != 0 {
+			return c
 		}
-		return ra.Name < rb.Name
+		if c := strings.Compare(ra.Name, rb.Name); c != 0 {
+			return c
+		}
+		return a - b
 	})
 	for i, id := range ranked {
 		s.rows[id].Rank = i + 1
 	}
 	s.applyRules()
-	params := make([]Params, len(s.runs))
-	for id, r := range s.runs {
-		params[id] = r.params
+	if s.paramsDirty {
+		s.paramsDirty = false
+		params := make([]Params, len(s.runs))
+		for id, r := range s.runs {
+			params[id] = r.params
+		}
+		s.differing = Differing(params)
 	}
-	s.differing = Differing(params)
+	s.gen++
+	return true
 }
 
 // total is the run's length: announced by the log, else its params'.
@@ -279,7 +335,7 @@ func (r *run) state(now time.Time, fallbackPace time.Duration) State {
 	case o.Ended:
 		return Finished
 	}
-	if t := r.total(); t > 0 && r.curve.LastEpoch() >= t {
+	if t := r.length; t > 0 && r.curve.LastEpoch() >= t {
 		return Finished
 	}
 	pace := o.Pace
@@ -299,6 +355,7 @@ func (r *run) state(now time.Time, fallbackPace time.Duration) State {
 func (s *Sweep) applyRules() {
 	curves := make([]*Curve, len(s.runs))
 	var completed []*Curve
+	var finished []int
 	for id := range s.rows {
 		if !s.rows[id].Comparable {
 			continue
@@ -306,23 +363,39 @@ func (s *Sweep) applyRules() {
 		curves[id] = &s.runs[id].curve
 		if s.rows[id].State == Finished {
 			completed = append(completed, curves[id])
+			finished = append(finished, id)
 		}
+	}
+	if !slices.Equal(finished, s.finished) {
+		s.finished, s.medians = finished, nil
+	}
+	if s.medians == nil {
+		s.medians = map[int]medianAt{}
 	}
 	var rungs map[int]RungCheck
 	if s.cfg.UseRungs {
-		rungs = Halving(s.cfg.Rungs, curves)
+		rungs = halving(s.cfg.Rungs, curves, s.rungValue)
 	}
 	first := s.cfg.Rungs.First
 	if first < 1 {
 		first = DefaultFirstRung
 	}
+	var scratch []float64
 	for id := range s.rows {
 		row := &s.rows[id]
 		if curves[id] == nil || row.State == Finished {
 			continue
 		}
-		if s.cfg.Median && row.Epoch >= first {
-			if m, ok := Median(curves[id], completed); ok && m.Hopeless {
+		if s.cfg.Median && row.Epoch >= first && len(completed) > 0 && curves[id].Len() > 0 {
+			// The median depends only on the epoch: runs at the same epoch
+			// (most of a sweep started together) share one.
+			t := curves[id].LastEpoch()
+			md, seen := s.medians[t]
+			if !seen {
+				md.v, md.n, md.ok = MedianAt(t, completed, scratch)
+				s.medians[t] = md
+			}
+			if m := medianCheck(curves[id], md.v, md.n); md.ok && m.Hopeless {
 				row.Flags = append(row.Flags, Flag{Rule: RuleMedian, Epoch: m.Epoch, Value: m.Best, Bar: m.Median, Count: m.Completed})
 			}
 		}
@@ -331,6 +404,30 @@ func (s *Sweep) applyRules() {
 				Count: c.Reached, Rung: c.Rung, Place: c.Place, Keep: c.Keep})
 		}
 	}
+}
+
+// rungValue is run id's value at rung epoch e, from the run's cached rung
+// values (made again after its curve changed).
+func (s *Sweep) rungValue(id, e int) (float64, bool) {
+	r := s.runs[id]
+	if r.rungsStale {
+		r.rungsStale = false
+		r.rungVals = r.rungVals[:0]
+		for k := 0; ; k++ {
+			re, ok := s.cfg.Rungs.Epoch(k)
+			if !ok || re > r.curve.LastEpoch() {
+				break
+			}
+			_, v, _ := r.curve.From(re)
+			r.rungVals = append(r.rungVals, v)
+		}
+	}
+	for k := range r.rungVals {
+		if re, _ := s.cfg.Rungs.Epoch(k); re == e {
+			return r.rungVals[k], true
+		}
+	}
+	return 0, false
 }
 
 // Rows returns the rows of the last Evaluate, by run id. The slice is the
@@ -350,17 +447,20 @@ func (s *Sweep) Ranked() []int {
 	for i := range ids {
 		ids[i] = i
 	}
-	sort.SliceStable(ids, func(a, b int) bool {
-		ra, rb := &s.rows[ids[a]], &s.rows[ids[b]]
+	slices.SortFunc(ids, func(a, b int) int {
+		ra, rb := &s.rows[a], &s.rows[b]
 		switch {
 		case ra.Rank > 0 && rb.Rank > 0:
-			return ra.Rank < rb.Rank
+			return ra.Rank - rb.Rank
 		case ra.Rank > 0:
-			return true
+			return -1
 		case rb.Rank > 0:
-			return false
+			return 1
 		}
-		return strings.Compare(ra.Name, rb.Name) < 0
+		if c := strings.Compare(ra.Name, rb.Name); c != 0 {
+			return c
+		}
+		return a - b
 	})
 	return ids
 }

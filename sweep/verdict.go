@@ -101,6 +101,15 @@ func (v Verdict) Text() string {
 // runs do not differ in size; the forecast may still refuse (too few
 // sizes) and says why in its Phrase.
 func (s *Sweep) DataForecast(opts forecast.DataOptions) (forecast.DataForecast, bool) {
+	if s.gen != 0 && s.dataGen == s.gen && s.dataOpts == opts {
+		return s.data, s.dataOK // the same runs: the same fit
+	}
+	s.data, s.dataOK = s.dataForecast(opts)
+	s.dataGen, s.dataOpts = s.gen, opts
+	return s.data, s.dataOK
+}
+
+func (s *Sweep) dataForecast(opts forecast.DataOptions) (forecast.DataForecast, bool) {
 	best := map[float64]float64{}
 	var sizes []float64
 	for i := range s.rows {

@@ -82,6 +82,7 @@ type SweepModel struct {
 
 	dirty       bool
 	tickPending bool
+	lastBuild   time.Time // when the table was last rebuilt, by the clock
 	feed        <-chan SweepMsg
 	ended       bool
 

@@ -1,7 +1,7 @@
 package tui
 
 import (
-	"sort"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -235,25 +235,34 @@ func orderRows(rows []sweep.Row, k sortKey, desc bool, query string) []int {
 			order = append(order, i)
 		}
 	}
-	sort.SliceStable(order, func(x, y int) bool {
-		a, b := &rows[order[x]], &rows[order[y]]
+	slices.SortFunc(order, func(x, y int) int {
+		a, b := &rows[x], &rows[y]
 		c, ma, mb := compareRows(k, a, b)
 		switch {
 		case ma != mb:
-			return mb // the row with a value first
+			if mb {
+				return -1 // the row with a value first
+			}
+			return 1
 		case c != 0:
 			if desc {
-				return c > 0
+				return -c
 			}
-			return c < 0
+			return c
 		}
 		if (a.Rank > 0) != (b.Rank > 0) {
-			return a.Rank > 0
+			if a.Rank > 0 {
+				return -1
+			}
+			return 1
 		}
 		if a.Rank != b.Rank {
-			return a.Rank < b.Rank
+			return a.Rank - b.Rank
 		}
-		return a.Name < b.Name
+		if c := strings.Compare(a.Name, b.Name); c != 0 {
+			return c
+		}
+		return x - y
 	})
 	return order
 }

@@ -22,6 +22,10 @@ func (m SweepModel) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		return m.handleKey(msg)
 	case SweepMsg:
 		m.dirty = true
+		if m.detail == nil && m.now().Sub(m.lastBuild) >= frameInterval {
+			m.rebuild() // nothing drawn lately: show it now, not a frame later
+			return m, m.waitFeed()
+		}
 		return m, tea.Batch(m.waitFeed(), m.frameTick())
 	case sweepFeedEndMsg:
 		m.ended = true

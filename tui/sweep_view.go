@@ -41,6 +41,7 @@ func (m SweepModel) View() string {
 // rebuild reads the sweep again and renders.
 func (m *SweepModel) rebuild() {
 	m.dirty = false
+	m.lastBuild = m.now()
 	m.tab.read(m.opts.Source)
 	m.render()
 }

@@ -10,10 +10,15 @@ import (
 	"github.com/fitgap/fitgap/watch/tail"
 )
 
-// SniffBytes is how much of a file Sniff reads: enough for a CSV header
-// and the first rows, or a console log's first epoch lines after a few
-// screens of start-up messages. Unit: bytes.
-const SniffBytes = 64 << 10
+// SniffBytes is how much of a file Sniff reads at most: enough for a
+// console log's first epoch lines after a few screens of start-up
+// messages. It reads sniffFirst first, which holds a CSV or JSON Lines
+// header and first rows, and reads on only when that shows no metric.
+// Units: bytes.
+const (
+	SniffBytes = 64 << 10
+	sniffFirst = 4 << 10
+)
 
 // Sniffed is what the head of a file says about it.
 type Sniffed struct {
@@ -60,21 +65,28 @@ func Sniff(path string, opts Options) (Sniffed, error) {
 	if !fi.Mode().IsRegular() {
 		return Sniffed{}, fmt.Errorf("open log %q: not a regular file", Sanitize(path))
 	}
-	buf := make([]byte, min(fi.Size(), SniffBytes))
-	n, err := io.ReadFull(f, buf)
-	if err != nil && err != io.ErrUnexpectedEOF && err != io.EOF {
-		return Sniffed{}, fmt.Errorf("read log %q: %w", Sanitize(path), tail.UnwrapPath(err))
+	var out Sniffed
+	for _, limit := range []int64{sniffFirst, SniffBytes} {
+		buf := make([]byte, min(fi.Size(), limit))
+		n, err := f.ReadAt(buf, 0)
+		if err != nil && err != io.EOF {
+			return Sniffed{}, fmt.Errorf("read log %q: %w", Sanitize(path), tail.UnwrapPath(err))
+		}
+		var c counter
+		r := layout.NewReader(&c, opts.layout())
+		r.Feed(buf[:n])
+		if n < len(buf) || int64(n) == fi.Size() {
+			r.End() // the whole file: its last line counts even without a newline
+		} else {
+			r.CaughtUp()
+		}
+		counts := r.Counts()
+		out = Sniffed{Format: counts.Format, Columns: counts.Columns, Points: c.points, Size: fi.Size()}
+		if out.Metrics() || int64(n) >= fi.Size() {
+			break
+		}
 	}
-	var c counter
-	r := layout.NewReader(&c, opts.layout())
-	r.Feed(buf[:n])
-	if n < len(buf) || int64(n) == fi.Size() {
-		r.End() // the whole file: its last line counts even without a newline
-	} else {
-		r.CaughtUp()
-	}
-	counts := r.Counts()
-	return Sniffed{Format: counts.Format, Columns: counts.Columns, Points: c.points, Size: fi.Size()}, nil
+	return out, nil
 }
 
 // counter counts the points of a head and drops them.

@@ -69,6 +69,9 @@ func runSweepScreen(ctx context.Context, e *env, spec sweepScreenSpec) error {
 				stops = append(stops, u.Stops...)
 				mu.Unlock()
 			}
+			if !u.Evaluated && !u.FirstRead && len(u.Added) == 0 && len(u.Notices) == 0 {
+				return nil // nothing the table shows has changed yet
+			}
 			select { // the table reads the sweep itself: a signal is enough
 			case feed <- tui.SweepMsg{}:
 			default:

@@ -193,6 +193,7 @@ func (s *Sweep) observeFrom(e *entry, fromEpoch int, revision uint64) {
 			}
 		}
 		curve.Set(curve.IndexOf(fromEpoch), epochs, vals)
+		s.dom.CurveChanged(e.id)
 	})
 	s.dom.Observe(e.id, o)
 }

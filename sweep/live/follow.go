@@ -31,8 +31,10 @@ type Update struct {
 	// Stops are the stop files created (or that failed) since the last
 	// update.
 	Stops []StopEvent
-	// Evaluated says the rows changed (a new evaluation).
+	// Evaluated says the rows changed (a new evaluation found news).
 	Evaluated bool
+	// FirstRead says Run's log was read to its end for the first time.
+	FirstRead bool
 }
 
 // StopEvent is a stop file created for a run, or why it could not be.
@@ -49,8 +51,12 @@ type StopEvent struct {
 const (
 	// settleAfter is how long the loop lets batches gather before it
 	// evaluates the sweep again: a thousand runs appending at once cost
-	// one evaluation, not a thousand. Unit: time.
-	settleAfter = 200 * time.Millisecond
+	// one evaluation, not a thousand, and a new epoch still reaches the
+	// screen within a frame or two. Unit: time.
+	settleAfter = 50 * time.Millisecond
+	// evalEvery is the least time between two evaluations while batches
+	// keep coming: ten a second are more than a screen shows. Unit: time.
+	evalEvery = 100 * time.Millisecond
 	// tickEvery re-evaluates for what time alone changes (a run going
 	// quiet) and acts on it. Unit: time.
 	tickEvery = time.Second
@@ -75,7 +81,8 @@ func (s *Sweep) Follow(ctx context.Context, emit func(Update) error) error {
 	go g.Run(ctx)
 	s.mu.Lock()
 	s.group, s.ctx = g, ctx
-	s.tagged = make(chan watch.Tagged, 256)
+	// A few batches may wait: the watcher reads a few logs at a time.
+	s.tagged = make(chan watch.Tagged, 16)
 	u := Update{Run: -1}
 	s.add(s.finder.Scan(), &u)
 	s.observeDirs()
@@ -89,6 +96,7 @@ func (s *Sweep) Follow(ctx context.Context, emit func(Update) error) error {
 	tick := time.NewTicker(tickEvery)
 	defer tick.Stop()
 	lastPending := s.now()
+	var lastEval time.Time
 	for {
 		var u Update
 		evaluate := false
@@ -101,7 +109,7 @@ func (s *Sweep) Follow(ctx context.Context, emit func(Update) error) error {
 				evaluate = true
 			} else if !settling {
 				settling = true
-				settle.Reset(settleAfter)
+				settle.Reset(max(settleAfter, evalEvery-time.Since(lastEval)))
 			}
 		case <-g.Changed():
 			u = Update{Run: -1}
@@ -126,6 +134,9 @@ func (s *Sweep) Follow(ctx context.Context, emit func(Update) error) error {
 				s.mu.Unlock()
 			}
 		}
+		if evaluate {
+			lastEval = time.Now()
+		}
 		if err := emit(s.finish(u, evaluate)); err != nil {
 			return err
 		}
@@ -138,11 +149,12 @@ func (s *Sweep) apply(b watch.Tagged) Update {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	e := s.runs[b.Tag]
+	u := Update{Run: e.id, Name: e.found.Name}
 	if !e.read {
 		e.read = true
 		s.read++
+		u.FirstRead = true
 	}
-	u := Update{Run: e.id, Name: e.found.Name}
 	fromEpoch, revision := math.MaxInt, uint64(0)
 	e.run.Read(func(t *diagnose.Tracker) { revision = t.Revision() })
 	if len(b.Points) > 0 {
@@ -169,8 +181,7 @@ func (s *Sweep) apply(b watch.Tagged) Update {
 // for, and adds the pending notices to u.
 func (s *Sweep) finish(u Update, evaluate bool) Update {
 	if evaluate {
-		u.Stops = s.evaluate()
-		u.Evaluated = true
+		u.Stops, u.Evaluated = s.evaluate()
 	}
 	s.mu.Lock()
 	defer s.mu.Unlock()
@@ -184,7 +195,7 @@ func (s *Sweep) finish(u Update, evaluate bool) Update {
 
 // evaluate judges the sweep as of now and creates the stop files of the
 // runs it finds hopeless or told to stop, outside the lock.
-func (s *Sweep) evaluate() []StopEvent {
+func (s *Sweep) evaluate() ([]StopEvent, bool) {
 	type todo struct {
 		e      *entry
 		j      diagnose.Judgement
@@ -193,8 +204,8 @@ func (s *Sweep) evaluate() []StopEvent {
 	}
 	var list []todo
 	s.mu.Lock()
-	s.dom.Evaluate(s.now())
-	if s.opts.StopFileName != "" {
+	changed := s.dom.Evaluate(s.now())
+	if changed && s.opts.StopFileName != "" {
 		rows := s.dom.Rows()
 		for _, e := range s.runs {
 			r := &rows[e.id]
@@ -236,5 +247,5 @@ func (s *Sweep) evaluate() []StopEvent {
 		}
 		s.mu.Unlock()
 	}
-	return out
+	return out, changed || len(out) > 0
 }

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"sync"
 	"syscall"
@@ -46,6 +47,11 @@ type Group struct {
 	why    string
 	kick   chan struct{} // a polled directory appeared: the loop starts its ticker
 	pool   sync.Pool     // read buffers, shared by the members
+	// slots bound the members reading (and handing on what they read) at
+	// once: a thousand logs found at once are read a few at a time, so
+	// that read buffers and batches waiting for the consumer stay a few,
+	// not a thousand.
+	slots chan struct{}
 }
 
 // GroupOptions configure a Group.
@@ -115,7 +121,8 @@ func NewGroup(opts GroupOptions) (*Group, error) {
 		opts.add = func(w *fsnotify.Watcher, dir string) error { return w.Add(dir) }
 	}
 	g := &Group{opts: opts, now: time.Now, dirs: map[string]*groupDir{}, files: map[string][]*member{},
-		changed: map[string]bool{}, signal: make(chan struct{}, 1), said: map[string]bool{}, kick: make(chan struct{}, 1)}
+		changed: map[string]bool{}, signal: make(chan struct{}, 1), said: map[string]bool{}, kick: make(chan struct{}, 1),
+		slots: make(chan struct{}, readSlots())}
 	g.pool.New = func() any { b := make([]byte, ReadChunk); return &b }
 	if opts.Poll == 0 {
 		w, err := opts.newWatcher()
@@ -232,11 +239,10 @@ func (g *Group) kickLoop() {
 // closed when the file's goroutine has ended (after ctx ended), when the
 // sink is called no more.
 func (g *Group) Follow(ctx context.Context, path string, sink Sink) (<-chan struct{}, error) {
-	t, err := Open(path, Options{Follow: true, Poll: g.opts.Poll})
+	t, err := open(path, Options{Follow: true, Poll: g.opts.Poll}, 0) // the buffer is lent while reading
 	if err != nil {
 		return nil, err
 	}
-	t.buf = nil // borrowed from the Group's pool while reading
 	m := &member{f: t, dir: filepath.Dir(t.abs), nudge: make(chan struct{}, 1)}
 	m.sig = sigOf(os.Stat(t.abs))
 	g.mu.Lock()
@@ -250,6 +256,10 @@ func (g *Group) Follow(ctx context.Context, path string, sink Sink) (<-chan stru
 	}()
 	return done, nil
 }
+
+// readSlots is how many members read at once: two per core keep the cores
+// busy while one waits on the disk or on the consumer.
+func readSlots() int { return max(2, 2*runtime.GOMAXPROCS(0)) }
 
 // runMember reads the member's file whenever it is nudged, until ctx
 // ends; then it leaves the Group.
@@ -265,8 +275,7 @@ func (g *Group) runMember(ctx context.Context, m *member, sink Sink) {
 	if t.f == nil {
 		sink.Notice("waiting for " + t.name)
 	}
-	g.check(ctx, t, sink)
-	if !sink.Flush(ctx, Always) {
+	if !g.read(ctx, t, sink, Always) {
 		return
 	}
 	for {
@@ -275,11 +284,23 @@ func (g *Group) runMember(ctx context.Context, m *member, sink Sink) {
 			return
 		case <-m.nudge:
 		}
-		g.check(ctx, t, sink)
-		if !sink.Flush(ctx, IfPending) {
+		if !g.read(ctx, t, sink, IfPending) {
 			return
 		}
 	}
+}
+
+// read checks the member's file and hands on what it read, in one of the
+// Group's reading slots; false when ctx ended.
+func (g *Group) read(ctx context.Context, t *File, sink Sink, when Flush) bool {
+	select {
+	case g.slots <- struct{}{}:
+	case <-ctx.Done():
+		return false
+	}
+	defer func() { <-g.slots }()
+	g.check(ctx, t, sink)
+	return sink.Flush(ctx, when)
 }
 
 // check runs the file's check with a read buffer from the pool.
