@@ -212,6 +212,12 @@ func TestSweepModel_SortFilterSelect(t *testing.T) {
 	if ids := m.tab.chartRuns(); len(ids) != 2 {
 		t.Errorf("chart runs %v: the best one and the selected one (%d)", ids, m.tab.selected)
 	}
+	// "/" and the filter's text read in one go.
+	m = pressSweep(t, m, "/width=4", "enter")
+	if got := tableNames(m); len(got) != 2 || m.tab.query != "width=4" {
+		t.Errorf("a fast filter: %q → %v", m.tab.query, got)
+	}
+	m = pressSweep(t, m, "/", "esc")
 	// The hopeless filter word.
 	m = pressSweep(t, m, "/", "h", "o", "p", "e", "l", "e", "s", "s", "enter")
 	for _, idx := range m.tab.order {

@@ -106,6 +106,18 @@ func (m SweepModel) handleKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	if m.typing {
 		return m.handleFilter(msg)
 	}
+	if msg.Type == tea.KeyRunes && len(msg.Runes) > 1 && msg.Runes[0] == '/' && !msg.Paste {
+		// "/" and what follows read in one go (typed fast, or pasted):
+		// the filter with that text.
+		m.typing = true
+		m.filter.SetValue(string(msg.Runes[1:]))
+		m.filter.CursorEnd()
+		cmd := m.filter.Focus()
+		m.tab.query = m.filter.Value()
+		m.tab.reorder()
+		m.render()
+		return m, cmd
+	}
 	t := m.tab
 	var cmd tea.Cmd
 	page := max(1, m.tableRows()-1)

@@ -97,10 +97,14 @@ func screen(args []string) error {
 	r := runs(tree, *all)[*all-1]
 	name, _ := filepath.Rel(tree, r.dir)
 	tmux("send-keys", "-t", "b", "/")
+	time.Sleep(200 * time.Millisecond)
 	tmux("send-keys", "-t", "b", "-l", name)
+	time.Sleep(200 * time.Millisecond)
 	tmux("send-keys", "-t", "b", "Enter")
-	for !strings.Contains(capture(), "1/"+strconv.Itoa(*all)) {
-		time.Sleep(20 * time.Millisecond)
+	for t := time.Now(); !strings.Contains(capture(), "1/"+strconv.Itoa(*all)); time.Sleep(20 * time.Millisecond) {
+		if time.Since(t) > 10*time.Second {
+			return fmt.Errorf("the table was not filtered to %s:\n%s", name, capture())
+		}
 	}
 	var lats []time.Duration
 	rng := rand.New(rand.NewPCG(5, 5))
