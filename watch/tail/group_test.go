@@ -55,14 +55,22 @@ func startGroup(t *testing.T, opts GroupOptions) (*Group, context.Context, *noti
 	return g, ctx, notes
 }
 
-// followIn follows path in g into a new recorder.
+// followIn follows path in g into a new recorder, until ctx ends or the
+// test does (its goroutine is waited for: tests that follow set package
+// variables the member reads).
 func followIn(t *testing.T, ctx context.Context, g *Group, path string) (*recorder, <-chan struct{}) {
 	t.Helper()
 	r := newRecorder()
+	ctx, cancel := context.WithCancel(ctx)
 	done, err := g.Follow(ctx, path, r)
 	if err != nil {
+		cancel()
 		t.Fatal(err)
 	}
+	t.Cleanup(func() {
+		cancel()
+		<-done
+	})
 	return r, done
 }
 
