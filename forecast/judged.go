@@ -77,23 +77,35 @@ func splitEstimate(j diagnose.Judgement, split diagnose.Split) diagnose.Estimate
 	return j.Val
 }
 
-// TrainSize returns the training-set size a run logged in a column named
-// train_size, n_train, train_examples or num_train_samples (any case, - or
-// space for _), from the last point that has one: the size of a run of a
-// data-size series.
+// TrainSize returns the training-set size a run logged in a column that
+// IsTrainSizeName accepts, from the last point that has one: the size of a
+// run of a data-size series.
 func TrainSize(pts []diagnose.Point) (float64, bool) {
 	for i := len(pts) - 1; i >= 0; i-- {
 		for _, s := range pts[i].Samples {
-			switch strings.NewReplacer("-", "_", " ", "_").Replace(strings.ToLower(strings.TrimSpace(s.Column.Name))) {
-			case "train_size", "n_train", "train_examples", "num_train_samples":
-				if s.Last >= 1 && !math.IsInf(s.Last, 0) {
-					return s.Last, true
-				}
+			if IsTrainSizeName(s.Column.Name) && s.Last >= 1 && !math.IsInf(s.Last, 0) {
+				return s.Last, true
 			}
 		}
 	}
 	return 0, false
 }
+
+// IsTrainSizeName reports whether a log column or a configuration key
+// names the training-set size: train_size, n_train, num_train,
+// train_examples, train_samples, n_train_samples or num_train_samples (any
+// case, - or space for _), the names training scripts give it (common
+// practice).
+func IsTrainSizeName(name string) bool {
+	switch nameSeparators.Replace(strings.ToLower(strings.TrimSpace(name))) {
+	case "train_size", "n_train", "num_train", "train_examples", "train_samples", "n_train_samples", "num_train_samples":
+		return true
+	}
+	return false
+}
+
+// nameSeparators are the separators IsTrainSizeName reads as "_".
+var nameSeparators = strings.NewReplacer("-", "_", " ", "_")
 
 // IsLearningRate reports whether a column name is a learning rate as
 // training scripts name it: lr, learning_rate (any case, - or space for

@@ -23,6 +23,10 @@ func writeFileAtomic(path string, data []byte) error {
 	return nil
 }
 
+// WriteFileAtomic writes one of our outputs (a report) as writeFileAtomic
+// does: a reader never sees it half written.
+func WriteFileAtomic(path string, data []byte) error { return writeFileAtomic(path, data) }
+
 // createFileAtomic is writeFileAtomic that never replaces an existing file:
 // the complete temporary file is hard-linked to path, which fails if path
 // exists, so someone else's file is never overwritten even if it appeared

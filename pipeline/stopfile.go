@@ -34,9 +34,22 @@ func (s *StopFile) pending() bool { return s != nil && !s.created }
 
 // create writes the file for the judgement j whose signal is stop. A
 // failure is reported and tried again at the next point that says stop.
-func (s *StopFile) create(j diagnose.Judgement) *StopEvent {
+func (s *StopFile) create(j diagnose.Judgement) *StopEvent { return s.Create(j, "") }
+
+// Created reports whether the file was created.
+func (s *StopFile) Created() bool { return s != nil && s.created }
+
+// Create writes the file now for the judgement j (its epoch, the epoch to
+// restore), with reason in place of the signal's when not empty: a sweep
+// stops a run its rules find hopeless. It never writes over a file, and
+// a failure leaves the file still to be created.
+func (s *StopFile) Create(j diagnose.Judgement, reason string) *StopEvent {
 	ev := &StopEvent{Path: s.path, Epoch: j.Epoch, BestEpoch: j.EarlyStop.BestEpoch}
-	b, err := json.Marshal(j.StopForm())
+	form := j.StopForm()
+	if reason != "" {
+		form.Reason = diagnose.Printable(reason)
+	}
+	b, err := json.Marshal(form)
 	if err == nil {
 		err = createFileAtomic(s.path, append(b, '\n'))
 	}

@@ -38,7 +38,7 @@ func newTrainer(cfg Config) (*trainer, error) {
 		return nil, err
 	}
 	r, _ := recipeFor(cfg.Scenario)
-	return newTrainerWith(cfg.withDefaults(), r), nil
+	return newTrainerWith(cfg.withDefaults(), cfg.Tune.apply(r)), nil
 }
 
 // newTrainerWith builds a run of a valid, defaulted configuration with the

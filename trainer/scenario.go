@@ -154,6 +154,9 @@ type Config struct {
 	// as fast as it can. The demo uses DefaultPace.
 	Pace   time.Duration
 	Format LogFormat
+	// Tune overrides the recipe's learning rate, width or training-set
+	// size (a sweep); the zero Tune runs the scenario as designed.
+	Tune Tune
 }
 
 // withDefaults fills the zero fields.
@@ -182,6 +185,9 @@ func (c Config) Validate() error {
 	if c.Pace < 0 {
 		return fmt.Errorf("trainer config: pace %v is negative", c.Pace)
 	}
+	if err := c.Tune.validate(); err != nil {
+		return err
+	}
 	return nil
 }
 
@@ -208,6 +214,7 @@ func (c Config) Facts() Facts {
 	if !ok {
 		return Facts{}
 	}
+	r = c.Tune.apply(r)
 	return Facts{
 		BayesError:   r.data.noise,
 		Classes:      2,

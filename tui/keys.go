@@ -22,6 +22,9 @@ type keyMap struct {
 	Quit       key.Binding
 	Abort      key.Binding
 	Suspend    key.Binding
+	// Back goes back to the run table; enabled only for a run opened
+	// from a sweep (Options.Back).
+	Back key.Binding
 
 	// While typing an optimal error.
 	Accept key.Binding
@@ -48,6 +51,7 @@ func newKeyMap() keyMap {
 		Suspend:    key.NewBinding(key.WithKeys("ctrl+z"), key.WithHelp("ctrl+z", "suspend (fg resumes)")),
 		Accept:     key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "apply")),
 		Cancel:     key.NewBinding(key.WithKeys("esc"), key.WithHelp("esc", "cancel, close help")),
+		Back:       key.NewBinding(key.WithKeys("esc", "backspace"), key.WithHelp("esc", "back to all runs"), key.WithDisabled()),
 	}
 }
 
@@ -66,19 +70,28 @@ func (k keyMap) shortHelp() ([]key.Binding, []int) {
 		return key.NewBinding(key.WithKeys(b.Keys()...), key.WithHelp(b.Help().Key, desc))
 	}
 	inspect := key.NewBinding(key.WithKeys("left", "right"), key.WithHelp("←/→", "inspect"))
-	return []key.Binding{
-			short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"), short(k.Forecast, "forecast"),
-			short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "help"), short(k.Quit, "quit"),
-		},
-		[]int{3, 4, 5, 8, 7, 6, 9, 1, 0}
+	binds := []key.Binding{
+		short(k.Pause, "pause"), inspect, short(k.Metric, "metric"), short(k.LogY, "log"), short(k.Forecast, "forecast"),
+		short(k.Optimal, "optimal error"), short(k.Save, "save"), short(k.Help, "help"), short(k.Quit, "quit"),
+	}
+	rank := []int{3, 4, 5, 8, 7, 6, 9, 1, 0}
+	if k.Back.Enabled() {
+		binds = append([]key.Binding{short(k.Back, "runs")}, binds...)
+		rank = append([]int{2}, rank...)
+	}
+	return binds, rank
 }
 
 // FullHelp is the key list shown by `?`, in columns.
 func (k keyMap) FullHelp() [][]key.Binding {
+	last := []key.Binding{k.Help, k.Cancel, key.NewBinding(key.WithKeys("up", "down"), key.WithHelp("↑/↓", "scroll the help")), k.Quit, k.Abort, k.Suspend}
+	if k.Back.Enabled() {
+		last = append([]key.Binding{k.Back}, last...)
+	}
 	return [][]key.Binding{
 		{k.Pause, k.Prev, k.Next, k.First, k.Last},
 		{k.Metric, k.LogY, k.Forecast, k.Optimal, k.Save},
-		{k.Help, k.Cancel, key.NewBinding(key.WithKeys("up", "down"), key.WithHelp("↑/↓", "scroll the help")), k.Quit, k.Abort, k.Suspend},
+		last,
 	}
 }
 

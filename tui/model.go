@@ -124,6 +124,9 @@ type Options struct {
 	// Epochs is the run's last epoch when the log announces none
 	// (--epochs): the status line's progress and the forecast's target.
 	Epochs int
+	// Back shows the key back to the run table (a run opened from a
+	// sweep's table; the table handles the key).
+	Back bool
 }
 
 // ExitReason says why the screen closed.
@@ -252,6 +255,7 @@ func New(opts Options) Model {
 	if m.hist == nil {
 		m.hist = ownHistory{diagnose.New(opts.Config)}
 	}
+	m.keys.Back.SetEnabled(opts.Back)
 	m.setRenderer(lipgloss.DefaultRenderer())
 	return m
 }

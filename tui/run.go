@@ -86,20 +86,41 @@ func Run(ctx context.Context, m Model, feed <-chan FeedMsg, closes <-chan ExitRe
 
 // run drives the program on a chosen terminal (tests pass a pseudo-terminal).
 func run(ctx context.Context, m Model, feed <-chan FeedMsg, closes <-chan ExitReason, t terminal) (Model, ExitReason, error) {
+	r := newTermRenderer(t)
+	m.setRenderer(r)
+	m.feed = feed
+	final, caught, err := runTea(ctx, m, closes, t, r)
+	fm, ok := final.(Model)
+	if !ok {
+		fm = m
+	}
+	reason, err := exitOf(ctx, fm.reason, caught, err)
+	fm.reason = reason
+	return fm, reason, err
+}
+
+// newTermRenderer makes the terminal's renderer and asks the terminal for
+// its colours now, before the program reads keys from it: an answer
+// arriving later would be read as key presses.
+func newTermRenderer(t terminal) *lipgloss.Renderer {
 	r := lipgloss.NewRenderer(t.out)
-	// Ask the terminal for its colours now, before the program reads keys
-	// from it: an answer arriving later would be read as key presses.
 	r.ColorProfile()
 	r.HasDarkBackground()
-	m.setRenderer(r)
+	return r
+}
+
+// runTea runs a screen's program on the terminal until it quits: the
+// alternate screen, our own signal handling (the first close from closes
+// sends the model a closeMsg, a second kills the program, still restoring
+// the terminal). caught is 1 + the first close's reason, 0 for none.
+func runTea(ctx context.Context, model tea.Model, closes <-chan ExitReason, t terminal, r *lipgloss.Renderer) (tea.Model, int32, error) {
 	// The bubbles widgets render some parts (the text input's cursor) with
 	// the default renderer: point it at the terminal while the screen runs.
 	prev := lipgloss.DefaultRenderer()
 	lipgloss.SetDefaultRenderer(r)
 	defer lipgloss.SetDefaultRenderer(prev)
-	m.feed = feed
 
-	p := tea.NewProgram(m,
+	p := tea.NewProgram(model,
 		tea.WithContext(ctx),
 		tea.WithInput(t.in),
 		tea.WithOutput(t.out),
@@ -129,22 +150,23 @@ func run(ctx context.Context, m Model, feed <-chan FeedMsg, closes <-chan ExitRe
 			}
 		}
 	}()
-
 	final, err := p.Run()
-	fm, ok := final.(Model)
-	if !ok {
-		fm = m
+	return final, caughtReason.Load(), err
+}
+
+// exitOf maps how the program ended to the screen's exit reason: the
+// model's own (a key), a cancelled context, or a close caught before a
+// second one killed the program.
+func exitOf(ctx context.Context, own ExitReason, caught int32, err error) (ExitReason, error) {
+	if err == nil {
+		return own, nil
 	}
-	if err != nil {
-		if errors.Is(err, tea.ErrProgramKilled) && ctx.Err() != nil {
-			return fm, ExitCanceled, nil
-		}
-		if r := caughtReason.Load(); r > 0 && errors.Is(err, tea.ErrProgramKilled) {
-			// Killed by a second close: the first one's reason stands.
-			fm.reason = ExitReason(r - 1)
-			return fm, fm.reason, nil
-		}
-		return fm, fm.reason, fmt.Errorf("live screen: %w", err)
+	if errors.Is(err, tea.ErrProgramKilled) && ctx.Err() != nil {
+		return ExitCanceled, nil
 	}
-	return fm, fm.reason, nil
+	if caught > 0 && errors.Is(err, tea.ErrProgramKilled) {
+		// Killed by a second close: the first one's reason stands.
+		return ExitReason(caught - 1), nil
+	}
+	return own, fmt.Errorf("live screen: %w", err)
 }

@@ -346,7 +346,7 @@ func TestModel_QuietSource(t *testing.T) {
 	if s := m.cache.status; !strings.Contains(s, "live") {
 		t.Fatalf("status %q, want live", s)
 	}
-	// quietFactor × 30 s = 90 s without a write is quiet; 80 s is not.
+	// sweep.QuietFactor × 30 s = 90 s without a write is quiet; 80 s is not.
 	clock = fixedNow.Add(80 * time.Second)
 	m = send(t, m, clockMsg{})
 	if s := m.cache.status; strings.Contains(s, "quiet") {

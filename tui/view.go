@@ -4,6 +4,8 @@ import (
 	"math"
 	"strings"
 
+	"github.com/charmbracelet/bubbles/help"
+	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/x/ansi"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -192,7 +194,12 @@ func (m *Model) keyLine(w int) string {
 
 func (m *Model) buildKeyLine(w int) string {
 	binds, rank := m.keys.shortHelp()
-	hm := m.help
+	return keyLineOf(m.help, binds, rank, w)
+}
+
+// keyLineOf fits a short key help in w columns, dropping the entries of
+// the highest rank first.
+func keyLineOf(hm help.Model, binds []key.Binding, rank []int, w int) string {
 	hm.Width = 0
 	for {
 		line := hm.ShortHelpView(binds)

@@ -7,22 +7,17 @@ import (
 	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
+
+	"github.com/fitgap/fitgap/sweep"
 )
 
 var zeroTime time.Time
 
-// Quiet detection. A live log is shown as quiet when no write came for
-// quietFactor usual epoch intervals: one slow epoch (a validation pass, a
-// checkpoint save) can take twice the usual time, three times rarely
-// happens while training is healthy. quietFloor keeps a fast log (an epoch
-// every few hundred milliseconds) from flapping on scheduling noise.
-const (
-	quietFactor = 3
-	quietFloor  = 10 * time.Second
-	// paceWindow is how many recent epoch intervals give the usual pace
-	// (their median, so one slow epoch does not move it).
-	paceWindow = 15
-)
+// Quiet detection: a live log is shown as quiet by the rule a sweep's
+// runs follow too (sweep.QuietAfter: three usual epoch intervals, at
+// least ten seconds). paceWindow is how many recent epoch intervals give
+// the usual pace (their median, so one slow epoch does not move it).
+const paceWindow = 15
 
 // pace returns the usual time between epochs: the median of the recent
 // intervals of the log's own time column, else of arrival times (skipping
@@ -75,7 +70,7 @@ func (m *Model) quietAfter() (time.Duration, bool) {
 	if !ok {
 		return 0, false
 	}
-	return max(quietFactor*p, quietFloor), true
+	return sweep.QuietAfter(p), true
 }
 
 // stateText is the source's state as the status line shows it.

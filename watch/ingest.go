@@ -32,6 +32,9 @@ type ingester struct {
 	now   func() time.Time
 	steps bool
 	out   chan<- Batch
+	// emit, when set, hands a batch on instead of out (a Group's logs
+	// share one channel, each batch tagged with its log).
+	emit func(ctx context.Context, b Batch) bool
 
 	state     State
 	lastWrite time.Time
@@ -90,6 +93,13 @@ func (g *ingester) Flush(ctx context.Context, when tail.Flush) bool {
 		}
 	}
 	b := g.take()
+	if g.emit != nil {
+		if !g.emit(ctx, b) {
+			return false
+		}
+		g.sent, g.sentAt = b.Stats, time.Now()
+		return true
+	}
 	select {
 	case g.out <- b:
 		g.sent, g.sentAt = b.Stats, time.Now()

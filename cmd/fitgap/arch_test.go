@@ -57,6 +57,13 @@ func TestImportArrows(t *testing.T) {
 		{"forecast", [][]string{charm, fsnotify, pkgs("watch", "tui", "report", "pipeline")}, [][]string{io}},
 		// The picture is drawn from data: no log, no screen, no file.
 		{"figure", [][]string{charm, fsnotify, outside, pkgs("watch", "tui", "pipeline", "trainer")}, [][]string{io}},
+		// The sweep's domain is pure like diagnose: no files, no screen.
+		{"sweep", [][]string{charm, fsnotify, outside, pkgs("watch", "tui", "report", "pipeline")}, [][]string{io}},
+		// Discovery reads directories and configuration files; logs only
+		// through watch.
+		{"sweep/discover", [][]string{charm, outside, pkgs("tui", "report", "pipeline")}, nil},
+		// The live sweep drives pipelines; the screen is the command's.
+		{"sweep/live", [][]string{charm, outside, pkgs("tui")}, nil},
 	}
 	for _, tt := range tests {
 		t.Run(tt.pkg, func(t *testing.T) {

@@ -34,7 +34,7 @@ func TestRun_UsageErrors(t *testing.T) {
 		{"BadRate", []string{"report", "--bayes-error", "abc", "x.csv"}, exitUsage, "--bayes-error"},
 		{"OneClass", []string{"report", "--classes", "1", "x.csv"}, exitUsage, "--classes: must be at least 2"},
 		{"NoFile", []string{"report"}, exitUsage, "no log given"},
-		{"TwoFiles", []string{"report", "a.csv", "b.csv"}, exitUsage, "one log at a time"},
+		{"TwoMissingFiles", []string{"report", "a.csv", "b.csv"}, exitUsage, `a.csv: open log "a.csv": no such file`},
 		{"BadFormat", []string{"report", "--format", "xml", "x.csv"}, exitUsage, "--format"},
 		{"NegativeEpochs", []string{"follow", "--epochs", "-3", "x.csv"}, exitUsage, "--epochs: must not be negative"},
 		{"DemoBadScenario", []string{"demo", "--scenario", "nope"}, exitUsage, "--scenario"},

@@ -13,6 +13,7 @@ import (
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/pipeline"
+	"github.com/fitgap/fitgap/sweep/live"
 	"github.com/fitgap/fitgap/trainer"
 	"github.com/fitgap/fitgap/watch"
 )
@@ -25,8 +26,12 @@ var demoCommand = &command{
 invented data set whose optimal error is known, writes its metrics log to a
 file in a temporary directory, and opens the live screen on that file through
 the same path a real run uses. --write trains with no screen, for scripts.
+--sweep trains a sweep instead: twelve runs of the balanced network over the
+learning rate, the width and the training-set size, two at a time, each in its
+own directory, and opens the run table on them.
 Scenarios: ` + scenarioList() + `.`,
 	example: `  fitgap demo
+  fitgap demo --sweep
   fitgap demo --scenario overfit --pace 100ms
   fitgap demo --scenario mismatch --pace 0 --write /tmp/mismatch.csv && fitgap report /tmp/mismatch.csv`,
 	flags: func(fs *flag.FlagSet) func(context.Context, *env, []string) error {
@@ -36,6 +41,8 @@ Scenarios: ` + scenarioList() + `.`,
 			seed                    int64
 			pace                    time.Duration
 			scr                     screenFlags
+			sweepDemo               bool
+			sw                      sweepFlags
 		)
 		fs.StringVar(&scenario, "scenario", trainer.Balanced.String(), "what to train: `name` of "+scenarioList())
 		fs.IntVar(&epochs, "epochs", 100, "number of `epochs` to train")
@@ -44,6 +51,8 @@ Scenarios: ` + scenarioList() + `.`,
 		fs.StringVar(&format, "format", "csv", "log `format`: csv, jsonl or text (every reader is exercised)")
 		fs.StringVar(&write, "write", "", "train and write the log to this `file`, with no screen")
 		scr.register(fs)
+		sw.register(fs)
+		fs.BoolVar(&sweepDemo, "sweep", false, "train a sweep of 12 runs (learning rate, width, training-set size) and open the run table; --write DIR writes it there instead")
 		return func(ctx context.Context, e *env, args []string) error {
 			if len(args) > 0 {
 				return usageErrorf("demo takes no arguments, got %s", strings.Join(args, " "))
@@ -63,6 +72,18 @@ Scenarios: ` + scenarioList() + `.`,
 				return usageErrorf("--pace: must not be negative, got %s", pace)
 			}
 			cfg := trainer.Config{Scenario: sc, Epochs: epochs, Seed: seed, Pace: pace, Format: lf}
+			if err := live.CheckStopFileName(scr.stopName); err != nil {
+				return usageErrorf("--stop-file-name: %v", err)
+			}
+			if sweepDemo {
+				if sc != trainer.Balanced {
+					return usageErrorf("--sweep trains the balanced network's sweep; leave --scenario out")
+				}
+				if !paceSet(fs) {
+					cfg.Pace = demoSweepPace
+				}
+				return runDemoSweep(ctx, e, cfg, write, scr, sw)
+			}
 			if write != "" {
 				return writeDemoLog(ctx, e, cfg, write)
 			}
@@ -137,6 +158,9 @@ func runDemoScreen(ctx context.Context, e *env, cfg trainer.Config, format strin
 		return fmt.Errorf("demo: %w", err)
 	}
 	facts := cfg.Facts()
+	if scr.stopName != "" && scr.stopFile == "" {
+		scr.stopFile = filepath.Join(dir, scr.stopName)
+	}
 	fmt.Fprintf(e.stderr, "fitgap demo: %s\nfitgap demo: log at %s\n", cfg.Scenario.Describe(), path)
 
 	trainCtx, stopTraining := context.WithCancel(ctx)
@@ -184,4 +208,11 @@ func plural(n int, one, many string) string {
 		return "1 " + one
 	}
 	return fmt.Sprintf("%d %s", n, many)
+}
+
+// paceSet reports whether --pace was given.
+func paceSet(fs *flag.FlagSet) bool {
+	set := false
+	fs.Visit(func(f *flag.Flag) { set = set || f.Name == "pace" })
+	return set
 }

@@ -391,3 +391,41 @@ func TestE2E_PipeKeys(t *testing.T) {
 		t.Errorf("summary lacks the 9 points:\n%.300s", out)
 	}
 }
+
+// TestE2E_SweepDemo runs the sweep demo in a real terminal: the run table
+// fills as the runs start, enter opens a run's own screen and esc comes
+// back, the filter and the sort answer, and q restores the terminal and
+// prints the ranked table on standard output.
+func TestE2E_SweepDemo(t *testing.T) {
+	requireTmux(t)
+	dir := t.TempDir()
+	p := startPane(t, dir, wrapper(binPath, "demo --sweep --epochs 6 --pace 30ms"), 120, 40)
+
+	p.waitScreen("the run table", "fitgap · sweep", "run-01", "rules:", "best (ep)")
+	p.waitScreen("every run", "12 runs")
+	p.waitScreen("the chart", "validation error (1 − acc)", "└")
+
+	p.keys("Down", "Enter")
+	p.waitScreen("the run's own screen", "metrics.csv", "VERDICT", "esc runs")
+	p.keys("Escape")
+	p.waitScreen("the table again", "fitgap · sweep", "12 runs")
+
+	p.keys("/")
+	p.keys("-l", "run-1")
+	p.keys("Enter")
+	p.waitScreen("the filter", `filter "run-1" 3/12`)
+	p.keys("s")
+	p.waitScreen("the sort by name", "by run ↑")
+	p.keys("r")
+	p.waitScreen("the reversed sort", "by run ↓")
+
+	p.keys("q")
+	if rc := strings.TrimSpace(waitFile(t, filepath.Join(dir, "rc"))); rc != "0" {
+		t.Errorf("exit status %s after q, want 0; stderr: %s", rc, readFile(t, filepath.Join(dir, "stderr.txt")))
+	}
+	checkRestored(t, p, dir)
+	out := readFile(t, filepath.Join(dir, "stdout.md"))
+	if !strings.Contains(out, "# Sweep: ") || !strings.Contains(out, "| run-01 |") || strings.Contains(out, "\x1b[") {
+		t.Errorf("standard output should hold only the ranked table, got:\n%.600q", out)
+	}
+}

@@ -25,7 +25,8 @@ func TestReport_BadLogs(t *testing.T) {
 		want []string // substrings of stderr
 	}{
 		{"Missing", []string{"report", filepath.Join(dir, "nope.csv")}, []string{"nope.csv", "no such file"}},
-		{"Directory", []string{"report", dir}, []string{filepath.Base(dir), "directory"}},
+		// A directory is a sweep: here its one run has no point yet.
+		{"Directory", []string{"report", dir}, []string{filepath.Base(dir), "no evaluation points in the 1 run(s) found"}},
 		{"Empty", []string{"report", empty}, []string{"empty.csv", "no evaluation points", "empty"}},
 		{"HeaderOnly", []string{"report", headerOnly}, []string{"header.csv", "no evaluation points"}},
 		{"Garbage", []string{"report", "--format", "jsonl", garbage}, []string{"garbage.jsonl", "no evaluation points", "skipped"}},

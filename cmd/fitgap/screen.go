@@ -12,34 +12,65 @@ import (
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/pipeline"
 	"github.com/fitgap/fitgap/report"
+	"github.com/fitgap/fitgap/sweep/live"
 	"github.com/fitgap/fitgap/tui"
 	"github.com/fitgap/fitgap/watch"
 )
 
 var watchCommand = &command{
 	name:    "watch",
-	args:    "FILE",
-	summary: "the live screen on a growing log (the default command)",
+	args:    "FILE | DIR | LOG... | 'GLOB'",
+	summary: "the live screen on a growing log (the default command); the run table on a sweep",
 	about: `Opens the live screen on a metrics log as training writes it: curves, where the
 error comes from, the early-stopping signal and the next action. FILE "-" reads
 standard input (python train.py | fitgap -); keys still come from the terminal.
 A log that does not exist yet is waited for. On quit the snapshot summary is
 printed to standard output; --summary also writes it to a file, including when
-the SSH link drops (SIGHUP) or on SIGTERM.`,
+the SSH link drops (SIGHUP) or on SIGTERM.
+Given a directory, several logs or a glob, it shows the run table of the
+sweep: every run ranked, sortable and filterable, the hopeless ones flagged
+with the rule and its numbers, the best runs' validation curves on one chart;
+enter opens a run's own screen, esc comes back.`,
 	example: `  fitgap runs/run7.csv
   fitgap watch --bayes-error 4% --summary run7.md runs/run7.csv
-  python train.py 2>&1 | fitgap -`,
+  python train.py 2>&1 | fitgap -
+  fitgap --stop-file-name STOP runs/`,
 	flags: func(fs *flag.FlagSet) func(context.Context, *env, []string) error {
 		var (
 			log logFlags
 			scr screenFlags
+			sw  sweepFlags
 		)
 		log.register(fs)
 		scr.register(fs)
+		sw.register(fs)
 		return func(ctx context.Context, e *env, args []string) error {
+			if isSweep(args) {
+				opts, err := sweepOptions(args, &log, &sw, true)
+				if err != nil {
+					return err
+				}
+				if err := live.CheckStopFileName(scr.stopName); err != nil {
+					return usageErrorf("--stop-file-name: %v", err)
+				}
+				opts.StopFileName = scr.stopName
+				return runSweepScreen(ctx, e, sweepScreenSpec{opts: opts, flags: scr})
+			}
 			path, opts, cfg, err := log.parse(args, true)
 			if err != nil {
 				return err
+			}
+			if scr.stopName != "" {
+				switch {
+				case scr.stopFile != "":
+					return usageErrorf("--stop-file and --stop-file-name: give one")
+				case path == "-":
+					return usageErrorf("--stop-file-name: standard input has no directory; use --stop-file PATH")
+				}
+				if err := live.CheckStopFileName(scr.stopName); err != nil {
+					return usageErrorf("--stop-file-name: %v", err)
+				}
+				scr.stopFile = filepath.Join(filepath.Dir(path), scr.stopName)
 			}
 			return runScreen(ctx, e, screenSpec{path: path, opts: opts, cfg: cfg, epochs: log.epochs, flags: scr})
 		}
@@ -50,12 +81,14 @@ the SSH link drops (SIGHUP) or on SIGTERM.`,
 type screenFlags struct {
 	summary  string
 	stopFile string
+	stopName string
 	noColor  bool
 }
 
 func (s *screenFlags) register(fs *flag.FlagSet) {
 	fs.StringVar(&s.summary, "summary", "", "also write the snapshot summary to this `file` on exit (JSON when it ends in .json); the s key writes it at any time")
 	fs.StringVar(&s.stopFile, "stop-file", "", "create this `file` when the early-stopping signal first reaches stop (see fitgap follow --help)")
+	fs.StringVar(&s.stopName, "stop-file-name", "", "create a file of this `name` in the log's directory (on a sweep: in each run's directory) when its run is to stop; never over an existing file")
 	fs.BoolVar(&s.noColor, "no-color", false, "draw without colour (also when NO_COLOR is set)")
 }
 

@@ -76,12 +76,19 @@ type File struct {
 // returns an error for a directory, a file it may not read, anything but a
 // regular file, or a bad option; a file that does not exist yet is waited
 // for in Follow mode and is an error otherwise.
-func Open(path string, opts Options) (*File, error) {
+func Open(path string, opts Options) (*File, error) { return open(path, opts, ReadChunk) }
+
+// open is Open with a read buffer of bufSize bytes; 0 leaves it to the
+// caller (a Group lends one from its pool while a file is read).
+func open(path string, opts Options, bufSize int) (*File, error) {
 	if err := opts.Validate(); err != nil {
 		return nil, err
 	}
-	t := &File{path: path, name: sanitize(path), opts: opts, buf: make([]byte, ReadChunk),
+	t := &File{path: path, name: sanitize(path), opts: opts,
 		procs: min(runtime.GOMAXPROCS(0), maxProcs), state: Live}
+	if bufSize > 0 {
+		t.buf = make([]byte, bufSize)
+	}
 	if abs, err := filepath.Abs(path); err == nil {
 		t.abs = abs
 	} else {

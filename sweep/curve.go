@@ -1,0 +1,123 @@
+package sweep
+
+import (
+	"math"
+	"sort"
+)
+
+// Curve is a run's validation curve in the judged metric (lower is
+// better), one value per evaluation point as logged (not smoothed: the
+// rules are defined on the reported values), with running sums so that
+// the rules read a running mean or a best value up to any epoch in
+// O(log n). Non-finite values (a diverged run's NaN) count as the worst
+// value for the best so far and are left out of the running mean.
+type Curve struct {
+	epochs []int32
+	vals   []float64
+	sum    []float64 // sum of the finite values up to i
+	cnt    []int32   // how many finite values up to i
+	best   []float64 // least finite value up to i; +Inf when none
+}
+
+// Len returns the number of points.
+func (c *Curve) Len() int { return len(c.epochs) }
+
+// At returns point i's epoch and value.
+func (c *Curve) At(i int) (epoch int, v float64) { return int(c.epochs[i]), c.vals[i] }
+
+// LastEpoch returns the epoch of the last point, 0 when empty.
+func (c *Curve) LastEpoch() int {
+	if len(c.epochs) == 0 {
+		return 0
+	}
+	return int(c.epochs[len(c.epochs)-1])
+}
+
+// Set replaces the points from index from on by the given ones (a run
+// rewound to a checkpoint, or the whole curve judged again in another
+// metric from 0). Epochs must rise within the call and above the points
+// kept; a point that does not is dropped.
+func (c *Curve) Set(from int, epochs []int, vals []float64) {
+	from = max(0, min(from, len(c.epochs)))
+	c.epochs, c.vals = c.epochs[:from], c.vals[:from]
+	c.sum, c.cnt, c.best = c.sum[:from], c.cnt[:from], c.best[:from]
+	for i := range min(len(epochs), len(vals)) {
+		c.Append(epochs[i], vals[i])
+	}
+}
+
+// Append adds a point after the last; a point whose epoch is not above the
+// last one's is ignored (Set rewinds).
+func (c *Curve) Append(epoch int, v float64) {
+	if n := len(c.epochs); n > 0 && epoch <= int(c.epochs[n-1]) || epoch > math.MaxInt32 || epoch < math.MinInt32 {
+		return
+	}
+	s, k, b := 0.0, int32(0), math.Inf(1)
+	if n := len(c.epochs); n > 0 {
+		s, k, b = c.sum[n-1], c.cnt[n-1], c.best[n-1]
+	}
+	if finite(v) {
+		s, k, b = s+v, k+1, math.Min(b, v)
+	}
+	c.epochs = append(c.epochs, int32(epoch))
+	c.vals = append(c.vals, v)
+	c.sum = append(c.sum, s)
+	c.cnt = append(c.cnt, k)
+	c.best = append(c.best, b)
+}
+
+// upTo returns the index of the last point at or before epoch t, -1 when
+// none.
+func (c *Curve) upTo(t int) int {
+	return sort.Search(len(c.epochs), func(i int) bool { return int(c.epochs[i]) > t }) - 1
+}
+
+// IndexOf returns the index of the first point at or after epoch e: where
+// points from e on start (Len when none).
+func (c *Curve) IndexOf(e int) int {
+	if e <= math.MinInt32 {
+		return 0
+	}
+	return c.upTo(e-1) + 1
+}
+
+// MeanBy returns the running mean of the finite values at epochs up to t;
+// false when there is none.
+func (c *Curve) MeanBy(t int) (float64, bool) {
+	i := c.upTo(t)
+	if i < 0 || c.cnt[i] == 0 {
+		return 0, false
+	}
+	return c.sum[i] / float64(c.cnt[i]), true
+}
+
+// BestBy returns the least finite value at epochs up to t; false when
+// there is none (no point yet, or only non-finite values).
+func (c *Curve) BestBy(t int) (float64, bool) {
+	i := c.upTo(t)
+	if i < 0 || math.IsInf(c.best[i], 1) {
+		return 0, false
+	}
+	return c.best[i], true
+}
+
+// From returns the first point at or after epoch t: the value a run had
+// when it reached t.
+func (c *Curve) From(t int) (epoch int, v float64, ok bool) {
+	i := c.upTo(t - 1)
+	if i+1 >= len(c.epochs) {
+		return 0, 0, false
+	}
+	return int(c.epochs[i+1]), c.vals[i+1], true
+}
+
+// Points returns the curve's epochs and values as new slices.
+func (c *Curve) Points() (epochs []int, vals []float64) {
+	epochs = make([]int, len(c.epochs))
+	for i, e := range c.epochs {
+		epochs[i] = int(e)
+	}
+	return epochs, append([]float64(nil), c.vals...)
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
