@@ -6,8 +6,7 @@ import (
 )
 
 // The median stopping rule (Golovin, Solnik, Moitra, Kochanski, Karro and
-// Sculley, "Google Vizier: A Service for Black-Box Optimization", KDD
-// 2017, §3.2): a pending run is stopped at step t when its best objective
+// Sculley, KDD 2017, §3.2, on automated early stopping): a pending run is stopped at step t when its best objective
 // value by step t is strictly worse than the median of the running
 // averages of the completed runs' objective values up to step t. The step
 // here is the epoch as logged; the objective is the judged validation
