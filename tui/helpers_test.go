@@ -110,7 +110,7 @@ func (r runSpec) steps() []diagnose.StepRow {
 }
 
 func liveSource(lines int) SourceInfo {
-	return SourceInfo{Name: "runs/cifar-small.csv", Format: "csv", State: Live, Lines: lines, LastWrite: fixedNow.Add(-4 * time.Second)}
+	return SourceInfo{Name: "runs/small-convnet.csv", Format: "csv", State: Live, Lines: lines, LastWrite: fixedNow.Add(-4 * time.Second)}
 }
 
 // newTestModel returns a model with the fixed clock at w×h.
