@@ -52,6 +52,12 @@ type Options struct {
 	WriterDone <-chan struct{}
 	// IdleEnd ends Drive after this long without a new line; 0 never.
 	IdleEnd time.Duration
+	// Overrides are the columns the command line named for each split
+	// (--train, --val, --train-dev, --test). With Judge.Metric they are
+	// checked against the log's columns as soon as these are known
+	// (watch.Stats.ColumnsKnown): one that the log lacks ends the run with
+	// a *watch.ColumnsError, before any point is judged.
+	Overrides watch.Overrides
 }
 
 // Run is one training run: its Tracker, the reader's latest counts and the
@@ -64,6 +70,10 @@ type Run struct {
 	tracker  *diagnose.Tracker
 	stats    watch.Stats
 	finished bool // WriterDone was closed
+	// checked: the named columns were checked (once the log's columns
+	// were known); colErr is what the check found.
+	checked bool
+	colErr  error
 }
 
 // New returns a run with no point judged yet.
@@ -93,8 +103,12 @@ type Update struct {
 	// is still to be created: it was created now, or why not (the next
 	// point that says stop tries again).
 	Stop *StopEvent
-	// Ended: the run ends with this update (Options.EndOnStop reached).
+	// Ended: the run ends with this update (Options.EndOnStop reached, or
+	// Err).
 	Ended bool
+	// Err ends the run: a column named on the command line is not in the
+	// log (a *watch.ColumnsError). The batch's points were not judged.
+	Err error
 }
 
 // StopEvent is the outcome of creating the stop file.
@@ -114,6 +128,11 @@ func (r *Run) Apply(b watch.Batch) Update {
 	r.mu.Lock()
 	r.stats = b.Stats
 	u.Stats = r.statsLocked()
+	if err := r.checkLocked(); err != nil {
+		r.mu.Unlock()
+		u.Err, u.Ended = err, true
+		return u
+	}
 	if len(b.Points) > 0 {
 		u.Judgements = make([]diagnose.Judgement, 0, len(b.Points))
 	}
@@ -149,20 +168,36 @@ func (r *Run) Apply(b watch.Batch) Update {
 // Load judges one batch of a whole log being read (report): every point,
 // but only the judgements asked for later are built. Handing each batch on
 // as it is read keeps memory to the Tracker's compact history, not the
-// log's points.
-func (r *Run) Load(b watch.Batch) {
+// log's points. It returns the error of Update.Err: a named column the
+// log lacks (then nothing more is judged).
+func (r *Run) Load(b watch.Batch) error {
 	r.mu.Lock()
 	defer r.mu.Unlock()
 	r.stats = b.Stats
+	if err := r.checkLocked(); err != nil {
+		return err
+	}
 	for _, p := range b.Points {
 		r.tracker.Push(p)
 	}
+	return nil
+}
+
+// checkLocked checks the columns named on the command line once the log's
+// columns are known, and returns the error found then, every time after.
+func (r *Run) checkLocked() error {
+	if !r.checked && r.stats.ColumnsKnown {
+		r.checked = true
+		r.colErr = watch.CheckColumns(r.stats.Columns, r.opts.Overrides, r.opts.Judge.Metric)
+	}
+	return r.colErr
 }
 
 // Drive applies the batches as they come and hands each Update to emit,
 // until the source ends (the channel closes), ctx ends, the run ends on
 // stop (Options.EndOnStop), no line came for Options.IdleEnd, or emit
-// returns an error, which Drive returns. An update being handed on when
+// returns an error, which Drive returns; so it returns Update.Err (a named
+// column the log lacks), after emitting that update. An update being handed on when
 // ctx ends is still handed on whole: emit decides whether to wait for its
 // reader (the screen's feed gives up once the screen is gone).
 func (r *Run) Drive(ctx context.Context, batches <-chan watch.Batch, emit func(Update) error) error {
@@ -186,6 +221,9 @@ func (r *Run) Drive(ctx context.Context, batches <-chan watch.Batch, emit func(U
 		lines = b.Stats.Lines
 		u := r.Apply(b)
 		err := emit(u)
+		if err == nil {
+			err = u.Err
+		}
 		return err != nil || u.Ended, err
 	}
 	for {

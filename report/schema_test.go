@@ -70,6 +70,8 @@ func mapType(t reflect.Type) *jsonschema.Schema {
 		return enum(diagnose.Progresses(), diagnose.Progress.Description)
 	case reflect.TypeOf(diagnose.Signal(0)):
 		return enum(diagnose.Signals(), diagnose.Signal.Description)
+	case reflect.TypeOf(diagnose.Split(0)):
+		return enum(diagnose.Splits(), func(s diagnose.Split) string { return s.Phrase() + " — " + s.Description() })
 	}
 	return nil
 }

@@ -70,6 +70,10 @@ type SourceInfo struct {
 	Examples []string
 	// LastWrite is when the log last grew; zero when unknown.
 	LastWrite time.Time
+	// Roles are the roles the reader assumed for columns where the log
+	// left a choice, each with what it rests on: the status line names
+	// them briefly, the help page (?) in full.
+	Roles []diagnose.RoleGuess
 }
 
 // FeedMsg is one batch from the run: new evaluation points with their

@@ -134,6 +134,13 @@ func (m *Model) mergeSource(s SourceInfo) {
 	s.Name = clean(s.Name)
 	s.Format = clean(s.Format)
 	s.Examples = cleanAll(s.Examples)
+	if len(s.Roles) > 0 {
+		roles := make([]diagnose.RoleGuess, len(s.Roles))
+		for i, g := range s.Roles {
+			roles[i] = diagnose.RoleGuess{Column: clean(g.Column), Split: g.Split, Source: clean(g.Source)}
+		}
+		s.Roles = roles
+	}
 	if m.ended && s.State != Removed {
 		s.State = Finished
 	}

@@ -165,6 +165,21 @@ func (m *Model) fullHelpLines(w, h int) []string {
 	for _, l := range wrap("Reading goes on while paused or inspecting; space returns to the latest epoch.", w) {
 		lines = append(lines, m.st.paint(clsDim, l))
 	}
+	if roles := m.src.Roles; len(roles) > 0 {
+		lines = append(lines, "", m.st.paint(clsHeading, "roles assumed"))
+		for _, l := range wrap("--train, --val, --train-dev and --test override them.", w) {
+			lines = append(lines, m.st.paint(clsDim, l))
+		}
+		for _, g := range roles {
+			for i, l := range wrap(g.Phrase()+": "+g.Source, w-2) {
+				if i == 0 {
+					lines = append(lines, m.st.paint(clsWarn, "• ")+l)
+				} else {
+					lines = append(lines, "  "+m.st.paint(clsDim, l))
+				}
+			}
+		}
+	}
 	if len(lines) > h {
 		lines = lines[:max(h, 0)]
 	}

@@ -35,9 +35,15 @@ type ingester struct {
 
 	state     State
 	lastWrite time.Time
-	batch     Batch
-	sent      Stats
-	sentAt    time.Time
+	// What ColumnsKnown rests on: the reader caught up with the source or
+	// reached its end, and a point of an epoch other than the first's.
+	caughtUp, ended bool
+	firstEpoch      int
+	pointsSeen      int
+	secondEpoch     bool
+	batch           Batch
+	sent            Stats
+	sentAt          time.Time
 }
 
 func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester {
@@ -52,7 +58,17 @@ func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester
 // batch holds each epoch once (an epoch handed on early and refined, or
 // written as an evaluation row and a summary row, goes out as its last
 // version).
-func (g *ingester) Point(p diagnose.Point)  { g.batch.Points = points.Append(g.batch.Points, p) }
+func (g *ingester) Point(p diagnose.Point) {
+	g.batch.Points = points.Append(g.batch.Points, p)
+	switch {
+	case g.pointsSeen == 0:
+		g.firstEpoch = p.Epoch
+	case p.Epoch != g.firstEpoch:
+		g.secondEpoch = true
+	}
+	g.pointsSeen++
+}
+
 func (g *ingester) Step(r diagnose.StepRow) { g.batch.Steps = append(g.batch.Steps, r) }
 
 // Notice reports a message; it may quote the log's name or an error about
@@ -74,8 +90,16 @@ func (g *ingester) Feed(p []byte) {
 func (g *ingester) Restart(why string) { g.r.Reset(why) }
 func (g *ingester) Rewind() bool       { return g.r.Rewind() }
 func (g *ingester) State(s State)      { g.state = s }
-func (g *ingester) CaughtUp()          { g.r.CaughtUp() }
-func (g *ingester) End()               { g.r.End() }
+
+func (g *ingester) CaughtUp() {
+	g.caughtUp = true
+	g.r.CaughtUp()
+}
+
+func (g *ingester) End() {
+	g.ended = true
+	g.r.End()
+}
 
 // Flush hands the batch on when asked to; false when ctx ended first.
 func (g *ingester) Flush(ctx context.Context, when tail.Flush) bool {
@@ -113,7 +137,14 @@ func (g *ingester) pending() bool {
 	b := &g.batch
 	lines, skipped := g.r.Lines()
 	return len(b.Points) > 0 || len(b.Steps) > 0 || len(b.Notices) > 0 ||
-		lines != g.sent.Lines || skipped != g.sent.Skipped || g.state != g.sent.State
+		lines != g.sent.Lines || skipped != g.sent.Skipped || g.state != g.sent.State ||
+		g.columnsKnown(false) && !g.sent.ColumnsKnown
+}
+
+// columnsKnown is Stats.ColumnsKnown, header saying whether a header line
+// named the columns.
+func (g *ingester) columnsKnown(header bool) bool {
+	return header || g.ended || g.caughtUp && g.secondEpoch
 }
 
 // take returns the batch so far and starts a new one.
@@ -122,7 +153,8 @@ func (g *ingester) take() Batch {
 	g.batch = Batch{}
 	c := g.r.Counts()
 	b.Stats = Stats{Format: c.Format, State: g.state, Lines: c.Lines, Skipped: c.Skipped, Examples: c.Examples,
-		NonFinite: c.NonFinite, Segments: c.Segments, LastWrite: g.lastWrite, Roles: c.Roles, Columns: c.Columns}
+		NonFinite: c.NonFinite, Segments: c.Segments, LastWrite: g.lastWrite, Roles: c.Roles, Columns: c.Columns,
+		ColumnsKnown: g.columnsKnown(c.Header)}
 	return b
 }
 

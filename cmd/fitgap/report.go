@@ -17,8 +17,8 @@ var reportCommand = &command{
 	name:    "report",
 	args:    "FILE",
 	summary: "read a whole log and print the snapshot summary (Markdown, or --json)",
-	about: `Reads the whole log (CSV/TSV, JSON Lines or console text; FILE "-" reads standard
-input), judges every evaluation point and prints the summary as of the last one.
+	about: `Reads the whole log (any layout of --format; FILE "-" reads standard input),
+judges every evaluation point and prints the summary as of the last one.
 Exit status 0 after a report; 2 on a usage error or an unreadable or empty log.`,
 	example: `  fitgap report --bayes-error 4% runs/resnet-small.csv
   fitgap report --json --val-size 5000 train.log | jq .diagnosis`,
@@ -58,13 +58,17 @@ func onePath(args []string) (string, error) {
 // handing each batch to the run as it is read.
 func judgeWholeLog(src pipeline.Source, cfg diagnose.Config) (*pipeline.Run, error) {
 	src.Read.Follow = false
-	batches, err := src.Follow(context.Background())
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel() // a read given up on (a missing column) stops at once
+	batches, err := src.Follow(ctx)
 	if err != nil {
 		return nil, readError(src.Name(), err)
 	}
-	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: cfg})
+	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: cfg, Overrides: src.Read.Roles})
 	for b := range batches {
-		run.Load(b)
+		if err := run.Load(b); err != nil {
+			return nil, runError(src.Name(), err)
+		}
 	}
 	if run.Len() == 0 {
 		return nil, emptyLogError(src.Name(), run.Stats())
@@ -87,6 +91,20 @@ func readError(name string, err error) error {
 	return &inputError{err: err, hint: hint}
 }
 
+// runError turns the error that ended a run into what the command
+// returns: a column named on the command line that the log lacks is an
+// input error (exit 2) naming the log; any other error is returned as is.
+func runError(name string, err error) error {
+	var ce *watch.ColumnsError
+	if !errors.As(err, &ce) {
+		return err
+	}
+	return &inputError{
+		err:  fmt.Errorf("%s: %w", name, err),
+		hint: "name a column as the log writes it, or leave the flag out and fitgap reads the roles from the names",
+	}
+}
+
 // emptyLogError explains a log with nothing to judge.
 func emptyLogError(name string, stats watch.Stats) error {
 	msg := fmt.Sprintf("%s: no evaluation points found (%d lines read, %d skipped, format %s)",
@@ -99,7 +117,7 @@ func emptyLogError(name string, stats watch.Stats) error {
 	case stats.Lines == 0:
 		hint = "the log is empty: has training written anything yet? fitgap watch FILE follows it as it grows"
 	case stats.Skipped > 0:
-		hint = "if the format was misdetected, name it: --format csv, tsv, jsonl or text"
+		hint = "if the layout was misdetected, name it: --format " + strings.Join(watch.FormatNames(), ", ")
 	}
 	return &inputError{err: errors.New(msg), hint: hint}
 }

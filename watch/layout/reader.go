@@ -77,6 +77,9 @@ type Counts struct {
 	// Columns are the log's value columns so far, in the order they
 	// appeared, with what each holds.
 	Columns []diagnose.Column
+	// Header: a header line named the columns (CSV/TSV, aligned tables),
+	// so Columns holds them all from the start.
+	Header bool
 }
 
 // Reader turns the bytes of a log into points: it cuts lines, detects the
@@ -111,6 +114,7 @@ type Reader struct {
 	last       [examplesLast]ParseError
 	lastN      int
 	overrode   bool // checkRoles already reported
+	headed     bool // a header line named the columns (Counts.Header)
 
 	// spec marks a worker of the parallel path (ahead.go): it decodes a
 	// piece ahead of the Reader and gives up (bailed) at the first
@@ -422,8 +426,10 @@ func (r *Reader) End() {
 // log without evaluation values hands its open point on provisionally.
 func (r *Reader) CaughtUp() { r.asm.Provisional() }
 
-// checkRoles reports overrides that name no column of a header.
+// checkRoles notes that a header named the columns, and reports overrides
+// that name none of them.
 func (r *Reader) checkRoles(names []string) {
+	r.headed = true
 	o := r.roles.Overrides()
 	if o.Empty() || r.overrode {
 		return
@@ -458,7 +464,7 @@ func (r *Reader) Counts() Counts {
 		r.guesses = slices.Clone(r.asm.Guesses())
 	}
 	c := Counts{Format: r.format, Lines: r.lines, Skipped: r.skipped, Examples: r.examples(), NonFinite: r.asm.NonFinite(),
-		Roles: r.guesses, Columns: r.cols}
+		Roles: r.guesses, Columns: r.cols, Header: r.headed}
 	if r.lines > 0 {
 		c.Segments = r.asm.Segment()
 	}
