@@ -16,6 +16,7 @@ import (
 	"runtime/pprof"
 	"syscall"
 
+	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch"
 )
 
@@ -65,15 +66,32 @@ func run() error {
 		fmt.Printf("followed: %d points handed on\n", points)
 		return nil
 	}
-	points, st, err := watch.ReadAll(flag.Arg(0), nil, opts)
+	// One-shot, as a report reads: the batches are taken as they come and
+	// only counted (a report hands them to the judge, which keeps a
+	// compact history), so memory is the reader's, not the points'.
+	ch, err := watch.Follow(context.Background(), flag.Arg(0), opts)
 	if err != nil {
 		return err
 	}
-	last := ""
-	if n := len(points); n > 0 {
-		p := points[n-1]
-		last = fmt.Sprintf(", last epoch %d (%d rows)", p.Epoch, p.Rows)
+	var (
+		st     watch.Stats
+		points int
+		last   diagnose.Point
+	)
+	for b := range ch {
+		for _, p := range b.Points {
+			if p.Epoch <= last.Epoch && points > 0 {
+				points-- // replaces the point of its epoch (watch.Batch)
+			}
+			points++
+			last = p
+		}
+		st = b.Stats
 	}
-	fmt.Printf("%s: %d lines, %d points, %d skipped%s\n", st.Format, st.Lines, len(points), st.Skipped, last)
+	tail := ""
+	if points > 0 {
+		tail = fmt.Sprintf(", last epoch %d (%d rows)", last.Epoch, last.Rows)
+	}
+	fmt.Printf("%s: %d lines, %d points, %d skipped%s\n", st.Format, st.Lines, points, st.Skipped, tail)
 	return nil
 }

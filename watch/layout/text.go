@@ -42,6 +42,10 @@ type textDecoder struct {
 	epoch     int
 	haveEpoch bool
 	names     nameKinds
+
+	// The fast path's interned names and pairs (textfast.go).
+	fast      textNames
+	fastPairs []fastPair
 }
 
 // maxKinds bounds the cache of names: prose can hold endless distinct
@@ -85,15 +89,20 @@ func newTextDecoder(r *Reader) *textDecoder {
 func (d *textDecoder) Finish() { d.asm.ClosePoint() }
 
 func (d *textDecoder) Decode(line []byte, n int) {
+	if !d.r.general && d.decodeFast(line, n) {
+		return // a plain line: no carriage return in it
+	}
 	if i := bytes.LastIndexByte(line, '\r'); i >= 0 {
 		line = line[i+1:]
+		if !d.r.general && d.decodeFast(line, n) {
+			return
+		}
 	}
 	if len(line) == 0 {
 		return
 	}
 	s := diagnose.Printable(string(line))
 	m := findMarker(s)
-	epoch, total, marked := m.epoch, m.total, m.ok
 	var lead int
 	d.pairs, lead = scanPairs(d.pairs[:0], s, &d.names)
 	if ctx := contextPrefix(s, m.mode, lead); ctx != "" {
@@ -101,11 +110,10 @@ func (d *textDecoder) Decode(line []byte, n int) {
 			d.pairs[i].name = ctx + d.pairs[i].name
 		}
 	}
-	a := d.asm
 	// A line counts when it marks an epoch or carries a recognised value;
 	// lines of prose with an incidental number ("Using device cuda: 0")
 	// are noise.
-	evidence := marked
+	evidence := m.ok
 	for _, p := range d.pairs {
 		if d.kind(p.name) != diagnose.KindOther {
 			evidence = true
@@ -115,39 +123,50 @@ func (d *textDecoder) Decode(line []byte, n int) {
 	if !evidence {
 		return
 	}
-	if marked && (!d.haveEpoch || epoch != d.epoch) {
-		back := d.haveEpoch && epoch < d.epoch
+	d.beginLine(m, n)
+	for _, p := range d.pairs {
+		if ci := d.asm.Column(p.name); ci >= 0 {
+			d.value(ci, p.value, p.total)
+		}
+	}
+	d.asm.EndLine(n, !d.haveEpoch)
+}
+
+// beginLine starts the row of a line that counts: a marker of another
+// epoch closes the open point (a marker going back resumes the run) and
+// opens the marked epoch's.
+func (d *textDecoder) beginLine(m marker, n int) {
+	a := d.asm
+	if m.ok && (!d.haveEpoch || m.epoch != d.epoch) {
+		back := d.haveEpoch && m.epoch < d.epoch
 		last := d.epoch
 		a.ClosePoint()
 		if back {
-			a.Resume(fmt.Sprintf("epoch went back from %d to %d at line %d", last, epoch, n))
+			a.Resume(fmt.Sprintf("epoch went back from %d to %d at line %d", last, m.epoch, n))
 		}
-		d.epoch, d.haveEpoch = epoch, true
-		a.OpenPoint(epoch, true)
+		d.epoch, d.haveEpoch = m.epoch, true
+		a.OpenPoint(m.epoch, true)
 	}
-	if marked && total > 0 {
-		a.SetTotal(total)
+	if m.ok && m.total > 0 {
+		a.SetTotal(m.total)
 	}
 	a.BeginRow()
-	for _, p := range d.pairs {
-		ci := a.Column(p.name)
-		if ci < 0 {
-			continue
+}
+
+// value files a pair's value into column ci of the row.
+func (d *textDecoder) value(ci int, v float64, total int) {
+	a := d.asm
+	switch col := a.Info(ci); col.Kind {
+	case diagnose.KindEpoch:
+		// the marker, already read
+	case diagnose.KindStep:
+		a.Step(v)
+	case diagnose.KindTime:
+		a.TimeNumber(ci, v)
+	default:
+		if total > 0 && col.Rate {
+			v /= float64(total) // "Accuracy: 9893/10000"
 		}
-		switch col := a.Info(ci); col.Kind {
-		case diagnose.KindEpoch:
-			continue // the marker, already read
-		case diagnose.KindStep:
-			a.Step(p.value)
-		case diagnose.KindTime:
-			a.TimeNumber(ci, p.value)
-		default:
-			v := p.value
-			if p.total > 0 && col.Rate {
-				v /= float64(p.total) // "Accuracy: 9893/10000"
-			}
-			a.Value(ci, v)
-		}
+		a.Value(ci, v)
 	}
-	a.EndLine(n, !d.haveEpoch)
 }

@@ -101,7 +101,7 @@ func isWordByte(c byte) bool {
 }
 
 // readFraction reads "3" or "3/50" (spaces allowed around the slash) at i.
-func readFraction(s string, i int) (n, total, end int, ok bool) {
+func readFraction[T string | []byte](s T, i int) (n, total, end int, ok bool) {
 	n, end, ok = readInt(s, i)
 	if !ok {
 		return 0, 0, i, false
@@ -128,7 +128,7 @@ func readFraction(s string, i int) (n, total, end int, ok bool) {
 
 // readInt reads a decimal integer of at most maxIntDigits digits at i; a
 // longer run of digits is no epoch, step count or total.
-func readInt(s string, i int) (n, end int, ok bool) {
+func readInt[T string | []byte](s T, i int) (n, end int, ok bool) {
 	j := i
 	for j < len(s) && s[j] >= '0' && s[j] <= '9' && j-i < maxIntDigits {
 		n = n*10 + int(s[j]-'0')

@@ -85,6 +85,20 @@ func segmentPair(dst []textPair, seg string, names *nameKinds) []textPair {
 	return dst
 }
 
+// equalFoldASCII reports whether the ASCII letters of s spell word (lower
+// case) in any case.
+func equalFoldASCII[T string | []byte](s T, word string) bool {
+	if len(s) != len(word) {
+		return false
+	}
+	for i := range len(word) {
+		if lower(s[i]) != word[i] {
+			return false
+		}
+	}
+	return true
+}
+
 // maxUnitBytes is the longest unit readValue lets follow a number ("s",
 // "ms", "it/s", "MiB/s"): a longer word run into a number is prose or an
 // identifier, not a value. Unit: bytes.
@@ -94,7 +108,7 @@ const maxUnitBytes = 6
 // fraction "3/50"; a unit or percent sign may follow ("12.3s", "84%",
 // "5.1it/s"). The number must end at a boundary: not "12:00" (a clock) or
 // "2024-01-01" (a date).
-func readValue(s string, i int) (v float64, total, end int, ok bool) {
+func readValue[T string | []byte](s T, i int) (v float64, total, end int, ok bool) {
 	j := i
 	if j < len(s) && (s[j] == '-' || s[j] == '+') {
 		j++
@@ -109,8 +123,7 @@ func readValue(s string, i int) (v float64, total, end int, ok bool) {
 		for w < len(s) && (s[w] >= 'a' && s[w] <= 'z' || s[w] >= 'A' && s[w] <= 'Z') {
 			w++
 		}
-		switch strings.ToLower(s[j:w]) {
-		case "nan", "inf", "infinity":
+		if word := s[j:w]; equalFoldASCII(word, "nan") || equalFoldASCII(word, "inf") || equalFoldASCII(word, "infinity") {
 			f, good := parseNumber([]byte(s[i:w]))
 			if good && (w == len(s) || !isWordByte(s[w])) {
 				return f, 0, w, true

@@ -129,6 +129,7 @@ type Assembler struct {
 	// the parallel path) and must not grow; a new name gives up instead.
 	frozen    bool
 	slab      []diagnose.Sample // shared storage of per-step rows
+	pointSlab []diagnose.Sample // shared storage of the points' samples
 	nonFinite int
 
 	// guesses are the roles assumed (roles.go); version counts changes

@@ -200,16 +200,21 @@ func (a *Assembler) emit() {
 		Time:        g.time,
 		Rows:        g.rows,
 		Line:        g.line,
-		Samples:     make([]diagnose.Sample, 0, len(a.touched)),
 	}
+	n := len(a.touched)
+	if cap(a.pointSlab)-len(a.pointSlab) < n {
+		a.pointSlab = make([]diagnose.Sample, 0, max(pointSlab, n))
+	}
+	start := len(a.pointSlab)
 	for _, ci := range a.touched {
 		c := &a.cols[ci]
 		v := c.last
 		if !c.eval && c.n > 1 {
 			v = c.sum / float64(c.n)
 		}
-		p.Samples = append(p.Samples, diagnose.Sample{Column: c.col, Value: v, Last: c.last})
+		a.pointSlab = append(a.pointSlab, diagnose.Sample{Column: c.col, Value: v, Last: c.last})
 	}
+	p.Samples = a.pointSlab[start:len(a.pointSlab):len(a.pointSlab)]
 	g.emitted, g.dirty = true, false
 	a.lastEpoch, a.haveLast = g.epoch, true
 	a.out.Point(p)

@@ -6,6 +6,12 @@ import "github.com/fitgap/fitgap/diagnose"
 // rows share slabs instead of allocating one slice each. Unit: samples.
 const stepSlab = 4096
 
+// pointSlab is the same for the samples of points: a log of one row per
+// epoch hands on a point per line, which would otherwise cost an
+// allocation each. A point's samples are a capped slice of the slab, so a
+// consumer that appends to them copies. Unit: samples.
+const pointSlab = 1024
+
 // emitStep hands the current row on as a per-step row.
 func (a *Assembler) emitStep() {
 	n := len(a.row)

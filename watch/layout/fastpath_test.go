@@ -1,0 +1,93 @@
+package layout
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// ingestPoisoned reads in through the fast paths (or the general ones),
+// in chunks of chunk bytes handed on in one buffer that is overwritten
+// after every Feed, as the tailer reuses its read buffer: a decoder that
+// keeps a view of a line instead of a copy shows it as garbage.
+func ingestPoisoned(in []byte, c Config, general bool, chunk int) ingestResult {
+	r, o := newTestReader(c)
+	r.general = general
+	buf := make([]byte, chunk)
+	for p := in; len(p) > 0; {
+		n := copy(buf, p)
+		r.Feed(buf[:n])
+		for i := range buf {
+			buf[i] = 0xAA
+		}
+		p = p[n:]
+	}
+	r.End()
+	return ingestResult{points: o.points, notices: o.notices, counts: r.Counts()}
+}
+
+// checkFastPath compares a layout's fast path with its general path on one
+// log: everything handed on must be the same bit for bit, read whole or in
+// small chunks of a reused buffer.
+func checkFastPath(t *testing.T, in []byte, c Config) {
+	t.Helper()
+	general := ingestGeneral(in, c, true)
+	for _, chunk := range []int{len(in) + 1, 7} {
+		if d := diffResults(ingestPoisoned(in, c, false, chunk), general); d != "" {
+			t.Fatalf("log %q (chunks of %d): fast path differs from the general path: %s", in, chunk, d)
+		}
+	}
+}
+
+// textTokens are the pieces the exhaustive test makes console lines of:
+// markers of each shape and case, names, separators, values of every
+// shape readValue knows, a split context, a tab, and prose.
+var textTokens = []string{
+	"Epoch", "EPOCHS 3/5", "ep3", "[2/9]", "Epoch(VAL) [4]", "Epoch() [5]", "Iteration 7,", "step",
+	"loss", "Val_Loss", "Test set:", "acc:", "=", ": ", " - ", "|", "\t",
+	"0.5", "-1e-3", "NaN", "inf", "9893/10000", "84%", "12:00", "(99%)", "x1",
+}
+
+// TestTextFast_ExhaustiveLines reads every line of up to three tokens (four
+// with -exhaustive), joined with and without a space, twice in a row and
+// between two epochs, through the fast and the general path.
+func TestTextFast_ExhaustiveLines(t *testing.T) {
+	var b strings.Builder
+	n := 0
+	eachSequence(textTokens, size(3, 4), func(seq []string) {
+		for _, sep := range []string{" ", ""} {
+			line := strings.Join(seq, sep)
+			b.Reset()
+			b.WriteString("epoch 1 loss: 0.9\n")
+			b.WriteString(line + "\n" + line + "\n")
+			b.WriteString("epoch 2 val_loss: 0.8\n" + line)
+			checkFastPath(t, []byte(b.String()), Config{Format: Text})
+			n++
+		}
+	})
+	t.Logf("%d logs", n)
+}
+
+// TestTextFast_Frameworks: the captured console logs read the same on
+// both paths.
+func TestTextFast_Frameworks(t *testing.T) {
+	for _, name := range []string{
+		"epochval-good.log", "keyvalue-overfit.log", "sklearn-mlp-good.log", "sklearn-mlp-earlystop-overfit.log",
+		"torch-classic-good.log", "keras-style-good.csv",
+	} {
+		t.Run(name, func(t *testing.T) {
+			checkFastPath(t, readFramework(t, name), Config{Format: Text})
+		})
+	}
+}
+
+// readFramework reads a captured log of testdata/frameworks.
+func readFramework(t *testing.T, name string) []byte {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "frameworks", name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
+}

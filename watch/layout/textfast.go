@@ -1,0 +1,450 @@
+package layout
+
+import (
+	"bytes"
+	"encoding/binary"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/watch/column"
+)
+
+// The fast path of console text: a line of printable ASCII (tabs aside,
+// which sanitizing turns into spaces) is its own sanitized form, so it is
+// read where it lies, without a copy, a lower-cased copy or a string per
+// line. What the general path (text.go, textmarkers.go, textpairs.go)
+// derives from a name is derived once per distinct raw name and kept
+// (nameInfo); a line's names are matched against the previous line's by
+// their bytes before any hashing, since console lines repeat their shape.
+// The result is the general path's, bit for bit: tests compare the two
+// exhaustively on small lines and by fuzzing (FuzzText).
+
+// nameInfo is what the text before a value makes, worked out once: the
+// metric name cleanName gives it (ok false: no name), the name's Kind as
+// column.Parse gives it (kind) and as the row sees it with the
+// --train/--val… overrides (rowKind), and the column, once the assembler
+// has one for it (-1 until then).
+type nameInfo struct {
+	name          string
+	ok            bool
+	kind, rowKind diagnose.Kind
+	col           int
+}
+
+// rawName is one name of the previous line: its raw bytes and what they
+// make.
+type rawName struct {
+	raw  string
+	info *nameInfo
+}
+
+// maxLineNames bounds the names of a line remembered for the next one.
+// Unit: names.
+const maxLineNames = 64
+
+// textNames interns the raw names of console lines. Both maps are bounded
+// by maxKinds and start afresh when full (prose invents names without
+// end); the previous line's names are matched first, by their bytes.
+type textNames struct {
+	byRaw map[string]*nameInfo
+	// prefixed are the names a line's split context makes ("Test set: "
+	// + "Average loss"), by context and name.
+	prefixed map[[2]string]*nameInfo
+	// modes are the contexts of the modes markers write ("Epoch(val)").
+	modes map[string]string
+	prev  []rawName
+	next  []rawName
+	// scratch holds a line whose tabs became spaces.
+	scratch []byte
+}
+
+// info returns what the raw name text (the bytes before a ":" or "=", or
+// the name part of a "name value" segment) makes, k being its place among
+// the line's names.
+func (d *textDecoder) info(raw []byte, k int) *nameInfo {
+	t := &d.fast
+	if k < len(t.prev) && t.prev[k].raw == string(raw) {
+		inf := t.prev[k].info
+		t.keep(k, t.prev[k])
+		return inf
+	}
+	inf, ok := t.byRaw[string(raw)]
+	if !ok {
+		name, good := cleanName(string(raw))
+		inf = d.newInfo(name, good)
+		if t.byRaw == nil || len(t.byRaw) >= maxKinds {
+			t.byRaw = make(map[string]*nameInfo)
+		}
+		t.byRaw[string(raw)] = inf
+	}
+	t.keep(k, rawName{raw: string(raw), info: inf})
+	return inf
+}
+
+// keep remembers the k-th name of the line for the next line.
+func (t *textNames) keep(k int, r rawName) {
+	if k < maxLineNames && k == len(t.next) {
+		if k < len(t.prev) && t.prev[k].raw == r.raw {
+			r.raw = t.prev[k].raw // share the string already kept
+		}
+		t.next = append(t.next, r)
+	}
+}
+
+// endLine makes this line's names the ones the next line is matched with.
+func (t *textNames) endLine() {
+	t.prev, t.next = t.next, t.prev[:0]
+}
+
+// newInfo works out what a cleaned name makes.
+func (d *textDecoder) newInfo(name string, ok bool) *nameInfo {
+	inf := &nameInfo{name: name, ok: ok, col: -1}
+	if ok {
+		inf.kind = d.names.kind(name)
+		inf.rowKind = d.kind(name)
+	}
+	return inf
+}
+
+// withContext returns the name a split context makes of inf's name.
+func (d *textDecoder) withContext(ctx string, inf *nameInfo) *nameInfo {
+	t := &d.fast
+	key := [2]string{ctx, inf.name}
+	if p, ok := t.prefixed[key]; ok {
+		return p
+	}
+	p := d.newInfo(ctx+inf.name, true)
+	if t.prefixed == nil || len(t.prefixed) >= maxKinds {
+		t.prefixed = make(map[[2]string]*nameInfo)
+	}
+	t.prefixed[key] = p
+	return p
+}
+
+// plainASCII returns line as its own sanitized form: printable ASCII,
+// with tabs turned into spaces (in scratch), as diagnose.Printable would;
+// ok is false for a line with any other control byte (a carriage return
+// among them) or a non-ASCII byte. Eight bytes are tested at a time; a
+// word that may hold a byte outside the printable range is looked at byte
+// by byte.
+func (t *textNames) plainASCII(line []byte) ([]byte, bool) {
+	tabs := false
+	i := 0
+	for ; i+8 <= len(line); i += 8 {
+		if x := binary.LittleEndian.Uint64(line[i:]); !wordPrintable(x) {
+			for _, c := range line[i : i+8] {
+				if c < 0x20 || c >= 0x7f {
+					if c != '\t' {
+						return nil, false
+					}
+					tabs = true
+				}
+			}
+		}
+	}
+	for _, c := range line[i:] {
+		if c < 0x20 || c >= 0x7f {
+			if c != '\t' {
+				return nil, false
+			}
+			tabs = true
+		}
+	}
+	if !tabs {
+		return line, true
+	}
+	t.scratch = append(t.scratch[:0], line...)
+	for i, c := range t.scratch {
+		if c == '\t' {
+			t.scratch[i] = ' '
+		}
+	}
+	return t.scratch, true
+}
+
+// wordPrintable reports that none of the eight bytes of x is below 0x20
+// or above 0x7e (it may say false for a word that is all printable: its
+// bytes are then looked at one by one). A byte b < 0x20 sets the high bit
+// of b − 0x20 where b had none; b ≥ 0x7f has it in b + 1 or in b.
+func wordPrintable(x uint64) bool {
+	const ones, highs = 0x0101010101010101, 0x8080808080808080
+	below := (x - 0x20*ones) &^ x & highs
+	above := ((x + ones) | x) & highs
+	return below|above == 0
+}
+
+// fastPair is a pair of the fast path: the name's info and the value.
+type fastPair struct {
+	info  *nameInfo
+	value float64
+	total int
+}
+
+// scanPairsFast is scanPairs over a plain line: the same pairs, with the
+// names interned.
+func (d *textDecoder) scanPairsFast(dst []fastPair, s []byte) (pairs []fastPair, lead int) {
+	lead = -1
+	k := 0 // names looked up so far
+	seg := 0
+	for i := 0; i < len(s); i++ {
+		c := s[i]
+		if !pairBytes[c] {
+			continue
+		}
+		switch {
+		case c == ':' || c == '=':
+			j := i + 1
+			for j < len(s) && s[j] == ' ' {
+				j++
+			}
+			v, total, end, ok := readValue(s, j)
+			if !ok {
+				if c == ':' && lead < 0 && len(dst) == 0 {
+					lead = i
+				}
+				seg = i + 1
+				continue
+			}
+			inf := d.info(s[seg:i], k)
+			k++
+			if inf.ok {
+				dst = append(dst, fastPair{info: inf, value: v, total: total})
+			}
+			seg = end
+			i = end - 1
+		case isSeparator(c) || c == '-' && i > 0 && s[i-1] == ' ' && i+1 < len(s) && s[i+1] == ' ':
+			dst = d.segmentPairFast(dst, s[seg:i], &k)
+			seg = i + 1
+		}
+	}
+	return d.segmentPairFast(dst, s[seg:], &k), lead
+}
+
+// pairBytes are the bytes scanPairs acts on: a colon or equals sign before
+// a value, a separator, a minus.
+var pairBytes = func() (t [256]bool) {
+	for c := range 256 {
+		t[c] = c == ':' || c == '=' || c == '-' || isSeparator(byte(c))
+	}
+	return t
+}()
+
+// segmentPairFast is segmentPair over a plain segment.
+func (d *textDecoder) segmentPairFast(dst []fastPair, seg []byte, k *int) []fastPair {
+	seg = bytes.TrimSpace(seg)
+	sp := bytes.LastIndexByte(seg, ' ')
+	if sp < 0 {
+		return dst
+	}
+	v, total, end, ok := readValue(seg, sp+1)
+	if !ok || end != len(seg) {
+		return dst
+	}
+	inf := d.info(seg[:sp], *k)
+	*k++
+	if inf.ok && inf.kind != diagnose.KindOther {
+		dst = append(dst, fastPair{info: inf, value: v, total: total})
+	}
+	return dst
+}
+
+// lower is an ASCII letter's lower case, any other byte unchanged.
+func lower(c byte) byte {
+	if c >= 'A' && c <= 'Z' {
+		return c + 'a' - 'A'
+	}
+	return c
+}
+
+// markerFast is findMarker over a plain line, comparing letters without
+// regard to case instead of lower-casing the line; the mode is returned
+// as the line writes it.
+func markerFast(s []byte) (m marker, mode []byte) {
+	if e, ok := sklearnIterationFast(s); ok {
+		return marker{epoch: e, ok: true}, nil
+	}
+	for from := 0; from < len(s); {
+		i := indexEpochWord(s, from)
+		if i < 0 {
+			break
+		}
+		j := i
+		for j < len(s) && lower(s[j]) >= 'a' && lower(s[j]) <= 'z' {
+			j++
+		}
+		k := j
+		if k < len(s) && s[k] == '(' {
+			if e, md, good := bracketAfterModeFast(s, k); good {
+				return marker{epoch: e, ok: true}, md
+			}
+		}
+		for k < len(s) && (s[k] == ' ' || s[k] == ':' || s[k] == '=' || s[k] == '#') {
+			k++
+		}
+		if e, t, end, good := readFraction(s, k); good && end > k {
+			return marker{epoch: e, total: t, ok: true}, nil
+		}
+		from = j
+	}
+	if i := bytes.IndexByte(s, '['); i >= 0 {
+		if e, t, end, good := readFraction(s, i+1); good && t > 0 && end < len(s) && s[end] == ']' {
+			return marker{epoch: e, total: t, ok: true}, nil
+		}
+	}
+	return marker{}, nil
+}
+
+// indexEpochWord is indexWord(lower, "epoch", "ep") from byte from on:
+// the first place where "epoch" or "ep" (either with an "s") stands alone.
+// Candidates are found with IndexByte, for an "e" and for an "E".
+func indexEpochWord(s []byte, from int) int {
+	lo, up := nextByte(s, from, 'e'), nextByte(s, from, 'E')
+	for lo >= 0 || up >= 0 {
+		i := lo
+		if i < 0 || up >= 0 && up < i {
+			i = up
+		}
+		if epochWordAt(s, i) {
+			return i
+		}
+		if i == lo {
+			lo = nextByte(s, i+1, 'e')
+		} else {
+			up = nextByte(s, i+1, 'E')
+		}
+	}
+	return -1
+}
+
+// nextByte is the index of the first c in s from byte from on, or -1.
+func nextByte(s []byte, from int, c byte) int {
+	if from >= len(s) {
+		return -1
+	}
+	if i := bytes.IndexByte(s[from:], c); i >= 0 {
+		return from + i
+	}
+	return -1
+}
+
+// epochWordAt reports an "epoch" or "ep" that stands alone at s[i].
+func epochWordAt(s []byte, i int) bool {
+	if i+1 >= len(s) || lower(s[i+1]) != 'p' || i > 0 && isWordByte(s[i-1]) {
+		return false
+	}
+	if i+5 <= len(s) && lower(s[i+2]) == 'o' && lower(s[i+3]) == 'c' && lower(s[i+4]) == 'h' && wordEnds(s, i+5) {
+		return true
+	}
+	return wordEnds(s, i+2)
+}
+
+// wordEnds reports whether a word that ends before s[end] (an "s" may
+// follow) stands alone: the end of the line, a byte that is no word's, or
+// a digit ("ep3").
+func wordEnds(s []byte, end int) bool {
+	if end < len(s) && lower(s[end]) == 's' {
+		end++
+	}
+	return end == len(s) || !isWordByte(s[end]) || s[end] >= '0' && s[end] <= '9'
+}
+
+// sklearnIterationFast is sklearnIteration over a plain line.
+func sklearnIterationFast(s []byte) (int, bool) {
+	const word = "iteration "
+	if len(s) < len(word) {
+		return 0, false
+	}
+	for i := range len(word) {
+		if lower(s[i]) != word[i] {
+			return 0, false
+		}
+	}
+	e, end, ok := readInt(s, len(word))
+	return e, ok && end < len(s) && s[end] == ','
+}
+
+// bracketAfterModeFast is bracketAfterMode over a plain line.
+func bracketAfterModeFast(s []byte, k int) (int, []byte, bool) {
+	paren := bytes.IndexByte(s[k:], ')')
+	if paren < 0 {
+		return 0, nil, false
+	}
+	i := k + paren + 1
+	for i < len(s) && s[i] == ' ' {
+		i++
+	}
+	if i >= len(s) || s[i] != '[' {
+		return 0, nil, false
+	}
+	e, end, ok := readInt(s, i+1)
+	return e, s[k+1 : k+paren], ok && end < len(s) && s[end] == ']'
+}
+
+// contextFast is contextPrefix for a plain line, with the mode as the
+// line writes it: a line without a context costs no string, and a mode's
+// context is worked out once per mode.
+func (d *textDecoder) contextFast(s, mode []byte, lead int) string {
+	t := &d.fast
+	if len(mode) > 0 {
+		if ctx, ok := t.modes[string(mode)]; ok {
+			return ctx
+		}
+		lowered := make([]byte, len(mode))
+		for i, c := range mode {
+			lowered[i] = lower(c)
+		}
+		ctx := contextPrefix("", string(lowered), lead)
+		if t.modes == nil || len(t.modes) >= maxKinds {
+			t.modes = make(map[string]string)
+		}
+		t.modes[string(mode)] = ctx
+		return ctx
+	}
+	if lead <= 0 || !column.ValidName(string(bytes.TrimSpace(s[:lead]))) {
+		return ""
+	}
+	return contextPrefix(string(s), "", lead)
+}
+
+// decodeFast reads a plain line as Decode reads it; false for a line the
+// general path must read.
+func (d *textDecoder) decodeFast(line []byte, n int) bool {
+	s, ok := d.fast.plainASCII(line)
+	if !ok {
+		return false
+	}
+	m, mode := markerFast(s)
+	var lead int
+	d.fastPairs, lead = d.scanPairsFast(d.fastPairs[:0], s)
+	d.fast.endLine()
+	if len(mode) > 0 || lead > 0 {
+		if ctx := d.contextFast(s, mode, lead); ctx != "" {
+			for i := range d.fastPairs {
+				d.fastPairs[i].info = d.withContext(ctx, d.fastPairs[i].info)
+			}
+		}
+	}
+	evidence := m.ok
+	for _, p := range d.fastPairs {
+		if p.info.rowKind != diagnose.KindOther {
+			evidence = true
+			break
+		}
+	}
+	if !evidence {
+		return true
+	}
+	d.beginLine(m, n)
+	a := d.asm
+	for _, p := range d.fastPairs {
+		inf := p.info
+		if inf.col < 0 {
+			inf.col = a.Column(inf.name)
+			if inf.col < 0 {
+				continue
+			}
+		}
+		d.value(inf.col, p.value, p.total)
+	}
+	a.EndLine(n, !d.haveEpoch)
+	return true
+}
