@@ -46,21 +46,25 @@ func checkFastPath(t *testing.T, in []byte, c Config) {
 var textTokens = []string{
 	"Epoch", "EPOCHS 3/5", "ep3", "[2/9]", "Epoch(VAL) [4]", "Epoch() [5]", "Iteration 7,", "step",
 	"loss", "Val_Loss", "Test set:", "acc:", "=", ": ", " - ", "|", "\t",
-	"0.5", "-1e-3", "NaN", "inf", "9893/10000", "84%", "12:00", "(99%)", "x1",
+	"0.5", "-1e-3", "NaN", "inf", "9893/10000", "84%", "12:00", "(99%)", "x1", "top1", "3/0",
 }
 
 // TestTextFast_ExhaustiveLines reads every line of up to three tokens (four
-// with -exhaustive), joined with and without a space, twice in a row and
-// between two epochs, through the fast and the general path.
+// with -exhaustive), joined with and without a space, twice in a row, with
+// other digits (zeros among them) and with longer runs of digits (the
+// same shape or not), and between two epochs, through the fast and the
+// general path.
 func TestTextFast_ExhaustiveLines(t *testing.T) {
 	var b strings.Builder
 	n := 0
+	otherDigits := strings.NewReplacer("0", "1", "1", "0", "2", "0", "3", "4", "5", "6", "9", "0")
+	longer := strings.NewReplacer("0", "00", "3", "3000000000", "9", "19")
 	eachSequence(textTokens, size(3, 4), func(seq []string) {
 		for _, sep := range []string{" ", ""} {
 			line := strings.Join(seq, sep)
 			b.Reset()
 			b.WriteString("epoch 1 loss: 0.9\n")
-			b.WriteString(line + "\n" + line + "\n")
+			b.WriteString(line + "\n" + line + "\n" + otherDigits.Replace(line) + "\n" + longer.Replace(line) + "\n")
 			b.WriteString("epoch 2 val_loss: 0.8\n" + line)
 			checkFastPath(t, []byte(b.String()), Config{Format: Text})
 			n++
@@ -90,4 +94,45 @@ func readFramework(t *testing.T, name string) []byte {
 		t.Fatal(err)
 	}
 	return b
+}
+
+// FuzzReadValue: the number readValueAt makes in its one pass over the
+// digits is the one parseNumber makes of the same bytes, bit for bit, and
+// its parts lie where it says.
+func FuzzReadValue(f *testing.F) {
+	for _, s := range []string{"0.412345", "-1.5e-3s", "9893/10000 (99%)", "5.", ".5", "1.2.3", "-0", "12345678901234567890.5", "nan%", "+7it/s"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		va, ok := readValueAt(s, 0)
+		vb, okb := readValueAt([]byte(s), 0)
+		if ok != okb || ok && (va.end != vb.end || va.num != vb.num || !sameFloat(va.v, vb.v)) {
+			t.Fatalf("%q: string %+v %v, bytes %+v %v", s, va, ok, vb, okb)
+		}
+		if !ok {
+			return
+		}
+		want, good := parseNumber([]byte(s[:va.num]))
+		if !good || !sameFloat(va.v, want) {
+			t.Fatalf("%q: %v, parseNumber(%q) = %v, %v", s, va.v, s[:va.num], want, good)
+		}
+		if va.totalAt >= 0 {
+			if n, end, good := readInt(s, va.totalAt); !good || n != va.total || end != va.end {
+				t.Fatalf("%q: total %d at %d, readInt gives %d, %d, %v", s, va.total, va.totalAt, n, end, good)
+			}
+		}
+	})
+}
+
+// FuzzEpochRate: epochRate is the two substring tests it stands for.
+func FuzzEpochRate(f *testing.F) {
+	for _, s := range []string{"00:02<01:09,  2.38s/epoch, acc=0.3", "1.3epoch/s", "epochs/s", "s/epochs", "epoch", "s/epoch/s"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		want := strings.Contains(s, "epoch/s") || strings.Contains(s, "s/epoch")
+		if got := epochRate([]byte(s)); got != want {
+			t.Fatalf("epochRate(%q) = %v, want %v", s, got, want)
+		}
+	})
 }

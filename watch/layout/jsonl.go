@@ -52,6 +52,12 @@ func newJSONDecoder(r *Reader) *jsonDecoder {
 
 func (d *jsonDecoder) Finish() {}
 
+func (d *jsonDecoder) readsAhead() bool { return d.epochKey != "" }
+
+func (d *jsonDecoder) aheadState(prev aheadState) aheadState {
+	return d.aheadFor(d, prev, `"`, func(w *Reader) Decoder { return newJSONDecoder(w) })
+}
+
 func (d *jsonDecoder) Decode(line []byte, n int) {
 	d.p, d.i = line, 0
 	d.startRecord()

@@ -64,6 +64,12 @@ type pyDictDecoder struct {
 
 func (d *pyDictDecoder) Finish() {}
 
+func (d *pyDictDecoder) readsAhead() bool { return d.epochKey != "" }
+
+func (d *pyDictDecoder) aheadState(prev aheadState) aheadState {
+	return d.aheadFor(d, prev, `'"`, func(w *Reader) Decoder { return &pyDictDecoder{keyed: newKeyed(w)} })
+}
+
 func (d *pyDictDecoder) Decode(line []byte, n int) {
 	d.p, d.i = line, 0
 	d.startRecord()

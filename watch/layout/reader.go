@@ -189,14 +189,19 @@ func (r *Reader) Feed(p []byte) {
 // return ends a segment too, so that a progress bar redrawn across a whole
 // run is read as it is drawn. Other layouts get whole lines, the carriage
 // returns in them included.
+//
+// The first of the two is found without looking past it: a bar redrawn a
+// thousand times on one line would otherwise have the rest of the line
+// searched for its newline at every drawing.
 func crLineEnd(p []byte) int {
-	if i := bytes.IndexByte(p, '\n'); i >= 0 {
-		if j := bytes.IndexByte(p[:i], '\r'); j >= 0 {
-			return j
-		}
-		return i
+	cr := bytes.IndexByte(p, '\r')
+	if cr < 0 {
+		return bytes.IndexByte(p, '\n')
 	}
-	return bytes.IndexByte(p, '\r')
+	if nl := bytes.IndexByte(p[:cr], '\n'); nl >= 0 {
+		return nl
+	}
+	return cr
 }
 
 // endLine counts a line that ended (not a carriage-return segment).

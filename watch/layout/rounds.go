@@ -2,6 +2,7 @@ package layout
 
 import (
 	"bytes"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -226,3 +227,44 @@ func roundPair(f []byte) (set, metric string, v float64, ok bool) {
 	}
 	return set, metric, v, true
 }
+
+// roundsAhead is the state workers of round lines start from (ahead.go):
+// the evaluation sets of the first line; every round line opens its
+// round.
+type roundsAhead struct {
+	dec  *roundsDecoder
+	sets []string
+}
+
+func (d *roundsDecoder) readsAhead() bool { return d.sets != nil }
+
+func (d *roundsDecoder) aheadState(prev aheadState) aheadState {
+	if d.sets == nil {
+		return nil
+	}
+	if p, ok := prev.(*roundsAhead); ok && p.dec == d {
+		return p
+	}
+	return &roundsAhead{dec: d, sets: slices.Clip(slices.Clone(d.sets))}
+}
+
+// lineEpoch is a round line's round; other lines belong to the round
+// before.
+func (s *roundsAhead) lineEpoch(line []byte) (int, lineKind) {
+	if round, _, ok := roundPrefix(line); ok {
+		return round, lineEpoch
+	}
+	return 0, lineNone
+}
+
+func (s *roundsAhead) newWorker(w *Reader) Decoder {
+	return &roundsDecoder{r: w, asm: w.asm, cols: map[string]int{}, sets: s.sets}
+}
+
+// holds: a best round announced just before the sync line would make the
+// Reader pass over it.
+func (s *roundsAhead) holds(d Decoder) bool { return d == s.dec && !s.dec.summary }
+
+func (s *roundsAhead) finished(Decoder) bool { return true }
+
+func (s *roundsAhead) adopt(d, wd Decoder) { d.(*roundsDecoder).summary = wd.(*roundsDecoder).summary }

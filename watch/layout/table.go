@@ -239,3 +239,41 @@ func parseClock(b []byte) (float64, bool) {
 	}
 	return secs, true
 }
+
+// tableAhead is the state workers of an aligned table start from
+// (ahead.go): the header, which never changes, shared read-only.
+type tableAhead struct{ dec *tableDecoder }
+
+func (d *tableDecoder) readsAhead() bool { return len(d.roles) > 0 && d.roles[0] == cellEpoch }
+
+func (d *tableDecoder) aheadState(prev aheadState) aheadState {
+	if !d.readsAhead() {
+		return nil
+	}
+	if p, ok := prev.(*tableAhead); ok && p.dec == d {
+		return p
+	}
+	return &tableAhead{dec: d}
+}
+
+// lineEpoch reads a row's first cell, the epoch.
+func (s *tableAhead) lineEpoch(line []byte) (int, lineKind) {
+	i := 0
+	for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
+		i++
+	}
+	e, kind, end := epochGuess(line, i)
+	if kind == lineEpoch && end < len(line) && line[end] != ' ' && line[end] != '\t' {
+		return 0, lineBreaks
+	}
+	return e, kind
+}
+
+func (s *tableAhead) newWorker(w *Reader) Decoder {
+	d := s.dec
+	return &tableDecoder{r: w, asm: w.asm, header: d.header, names: d.names, roles: d.roles, colOf: d.colOf}
+}
+
+func (s *tableAhead) holds(d Decoder) bool  { return d == s.dec }
+func (s *tableAhead) finished(Decoder) bool { return true }
+func (s *tableAhead) adopt(d, wd Decoder)   {}

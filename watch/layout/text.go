@@ -43,9 +43,12 @@ type textDecoder struct {
 	haveEpoch bool
 	names     nameKinds
 
-	// The fast path's interned names and pairs (textfast.go).
+	// The fast path's interned names and pairs (textfast.go), and the
+	// shape of the last plain line read in full (textshape.go).
 	fast      textNames
 	fastPairs []fastPair
+	shape     textShape
+	rec       shapeRecorder
 }
 
 // maxKinds bounds the cache of names: prose can hold endless distinct
@@ -169,4 +172,48 @@ func (d *textDecoder) value(ci int, v float64, total int) {
 		}
 		a.Value(ci, v)
 	}
+}
+
+// textAhead is the state workers of console text start from (ahead.go):
+// a worker's decoder starts with no epoch, and its piece's sync line is an
+// epoch marker, which opens the marked epoch whatever came before.
+type textAhead struct{ dec *textDecoder }
+
+func (d *textDecoder) readsAhead() bool { return d.haveEpoch }
+
+func (d *textDecoder) aheadState(prev aheadState) aheadState {
+	if p, ok := prev.(*textAhead); ok && p.dec == d {
+		return p
+	}
+	return &textAhead{dec: d}
+}
+
+// lineEpoch is the epoch a line marks; a line without a marker belongs to
+// the open epoch.
+func (s *textAhead) lineEpoch(line []byte) (int, lineKind) {
+	if i := bytes.LastIndexByte(line, '\r'); i >= 0 {
+		line = line[i+1:]
+	}
+	// A guess, on a worker: a line with tabs is looked at as it is.
+	var m marker
+	if printableOrTab(line) {
+		m = markerFast(line).marker
+	} else {
+		m = findMarker(diagnose.Printable(string(line)))
+	}
+	if !m.ok {
+		return 0, lineNone
+	}
+	return m.epoch, lineEpoch
+}
+
+func (s *textAhead) newWorker(w *Reader) Decoder { return newTextDecoder(w) }
+
+func (s *textAhead) holds(d Decoder) bool { return d == s.dec && s.dec.haveEpoch }
+
+func (s *textAhead) finished(Decoder) bool { return true }
+
+func (s *textAhead) adopt(d, wd Decoder) {
+	t, w := d.(*textDecoder), wd.(*textDecoder)
+	t.epoch, t.haveEpoch = w.epoch, w.haveEpoch
 }

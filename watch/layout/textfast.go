@@ -28,6 +28,9 @@ type nameInfo struct {
 	ok            bool
 	kind, rowKind diagnose.Kind
 	col           int
+	// kept is where in the raw text the words the name is made of start
+	// (keptFrom): a shape keeps the digits from there on.
+	kept int
 }
 
 // rawName is one name of the previous line: its raw bytes and what they
@@ -71,6 +74,7 @@ func (d *textDecoder) info(raw []byte, k int) *nameInfo {
 	if !ok {
 		name, good := cleanName(string(raw))
 		inf = d.newInfo(name, good)
+		inf.kept = keptFrom(string(raw))
 		if t.byRaw == nil || len(t.byRaw) >= maxKinds {
 			t.byRaw = make(map[string]*nameInfo)
 		}
@@ -161,12 +165,21 @@ func (t *textNames) plainASCII(line []byte) ([]byte, bool) {
 	return t.scratch, true
 }
 
+// printableOrTab reports a line of printable ASCII and tabs.
+func printableOrTab(line []byte) bool {
+	for _, c := range line {
+		if (c < 0x20 || c >= 0x7f) && c != '\t' {
+			return false
+		}
+	}
+	return true
+}
+
 // wordPrintable reports that none of the eight bytes of x is below 0x20
 // or above 0x7e (it may say false for a word that is all printable: its
 // bytes are then looked at one by one). A byte b < 0x20 sets the high bit
 // of b − 0x20 where b had none; b ≥ 0x7f has it in b + 1 or in b.
 func wordPrintable(x uint64) bool {
-	const ones, highs = 0x0101010101010101, 0x8080808080808080
 	below := (x - 0x20*ones) &^ x & highs
 	above := ((x + ones) | x) & highs
 	return below|above == 0
@@ -180,7 +193,7 @@ type fastPair struct {
 }
 
 // scanPairsFast is scanPairs over a plain line: the same pairs, with the
-// names interned.
+// names interned; where the numbers and names lie goes to d.rec.
 func (d *textDecoder) scanPairsFast(dst []fastPair, s []byte) (pairs []fastPair, lead int) {
 	lead = -1
 	k := 0 // names looked up so far
@@ -196,7 +209,7 @@ func (d *textDecoder) scanPairsFast(dst []fastPair, s []byte) (pairs []fastPair,
 			for j < len(s) && s[j] == ' ' {
 				j++
 			}
-			v, total, end, ok := readValue(s, j)
+			va, ok := readValueAt(s, j)
 			if !ok {
 				if c == ':' && lead < 0 && len(dst) == 0 {
 					lead = i
@@ -207,16 +220,17 @@ func (d *textDecoder) scanPairsFast(dst []fastPair, s []byte) (pairs []fastPair,
 			inf := d.info(s[seg:i], k)
 			k++
 			if inf.ok {
-				dst = append(dst, fastPair{info: inf, value: v, total: total})
+				dst = append(dst, fastPair{info: inf, value: va.v, total: va.total})
+				d.rec.value(j, va, inf, seg+inf.kept, i)
 			}
-			seg = end
-			i = end - 1
+			seg = va.end
+			i = va.end - 1
 		case isSeparator(c) || c == '-' && i > 0 && s[i-1] == ' ' && i+1 < len(s) && s[i+1] == ' ':
-			dst = d.segmentPairFast(dst, s[seg:i], &k)
+			dst = d.segmentPairFast(dst, s, seg, i, &k)
 			seg = i + 1
 		}
 	}
-	return d.segmentPairFast(dst, s[seg:], &k), lead
+	return d.segmentPairFast(dst, s, seg, len(s), &k), lead
 }
 
 // pairBytes are the bytes scanPairs acts on: a colon or equals sign before
@@ -228,24 +242,38 @@ var pairBytes = func() (t [256]bool) {
 	return t
 }()
 
-// segmentPairFast is segmentPair over a plain segment.
-func (d *textDecoder) segmentPairFast(dst []fastPair, seg []byte, k *int) []fastPair {
-	seg = bytes.TrimSpace(seg)
+// segmentPairFast is segmentPair over the plain segment s[from:to].
+func (d *textDecoder) segmentPairFast(dst []fastPair, s []byte, from, to int, k *int) []fastPair {
+	for from < to && asciiSpace[s[from]] {
+		from++
+	}
+	for to > from && asciiSpace[s[to-1]] {
+		to--
+	}
+	seg := s[from:to]
 	sp := bytes.LastIndexByte(seg, ' ')
 	if sp < 0 {
 		return dst
 	}
-	v, total, end, ok := readValue(seg, sp+1)
-	if !ok || end != len(seg) {
+	va, ok := readValueAt(seg, sp+1)
+	if !ok || va.end != len(seg) {
 		return dst
 	}
 	inf := d.info(seg[:sp], *k)
 	*k++
 	if inf.ok && inf.kind != diagnose.KindOther {
-		dst = append(dst, fastPair{info: inf, value: v, total: total})
+		dst = append(dst, fastPair{info: inf, value: va.v, total: va.total})
+		va.num += from
+		if va.totalAt >= 0 {
+			va.totalAt += from
+		}
+		d.rec.value(from+sp+1, va, inf, from+inf.kept, from+sp)
 	}
 	return dst
 }
+
+// asciiSpace are the bytes bytes.TrimSpace trims from ASCII text.
+var asciiSpace = [256]bool{'\t': true, '\n': true, '\v': true, '\f': true, '\r': true, ' ': true}
 
 // lower is an ASCII letter's lower case, any other byte unchanged.
 func lower(c byte) byte {
@@ -255,12 +283,19 @@ func lower(c byte) byte {
 	return c
 }
 
+// markAt is a marker found by markerFast: the mode as the line writes
+// it, and where the epoch's and the total's digits start (-1 without).
+type markAt struct {
+	marker
+	mode             []byte
+	epochAt, totalAt int
+}
+
 // markerFast is findMarker over a plain line, comparing letters without
-// regard to case instead of lower-casing the line; the mode is returned
-// as the line writes it.
-func markerFast(s []byte) (m marker, mode []byte) {
+// regard to case instead of lower-casing the line.
+func markerFast(s []byte) markAt {
 	if e, ok := sklearnIterationFast(s); ok {
-		return marker{epoch: e, ok: true}, nil
+		return markAt{marker: marker{epoch: e, ok: true}, epochAt: len("iteration "), totalAt: -1}
 	}
 	for from := 0; from < len(s); {
 		i := indexEpochWord(s, from)
@@ -273,24 +308,47 @@ func markerFast(s []byte) (m marker, mode []byte) {
 		}
 		k := j
 		if k < len(s) && s[k] == '(' {
-			if e, md, good := bracketAfterModeFast(s, k); good {
-				return marker{epoch: e, ok: true}, md
+			if e, md, at, good := bracketAfterModeFast(s, k); good {
+				return markAt{marker: marker{epoch: e, ok: true}, mode: md, epochAt: at, totalAt: -1}
 			}
 		}
 		for k < len(s) && (s[k] == ' ' || s[k] == ':' || s[k] == '=' || s[k] == '#') {
 			k++
 		}
 		if e, t, end, good := readFraction(s, k); good && end > k {
-			return marker{epoch: e, total: t, ok: true}, nil
+			return markAt{marker: marker{epoch: e, total: t, ok: true}, epochAt: k, totalAt: totalStart(s, k)}
 		}
 		from = j
 	}
 	if i := bytes.IndexByte(s, '['); i >= 0 {
 		if e, t, end, good := readFraction(s, i+1); good && t > 0 && end < len(s) && s[end] == ']' {
-			return marker{epoch: e, total: t, ok: true}, nil
+			return markAt{marker: marker{epoch: e, total: t, ok: true}, epochAt: i + 1, totalAt: totalStart(s, i+1)}
 		}
 	}
-	return marker{}, nil
+	return markAt{epochAt: -1, totalAt: -1}
+}
+
+// totalStart is where the total of the fraction readFraction reads at i
+// starts, -1 when it has none.
+func totalStart(s []byte, i int) int {
+	_, j, ok := readInt(s, i)
+	if !ok {
+		return -1
+	}
+	for j < len(s) && s[j] == ' ' {
+		j++
+	}
+	if j >= len(s) || s[j] != '/' {
+		return -1
+	}
+	j++
+	for j < len(s) && s[j] == ' ' {
+		j++
+	}
+	if _, _, ok := readInt(s, j); ok {
+		return j
+	}
+	return -1
 }
 
 // indexEpochWord is indexWord(lower, "epoch", "ep") from byte from on:
@@ -362,21 +420,22 @@ func sklearnIterationFast(s []byte) (int, bool) {
 	return e, ok && end < len(s) && s[end] == ','
 }
 
-// bracketAfterModeFast is bracketAfterMode over a plain line.
-func bracketAfterModeFast(s []byte, k int) (int, []byte, bool) {
+// bracketAfterModeFast is bracketAfterMode over a plain line; at is
+// where the epoch's digits start.
+func bracketAfterModeFast(s []byte, k int) (epoch int, mode []byte, at int, ok bool) {
 	paren := bytes.IndexByte(s[k:], ')')
 	if paren < 0 {
-		return 0, nil, false
+		return 0, nil, 0, false
 	}
 	i := k + paren + 1
 	for i < len(s) && s[i] == ' ' {
 		i++
 	}
 	if i >= len(s) || s[i] != '[' {
-		return 0, nil, false
+		return 0, nil, 0, false
 	}
-	e, end, ok := readInt(s, i+1)
-	return e, s[k+1 : k+paren], ok && end < len(s) && s[end] == ']'
+	e, end, good := readInt(s, i+1)
+	return e, s[k+1 : k+paren], i + 1, good && end < len(s) && s[end] == ']'
 }
 
 // contextFast is contextPrefix for a plain line, with the mode as the
@@ -406,23 +465,56 @@ func (d *textDecoder) contextFast(s, mode []byte, lead int) string {
 }
 
 // decodeFast reads a plain line as Decode reads it; false for a line the
-// general path must read.
+// general path must read. A line of the last full line's shape is read
+// from its runs of digits (textshape.go); another is read in full and
+// becomes the shape.
 func (d *textDecoder) decodeFast(line []byte, n int) bool {
+	if sh := &d.shape; sh.match(line) {
+		m := sh.mark
+		if m.ok {
+			m.epoch = sh.integer(line, sh.epochRun)
+			if sh.totalRun >= 0 {
+				m.total = sh.integer(line, sh.totalRun)
+			}
+		}
+		d.fastPairs = d.fastPairs[:0]
+		for _, p := range sh.pairs {
+			fp := fastPair{info: p.info, value: sh.number(line, p.value)}
+			if p.totalRun >= 0 {
+				fp.total = sh.integer(line, p.totalRun)
+			}
+			d.fastPairs = append(d.fastPairs, fp)
+		}
+		d.fileFast(m, n)
+		return true
+	}
 	s, ok := d.fast.plainASCII(line)
 	if !ok {
 		return false
 	}
-	m, mode := markerFast(s)
+	d.rec.reset()
+	m := markerFast(s)
+	d.rec.epochAt, d.rec.totalAt = m.epochAt, m.totalAt
 	var lead int
 	d.fastPairs, lead = d.scanPairsFast(d.fastPairs[:0], s)
 	d.fast.endLine()
-	if len(mode) > 0 || lead > 0 {
-		if ctx := d.contextFast(s, mode, lead); ctx != "" {
+	if len(m.mode) > 0 || lead > 0 {
+		if ctx := d.contextFast(s, m.mode, lead); ctx != "" {
 			for i := range d.fastPairs {
 				d.fastPairs[i].info = d.withContext(ctx, d.fastPairs[i].info)
 			}
+			if len(m.mode) == 0 {
+				d.rec.names = append(d.rec.names, [2]int{0, lead}) // the context is made of s[:lead]
+			}
 		}
 	}
+	d.shape.record(line, &d.rec, m.marker, d.fastPairs)
+	d.fileFast(m.marker, n)
+	return true
+}
+
+// fileFast files the pairs of a plain line, as Decode does.
+func (d *textDecoder) fileFast(m marker, n int) {
 	evidence := m.ok
 	for _, p := range d.fastPairs {
 		if p.info.rowKind != diagnose.KindOther {
@@ -431,20 +523,18 @@ func (d *textDecoder) decodeFast(line []byte, n int) bool {
 		}
 	}
 	if !evidence {
-		return true
+		return
 	}
 	d.beginLine(m, n)
 	a := d.asm
 	for _, p := range d.fastPairs {
 		inf := p.info
 		if inf.col < 0 {
-			inf.col = a.Column(inf.name)
-			if inf.col < 0 {
+			if inf.col = a.Column(inf.name); inf.col < 0 {
 				continue
 			}
 		}
 		d.value(inf.col, p.value, p.total)
 	}
 	a.EndLine(n, !d.haveEpoch)
-	return true
 }

@@ -70,10 +70,11 @@ func (s *Snapshot) Worker(out Out, single, multi int) *Assembler {
 }
 
 // SyncEpoch returns the epoch of a worker that has read its first line
-// only, when that line opened an epoch as the protocol assumes.
+// only, when that line opened an epoch as the protocol assumes (with its
+// row, or with none: a console marker alone on its line).
 func (a *Assembler) SyncEpoch() (int, bool) {
 	g := &a.g
-	return g.epoch, g.open && g.epochLogged && g.rows == 1 && a.ordinal == 0
+	return g.epoch, g.open && g.epochLogged && g.rows <= 1 && a.ordinal == 0
 }
 
 // Settled reports a worker that read its piece without a new segment and
