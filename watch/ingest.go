@@ -41,9 +41,11 @@ type ingester struct {
 	firstEpoch      int
 	pointsSeen      int
 	secondEpoch     bool
-	batch           Batch
-	sent            Stats
-	sentAt          time.Time
+	// lastPoints is how many points the last batch held.
+	lastPoints int
+	batch      Batch
+	sent       Stats
+	sentAt     time.Time
 }
 
 func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester {
@@ -59,6 +61,11 @@ func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester
 // written as an evaluation row and a summary row, goes out as its last
 // version).
 func (g *ingester) Point(p diagnose.Point) {
+	if g.batch.Points == nil {
+		// As many as the last batch held (a backlog fills batches), so
+		// that a batch is not copied as it grows.
+		g.batch.Points = make([]diagnose.Point, 0, min(batchPoints, max(8, g.lastPoints)))
+	}
 	g.batch.Points = points.Append(g.batch.Points, p)
 	switch {
 	case g.pointsSeen == 0:
@@ -151,6 +158,7 @@ func (g *ingester) columnsKnown(header bool) bool {
 func (g *ingester) take() Batch {
 	b := g.batch
 	g.batch = Batch{}
+	g.lastPoints = len(b.Points)
 	c := g.r.Counts()
 	b.Stats = Stats{Format: c.Format, State: g.state, Lines: c.Lines, Skipped: c.Skipped, Examples: c.Examples,
 		NonFinite: c.NonFinite, Segments: c.Segments, LastWrite: g.lastWrite, Roles: c.Roles, Columns: c.Columns,

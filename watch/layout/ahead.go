@@ -3,6 +3,7 @@ package layout
 import (
 	"bytes"
 	"math"
+	"sync"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/points"
@@ -158,11 +159,45 @@ func (r *Reader) snapshot(prev *aheadSnap) *aheadSnap {
 // collector is a worker's points.Out: it keeps the points and gives up at
 // the first notice.
 type collector struct {
-	w      *Reader
-	points []diagnose.Point
+	w *Reader
+	// points are kept in chunks of collectChunk: a piece of a log of one
+	// row per epoch holds thousands, which a growing slice would copy
+	// again and again.
+	points [][]diagnose.Point
 }
 
-func (c *collector) Point(p diagnose.Point) { c.points = append(c.points, p) }
+// collectChunk is how many points one chunk of a collector holds. Unit:
+// points.
+const collectChunk = 1024
+
+func (c *collector) Point(p diagnose.Point) {
+	if n := len(c.points); n == 0 || len(c.points[n-1]) == cap(c.points[n-1]) {
+		var chunk []diagnose.Point
+		if p, ok := chunks.Get().(*[]diagnose.Point); ok {
+			chunk = (*p)[:0]
+		} else {
+			chunk = make([]diagnose.Point, 0, collectChunk)
+		}
+		c.points = append(c.points, chunk)
+	}
+	last := &c.points[len(c.points)-1]
+	*last = append(*last, p)
+}
+
+// chunks are collectors' chunks whose points were handed on: the pieces of
+// a backlog reuse them.
+var chunks sync.Pool
+
+// release hands the collector's chunks back, cleared (their points refer
+// to samples that must not be kept alive).
+func (c *collector) release() {
+	for _, chunk := range c.points {
+		clear(chunk[:cap(chunk)])
+		chunk = chunk[:0]
+		chunks.Put(&chunk)
+	}
+	c.points = nil
+}
 func (c *collector) Step(diagnose.StepRow)  {}
 func (c *collector) Notice(string)          { c.w.bailed = true }
 
@@ -293,11 +328,14 @@ func (r *Reader) takePiece(s *aheadSnap, res pieceResult) {
 	w, a := res.w, r.asm
 	a.ClosePoint()
 	shift := r.lineNo - specBase
-	for _, p := range res.c.points {
-		p.Segment = a.Segment()
-		p.Line += shift
-		r.out.Point(p)
+	for _, chunk := range res.c.points {
+		for _, p := range chunk {
+			p.Segment = a.Segment()
+			p.Line += shift
+			r.out.Point(p)
+		}
 	}
+	res.c.release()
 	for _, e := range w.examples() {
 		e.Line += shift
 		r.keep(e)

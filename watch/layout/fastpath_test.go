@@ -136,3 +136,52 @@ func FuzzEpochRate(f *testing.F) {
 		}
 	})
 }
+
+// FuzzParseClock: parseClock reads what splitting at the colons reads.
+func FuzzParseClock(f *testing.F) {
+	for _, s := range []string{"00:04", "1:02:03", "1:2:3:4", "12", ":", "1e1:2", "-1:00", " 3: 4", "2.5:30"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		want, wantOK := 0.0, true
+		parts := strings.Split(s, ":")
+		if len(parts) < 2 || len(parts) > 3 {
+			wantOK = false
+		}
+		for _, p := range parts {
+			v, ok := parseNumber([]byte(p))
+			if !wantOK || !ok || v < 0 || strings.ContainsAny(p, "eE+-") {
+				wantOK = false
+				break
+			}
+			want = want*60 + v
+		}
+		got, ok := parseClock([]byte(s))
+		if ok != wantOK || ok && !sameFloat(got, want) {
+			t.Fatalf("parseClock(%q) = %v, %v; want %v, %v", s, got, ok, want, wantOK)
+		}
+	})
+}
+
+// FuzzJSONNumberAt: the one-pass JSON number reads what the grammar scan
+// and parseNumber read, bit for bit.
+func FuzzJSONNumberAt(f *testing.F) {
+	for _, s := range []string{"0.412345,", "-0", "1e-05}", "12345678901234567890.5", "01", "-.5", "1.", "1.5e", "9007199254740993", "-Infinity"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		d := jsonDecoder{p: []byte(s)}
+		wantOK := len(s) > 0 && d.scanNumber()
+		end, v, ok := jsonNumberAt([]byte(s), 0)
+		if !wantOK {
+			if ok {
+				t.Fatalf("%q: read %v up to %d, the grammar says no number", s, v, end)
+			}
+			return
+		}
+		want, good := parseNumber([]byte(s[:d.i]))
+		if !ok || end != d.i || good != ok || !sameFloat(v, want) {
+			t.Fatalf("%q: %v up to %d (%v), want %v up to %d (%v)", s, v, end, ok, want, d.i, good)
+		}
+	})
+}

@@ -33,6 +33,8 @@ type keyed struct {
 	// epochKey is the first top-level key that holds the epoch, which
 	// the parallel backlog looks for to find a piece's sync line.
 	epochKey string
+	// shape is the last line read in full (keyshape.go).
+	shape keyShape
 }
 
 // keyRole is what a flattened key feeds: a cell role and, for values and
@@ -97,16 +99,8 @@ func (d *keyed) learn(name string) keyRole {
 
 func (d *keyed) number(v float64) {
 	r, ci := d.role()
-	switch r {
-	case cellEpoch:
-		d.asm.Epoch(v)
-	case cellStep:
-		d.asm.Step(v)
-	case cellTime:
-		d.asm.TimeNumber(ci, v)
-	case cellValue:
-		d.asm.Value(ci, v)
-	}
+	d.shape.note(v, r, ci)
+	d.file(r, ci, v)
 }
 
 func (d *keyed) stringValue(s []byte) {
@@ -124,7 +118,7 @@ func (d *keyed) stringValue(s []byte) {
 	}
 	if ok && kr.role == cellTime {
 		if t, tok := parseTime(s); tok {
-			d.asm.Time(t)
+			d.timeString(t)
 		}
 	}
 }

@@ -190,7 +190,9 @@ func (a *Assembler) emit() {
 	if !g.open || !g.dirty || len(a.touched) == 0 {
 		return
 	}
-	slices.Sort(a.touched)
+	if !slices.IsSorted(a.touched) { // rows usually name their columns in order
+		slices.Sort(a.touched)
+	}
 	p := diagnose.Point{
 		Segment:     a.segment,
 		Epoch:       g.epoch,
