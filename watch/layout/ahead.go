@@ -198,8 +198,8 @@ func (c *collector) release() {
 	}
 	c.points = nil
 }
-func (c *collector) Step(diagnose.StepRow)  {}
-func (c *collector) Notice(string)          { c.w.bailed = true }
+func (c *collector) Step(diagnose.StepRow) {}
+func (c *collector) Notice(string)         { c.w.bailed = true }
 
 // worker makes the Reader that decodes one piece ahead.
 func (s *aheadSnap) worker(single, multi int) (*Reader, *collector) {
