@@ -94,7 +94,7 @@ type Update struct {
 	// in percent): judgements read before it are stale.
 	Rejudged bool
 	// Steps are the batch's per-step rows, Notices the reader's messages.
-	Steps   []diagnose.StepRow
+	Steps   diagnose.StepRows
 	Notices []watch.Notice
 	// Stats are the reader's counts so far. State is StateFinished once the
 	// writer is known to have ended (Options.WriterDone).

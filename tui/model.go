@@ -87,7 +87,7 @@ type FeedMsg struct {
 	// Rejudged says the run judged every earlier point again (another
 	// metric, a rate found to be in percent): the screen reads them anew.
 	Rejudged bool
-	Steps    []diagnose.StepRow
+	Steps    diagnose.StepRows
 	Source   SourceInfo
 	Notices  []string
 }

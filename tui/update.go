@@ -104,9 +104,7 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 	if rejudged {
 		m.read(m.data.rejudge)
 	}
-	for _, s := range msg.Steps {
-		m.data.addStep(s)
-	}
+	m.data.addSteps(&msg.Steps)
 	m.mergeSource(msg.Source)
 	for _, n := range msg.Notices {
 		if n = clean(n); n != "" {

@@ -143,9 +143,9 @@ type Notice struct {
 // epoch). AppendPoint applies the rule.
 type Batch struct {
 	Points []diagnose.Point
-	// Steps are per-step rows, only with Options.Steps. They are transient:
-	// the consumer downsamples what it keeps.
-	Steps   []diagnose.StepRow
+	// Steps are the per-step rows, only with Options.Steps, column by
+	// column. They are transient: the consumer downsamples what it keeps.
+	Steps   diagnose.StepRows
 	Notices []Notice
 	Stats   Stats
 }

@@ -5,6 +5,7 @@
 //	ingest [-format auto|csv|tsv|jsonl|text] FILE
 //	ingest -follow FILE    follow FILE until interrupted (idle CPU check)
 //	ingest -cpuprofile OUT FILE   also write a CPU profile (go tool pprof)
+//	ingest -steps FILE     also make the per-step rows (the live screen's reading)
 package main
 
 import (
@@ -31,6 +32,7 @@ func run() error {
 	format := flag.String("format", "auto", "log format")
 	follow := flag.Bool("follow", false, "follow the file until interrupted")
 	profile := flag.String("cpuprofile", "", "write a CPU profile to this file")
+	steps := flag.Bool("steps", false, "also make the per-step rows the live screen asks for")
 	flag.Parse()
 	if *profile != "" {
 		pf, err := os.Create(*profile)
@@ -50,7 +52,7 @@ func run() error {
 	if err != nil {
 		return err
 	}
-	opts := watch.Options{Format: f}
+	opts := watch.Options{Format: f, Steps: *steps}
 	if *follow {
 		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 		defer stop()

@@ -164,6 +164,7 @@ type collector struct {
 	// row per epoch holds thousands, which a growing slice would copy
 	// again and again.
 	points [][]diagnose.Point
+	steps  diagnose.StepRows
 }
 
 // collectChunk is how many points one chunk of a collector holds. Unit:
@@ -198,8 +199,8 @@ func (c *collector) release() {
 	}
 	c.points = nil
 }
-func (c *collector) Step(diagnose.StepRow) {}
-func (c *collector) Notice(string)         { c.w.bailed = true }
+func (c *collector) Steps() *diagnose.StepRows { return &c.steps }
+func (c *collector) Notice(string)             { c.w.bailed = true }
 
 // worker makes the Reader that decodes one piece ahead.
 func (s *aheadSnap) worker(single, multi int) (*Reader, *collector) {
@@ -334,6 +335,17 @@ func (r *Reader) takePiece(s *aheadSnap, res pieceResult) {
 			p.Line += shift
 			r.out.Point(p)
 		}
+	}
+	if ws := &res.c.steps; ws.Len() > 0 {
+		s := r.out.Steps()
+		shift := int32(len(s.Values))
+		for _, row := range ws.Rows {
+			row.Segment = int32(a.Segment())
+			row.From += shift
+			row.To += shift
+			s.Rows = append(s.Rows, row)
+		}
+		s.Values = append(s.Values, ws.Values...)
 	}
 	res.c.release()
 	for _, e := range w.examples() {

@@ -10,11 +10,21 @@ import (
 )
 
 // discard is the points.Out of a benchmark: it counts and forgets.
-type discard struct{ points int }
+type discard struct {
+	points int
+	steps  diagnose.StepRows
+}
 
-func (d *discard) Point(diagnose.Point)  { d.points++ }
-func (d *discard) Step(diagnose.StepRow) {}
-func (d *discard) Notice(string)         {}
+func (d *discard) Point(diagnose.Point) { d.points++ }
+
+// Steps keeps one batch's worth of per-step rows at a time.
+func (d *discard) Steps() *diagnose.StepRows {
+	if d.steps.Len() > 8192 {
+		d.steps.Rows, d.steps.Values = d.steps.Rows[:0], d.steps.Values[:0]
+	}
+	return &d.steps
+}
+func (d *discard) Notice(string) {}
 
 // layoutWriters write the same invented run in each layout (bench/loggen).
 var layoutWriters = []struct {

@@ -24,7 +24,7 @@ func ingestPoisoned(in []byte, c Config, general bool, chunk int) ingestResult {
 		p = p[n:]
 	}
 	r.End()
-	return ingestResult{points: o.points, notices: o.notices, counts: r.Counts()}
+	return ingestResult{points: o.points, notices: o.notices, counts: r.Counts(), steps: o.steps}
 }
 
 // checkFastPath compares a layout's fast path with its general path on one
@@ -32,10 +32,13 @@ func ingestPoisoned(in []byte, c Config, general bool, chunk int) ingestResult {
 // small chunks of a reused buffer.
 func checkFastPath(t *testing.T, in []byte, c Config) {
 	t.Helper()
-	general := ingestGeneral(in, c, true)
-	for _, chunk := range []int{len(in) + 1, 7} {
-		if d := diffResults(ingestPoisoned(in, c, false, chunk), general); d != "" {
-			t.Fatalf("log %q (chunks of %d): fast path differs from the general path: %s", in, chunk, d)
+	for _, steps := range []bool{false, true} {
+		c.Steps = steps
+		general := ingestGeneral(in, c, true)
+		for _, chunk := range []int{len(in) + 1, 7} {
+			if d := diffResults(ingestPoisoned(in, c, false, chunk), general); d != "" {
+				t.Fatalf("log %q (chunks of %d, steps %v): fast path differs from the general path: %s", in, chunk, steps, d)
+			}
 		}
 	}
 }

@@ -57,7 +57,7 @@ func TestParallel_LayoutsExhaustive(t *testing.T) {
 					return
 				}
 				body := strings.Join(rows, "\n") + "\n"
-				for _, c := range []Config{{}, {Format: tt.format}} {
+				for _, c := range []Config{{}, {Format: tt.format}, {Steps: true}} {
 					taken += checkSplits(t, []byte(tt.head), []byte(body), c, 2)
 				}
 				logs++
@@ -92,7 +92,8 @@ func TestParallel_LayoutsGenerated(t *testing.T) {
 	for name, in := range inputs {
 		for procs := 2; procs <= 5; procs++ {
 			t.Run(fmt.Sprintf("%s/%d", name, procs), func(t *testing.T) {
-				want := ingestPieces(Config{}, []feedPiece{{data: in}})
+				c := Config{Steps: procs%2 == 0} // per-step rows too, half the time
+				want := ingestPieces(c, []feedPiece{{data: in}})
 				// Read a head first, as the tailer reads the start of a file
 				// before it cuts the rest into pieces, then the rest in
 				// pieces. The generated logs' head holds their first
@@ -103,7 +104,7 @@ func TestParallel_LayoutsGenerated(t *testing.T) {
 				}
 				body := in[head:]
 				cut := bytes.LastIndexByte(body, '\n') + 1
-				got := ingestPieces(Config{}, []feedPiece{{data: in[:head]}, {data: body[:cut], bounds: splitLines(body[:cut], procs)}, {data: body[cut:]}})
+				got := ingestPieces(c, []feedPiece{{data: in[:head]}, {data: body[:cut], bounds: splitLines(body[:cut], procs)}, {data: body[cut:]}})
 				if d := diffResults(got, want); d != "" {
 					t.Fatal(d)
 				}
@@ -139,7 +140,7 @@ func FuzzParallelLayouts(f *testing.F) {
 			bounds = append(bounds, c+at+1)
 		}
 		bounds = append(bounds, len(body))
-		for _, opts := range []Config{{}, {Format: format}} {
+		for _, opts := range []Config{{}, {Format: format}, {Steps: true}} {
 			want := ingestPieces(opts, []feedPiece{{data: append(append([]byte(nil), head...), body...)}})
 			got := ingestPieces(opts, []feedPiece{{data: head}, {data: body, bounds: bounds}})
 			if d := diffResults(got, want); d != "" {
