@@ -3,6 +3,7 @@ package layout
 import (
 	"bytes"
 	"math"
+	"slices"
 	"sync"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -244,6 +245,13 @@ func (s *aheadSnap) decodePiece(piece []byte) pieceResult {
 	rest := piece[r.sync:]
 	nl := bytes.IndexByte(rest, '\n') + 1
 	w, c := s.worker(r.single, r.multi)
+	if s.asm.Steps() {
+		// A per-step row a line at most: room for all, so that the rows
+		// are not copied as they grow.
+		lines := bytes.Count(rest, []byte{'\n'})
+		c.steps.Rows = make([]diagnose.StepRowAt, 0, lines)
+		c.steps.Values = make([]diagnose.StepValue, 0, lines*s.asm.Values())
+	}
 	w.Feed(rest[:nl])
 	epoch, ok := w.asm.SyncEpoch()
 	if w.bailed || !ok {
@@ -323,6 +331,32 @@ func (r *Reader) canTake(s *aheadSnap, res pieceResult) bool {
 	return r.asm.CanJoin(s.asm, res.epoch, res.single, res.multi)
 }
 
+// takeSteps hands on a worker's per-step rows, in the segment seg: as
+// they are when the sink holds none yet, else after the sink's.
+func (r *Reader) takeSteps(ws *diagnose.StepRows, seg int) {
+	if ws.Len() == 0 {
+		return
+	}
+	for i := range ws.Rows {
+		ws.Rows[i].Segment = int32(seg)
+	}
+	s := r.out.Steps()
+	if s.Len() == 0 {
+		s.Rows, s.Values = ws.Rows, ws.Values
+		ws.Rows, ws.Values = nil, nil
+		return
+	}
+	s.Rows = slices.Grow(s.Rows, len(ws.Rows))
+	s.Values = slices.Grow(s.Values, len(ws.Values))
+	shift := int32(len(s.Values))
+	for _, row := range ws.Rows {
+		row.From += shift
+		row.To += shift
+		s.Rows = append(s.Rows, row)
+	}
+	s.Values = append(s.Values, ws.Values...)
+}
+
 // takePiece closes the open epoch and takes over what the worker of res
 // read.
 func (r *Reader) takePiece(s *aheadSnap, res pieceResult) {
@@ -336,17 +370,7 @@ func (r *Reader) takePiece(s *aheadSnap, res pieceResult) {
 			r.out.Point(p)
 		}
 	}
-	if ws := &res.c.steps; ws.Len() > 0 {
-		s := r.out.Steps()
-		shift := int32(len(s.Values))
-		for _, row := range ws.Rows {
-			row.Segment = int32(a.Segment())
-			row.From += shift
-			row.To += shift
-			s.Rows = append(s.Rows, row)
-		}
-		s.Values = append(s.Values, ws.Values...)
-	}
+	r.takeSteps(&res.c.steps, a.Segment())
 	res.c.release()
 	for _, e := range w.examples() {
 		e.Line += shift

@@ -55,6 +55,13 @@ func (a *Assembler) Snapshot(prev *Snapshot) *Snapshot {
 	return s
 }
 
+// Steps reports whether per-step rows are wanted.
+func (s *Snapshot) Steps() bool { return s.steps }
+
+// Values returns how many value columns the snapshot's table has: the
+// most values a row can hold.
+func (s *Snapshot) Values() int { return s.ncols }
+
 // Roles returns how the snapshot's Assembler names columns.
 func (s *Snapshot) Roles() column.Roles { return s.roles }
 
