@@ -168,6 +168,11 @@ type collector struct {
 	steps  diagnose.StepRows
 }
 
+// stepValuesGuess is how many values a per-step row is given room for
+// before it is read: a training loop logs a handful per step (loss,
+// accuracy, learning rate). Unit: values.
+const stepValuesGuess = 4
+
 // collectChunk is how many points one chunk of a collector holds. Unit:
 // points.
 const collectChunk = 1024
@@ -247,10 +252,11 @@ func (s *aheadSnap) decodePiece(piece []byte) pieceResult {
 	w, c := s.worker(r.single, r.multi)
 	if s.asm.Steps() {
 		// A per-step row a line at most: room for all, so that the rows
-		// are not copied as they grow.
+		// are not copied as they grow, and for a few values each (a wide
+		// log's rows grow the values as they come).
 		lines := bytes.Count(rest, []byte{'\n'})
 		c.steps.Rows = make([]diagnose.StepRowAt, 0, lines)
-		c.steps.Values = make([]diagnose.StepValue, 0, lines*s.asm.Values())
+		c.steps.Values = make([]diagnose.StepValue, 0, lines*min(s.asm.Values(), stepValuesGuess))
 	}
 	w.Feed(rest[:nl])
 	epoch, ok := w.asm.SyncEpoch()

@@ -135,64 +135,73 @@ func (d *keyed) timeString(t time.Time) {
 // jsonNumberAt reads a JSON number at p[i:] (RFC 8259 §6) in one pass:
 // its grammar is checked as its digits are read. A plain decimal (no
 // exponent, at most 19 digits, a mantissa up to 2^53) is made as
-// fastFloat makes it; any other by strconv, as parseNumber would.
+// fastFloat makes it; any other by strconv, as parseNumber would. Indexes
+// are unsigned so that the loops carry no bounds checks.
 func jsonNumberAt(p []byte, i int) (end int, v float64, ok bool) {
-	start := i
-	neg := i < len(p) && p[i] == '-'
+	n, k := uint(len(p)), uint(i)
+	neg := k < n && p[k] == '-'
 	if neg {
-		i++
+		k++
 	}
+	intStart := k
 	var mant uint64
-	nd := 0
-	switch {
-	case i < len(p) && p[i] == '0':
-		i++
-		nd = 1
-	case i < len(p) && p[i] >= '1' && p[i] <= '9':
-		for i < len(p) && p[i]-'0' <= 9 {
-			mant = mant*10 + uint64(p[i]-'0')
-			nd++
-			i++
+	if k < n && p[k] == '0' {
+		k++
+	} else {
+		for k < n {
+			d := p[k] - '0'
+			if d > 9 {
+				break
+			}
+			mant = mant*10 + uint64(d)
+			k++
 		}
-	default:
-		return start, 0, false
-	}
-	frac := 0
-	if i < len(p) && p[i] == '.' {
-		i++
-		if i >= len(p) || p[i]-'0' > 9 {
-			return start, 0, false
-		}
-		for i < len(p) && p[i]-'0' <= 9 {
-			mant = mant*10 + uint64(p[i]-'0')
-			nd++
-			frac++
-			i++
+		if k == intStart {
+			return i, 0, false
 		}
 	}
-	if i < len(p) && (p[i] == 'e' || p[i] == 'E') {
-		i++
-		if i < len(p) && (p[i] == '+' || p[i] == '-') {
-			i++
+	nd := k - intStart
+	frac := uint(0)
+	if k < n && p[k] == '.' {
+		k++
+		fracStart := k
+		for k < n {
+			d := p[k] - '0'
+			if d > 9 {
+				break
+			}
+			mant = mant*10 + uint64(d)
+			k++
 		}
-		if i >= len(p) || p[i]-'0' > 9 {
-			return start, 0, false
+		if frac = k - fracStart; frac == 0 {
+			return i, 0, false
 		}
-		for i < len(p) && p[i]-'0' <= 9 {
-			i++
+		nd += frac
+	}
+	if k < n && p[k]|0x20 == 'e' {
+		k++
+		if k < n && (p[k] == '+' || p[k] == '-') {
+			k++
 		}
-		v, ok = parseNumber(p[start:i])
-		return i, v, ok
+		expStart := k
+		for k < n && p[k]-'0' <= 9 {
+			k++
+		}
+		if k == expStart {
+			return i, 0, false
+		}
+		v, ok = parseNumber(p[i:k])
+		return int(k), v, ok
 	}
 	if nd > 19 || mant > 1<<53 {
-		v, ok = slowNumber(p[start:i])
-		return i, v, ok
+		v, ok = slowNumber(p[i:k])
+		return int(k), v, ok
 	}
-	v = float64(int64(mant)) / pow10[frac] // as fastFloat makes it
+	v = float64(int64(mant)) / pow10[frac&31] // as fastFloat makes it
 	if neg {
 		v = -v
 	}
-	return i, v, true
+	return int(k), v, true
 }
 
 // pyNumberAt reads a Python number at line[i:] as pyDictDecoder.num

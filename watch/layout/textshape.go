@@ -140,21 +140,24 @@ const (
 	highs = 0x8080808080808080
 )
 
-// equalAt reports whether a[i:i+n] equals b[j:j+n] (both in range), eight
-// bytes at a time, the last word masked.
+// equalAt reports whether a[i:i+n] equals b[j:j+n] (both in range): the
+// few bytes between two numbers in one masked word where both lines have
+// eight bytes from there, else by equalLong. Small enough to be inlined.
 func equalAt(a []byte, i int, b []byte, j, n int) bool {
+	if n <= 8 && i+8 <= len(a) && j+8 <= len(b) {
+		mask := uint64(1)<<(8*n) - 1 // n = 8: 1<<64 is 0 in Go, so all ones
+		return (binary.LittleEndian.Uint64(a[i:])^binary.LittleEndian.Uint64(b[j:]))&mask == 0
+	}
+	return equalLong(a, i, b, j, n)
+}
+
+// equalLong is equalAt for the rest: eight bytes at a time, then bytes.
+func equalLong(a []byte, i int, b []byte, j, n int) bool {
 	for n >= 8 {
 		if binary.LittleEndian.Uint64(a[i:]) != binary.LittleEndian.Uint64(b[j:]) {
 			return false
 		}
 		i, j, n = i+8, j+8, n-8
-	}
-	if n == 0 {
-		return true
-	}
-	if i+8 <= len(a) && j+8 <= len(b) {
-		mask := uint64(1)<<(8*n) - 1
-		return (binary.LittleEndian.Uint64(a[i:])^binary.LittleEndian.Uint64(b[j:]))&mask == 0
 	}
 	for k := range n {
 		if a[i+k] != b[j+k] {
