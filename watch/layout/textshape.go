@@ -107,13 +107,34 @@ func (sh *textShape) match(line []byte) bool {
 	for k := range sh.runs {
 		r := &sh.runs[k]
 		n := r.start - j
-		if i+n > len(line) || !equalAt(line, i, t, j, n) {
+		switch {
+		case i+n > len(line):
+			return false
+		case n <= 8 && i+8 <= len(line) && j+8 <= len(t):
+			// equalAt, by hand: the call is the larger part of its cost.
+			if (binary.LittleEndian.Uint64(line[i:])^binary.LittleEndian.Uint64(t[j:]))&(uint64(1)<<(8*n)-1) != 0 {
+				return false
+			}
+		case !equalLong(line, i, t, j, n):
 			return false
 		}
 		i += n
 		start := i
 		var zero bool
-		i, zero = digitsEnd(line, i)
+		if i+8 <= len(line) {
+			// digitsEnd's first word, by hand: runs are short.
+			x := binary.LittleEndian.Uint64(line[i:])
+			other := (^((x | highs) - 0x30*ones) | ((x | highs) - 0x3a*ones) | x) & highs
+			if other != 0 {
+				m := bits.TrailingZeros64(other) / 8
+				mask := uint64(1)<<(8*m) - 1
+				i, zero = i+m, x&mask == 0x30*ones&mask
+			} else {
+				i, zero = digitsEnd(line, i)
+			}
+		} else {
+			i, zero = digitsEnd(line, i)
+		}
 		switch {
 		case i == start:
 			return false

@@ -41,7 +41,8 @@ func (a *Assembler) PlanValue(i, ci int) PlanValue {
 // is to be done: the row has a valid epoch equal to the open one, its step
 // does not go back, and the log is not one row per epoch (whose repeated
 // rows start a new segment). It does what BeginRow, Value, Epoch, Step and
-// EndRow do for such a row, in one pass, the per-step row included
+// EndRow do for such a row, in one pass, but for the per-step row, which
+// the caller hands on with PlainStep when Steps says they are wanted
 // (the CSV decoder's tests compare both exhaustively and by fuzzing);
 // false, having changed nothing, sends any other row to them.
 func (a *Assembler) PlainRow(p *Plan, vals []float64, mask uint64, line int) bool {
@@ -100,15 +101,22 @@ func (a *Assembler) PlainRow(p *Plan, vals []float64, mask uint64, line int) boo
 		a.evalSeen = true
 		a.emit()
 	}
-	if a.steps {
-		a.plainStep(p, vals, mask, hasStep, step)
-	}
 	return true
 }
 
-// plainStep hands a plain row on as a per-step row, as emitStep does for
-// the row the general path builds: its values in field order.
-func (a *Assembler) plainStep(p *Plan, vals []float64, mask uint64, hasStep bool, step int64) {
+// Steps reports whether per-step rows are wanted.
+func (a *Assembler) Steps() bool { return a.steps }
+
+// PlainStep hands a plain row that PlainRow filed on as a per-step row, as
+// emitStep does for the row the general path builds: its values in field
+// order. (Apart from PlainRow, whose loop stays as short as it was.)
+func (a *Assembler) PlainStep(p *Plan, vals []float64, mask uint64) {
+	hasStep, step := false, int64(0)
+	if mask&p.StepBit != 0 {
+		if sv := vals[p.Step]; sv-sv == 0 && math.Abs(sv) <= math.MaxInt64/2 {
+			hasStep, step = true, int64(sv)
+		}
+	}
 	s := a.out.Steps()
 	from := len(s.Values)
 	for _, f := range p.Vals {
