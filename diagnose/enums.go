@@ -277,3 +277,13 @@ func (s Split) String() string { return splits.name(s) }
 
 // Phrase names the split in words: "validation".
 func (s Split) Phrase() string { return splits.phrase(s) }
+
+// Description says what data the split is.
+func (s Split) Description() string { return splits.about(s) }
+
+// MarshalText makes a Split a JSON string ("train-dev").
+func (s Split) MarshalText() ([]byte, error) { return []byte(s.String()), nil }
+
+// Splits lists the data splits (SplitNone excluded), for documentation
+// and schemas.
+func Splits() []Split { return []Split{SplitTrain, SplitVal, SplitTrainDev, SplitTest} }

@@ -39,7 +39,7 @@ func TestEnums_Tables(t *testing.T) {
 		}),
 		"Split": collect(int(SplitTest)+1, func(i int) entry {
 			s := Split(i)
-			return entry{s.String(), s.Phrase(), s.String()}
+			return entry{s.String(), s.Phrase(), marshal(s)}
 		}),
 	}
 	for kind, entries := range tables {

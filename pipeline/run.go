@@ -55,6 +55,12 @@ type Options struct {
 	// Epochs is the run's last epoch when the log announces none
 	// (--epochs): the epoch the forecasts look to.
 	Epochs int
+	// Overrides are the columns the command line named for each split
+	// (--train, --val, --train-dev, --test). With Judge.Metric they are
+	// checked against the log's columns as soon as these are known
+	// (watch.Stats.ColumnsKnown): one that the log lacks ends the run with
+	// a *watch.ColumnsError, before any point is judged.
+	Overrides watch.Overrides
 }
 
 // Run is one training run: its Tracker, the reader's latest counts and the
@@ -68,6 +74,10 @@ type Run struct {
 	stats    watch.Stats
 	notices  noticeLog // the reader's notices, for the summary
 	finished bool      // WriterDone was closed
+	// checked: the named columns were checked (once the log's columns
+	// were known); colErr is what the check found.
+	checked bool
+	colErr  error
 
 	// The forecast's inputs beyond the Tracker, and the last forecasts
 	// made (forecast.go). gen counts the points taken: a forecast is kept
@@ -97,7 +107,7 @@ type Update struct {
 	// in percent): judgements read before it are stale.
 	Rejudged bool
 	// Steps are the batch's per-step rows, Notices the reader's messages.
-	Steps   []diagnose.StepRow
+	Steps   diagnose.StepRows
 	Notices []watch.Notice
 	// Stats are the reader's counts so far. State is StateFinished once the
 	// writer is known to have ended (Options.WriterDone).
@@ -106,8 +116,12 @@ type Update struct {
 	// is still to be created: it was created now, or why not (the next
 	// point that says stop tries again).
 	Stop *StopEvent
-	// Ended: the run ends with this update (Options.EndOnStop reached).
+	// Ended: the run ends with this update (Options.EndOnStop reached, or
+	// Err).
 	Ended bool
+	// Err ends the run: a column named on the command line is not in the
+	// log (a *watch.ColumnsError). The batch's points were not judged.
+	Err error
 }
 
 // StopEvent is the outcome of creating the stop file.
@@ -133,6 +147,11 @@ func (r *Run) Apply(b watch.Batch) Update {
 	r.stats = b.Stats
 	r.notices.add(b.Notices, len(b.Points))
 	u.Stats = r.statsLocked()
+	if err := r.checkLocked(); err != nil {
+		r.mu.Unlock()
+		u.Err, u.Ended = err, true
+		return u
+	}
 	r.mu.Unlock()
 	if len(b.Points) > 0 {
 		u.Judgements = make([]diagnose.Judgement, 0, len(b.Points))
@@ -189,22 +208,38 @@ func (r *Run) took(p *diagnose.Point) {
 // Load judges one batch of a whole log being read (report): every point,
 // but only the judgements asked for later are built. Handing each batch on
 // as it is read keeps memory to the Tracker's compact history, not the
-// log's points.
-func (r *Run) Load(b watch.Batch) {
+// log's points. It returns the error of Update.Err: a named column the
+// log lacks (then nothing more is judged).
+func (r *Run) Load(b watch.Batch) error {
 	r.mu.Lock()
 	defer r.mu.Unlock()
 	r.stats = b.Stats
 	r.notices.add(b.Notices, len(b.Points))
+	if err := r.checkLocked(); err != nil {
+		return err
+	}
 	for i := range b.Points {
 		r.tracker.Push(b.Points[i])
 		r.took(&b.Points[i])
 	}
+	return nil
+}
+
+// checkLocked checks the columns named on the command line once the log's
+// columns are known, and returns the error found then, every time after.
+func (r *Run) checkLocked() error {
+	if !r.checked && r.stats.ColumnsKnown {
+		r.checked = true
+		r.colErr = watch.CheckColumns(r.stats.Columns, r.opts.Overrides, r.opts.Judge.Metric)
+	}
+	return r.colErr
 }
 
 // Drive applies the batches as they come and hands each Update to emit,
 // until the source ends (the channel closes), ctx ends, the run ends on
 // stop (Options.EndOnStop), no line came for Options.IdleEnd, or emit
-// returns an error, which Drive returns. An update being handed on when
+// returns an error, which Drive returns; so it returns Update.Err (a named
+// column the log lacks), after emitting that update. An update being handed on when
 // ctx ends is still handed on whole: emit decides whether to wait for its
 // reader (the screen's feed gives up once the screen is gone).
 func (r *Run) Drive(ctx context.Context, batches <-chan watch.Batch, emit func(Update) error) error {
@@ -228,6 +263,9 @@ func (r *Run) Drive(ctx context.Context, batches <-chan watch.Batch, emit func(U
 		lines = b.Stats.Lines
 		u := r.Apply(b)
 		err := emit(u)
+		if err == nil {
+			err = u.Err
+		}
 		return err != nil || u.Ended, err
 	}
 	for {

@@ -44,6 +44,7 @@ func sourceOf(name string, stats watch.Stats, points int) report.Source {
 		Points:       points,
 		SkippedLines: stats.Skipped,
 		Warnings:     sourceWarnings(stats),
+		Roles:        stats.Roles,
 	}
 }
 

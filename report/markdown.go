@@ -31,6 +31,7 @@ func (s Summary) Markdown() string {
 		b.WriteString(", " + plural(src.SkippedLines, "line skipped", "lines skipped"))
 	}
 	b.WriteString("\n")
+	writeRoles(&b, src.Roles)
 	if !j.Judged() {
 		b.WriteString("- No evaluation point to judge yet.\n")
 		s.writeWarnings(&b)
@@ -145,6 +146,18 @@ func (s Summary) Markdown() string {
 	}
 	s.writeWarnings(&b)
 	return b.String()
+}
+
+// writeRoles states the roles assumed for columns, each with what it
+// rests on, and how to override them.
+func writeRoles(b *strings.Builder, roles []diagnose.RoleGuess) {
+	if len(roles) == 0 {
+		return
+	}
+	b.WriteString("- Roles assumed (--train, --val, --train-dev, --test override them):\n")
+	for _, g := range roles {
+		b.WriteString("  - " + inline(g.Phrase()) + ": " + inline(g.Source) + "\n")
+	}
 }
 
 func (s Summary) writeWarnings(b *strings.Builder) {

@@ -24,6 +24,9 @@ type Source struct {
 	SkippedLines int
 	// Warnings are the reader's messages (bad lines, truncations).
 	Warnings []string
+	// Roles are the roles the reader assumed for columns where the log
+	// left a choice; the judgement rests on them.
+	Roles []diagnose.RoleGuess
 }
 
 // Summary is the snapshot summary of a run at one point: the facts of the
@@ -75,9 +78,11 @@ func empty(src Source, t *diagnose.Tracker) Summary {
 // the reader's first. docs/report-schema.json is generated from it.
 type Document struct {
 	Source       string `json:"source"`        // the log, as named on the command line ("standard input" for -)
-	Format       string `json:"format"`        // the format read: csv, tsv, jsonl or text
+	Format       string `json:"format"`        // the layout read, as --format names it (csv, tsv, jsonl, text…)
 	Points       int    `json:"points"`        // evaluation points read
 	SkippedLines int    `json:"skipped_lines"` // lines that could not be read
+	// the roles assumed for columns where the log left a choice (which eval set is the training data, a test split taken as validation), each with what it rests on; --train, --val, --train-dev and --test override them
+	Roles []diagnose.RoleGuess `json:"roles"`
 	diagnose.JudgementJSON
 	Forecast *ForecastsJSON `json:"forecast" jsonschema:"nullable"` // what more epochs would buy the validation and training curves, with 80% intervals, or why there is no forecast; null when the summary was made without forecasts
 	Warnings []string       `json:"warnings"`                       // the reader's warnings, then the judgement's
@@ -90,11 +95,15 @@ func (s Summary) Document() Document {
 		Format:        diagnose.Printable(s.Source.Format),
 		Points:        s.Source.Points,
 		SkippedLines:  s.Source.SkippedLines,
+		Roles:         make([]diagnose.RoleGuess, len(s.Source.Roles)),
 		JudgementJSON: s.Judgement.JSONForm(),
 	}
 	if s.Forecasts != nil {
 		fc := s.Forecasts.JSONForm(s.Judgement.Judged())
 		d.Forecast = &fc
+	}
+	for i, g := range s.Source.Roles {
+		d.Roles[i] = diagnose.RoleGuess{Column: diagnose.Printable(g.Column), Split: g.Split, Source: diagnose.Printable(g.Source)}
 	}
 	d.Warnings = make([]string, 0, len(s.Source.Warnings)+len(d.JudgementJSON.Warnings))
 	for _, w := range s.Source.Warnings {

@@ -122,7 +122,13 @@ func TestSummary_Golden(t *testing.T) {
 			overfitRun(diagnose.Config{BayesError: 0.03, BayesErrorGiven: true, ValSize: 5000, TrainSize: 45000}, 40), 7, 0},
 		{"no-bayes", Source{Name: "-", Format: "jsonl", Points: 20}, overfitRun(diagnose.Config{}, 20), -1, 0},
 		{"mismatch", Source{Name: "speech.tsv", Format: "tsv", Points: 12}, mismatchRun(), -1, 0},
-		{"hostile", Source{Name: "evil\x1b[2J.log", Format: "text", Points: 4, Warnings: []string{"bad \x9b31m line"}}, hostileRun(), -1, 0},
+		// A boosting log: which eval set is the training data is a guess.
+		{"roles", Source{Name: "boost.log", Format: "rounds", Points: 20, Roles: []diagnose.RoleGuess{
+			{Column: "validation_0-error", Split: diagnose.SplitTrain, Source: "the first of several eval sets (validation_0) is commonly the training data"},
+			{Column: "validation_1-error", Split: diagnose.SplitVal, Source: "the second eval set (validation_1) is commonly the validation data, after the training data"},
+		}}, overfitRun(diagnose.Config{}, 20), -1, 0},
+		{"hostile", Source{Name: "evil\x1b[2J.log", Format: "text", Points: 4, Warnings: []string{"bad \x9b31m line"},
+			Roles: []diagnose.RoleGuess{{Column: "te|st\x1b]0;t\x07_acc", Split: diagnose.SplitVal, Source: "a *guess*\x1b[2J"}}}, hostileRun(), -1, 0},
 		{"empty", Source{Name: "empty.csv", Format: "csv"}, diagnose.New(diagnose.Config{}), -1, 0},
 		{"forecast-stop", Source{Name: "runs/plateau.csv", Format: "csv", Points: 60}, plateauRun(), -1, 100},
 	}

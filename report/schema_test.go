@@ -102,6 +102,8 @@ func mapType(t reflect.Type) *jsonschema.Schema {
 			}
 			return "the fit starts after " + b.Phrase()
 		})
+	case reflect.TypeOf(diagnose.Split(0)):
+		return enum(diagnose.Splits(), func(s diagnose.Split) string { return s.Phrase() + " — " + s.Description() })
 	}
 	return nil
 }

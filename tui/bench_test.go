@@ -23,15 +23,14 @@ func loadedModel(b *testing.B, w, h, epochs, steps int) Model {
 	step := int64(0)
 	for e0 := 0; e0 < epochs; e0 += batch {
 		e1 := min(e0+batch, epochs)
-		var rows []diagnose.StepRow
+		rows := diagnose.StepRows{Columns: []diagnose.Column{trainAcc, trainLoss}}
 		for e := e0; e < e1; e++ {
 			tr, _, _ := r.errors(e + 1)
 			for s := 0; s < per; s++ {
 				step++
 				v := 1 - (tr + 0.03*math.Sin(float64(step)*0.9))
-				rows = append(rows, diagnose.StepRow{Epoch: e + 1, Step: step, Samples: []diagnose.Sample{
-					{Column: trainAcc, Value: v}, {Column: trainLoss, Value: 2.2 * (1 - v)},
-				}})
+				rows.Append(diagnose.StepRowAt{Epoch: int32(e + 1), Step: step},
+					diagnose.StepValue{Col: 0, V: v}, diagnose.StepValue{Col: 1, V: 2.2 * (1 - v)})
 			}
 			pts[e].Step = step
 		}

@@ -75,6 +75,7 @@ func (m *Model) helpLines(w, h int) []string {
 		for _, l := range wrap("Reading goes on while paused or inspecting; space returns to the latest epoch. ? again: what the screen shows; esc closes.", w) {
 			lines = append(lines, m.st.paint(clsDim, l))
 		}
+		lines = append(lines, m.roleLines(w)...)
 	case helpScreen:
 		lines = m.legendLines(w)
 	}
@@ -135,6 +136,29 @@ func (m *Model) legendLines(w int) []string {
 				mark = e.mark
 			}
 			lines = append(lines, m.st.paint(clsKey, pad(fit(mark, mw), mw))+"  "+m.st.paint(clsDim, t))
+		}
+	}
+	return lines
+}
+
+// roleLines lists the roles the reader assumed (a guess of which split a
+// column holds), each with what it rests on; none when nothing was guessed.
+func (m *Model) roleLines(w int) []string {
+	roles := m.src.Roles
+	if len(roles) == 0 {
+		return nil
+	}
+	lines := []string{"", m.st.paint(clsHeading, "roles assumed")}
+	for _, l := range wrap("--train, --val, --train-dev and --test override them.", w) {
+		lines = append(lines, m.st.paint(clsDim, l))
+	}
+	for _, g := range roles {
+		for i, l := range wrap(g.Phrase()+": "+g.Source, w-2) {
+			if i == 0 {
+				lines = append(lines, m.st.paint(clsWarn, "• ")+l)
+			} else {
+				lines = append(lines, "  "+m.st.paint(clsDim, l))
+			}
 		}
 	}
 	return lines

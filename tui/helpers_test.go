@@ -93,17 +93,15 @@ func (r runSpec) points() []diagnose.Point {
 
 // steps returns the run's per-step rows: training accuracy around the
 // epoch's value with a deterministic ripple.
-func (r runSpec) steps() []diagnose.StepRow {
-	var out []diagnose.StepRow
+func (r runSpec) steps() diagnose.StepRows {
+	out := diagnose.StepRows{Columns: []diagnose.Column{metricCol("train_acc", "acc", diagnose.SplitTrain, diagnose.HigherIsBetter, true)}}
 	step := int64(0)
 	for e := 1; e <= r.epochs; e++ {
 		tr, _, _ := r.errors(e)
 		for s := 0; s < r.stepsPer; s++ {
 			step++
 			v := 1 - (tr + 0.03*math.Sin(float64(step)*0.9))
-			out = append(out, diagnose.StepRow{Epoch: e, Step: step, Samples: []diagnose.Sample{
-				{Column: metricCol("train_acc", "acc", diagnose.SplitTrain, diagnose.HigherIsBetter, true), Value: v, Last: v},
-			}})
+			out.Append(diagnose.StepRowAt{Epoch: int32(e), Step: step}, diagnose.StepValue{Col: 0, V: v})
 		}
 	}
 	return out

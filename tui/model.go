@@ -70,6 +70,10 @@ type SourceInfo struct {
 	Examples []string
 	// LastWrite is when the log last grew; zero when unknown.
 	LastWrite time.Time
+	// Roles are the roles the reader assumed for columns where the log
+	// left a choice, each with what it rests on: the status line names
+	// them briefly, the help page (?) in full.
+	Roles []diagnose.RoleGuess
 }
 
 // FeedMsg is one batch from the run: new evaluation points with their
@@ -83,7 +87,7 @@ type FeedMsg struct {
 	// Rejudged says the run judged every earlier point again (another
 	// metric, a rate found to be in percent): the screen reads them anew.
 	Rejudged bool
-	Steps    []diagnose.StepRow
+	Steps    diagnose.StepRows
 	Source   SourceInfo
 	Notices  []string
 	// WaitNotices are notices that say the reader waits ("waiting for

@@ -4,6 +4,7 @@ import (
 	"math"
 	"testing"
 
+	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/tui/chart"
 )
 
@@ -186,5 +187,38 @@ func TestStepClock_Knots(t *testing.T) {
 	c.observe(2, 120)
 	if k := c.knots(nil); k[len(k)-1].X != 2 {
 		t.Errorf("after a resume at epoch 2 the last knot is %v", k[len(k)-1])
+	}
+}
+
+// TestStore_AddSteps: per-step values reach the series of their column by
+// its index: metric columns only, a hostile name cleaned once, a rate in
+// percent noticed, a row without a step skipped, a value whose column the
+// batch does not describe yet ignored until a batch does.
+func TestStore_AddSteps(t *testing.T) {
+	s := newStore()
+	rows := diagnose.StepRows{Columns: []diagnose.Column{
+		metricCol("train_acc", "acc", diagnose.SplitTrain, diagnose.HigherIsBetter, true),
+		otherCol("lr"),
+		metricCol("lo\x1b[2Jss", "loss", diagnose.SplitTrain, diagnose.LowerIsBetter, false),
+	}}
+	rows.Append(diagnose.StepRowAt{Epoch: 1, Step: 1}, diagnose.StepValue{Col: 0, V: 0.5}, diagnose.StepValue{Col: 1, V: 0.1}, diagnose.StepValue{Col: 2, V: 2})
+	rows.Append(diagnose.StepRowAt{Epoch: 1, Step: -1}, diagnose.StepValue{Col: 0, V: 0.9})
+	rows.Append(diagnose.StepRowAt{Epoch: 1, Step: 2}, diagnose.StepValue{Col: 0, V: 60}, diagnose.StepValue{Col: 3, V: 7})
+	s.addSteps(&rows)
+	if got := s.stepOrder; len(got) != 2 || got[0] != "train_acc" || got[1] != "loss" {
+		t.Fatalf("series %q, want train_acc and the cleaned loss", got)
+	}
+	if n := len(s.steps["train_acc"].blocks); n != 2 {
+		t.Errorf("train_acc has %d samples, want 2 (the row without a step skipped)", n)
+	}
+	if !s.percent["acc"] {
+		t.Error("a per-step accuracy of 60 did not mark acc as percent")
+	}
+	// The next batch describes column 3: its values count from then on.
+	more := diagnose.StepRows{Columns: append(rows.Columns, metricCol("val_loss", "loss", diagnose.SplitVal, diagnose.LowerIsBetter, false))}
+	more.Append(diagnose.StepRowAt{Epoch: 2, Step: 3}, diagnose.StepValue{Col: 3, V: 1.5})
+	s.addSteps(&more)
+	if ss := s.steps["val_loss"]; ss == nil || len(ss.blocks) != 1 {
+		t.Errorf("val_loss not stored once its column was described: %+v", ss)
 	}
 }

@@ -39,7 +39,10 @@ type store struct {
 	steps     map[string]*stepSeries // per-step metric columns by name
 	stepMeta  map[string]diagnose.Column
 	stepOrder []string
-	clock     stepClock
+	// stepCols is what each column of the per-step rows feeds, by the
+	// rows' column index, worked out once per column.
+	stepCols []stepCol
+	clock    stepClock
 	// percent remembers bases seen above 1 in per-step rows: a rate or score
 	// written in percent (the same inference the judgement makes).
 	percent map[string]bool
@@ -184,32 +187,66 @@ func loggedValue(n diagnose.Num) float64 {
 	return n.V
 }
 
-// addStep stores one per-step row: its metric columns, and its place on
-// the epoch axis.
-func (s *store) addStep(r diagnose.StepRow) {
-	if r.Step < 0 {
-		return
-	}
-	s.clock.observe(r.Epoch, r.Step)
-	for _, smp := range r.Samples {
-		if smp.Column.Kind != diagnose.KindMetric {
+// stepCol is what one column of the per-step rows feeds: its series (nil
+// for a column that is no metric), and whether a value above 1 says its
+// base metric is written in percent.
+type stepCol struct {
+	known   bool
+	series  *stepSeries
+	bounded bool
+	base    string
+}
+
+// addSteps stores per-step rows: their metric columns, and their places
+// on the epoch axis. A column is looked up by name once, when it first
+// comes; a value then costs an index.
+func (s *store) addSteps(rows *diagnose.StepRows) {
+	for i := range rows.Rows {
+		r, vals := rows.Row(i)
+		if r.Step < 0 {
 			continue
 		}
-		name := clean(smp.Column.Name)
-		ss := s.steps[name]
-		if ss == nil {
-			ss = &stepSeries{}
-			s.steps[name] = ss
-			meta := smp.Column
-			meta.Name = name
-			s.stepMeta[name] = meta
-			s.stepOrder = append(s.stepOrder, name)
+		s.clock.observe(int(r.Epoch), r.Step)
+		for _, v := range vals {
+			c := s.stepCol(rows.Columns, int(v.Col))
+			if c.series == nil {
+				continue
+			}
+			if c.bounded && v.V > 1 {
+				s.percent[c.base] = true
+			}
+			c.series.add(r.Step, v.V)
 		}
-		if (smp.Column.Rate || smp.Column.Dir == diagnose.HigherIsBetter) && smp.Value > 1 {
-			s.percent[smp.Column.Base] = true
-		}
-		ss.add(r.Step, smp.Value)
 	}
+}
+
+// stepCol returns what column k of cols feeds, working it out on first
+// sight.
+func (s *store) stepCol(cols []diagnose.Column, k int) *stepCol {
+	if k >= len(s.stepCols) {
+		s.stepCols = append(s.stepCols, make([]stepCol, k+1-len(s.stepCols))...)
+	}
+	c := &s.stepCols[k]
+	if c.known || k >= len(cols) {
+		return c
+	}
+	c.known = true
+	col := cols[k]
+	if col.Kind != diagnose.KindMetric {
+		return c
+	}
+	name := clean(col.Name)
+	ss := s.steps[name]
+	if ss == nil {
+		ss = &stepSeries{}
+		s.steps[name] = ss
+		meta := col
+		meta.Name = name
+		s.stepMeta[name] = meta
+		s.stepOrder = append(s.stepOrder, name)
+	}
+	c.series, c.bounded, c.base = ss, col.Rate || col.Dir == diagnose.HigherIsBetter, col.Base
+	return c
 }
 
 // trainSteps returns the per-step training series of a base metric, if the

@@ -108,9 +108,7 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 	if rejudged {
 		m.read(m.data.rejudge)
 	}
-	for _, s := range msg.Steps {
-		m.data.addStep(s)
-	}
+	m.data.addSteps(&msg.Steps)
 	m.mergeSource(msg.Source)
 	for k, ns := range [][]string{msg.Notices, msg.WaitNotices} {
 		for _, n := range ns {
@@ -144,6 +142,13 @@ func (m *Model) mergeSource(s SourceInfo) {
 	s.Name = clean(s.Name)
 	s.Format = clean(s.Format)
 	s.Examples = cleanAll(s.Examples)
+	if len(s.Roles) > 0 {
+		roles := make([]diagnose.RoleGuess, len(s.Roles))
+		for i, g := range s.Roles {
+			roles[i] = diagnose.RoleGuess{Column: clean(g.Column), Split: g.Split, Source: clean(g.Source)}
+		}
+		s.Roles = roles
+	}
 	if m.ended && s.State != Removed {
 		s.State = Finished
 	}

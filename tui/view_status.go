@@ -8,6 +8,7 @@ import (
 
 	tea "github.com/charmbracelet/bubbletea"
 
+	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/sweep"
 )
 
@@ -160,11 +161,16 @@ func progressBar(done, total, w int) string {
 }
 
 // statusPart is one piece of the status line; pieces with a higher drop
-// rank go first when the line is too long.
+// rank go first when the line is too long. A piece with a short form is
+// shortened instead, the first time its turn comes, and then has the drop
+// rank shortDrop.
 type statusPart struct {
 	text string
 	cls  class
 	drop int
+
+	short     string
+	shortDrop int
 }
 
 // renderStatus renders the status line: source, format, progress, age of
@@ -177,15 +183,18 @@ func (m *Model) renderStatus() {
 	}
 	now := m.now()
 	var parts []statusPart
-	parts = append(parts, statusPart{"fitgap", clsHeading, 6})
+	parts = append(parts, statusPart{text: "fitgap", cls: clsHeading, drop: 6})
 	name := m.src.Name
 	if name == "" {
 		name = "(no source yet)"
 	}
 	nameAt := len(parts)
-	parts = append(parts, statusPart{name, clsPlain, 0})
+	parts = append(parts, statusPart{text: name, cls: clsPlain, drop: 0})
 	if m.src.Format != "" {
-		parts = append(parts, statusPart{m.src.Format, clsDim, 5})
+		parts = append(parts, statusPart{text: m.src.Format, cls: clsDim, drop: 5})
+	}
+	if long, short := rolesText(m.src.Roles); long != "" {
+		parts = append(parts, statusPart{text: long, cls: clsWarn, drop: 4, short: short, shortDrop: 2})
 	}
 	rows := m.data.rows
 	barAt := -1 // where the progress bar goes, when there is room for it
@@ -202,35 +211,35 @@ func (m *Model) renderStatus() {
 		if total > 0 {
 			ep += "/" + itoa(total)
 		}
-		parts = append(parts, statusPart{ep, clsPlain, 1})
+		parts = append(parts, statusPart{text: ep, cls: clsPlain, drop: 1})
 		if total > 0 {
 			barAt, barDone, barTotal = len(parts), last.epoch, total
-			parts = append(parts, statusPart{itoa(min(100, 100*max(last.epoch, 0)/total)) + "%", clsPlain, 4})
+			parts = append(parts, statusPart{text: itoa(min(100, 100*max(last.epoch, 0)/total)) + "%", cls: clsPlain, drop: 4})
 			// (A total far off, given or announced, must not overflow the
 			// duration: beyond a century the ETA says nothing.)
 			if p, ok := m.pace(); ok && last.epoch < total && m.src.State == Live && float64(total-last.epoch)*float64(p) < float64(100*365*24*time.Hour) {
-				parts = append(parts, statusPart{"eta " + ago(time.Duration(total-last.epoch)*p), clsPlain, 3})
+				parts = append(parts, statusPart{text: "eta " + ago(time.Duration(total-last.epoch)*p), cls: clsPlain, drop: 3})
 			}
 		}
 	}
 	if lw := m.lastWrite(); !lw.IsZero() {
-		parts = append(parts, statusPart{"wrote " + ago(now.Sub(lw)) + " ago", clsDim, 2})
+		parts = append(parts, statusPart{text: "wrote " + ago(now.Sub(lw)) + " ago", cls: clsDim, drop: 2})
 	}
 	stateTxt, stateCls := m.stateText(now)
-	parts = append(parts, statusPart{stateTxt, stateCls, 0})
+	parts = append(parts, statusPart{text: stateTxt, cls: stateCls, drop: 0})
 	switch {
 	case m.cursor >= 0 && m.cursor < len(rows):
 		badge := " INSPECTING epoch " + itoa(rows[m.cursor].epoch) + " "
 		if m.newPaused > 0 {
 			badge += "· " + itoa(m.newPaused) + " new "
 		}
-		parts = append(parts, statusPart{badge, clsPaused, 0})
+		parts = append(parts, statusPart{text: badge, cls: clsPaused, drop: 0})
 	case m.paused:
 		badge := " PAUSED "
 		if m.newPaused > 0 {
 			badge += "· " + itoa(m.newPaused) + " new "
 		}
-		parts = append(parts, statusPart{badge, clsPaused, 0})
+		parts = append(parts, statusPart{text: badge, cls: clsPaused, drop: 0})
 	}
 
 	// Too long: first the log's directory goes (the file name is what
@@ -270,6 +279,10 @@ func (m *Model) renderStatus() {
 			f.status = fit(line, m.width)
 			return
 		}
+		if p := &parts[worst]; p.short != "" {
+			p.text, p.drop, p.short = p.short, p.shortDrop, ""
+			continue
+		}
 		if worst < nameAt {
 			nameAt--
 		}
@@ -298,10 +311,29 @@ func (m *Model) withProgressBar(parts []statusPart, barAt, done, total int, line
 	if barAt < 0 || room < statusBarMin || total <= 0 {
 		return line
 	}
-	bar := statusPart{progressBar(done, total, min(room, statusBarMax)), clsTrain, 0}
+	bar := statusPart{text: progressBar(done, total, min(room, statusBarMax)), cls: clsTrain}
 	with := append(append(append([]statusPart{}, parts[:barAt]...), bar), parts[barAt:]...)
 	l, _ := m.joinStatus(with)
 	return l
+}
+
+// rolesText names the roles assumed for the status line: long names the
+// first in full and counts the others, short only counts them (the help
+// page lists them all, with what each rests on).
+func rolesText(roles []diagnose.RoleGuess) (long, short string) {
+	switch len(roles) {
+	case 0:
+		return "", ""
+	case 1:
+		short = "1 role assumed (?)"
+	default:
+		short = itoa(len(roles)) + " roles assumed (?)"
+	}
+	long = "assumed " + roles[0].Phrase()
+	if n := len(roles) - 1; n > 0 {
+		long += " +" + itoa(n) + " (?)"
+	}
+	return long, short
 }
 
 // baseName is the last element of a slash-separated path.

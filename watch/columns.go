@@ -8,12 +8,32 @@ import (
 	"github.com/fitgap/fitgap/diagnose"
 )
 
-// CheckColumns reports, as one error, the columns that the --train, --val,
-// --train-dev and --test flags name (o) and the log lacks, and a --metric
-// base it lacks, listing what the log has. cols are the log's columns as
-// read (Stats.Columns); with none read yet there is nothing to check and
-// the result is nil. Column names are compared as the log writes them;
-// the metric with the base names of its metric columns, case-insensitively.
+// ColumnsError is a column or metric named on the command line that the
+// log lacks. Its text lists the problems and the columns the log has; every
+// name in it is sanitized.
+type ColumnsError struct {
+	// Problems says what is missing, one entry per flag:
+	// `--val: no column "valid_loss" in the log`.
+	Problems []string
+	// Columns are the log's columns, as named in it.
+	Columns []string
+}
+
+func (e *ColumnsError) Error() string {
+	have := "none"
+	if len(e.Columns) > 0 {
+		have = strings.Join(e.Columns, ", ")
+	}
+	return strings.Join(e.Problems, "; ") + "; the log's columns: " + have
+}
+
+// CheckColumns reports, as one *ColumnsError, the columns that the
+// --train, --val, --train-dev and --test flags name (o) and the log lacks,
+// and a --metric base it lacks, listing what the log has. cols are the
+// log's columns as read (Stats.Columns, complete once Stats.ColumnsKnown);
+// with none read yet there is nothing to check and the result is nil.
+// Column names are compared as the log writes them; the metric with the
+// base names of its metric columns, case-insensitively.
 func CheckColumns(cols []diagnose.Column, o Overrides, metric string) error {
 	if len(cols) == 0 {
 		return nil
@@ -44,5 +64,5 @@ func CheckColumns(cols []diagnose.Column, o Overrides, metric string) error {
 	if len(problems) == 0 {
 		return nil
 	}
-	return fmt.Errorf("%s; the log's columns: %s", strings.Join(problems, "; "), strings.Join(names, ", "))
+	return &ColumnsError{Problems: problems, Columns: names}
 }

@@ -1,8 +1,11 @@
 package watch
 
 import (
+	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/fitgap/fitgap/watch/internal/watchtest"
 )
 
 // TestCheckColumns: flags that name a column the log lacks, and a metric
@@ -46,5 +49,53 @@ func TestCheckColumns(t *testing.T) {
 	}
 	if err := CheckColumns(nil, Overrides{Val: "x"}, "f1"); err != nil {
 		t.Errorf("no columns read yet: %v, want nil", err)
+	}
+}
+
+// TestStats_ColumnsKnown: the columns count as known when a header named
+// them, when the source ended, or, for a log whose lines name their own
+// values, once the reader caught up after a point of a second epoch.
+func TestStats_ColumnsKnown(t *testing.T) {
+	t.Run("HeaderOnly", func(t *testing.T) {
+		path := filepath.Join(t.TempDir(), "run.csv")
+		watchtest.WriteRaw(t, path, "epoch,loss,val_loss\n")
+		f := startFollow(t, path, Options{})
+		f.waitFor(t, "columns known from the header", func(f *follower) bool {
+			return f.stats.ColumnsKnown && len(f.stats.Columns) == 2
+		})
+	})
+	t.Run("LinesNameTheirValues", func(t *testing.T) {
+		path := filepath.Join(t.TempDir(), "run.jsonl")
+		watchtest.WriteRaw(t, path, `{"epoch": 1, "loss": 0.9, "val_loss": 1.0}`+"\n")
+		f := startFollow(t, path, Options{})
+		f.waitEpochs(t, 1)
+		f.mu.Lock()
+		known := f.stats.ColumnsKnown
+		f.mu.Unlock()
+		if known {
+			t.Fatal("columns known after one epoch of a live log: its later lines may name more")
+		}
+		watchtest.AppendLines(t, path, `{"epoch": 2, "loss": 0.8, "val_loss": 0.9}`)
+		f.waitFor(t, "columns known after a second epoch", func(f *follower) bool { return f.stats.ColumnsKnown })
+	})
+	t.Run("SourceEnded", func(t *testing.T) {
+		_, st := readString(t, `{"epoch": 1, "loss": 0.9}`+"\n", Options{})
+		if !st.ColumnsKnown {
+			t.Error("a whole log read: columns not known")
+		}
+	})
+	t.Run("Empty", func(t *testing.T) {
+		_, st := readString(t, "", Options{})
+		if err := CheckColumns(st.Columns, Overrides{Val: "v"}, ""); err != nil {
+			t.Errorf("an empty log: %v, want nothing to check", err)
+		}
+	})
+}
+
+// TestColumnsError_Text: the error names every problem and the columns.
+func TestColumnsError_Text(t *testing.T) {
+	e := &ColumnsError{Problems: []string{`--val: no column "v" in the log`}}
+	if got, want := e.Error(), `--val: no column "v" in the log; the log's columns: none`; got != want {
+		t.Errorf("got %q, want %q", got, want)
 	}
 }

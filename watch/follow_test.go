@@ -403,22 +403,37 @@ func TestFollow_NamedPipe(t *testing.T) {
 }
 func TestFollowReader_Steps(t *testing.T) {
 	in := "epoch,step,loss,val_loss\n1,1,0.9,\n1,2,0.8,0.85\n2,3,0.7,\n"
-	var steps []diagnose.StepRow
+	type stepValue struct {
+		name string
+		v    float64
+	}
+	type stepRow struct {
+		epoch int32
+		step  int64
+		vals  []stepValue
+	}
+	var steps []stepRow
 	for b := range FollowReader(t.Context(), "x", strings.NewReader(in), Options{Steps: true}) {
-		steps = append(steps, b.Steps...)
+		for i := range b.Steps.Rows {
+			r, vals := b.Steps.Row(i)
+			row := stepRow{epoch: r.Epoch, step: r.Step}
+			for _, v := range vals {
+				row.vals = append(row.vals, stepValue{b.Steps.Columns[v.Col].Name, v.V})
+			}
+			steps = append(steps, row)
+		}
 	}
-	if len(steps) != 3 {
-		t.Fatalf("steps = %+v", steps)
+	want := []stepRow{
+		{1, 1, []stepValue{{"loss", 0.9}}},
+		{1, 2, []stepValue{{"loss", 0.8}, {"val_loss", 0.85}}},
+		{2, 3, []stepValue{{"loss", 0.7}}},
 	}
-	if s := steps[1]; s.Epoch != 1 || s.Step != 2 || len(s.Samples) != 2 || s.Samples[0].Value != 0.8 || s.Samples[1].Value != 0.85 {
-		t.Errorf("step row = %+v", s)
-	}
-	if s := steps[2]; s.Epoch != 2 || s.Step != 3 || len(s.Samples) != 1 {
-		t.Errorf("step row = %+v", s)
+	if !reflect.DeepEqual(steps, want) {
+		t.Fatalf("steps = %+v, want %+v", steps, want)
 	}
 	// Without the option no rows are made.
 	for b := range FollowReader(t.Context(), "x", strings.NewReader(in), Options{}) {
-		if len(b.Steps) > 0 {
+		if b.Steps.Len() > 0 {
 			t.Fatalf("steps without Options.Steps")
 		}
 	}

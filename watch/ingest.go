@@ -21,7 +21,7 @@ const (
 	// points, rows.
 	batchAge    = 50 * time.Millisecond
 	batchPoints = 1000
-	batchSteps  = 8192
+	batchSteps  = 4096
 )
 
 // ingester joins the parts: the tailer feeds it bytes (tail.Sink), its
@@ -38,9 +38,18 @@ type ingester struct {
 
 	state     State
 	lastWrite time.Time
-	batch     Batch
-	sent      Stats
-	sentAt    time.Time
+	// What ColumnsKnown rests on: the reader caught up with the source or
+	// reached its end, and a point of an epoch other than the first's.
+	caughtUp, ended bool
+	firstEpoch      int
+	pointsSeen      int
+	secondEpoch     bool
+	// lastPoints, lastSteps and lastValues are how many points, per-step
+	// rows and their values the last batch held.
+	lastPoints, lastSteps, lastValues int
+	batch                             Batch
+	sent                              Stats
+	sentAt                            time.Time
 }
 
 func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester {
@@ -55,8 +64,32 @@ func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester
 // batch holds each epoch once (an epoch handed on early and refined, or
 // written as an evaluation row and a summary row, goes out as its last
 // version).
-func (g *ingester) Point(p diagnose.Point)  { g.batch.Points = points.Append(g.batch.Points, p) }
-func (g *ingester) Step(r diagnose.StepRow) { g.batch.Steps = append(g.batch.Steps, r) }
+func (g *ingester) Point(p diagnose.Point) {
+	if g.batch.Points == nil {
+		// As many as the last batch held (a backlog fills batches), so
+		// that a batch is not copied as it grows.
+		g.batch.Points = make([]diagnose.Point, 0, min(batchPoints, max(8, g.lastPoints)))
+	}
+	g.batch.Points = points.Append(g.batch.Points, p)
+	switch {
+	case g.pointsSeen == 0:
+		g.firstEpoch = p.Epoch
+	case p.Epoch != g.firstEpoch:
+		g.secondEpoch = true
+	}
+	g.pointsSeen++
+}
+
+func (g *ingester) Steps() *diagnose.StepRows {
+	s := &g.batch.Steps
+	if s.Rows == nil {
+		// The room the last batch needed, so that a batch is not copied as
+		// it grows.
+		s.Rows = make([]diagnose.StepRowAt, 0, min(batchSteps, max(8, g.lastSteps)))
+		s.Values = make([]diagnose.StepValue, 0, max(8, g.lastValues))
+	}
+	return s
+}
 
 // Notice reports a message; it may quote the log's name or an error about
 // it, so it is sanitized whole.
@@ -77,8 +110,16 @@ func (g *ingester) Feed(p []byte) {
 func (g *ingester) Restart(why string) { g.r.Reset(why) }
 func (g *ingester) Rewind() bool       { return g.r.Rewind() }
 func (g *ingester) State(s State)      { g.state = s }
-func (g *ingester) CaughtUp()          { g.r.CaughtUp() }
-func (g *ingester) End()               { g.r.End() }
+
+func (g *ingester) CaughtUp() {
+	g.caughtUp = true
+	g.r.CaughtUp()
+}
+
+func (g *ingester) End() {
+	g.ended = true
+	g.r.End()
+}
 
 // Flush hands the batch on when asked to; false when ctx ended first.
 func (g *ingester) Flush(ctx context.Context, when tail.Flush) bool {
@@ -114,32 +155,45 @@ func (g *ingester) Flush(ctx context.Context, when tail.Flush) bool {
 // batchAge ago.
 func (g *ingester) full() bool {
 	b := &g.batch
-	return len(b.Points) >= batchPoints || len(b.Steps) >= batchSteps ||
-		(len(b.Points) > 0 || len(b.Steps) > 0) && time.Since(g.sentAt) >= batchAge
+	return len(b.Points) >= batchPoints || b.Steps.Len() >= batchSteps ||
+		(len(b.Points) > 0 || b.Steps.Len() > 0) && time.Since(g.sentAt) >= batchAge
 }
 
 // pending reports whether the batch holds anything new to hand on.
 func (g *ingester) pending() bool {
 	b := &g.batch
 	lines, skipped := g.r.Lines()
-	return len(b.Points) > 0 || len(b.Steps) > 0 || len(b.Notices) > 0 ||
-		lines != g.sent.Lines || skipped != g.sent.Skipped || g.state != g.sent.State
+	return len(b.Points) > 0 || b.Steps.Len() > 0 || len(b.Notices) > 0 ||
+		lines != g.sent.Lines || skipped != g.sent.Skipped || g.state != g.sent.State ||
+		g.columnsKnown(false) && !g.sent.ColumnsKnown
+}
+
+// columnsKnown is Stats.ColumnsKnown, header saying whether a header line
+// named the columns.
+func (g *ingester) columnsKnown(header bool) bool {
+	return header || g.ended || g.caughtUp && g.secondEpoch
 }
 
 // take returns the batch so far and starts a new one.
 func (g *ingester) take() Batch {
 	b := g.batch
 	g.batch = Batch{}
+	g.lastPoints = len(b.Points)
+	g.lastSteps, g.lastValues = len(b.Steps.Rows), len(b.Steps.Values)
 	c := g.r.Counts()
+	if b.Steps.Len() > 0 {
+		b.Steps.Columns = c.Columns // by the index the rows' values use
+	}
 	b.Stats = Stats{Format: c.Format, State: g.state, Lines: c.Lines, Skipped: c.Skipped, Examples: c.Examples,
-		NonFinite: c.NonFinite, Segments: c.Segments, LastWrite: g.lastWrite, Roles: c.Roles, Columns: c.Columns}
+		NonFinite: c.NonFinite, Segments: c.Segments, LastWrite: g.lastWrite, Roles: c.Roles, Columns: c.Columns,
+		ColumnsKnown: g.columnsKnown(c.Header)}
 	return b
 }
 
-// tail.Ahead: a long backlog is decoded ahead on every core, except with
-// per-step rows, which would pile up a piece's worth of rows in memory.
+// tail.Ahead: a long backlog is decoded ahead on every core (per-step
+// rows included: a piece's worth of them is a few flat arrays).
 
-func (g *ingester) ReadsAhead() bool { return !g.steps && g.r.ReadsAhead() }
+func (g *ingester) ReadsAhead() bool { return g.r.ReadsAhead() }
 
 func (g *ingester) Piece() tail.Piece {
 	p := g.r.Piece()

@@ -90,8 +90,14 @@ func Sniff(path string, opts Options) (Sniffed, error) {
 }
 
 // counter counts the points of a head and drops them.
-type counter struct{ points int }
+type counter struct {
+	points int
+	steps  diagnose.StepRows // per-step rows, if the options ask for them: dropped
+}
 
-func (c *counter) Point(diagnose.Point)  { c.points++ }
-func (c *counter) Step(diagnose.StepRow) {}
-func (c *counter) Notice(string)         {}
+func (c *counter) Point(diagnose.Point) { c.points++ }
+func (c *counter) Steps() *diagnose.StepRows {
+	c.steps.Rows, c.steps.Values = c.steps.Rows[:0], c.steps.Values[:0]
+	return &c.steps
+}
+func (c *counter) Notice(string) {}

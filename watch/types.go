@@ -111,11 +111,19 @@ type Stats struct {
 	// Columns are the log's value columns read so far (not the epoch or
 	// step), in the order they appeared, with what each holds.
 	Columns []diagnose.Column
+	// ColumnsKnown says that Columns is as complete as it will get, so a
+	// column named on the command line and missing from it is missing
+	// from the log: a header line named the columns (CSV/TSV, aligned
+	// tables), or the source ended, or, for a log whose lines name their
+	// own values (JSON Lines, console text…), the reader caught up with
+	// what there is after a point of a second epoch (the first epoch has
+	// shown all its columns). CheckColumns checks Columns then.
+	ColumnsKnown bool
 }
 
 // RoleGuess is a role the reader assumed for a column: Column (its name),
 // Split (the split assumed) and Source (what the guess rests on).
-type RoleGuess = column.Guess
+type RoleGuess = diagnose.RoleGuess
 
 // Notice is a message about the source, for the status line: "waiting for
 // run.csv", "run.csv truncated: reading from the start (segment 2)",
@@ -142,9 +150,9 @@ func (n Notice) Waits() bool { return strings.Contains(n.Text, "waiting for ") }
 // epoch). AppendPoint applies the rule.
 type Batch struct {
 	Points []diagnose.Point
-	// Steps are per-step rows, only with Options.Steps. They are transient:
-	// the consumer downsamples what it keeps.
-	Steps   []diagnose.StepRow
+	// Steps are the per-step rows, only with Options.Steps, column by
+	// column. They are transient: the consumer downsamples what it keeps.
+	Steps   diagnose.StepRows
 	Notices []Notice
 	Stats   Stats
 }

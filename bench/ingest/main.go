@@ -5,6 +5,7 @@
 //	ingest [-format auto|csv|tsv|jsonl|text] FILE
 //	ingest -follow FILE    follow FILE until interrupted (idle CPU check)
 //	ingest -cpuprofile OUT FILE   also write a CPU profile (go tool pprof)
+//	ingest -steps FILE     also make the per-step rows (the live screen's reading)
 package main
 
 import (
@@ -16,6 +17,7 @@ import (
 	"runtime/pprof"
 	"syscall"
 
+	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch"
 )
 
@@ -30,6 +32,7 @@ func run() error {
 	format := flag.String("format", "auto", "log format")
 	follow := flag.Bool("follow", false, "follow the file until interrupted")
 	profile := flag.String("cpuprofile", "", "write a CPU profile to this file")
+	steps := flag.Bool("steps", false, "also make the per-step rows the live screen asks for")
 	flag.Parse()
 	if *profile != "" {
 		pf, err := os.Create(*profile)
@@ -49,7 +52,7 @@ func run() error {
 	if err != nil {
 		return err
 	}
-	opts := watch.Options{Format: f}
+	opts := watch.Options{Format: f, Steps: *steps}
 	if *follow {
 		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 		defer stop()
@@ -65,15 +68,32 @@ func run() error {
 		fmt.Printf("followed: %d points handed on\n", points)
 		return nil
 	}
-	points, st, err := watch.ReadAll(flag.Arg(0), nil, opts)
+	// One-shot, as a report reads: the batches are taken as they come and
+	// only counted (a report hands them to the judge, which keeps a
+	// compact history), so memory is the reader's, not the points'.
+	ch, err := watch.Follow(context.Background(), flag.Arg(0), opts)
 	if err != nil {
 		return err
 	}
-	last := ""
-	if n := len(points); n > 0 {
-		p := points[n-1]
-		last = fmt.Sprintf(", last epoch %d (%d rows)", p.Epoch, p.Rows)
+	var (
+		st     watch.Stats
+		points int
+		last   diagnose.Point
+	)
+	for b := range ch {
+		for _, p := range b.Points {
+			if p.Epoch <= last.Epoch && points > 0 {
+				points-- // replaces the point of its epoch (watch.Batch)
+			}
+			points++
+			last = p
+		}
+		st = b.Stats
 	}
-	fmt.Printf("%s: %d lines, %d points, %d skipped%s\n", st.Format, st.Lines, len(points), st.Skipped, last)
+	tail := ""
+	if points > 0 {
+		tail = fmt.Sprintf(", last epoch %d (%d rows)", last.Epoch, last.Rows)
+	}
+	fmt.Printf("%s: %d lines, %d points, %d skipped%s\n", st.Format, st.Lines, points, st.Skipped, tail)
 	return nil
 }

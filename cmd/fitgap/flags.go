@@ -113,7 +113,8 @@ func (j *judgeFlags) register(fs *flag.FlagSet) {
 
 func (j *judgeFlags) config() (diagnose.Config, error) {
 	c := j.defaultConfig
-	c.Metric = j.metric
+	// Base metric names are lower case as read from the log (acc, loss).
+	c.Metric = strings.ToLower(strings.TrimSpace(j.metric))
 	if j.bayes.set {
 		c.BayesError, c.BayesErrorGiven, c.BayesErrorRate = j.bayes.v, true, j.bayes.percent
 	}

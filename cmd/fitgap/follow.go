@@ -98,13 +98,14 @@ Exit status 0 at the end of a pipe, after --idle-exit or --exit-on-stop;
 			run := pipeline.New(pipeline.Options{
 				Name: src.Name(), Judge: cfg, StopFile: stop,
 				EndOnStop: exitOnStop, Summaries: true, IdleEnd: idleExit, Epochs: log.epochs,
+				Overrides: opts.Roles,
 			})
 			p := &printer{out: e.stdout, errOut: e.stderr, now: time.Now}
 			err = run.Drive(ctx, batches, p.print)
 			if serr := sigs.exit(); serr != nil {
 				return serr
 			}
-			return err
+			return runError(src.Name(), err)
 		}
 	},
 }

@@ -17,8 +17,8 @@ var reportCommand = &command{
 	name:    "report",
 	args:    "FILE | DIR | LOG... | 'GLOB'",
 	summary: "read a whole log and print the snapshot summary (Markdown, or --json); a sweep's runs ranked",
-	about: `Reads the whole log (CSV/TSV, JSON Lines or console text; FILE "-" reads standard
-input), judges every evaluation point and prints the summary as of the last one.
+	about: `Reads the whole log (any layout of --format; FILE "-" reads standard input),
+judges every evaluation point and prints the summary as of the last one.
 --plot FILE.svg or FILE.png also draws the run; the Markdown shows the picture
 by its path from where the Markdown goes (the file standard output is
 redirected to, else the working directory).
@@ -98,14 +98,19 @@ func onePath(args []string) (string, error) {
 // it is read.
 func judgeWholeLog(src pipeline.Source, opts pipeline.Options) (*pipeline.Run, error) {
 	src.Read.Follow = false
-	batches, err := src.Follow(context.Background())
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel() // a read given up on (a missing column) stops at once
+	batches, err := src.Follow(ctx)
 	if err != nil {
 		return nil, readError(src.Name(), err)
 	}
 	opts.Name = src.Name()
+	opts.Overrides = src.Read.Roles
 	run := pipeline.New(opts)
 	for b := range batches {
-		run.Load(b)
+		if err := run.Load(b); err != nil {
+			return nil, runError(src.Name(), err)
+		}
 	}
 	if run.Len() == 0 {
 		return nil, emptyLogError(src.Name(), run.Stats())
@@ -128,6 +133,20 @@ func readError(name string, err error) error {
 	return &inputError{err: err, hint: hint}
 }
 
+// runError turns the error that ended a run into what the command
+// returns: a column named on the command line that the log lacks is an
+// input error (exit 2) naming the log; any other error is returned as is.
+func runError(name string, err error) error {
+	var ce *watch.ColumnsError
+	if !errors.As(err, &ce) {
+		return err
+	}
+	return &inputError{
+		err:  fmt.Errorf("%s: %w", name, err),
+		hint: "name a column as the log writes it, or leave the flag out and fitgap reads the roles from the names",
+	}
+}
+
 // emptyLogError explains a log with nothing to judge.
 func emptyLogError(name string, stats watch.Stats) error {
 	msg := fmt.Sprintf("%s: no evaluation points found (%d lines read, %d skipped, format %s)",
@@ -140,7 +159,7 @@ func emptyLogError(name string, stats watch.Stats) error {
 	case stats.Lines == 0:
 		hint = "the log is empty: has training written anything yet? fitgap watch FILE follows it as it grows"
 	case stats.Skipped > 0:
-		hint = "if the format was misdetected, name it: --format csv, tsv, jsonl or text"
+		hint = "if the layout was misdetected, name it: --format " + strings.Join(watch.FormatNames(), ", ")
 	}
 	return &inputError{err: errors.New(msg), hint: hint}
 }

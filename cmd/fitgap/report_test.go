@@ -8,6 +8,8 @@ import (
 	"strings"
 	"syscall"
 	"testing"
+
+	"github.com/fitgap/fitgap/watch"
 )
 
 func TestReport_BadLogs(t *testing.T) {
@@ -29,7 +31,9 @@ func TestReport_BadLogs(t *testing.T) {
 		{"Directory", []string{"report", dir}, []string{filepath.Base(dir), "no evaluation points in the 1 run(s) found"}},
 		{"Empty", []string{"report", empty}, []string{"empty.csv", "no evaluation points", "empty"}},
 		{"HeaderOnly", []string{"report", headerOnly}, []string{"header.csv", "no evaluation points"}},
-		{"Garbage", []string{"report", "--format", "jsonl", garbage}, []string{"garbage.jsonl", "no evaluation points", "skipped"}},
+		// The hint names every layout the reader knows.
+		{"Garbage", []string{"report", "--format", "jsonl", garbage}, []string{"garbage.jsonl", "no evaluation points", "skipped",
+			"--format " + strings.Join(watch.FormatNames(), ", ")}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

@@ -146,13 +146,17 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 		return readError(src.Name(), err)
 	}
 
-	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: spec.cfg, StopFile: stop, WriterDone: spec.writerDone, Epochs: spec.epochs})
+	run := pipeline.New(pipeline.Options{Name: src.Name(), Judge: spec.cfg, StopFile: stop, WriterDone: spec.writerDone,
+		Epochs: spec.epochs, Overrides: spec.opts.Roles})
 	feed := make(chan tui.FeedMsg, 4)
-	var stopErr error
+	var stopErr, runErr error
 	relayed := make(chan struct{})
 	go func() {
 		defer close(relayed)
-		stopErr = relay(ctx, run, batches, feed)
+		stopErr, runErr = relay(ctx, run, batches, feed)
+		if runErr != nil {
+			cancel() // the run cannot go on (a named column is missing): close the screen
+		}
 	}()
 
 	m := tui.New(tui.Options{
@@ -184,6 +188,9 @@ func runScreen(ctx context.Context, e *env, spec screenSpec) error {
 	}
 	if err != nil {
 		return err
+	}
+	if runErr != nil {
+		return runError(src.Name(), runErr)
 	}
 	if stopErr != nil {
 		fmt.Fprintln(e.stderr, "fitgap: "+diagnose.Printable(stopErr.Error()))
@@ -240,14 +247,15 @@ func finishScreen(e *env, sum report.Summary, reason tui.ExitReason, outs screen
 }
 
 // relay drives the run and hands each update to the screen, until the
-// source ends or ctx does (the screen closed); it then closes feed. It
-// never blocks on a feed nobody reads: a send gives up once ctx ends. The
-// stop file is the run's business, whatever the screen shows (paused, or
-// judging with another optimal error typed in to explore); relay returns
-// the first error in creating it, for after the screen.
-func relay(ctx context.Context, run *pipeline.Run, batches <-chan watch.Batch, feed chan<- tui.FeedMsg) (stopErr error) {
+// source ends, the run does, or ctx does (the screen closed); it then
+// closes feed. It never blocks on a feed nobody reads: a send gives up
+// once ctx ends. The stop file is the run's business, whatever the screen
+// shows (paused, or judging with another optimal error typed in to
+// explore); relay returns the first error in creating it, for after the
+// screen, and the error that ended the run (a named column the log lacks).
+func relay(ctx context.Context, run *pipeline.Run, batches <-chan watch.Batch, feed chan<- tui.FeedMsg) (stopErr, runErr error) {
 	defer close(feed)
-	_ = run.Drive(ctx, batches, func(u pipeline.Update) error {
+	runErr = run.Drive(ctx, batches, func(u pipeline.Update) error {
 		if u.Stop != nil && u.Stop.Err != nil && stopErr == nil {
 			stopErr = u.Stop.Err
 		}
@@ -257,7 +265,7 @@ func relay(ctx context.Context, run *pipeline.Run, batches <-chan watch.Batch, f
 		}
 		return nil // the screen takes what comes; nothing here ends the run
 	})
-	return stopErr
+	return stopErr, runErr
 }
 
 // screenFeed is an update in the screen's terms. A stop file that could
@@ -295,6 +303,7 @@ func screenFeed(run *pipeline.Run, u pipeline.Update) tui.FeedMsg {
 			NonFinite: u.Stats.NonFinite,
 			Examples:  examples,
 			LastWrite: u.Stats.LastWrite,
+			Roles:     u.Stats.Roles,
 		},
 	}
 }

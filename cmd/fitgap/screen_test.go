@@ -43,7 +43,10 @@ func TestRelay_StopFileAndFinished(t *testing.T) {
 	cfg.BayesError, cfg.BayesErrorGiven = 0.05, true
 	run := pipeline.New(pipeline.Options{Name: logPath, Judge: cfg, StopFile: stop, WriterDone: writerDone})
 	stopErr := make(chan error, 1)
-	go func() { stopErr <- relay(context.Background(), run, batches, feed) }()
+	go func() {
+		err, _ := relay(context.Background(), run, batches, feed)
+		stopErr <- err
+	}()
 
 	stats.State = watch.StateLive
 	for _, p := range points {

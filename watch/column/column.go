@@ -250,18 +250,8 @@ func isBookkeepingBase(words []string) bool {
 }
 
 // Guess is a role the reader assumed for a column where the log left a
-// choice: which of the boosting libraries' validation_0, validation_1 is
-// the training data, or a test split evaluated every epoch standing in for
-// validation. The flags --train, --val, --train-dev and --test override
-// it.
-type Guess struct {
-	// Column is the column's name as the log writes it, sanitized.
-	Column string
-	// Split is the split assumed.
-	Split diagnose.Split
-	// Source says what the guess rests on, in a sentence.
-	Source string
-}
+// choice (diagnose.RoleGuess, the model every output states).
+type Guess = diagnose.RoleGuess
 
 // Overrides force named columns to a split, whatever their names say
 // (--train COL, --val COL, --train-dev COL, --test COL). The overridden

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"math"
 	"slices"
+	"sync"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/points"
@@ -42,29 +43,68 @@ import (
 // line (which may start with a byte order mark).
 const specBase = 1
 
-// aheadSnap is what a worker starts from, read-only: a copy of the CSV
-// decoder's header and of the column table as they were when its piece
-// was started.
+// aheadDecoder is a decoder whose backlog workers can decode ahead: the
+// layouts whose lines say their epoch (CSV/TSV and aligned tables with an
+// epoch column, JSON Lines and dict lines with an epoch key, round lines,
+// console text with epoch markers), and whose state between two lines,
+// besides caches, is small enough to be handed to a worker and back.
+type aheadDecoder interface {
+	Decoder
+	// readsAhead reports whether workers can start from the decoder now
+	// (a header or an epoch key seen).
+	readsAhead() bool
+	// aheadState returns what a worker's decoder starts from, or nil when
+	// workers cannot start from the decoder now; prev, the last state
+	// taken (maybe nil), is returned again while it still holds.
+	aheadState(prev aheadState) aheadState
+}
+
+// aheadState is a decoder's state at the start of a piece, read-only:
+// workers start from it concurrently with the Reader's own decoder.
+type aheadState interface {
+	// lineEpoch guesses the epoch a line opens, to find a piece's sync
+	// line: kind says whether the line gives an epoch, gives none (it
+	// belongs to the open epoch) or breaks the guess. The worker checks
+	// the guess.
+	lineEpoch(line []byte) (epoch int, kind lineKind)
+	// newWorker makes the decoder of worker Reader w.
+	newWorker(w *Reader) Decoder
+	// holds reports whether d, the Reader's decoder, stands where the
+	// state was taken, between two records: what a worker assumed at its
+	// piece's sync line holds there.
+	holds(d Decoder) bool
+	// finished reports whether a worker's decoder ended its piece between
+	// two records.
+	finished(wd Decoder) bool
+	// adopt makes the Reader's decoder d go on from where the worker's
+	// decoder wd ended.
+	adopt(d, wd Decoder)
+}
+
+// lineKind is what a line says of its epoch, for finding a sync line.
+type lineKind uint8
+
+const (
+	lineBreaks lineKind = iota // unreadable, or no guess: the run of epochs starts again
+	lineEpoch                  // it gives an epoch
+	lineNone                   // it gives none and belongs to the open epoch (a console line between markers)
+)
+
+// aheadSnap is what a worker starts from, read-only: the decoder's state
+// and the column table as they were when its piece was started.
 type aheadSnap struct {
-	dec        *csvDecoder // the Reader's decoder, compared by identity
-	gen        int
-	delim      byte
-	epochField int
-	header     []byte
-	names      []string
-	roles      []cellRole
-	colOf      []int
-	extraNote  bool
-	overrode   bool
-	asm        *points.Snapshot
+	format   Format
+	state    aheadState
+	overrode bool
+	general  bool
+	asm      *points.Snapshot
 }
 
 // ReadsAhead reports whether pieces of the backlog can be decoded ahead
-// now: a delimited log whose header has been read (the snapshot may still
-// refuse a piece).
+// now (the snapshot may still refuse a piece).
 func (r *Reader) ReadsAhead() bool {
-	d, ok := r.dec.(*csvDecoder)
-	return ok && d.names != nil
+	d, ok := r.dec.(aheadDecoder)
+	return ok && d.readsAhead()
 }
 
 // Piece returns the work of the next piece of the backlog, or nil when it
@@ -92,58 +132,90 @@ func (p *AheadPiece) Decode(data []byte) { p.res = p.snap.decodePiece(data) }
 func (p *AheadPiece) Merge(data []byte) { p.r.mergePiece(p.snap, data, p.res) }
 
 // snapshot returns the state a worker starts from, or nil when the log is
-// not one the parallel path reads: not delimited, no header yet, no epoch
-// column, or an assembler that workers cannot read for (per-step rows, a
-// full column table). The header is cloned once per header and shared by
-// the snapshots that follow (prev).
+// not one the parallel path reads now: a decoder that cannot start
+// workers (no header, no epoch key or marker yet), or an assembler that
+// workers cannot read for (per-step rows, a full column table). The
+// decoder's state is reused from prev while it holds.
 func (r *Reader) snapshot(prev *aheadSnap) *aheadSnap {
-	d, ok := r.dec.(*csvDecoder)
-	if !ok || d.names == nil || r.spec {
+	d, ok := r.dec.(aheadDecoder)
+	if !ok || r.spec || !d.readsAhead() {
 		return nil
 	}
-	s := &aheadSnap{}
-	if prev != nil && prev.dec == d && prev.gen == d.gen {
-		*s = *prev
-	} else {
-		s.epochField = slices.Index(d.roles, cellEpoch)
-		if s.epochField < 0 {
-			return nil
-		}
-		s.dec, s.gen, s.delim = d, d.gen, d.recs.delim
-		s.header = slices.Clone(d.header)
-		s.names, s.roles, s.colOf = slices.Clip(slices.Clone(d.names)), slices.Clip(slices.Clone(d.roles)), slices.Clip(slices.Clone(d.colOf))
-	}
+	var prevState aheadState
 	var prevAsm *points.Snapshot
 	if prev != nil {
-		prevAsm = prev.asm
+		prevState, prevAsm = prev.state, prev.asm
+	}
+	st := d.aheadState(prevState)
+	if st == nil {
+		return nil
 	}
 	as := r.asm.Snapshot(prevAsm)
 	if as == nil {
 		return nil
 	}
-	s.extraNote, s.overrode, s.asm = d.extraNote, r.overrode, as
-	return s
+	return &aheadSnap{format: r.format, state: st, overrode: r.overrode, general: r.general, asm: as}
 }
 
 // collector is a worker's points.Out: it keeps the points and gives up at
 // the first notice.
 type collector struct {
-	w      *Reader
-	points []diagnose.Point
+	w *Reader
+	// points are kept in chunks of collectChunk: a piece of a log of one
+	// row per epoch holds thousands, which a growing slice would copy
+	// again and again.
+	points [][]diagnose.Point
+	steps  diagnose.StepRows
 }
 
-func (c *collector) Point(p diagnose.Point) { c.points = append(c.points, p) }
-func (c *collector) Step(diagnose.StepRow)  {}
-func (c *collector) Notice(string)          { c.w.bailed = true }
+// stepValuesGuess is how many values a per-step row is given room for
+// before it is read: a training loop logs a handful per step (loss,
+// accuracy, learning rate). Unit: values.
+const stepValuesGuess = 4
+
+// collectChunk is how many points one chunk of a collector holds. Unit:
+// points.
+const collectChunk = 1024
+
+func (c *collector) Point(p diagnose.Point) {
+	if n := len(c.points); n == 0 || len(c.points[n-1]) == cap(c.points[n-1]) {
+		var chunk []diagnose.Point
+		if p, ok := chunks.Get().(*[]diagnose.Point); ok {
+			chunk = (*p)[:0]
+		} else {
+			chunk = make([]diagnose.Point, 0, collectChunk)
+		}
+		c.points = append(c.points, chunk)
+	}
+	last := &c.points[len(c.points)-1]
+	*last = append(*last, p)
+}
+
+// chunks are collectors' chunks whose points were handed on: the pieces of
+// a backlog reuse them.
+var chunks sync.Pool
+
+// release hands the collector's chunks back, cleared (their points refer
+// to samples that must not be kept alive).
+func (c *collector) release() {
+	for _, chunk := range c.points {
+		clear(chunk[:cap(chunk)])
+		chunk = chunk[:0]
+		chunks.Put(&chunk)
+	}
+	c.points = nil
+}
+func (c *collector) Steps() *diagnose.StepRows { return &c.steps }
+func (c *collector) Notice(string)             { c.w.bailed = true }
 
 // worker makes the Reader that decodes one piece ahead.
 func (s *aheadSnap) worker(single, multi int) (*Reader, *collector) {
-	w := &Reader{forced: CSV, format: CSV, roles: s.asm.Roles(), lineNo: specBase, overrode: s.overrode, spec: true}
+	w := &Reader{forced: s.format, format: s.format, roles: s.asm.Roles(), lineNo: specBase, overrode: s.overrode,
+		general: s.general, spec: true}
 	c := &collector{w: w}
 	w.out = c
 	w.asm = s.asm.Worker(c, single, multi)
-	w.dec = &csvDecoder{r: w, asm: w.asm, recs: csvRecords{delim: s.delim}, header: slices.Clone(s.header),
-		names: s.names, roles: s.roles, colOf: s.colOf, extraNote: s.extraNote, gen: s.gen, planGen: -1}
+	w.dec = s.state.newWorker(w)
 	w.wholeLines = true
 	return w, c
 }
@@ -178,6 +250,14 @@ func (s *aheadSnap) decodePiece(piece []byte) pieceResult {
 	rest := piece[r.sync:]
 	nl := bytes.IndexByte(rest, '\n') + 1
 	w, c := s.worker(r.single, r.multi)
+	if s.asm.Steps() {
+		// A per-step row a line at most: room for all, so that the rows
+		// are not copied as they grow, and for a few values each (a wide
+		// log's rows grow the values as they come).
+		lines := bytes.Count(rest, []byte{'\n'})
+		c.steps.Rows = make([]diagnose.StepRowAt, 0, lines)
+		c.steps.Values = make([]diagnose.StepValue, 0, lines*min(s.asm.Values(), stepValuesGuess))
+	}
 	w.Feed(rest[:nl])
 	epoch, ok := w.asm.SyncEpoch()
 	if w.bailed || !ok {
@@ -185,7 +265,7 @@ func (s *aheadSnap) decodePiece(piece []byte) pieceResult {
 	}
 	r.epoch = epoch
 	w.Feed(rest[nl:])
-	if w.bailed || !w.asm.Settled() || w.dec.(*csvDecoder).recs.pendingLines != 0 || len(w.carry) > 0 || w.skipping {
+	if w.bailed || !w.asm.Settled() || !s.state.finished(w.dec) || len(w.carry) > 0 || w.skipping {
 		return r
 	}
 	r.w, r.c = w, c
@@ -193,9 +273,10 @@ func (s *aheadSnap) decodePiece(piece []byte) pieceResult {
 }
 
 // findSync returns the offset of the first line of piece whose epoch
-// differs from the epoch of the line before it, or len(piece), and how
-// many lines in a row before it had that epoch. It only reads the epoch
-// field, as a guess: the merge checks the guess.
+// differs from the epoch of the line before it that gave one, or
+// len(piece), and how many lines in a row before it gave that epoch. It
+// only reads the epochs the decoder's state guesses: the merge checks the
+// guess.
 func (s *aheadSnap) findSync(piece []byte) (sync, run int) {
 	prev, havePrev := 0, false
 	for pos := 0; pos < len(piece); {
@@ -203,39 +284,36 @@ func (s *aheadSnap) findSync(piece []byte) (sync, run int) {
 		if nl < 0 {
 			break
 		}
-		e, ok := s.epochOf(piece[pos : pos+nl])
+		line := piece[pos : pos+nl]
+		if n := len(line); n > 0 && line[n-1] == '\r' {
+			line = line[:n-1]
+		}
+		e, kind := s.state.lineEpoch(line)
 		switch {
-		case ok && havePrev && e != prev:
+		case kind == lineNone:
+			pos += nl + 1
+			continue
+		case kind == lineEpoch && havePrev && e != prev:
 			return pos, run
-		case ok && havePrev:
+		case kind == lineEpoch && havePrev:
 			run++
 		default:
 			run = 1
 		}
-		prev, havePrev = e, ok
+		prev, havePrev = e, kind == lineEpoch
 		pos += nl + 1
 	}
 	return len(piece), 0
 }
 
-// epochOf reads the epoch field of a plain row.
-func (s *aheadSnap) epochOf(line []byte) (int, bool) {
-	if n := len(line); n > 0 && line[n-1] == '\r' {
-		line = line[:n-1]
-	}
-	i := 0
-	for range s.epochField {
-		j := bytes.IndexByte(line[i:], s.delim)
-		if j < 0 {
-			return 0, false
-		}
-		i += j + 1
-	}
+// epochGuess reads a number at line[i:] as an epoch (EpochKey), as the
+// sync guesses of the layouts do; end is where the number ends.
+func epochGuess(line []byte, i int) (epoch int, kind lineKind, end int) {
 	v, end, ok := fastFloat(line, i)
-	if !ok || end != len(line) && line[end] != s.delim || v-v != 0 || math.Abs(v) > points.MaxEpoch {
-		return 0, false
+	if !ok || v-v != 0 || math.Abs(v) > points.MaxEpoch {
+		return 0, lineBreaks, end
 	}
-	return points.EpochKey(v), true
+	return points.EpochKey(v), lineEpoch, end
 }
 
 // mergePiece reads piece, whose worker made res, into the Reader.
@@ -245,7 +323,7 @@ func (r *Reader) mergePiece(s *aheadSnap, piece []byte, res pieceResult) {
 		r.Feed(piece[res.sync:])
 		return
 	}
-	r.takePiece(res)
+	r.takePiece(s, res)
 	r.taken++
 }
 
@@ -253,25 +331,53 @@ func (r *Reader) mergePiece(s *aheadSnap, piece []byte, res pieceResult) {
 // before the sync line: then reading the rest of the piece sequentially
 // would close the open epoch and do what the worker did.
 func (r *Reader) canTake(s *aheadSnap, res pieceResult) bool {
-	d, ok := r.dec.(*csvDecoder)
-	if !ok || d != s.dec || d.gen != s.gen || d.recs.pendingLines != 0 || len(r.carry) > 0 || r.skipping ||
-		r.overrode != s.overrode || d.extraNote != s.extraNote {
+	if r.format != s.format || !s.state.holds(r.dec) || len(r.carry) > 0 || r.skipping || r.overrode != s.overrode {
 		return false
 	}
 	return r.asm.CanJoin(s.asm, res.epoch, res.single, res.multi)
 }
 
+// takeSteps hands on a worker's per-step rows, in the segment seg: as
+// they are when the sink holds none yet, else after the sink's.
+func (r *Reader) takeSteps(ws *diagnose.StepRows, seg int) {
+	if ws.Len() == 0 {
+		return
+	}
+	for i := range ws.Rows {
+		ws.Rows[i].Segment = int32(seg)
+	}
+	s := r.out.Steps()
+	if s.Len() == 0 {
+		s.Rows, s.Values = ws.Rows, ws.Values
+		ws.Rows, ws.Values = nil, nil
+		return
+	}
+	s.Rows = slices.Grow(s.Rows, len(ws.Rows))
+	s.Values = slices.Grow(s.Values, len(ws.Values))
+	shift := int32(len(s.Values))
+	for _, row := range ws.Rows {
+		row.From += shift
+		row.To += shift
+		s.Rows = append(s.Rows, row)
+	}
+	s.Values = append(s.Values, ws.Values...)
+}
+
 // takePiece closes the open epoch and takes over what the worker of res
 // read.
-func (r *Reader) takePiece(res pieceResult) {
+func (r *Reader) takePiece(s *aheadSnap, res pieceResult) {
 	w, a := res.w, r.asm
 	a.ClosePoint()
 	shift := r.lineNo - specBase
-	for _, p := range res.c.points {
-		p.Segment = a.Segment()
-		p.Line += shift
-		r.out.Point(p)
+	for _, chunk := range res.c.points {
+		for _, p := range chunk {
+			p.Segment = a.Segment()
+			p.Line += shift
+			r.out.Point(p)
+		}
 	}
+	r.takeSteps(&res.c.steps, a.Segment())
+	res.c.release()
 	for _, e := range w.examples() {
 		e.Line += shift
 		r.keep(e)
@@ -280,4 +386,5 @@ func (r *Reader) takePiece(res pieceResult) {
 	r.skipped += w.skipped
 	r.lineNo = w.lineNo + shift
 	a.Adopt(w.asm, res.single, res.multi, shift)
+	s.state.adopt(r.dec, w.dec)
 }

@@ -90,6 +90,9 @@ func (d *csvDecoder) fastRow(line []byte, n int) bool {
 func (d *csvDecoder) applyPlain(vals []float64, mask uint64, n int) {
 	a := d.asm
 	if p := d.rowPlan(); p.OK && a.PlainRow(p, vals, mask, n) {
+		if a.Steps() {
+			a.PlainStep(p, vals, mask)
+		}
 		return
 	}
 	a.BeginRow()

@@ -29,7 +29,7 @@ func ingestGeneral(in []byte, c Config, general bool) ingestResult {
 	r.general = general
 	r.Feed(in)
 	r.End()
-	return ingestResult{points: o.points, notices: o.notices, counts: r.Counts()}
+	return ingestResult{points: o.points, notices: o.notices, counts: r.Counts(), steps: o.steps}
 }
 
 // checkFastRow compares the fast path (fastRow, plainFields, plainRow)

@@ -5,7 +5,8 @@ import "testing"
 // Fuzz targets of the layouts of training libraries' output. Each runs the
 // invariants of fuzzIngest (no crash, the same points whatever the chunks,
 // sanitized text, epochs rising after replacement, every line counted),
-// forced to its layout and detected; the seed corpora in
+// forced to its layout and detected, and compares the layout's fast path
+// with its general path (checkFastPath); the seed corpora in
 // testdata/fuzz/FuzzX hold excerpts of the captured logs of
 // testdata/frameworks.
 
@@ -19,6 +20,7 @@ func fuzzLayout(f *testing.F, format Format, seeds ...string) {
 		}
 		fuzzIngest(t, in, format)
 		fuzzIngest(t, in, Auto)
+		checkFastPath(t, in, Config{Format: format})
 	})
 }
 

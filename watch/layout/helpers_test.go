@@ -29,13 +29,13 @@ func eachSequence[T any](alphabet []T, maxLen int, fn func(seq []T)) {
 // recorder is the points.Out of a test: it keeps everything handed on.
 type recorder struct {
 	points  []diagnose.Point // as emitted, before replacement
-	steps   []diagnose.StepRow
+	steps   diagnose.StepRows
 	notices []string
 }
 
-func (o *recorder) Point(p diagnose.Point)  { o.points = append(o.points, p) }
-func (o *recorder) Step(r diagnose.StepRow) { o.steps = append(o.steps, r) }
-func (o *recorder) Notice(text string)      { o.notices = append(o.notices, diagnose.Printable(text)) }
+func (o *recorder) Point(p diagnose.Point)    { o.points = append(o.points, p) }
+func (o *recorder) Steps() *diagnose.StepRows { return &o.steps }
+func (o *recorder) Notice(text string)        { o.notices = append(o.notices, diagnose.Printable(text)) }
 
 // take returns what was recorded since the last take.
 func (o *recorder) take() recorder {

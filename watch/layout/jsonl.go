@@ -52,13 +52,24 @@ func newJSONDecoder(r *Reader) *jsonDecoder {
 
 func (d *jsonDecoder) Finish() {}
 
+func (d *jsonDecoder) readsAhead() bool { return d.epochKey != "" }
+
+func (d *jsonDecoder) aheadState(prev aheadState) aheadState {
+	return d.aheadFor(d, prev, `"`, func(w *Reader) Decoder { return newJSONDecoder(w) })
+}
+
 func (d *jsonDecoder) Decode(line []byte, n int) {
+	if !d.r.general && d.shape.match(line, jsonNumberAt) {
+		d.replay(n)
+		return
+	}
 	d.p, d.i = line, 0
 	d.startRecord()
 	d.skipSpace()
 	if d.i == len(d.p) {
 		return
 	}
+	d.shape.begin()
 	d.asm.BeginRow()
 	err := d.record()
 	if err == nil {
@@ -73,9 +84,11 @@ func (d *jsonDecoder) Decode(line []byte, n int) {
 			reason = "binary data"
 		}
 		d.r.bad(n, reason, line)
+		d.shape.end(line, false)
 		return
 	}
 	d.endRecord(n)
+	d.shape.end(line, true)
 }
 
 // record reads the top-level object.
@@ -177,16 +190,12 @@ func (d *jsonDecoder) value(depth int) error {
 			return nil
 		}
 		start := d.i
-		if !d.scanNumber() {
-			return errJSONSyntax
-		}
-		v, end, ok := fastFloat(d.p[:d.i], start)
-		if !ok || end != d.i {
-			v, ok = slowNumber(d.p[start:d.i])
-		}
+		end, v, ok := jsonNumberAt(d.p, start)
 		if !ok {
 			return errJSONSyntax
 		}
+		d.i = end
+		d.shape.numFrom, d.shape.numTo = start, end
 		d.number(v)
 		return nil
 	case c == 't':

@@ -1,7 +1,9 @@
 package layout
 
 import (
+	"bytes"
 	"strconv"
+	"strings"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/column"
@@ -31,6 +33,11 @@ type keyed struct {
 	// summary is set when the record being read sums up the whole run
 	// (it has a key of runSummaryKeys): its values are no epoch's.
 	summary bool
+	// epochKey is the first top-level key that holds the epoch, which
+	// the parallel backlog looks for to find a piece's sync line.
+	epochKey string
+	// shape is the last line read in full (keyshape.go).
+	shape keyShape
 }
 
 // keyRole is what a flattened key feeds: a cell role and, for values and
@@ -110,6 +117,9 @@ func (d *keyed) learnColumn(name string, col diagnose.Column) keyRole {
 	switch col.Kind {
 	case diagnose.KindEpoch:
 		kr.role = cellEpoch
+		if d.epochKey == "" && !strings.Contains(name, "/") {
+			d.epochKey = name
+		}
 	case diagnose.KindStep:
 		kr.role = cellStep
 	case diagnose.KindTime:
@@ -122,18 +132,8 @@ func (d *keyed) learnColumn(name string, col diagnose.Column) keyRole {
 
 func (d *keyed) number(v float64) {
 	r, ci := d.role()
-	switch r {
-	case cellEpoch:
-		d.asm.Epoch(v)
-	case cellStep:
-		d.asm.Step(v)
-	case cellTime:
-		d.asm.TimeNumber(ci, v)
-	case cellValue:
-		d.asm.Value(ci, v)
-	case cellSummary:
-		d.summary = true
-	}
+	d.shape.note(v, r, ci)
+	d.file(r, ci, v)
 }
 
 func (d *keyed) stringValue(s []byte) {
@@ -151,7 +151,7 @@ func (d *keyed) stringValue(s []byte) {
 	}
 	if ok && kr.role == cellTime {
 		if t, tok := parseTime(s); tok {
-			d.asm.Time(t)
+			d.timeString(t)
 		}
 	}
 }
@@ -171,3 +171,60 @@ func (d *keyed) timeKey() (keyRole, bool) {
 	}
 	return keyRole{}, false
 }
+
+// keyedAhead is the state workers of a record-per-line layout start from
+// (ahead.go): such a decoder keeps nothing between lines but caches, so a
+// worker only needs a decoder of its own; the sync line is found by the
+// epoch key's value.
+type keyedAhead struct {
+	dec Decoder
+	// keys are the epoch key as the lines write it, in each quote.
+	keys   [][]byte
+	newDec func(w *Reader) Decoder
+}
+
+// aheadFor returns the state of decoder dec whose keys are quoted by
+// quotes, or nil before the epoch key is known.
+func (d *keyed) aheadFor(dec Decoder, prev aheadState, quotes string, newDec func(w *Reader) Decoder) aheadState {
+	if d.epochKey == "" {
+		return nil
+	}
+	if p, ok := prev.(*keyedAhead); ok && p.dec == dec {
+		return p
+	}
+	s := &keyedAhead{dec: dec, newDec: newDec}
+	for _, q := range quotes {
+		s.keys = append(s.keys, []byte(string(q)+d.epochKey+string(q)))
+	}
+	return s
+}
+
+// lineEpoch reads the value after the epoch key; a line without the key
+// belongs to the open epoch.
+func (s *keyedAhead) lineEpoch(line []byte) (int, lineKind) {
+	for _, k := range s.keys {
+		i := bytes.Index(line, k)
+		if i < 0 {
+			continue
+		}
+		i += len(k)
+		for i < len(line) && line[i] == ' ' {
+			i++
+		}
+		if i >= len(line) || line[i] != ':' {
+			return 0, lineBreaks
+		}
+		i++
+		for i < len(line) && line[i] == ' ' {
+			i++
+		}
+		e, kind, _ := epochGuess(line, i)
+		return e, kind
+	}
+	return 0, lineNone
+}
+
+func (s *keyedAhead) newWorker(w *Reader) Decoder { return s.newDec(w) }
+func (s *keyedAhead) holds(d Decoder) bool        { return d == s.dec }
+func (s *keyedAhead) finished(Decoder) bool       { return true }
+func (s *keyedAhead) adopt(d, wd Decoder)         {}

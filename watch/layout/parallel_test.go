@@ -25,6 +25,7 @@ type ingestResult struct {
 	points  []diagnose.Point // as emitted, before replacement
 	notices []string
 	counts  Counts
+	steps   diagnose.StepRows
 	taken   int // pieces whose workers' results were taken
 }
 
@@ -39,7 +40,7 @@ func ingestPieces(c Config, pieces []feedPiece) ingestResult {
 		}
 	}
 	r.End()
-	return ingestResult{points: o.points, notices: o.notices, counts: r.Counts(), taken: r.taken}
+	return ingestResult{points: o.points, notices: o.notices, counts: r.Counts(), steps: o.steps, taken: r.taken}
 }
 
 // diffResults describes how two reads differ, bit for bit, or "".
@@ -52,6 +53,28 @@ func diffResults(a, b ingestResult) string {
 	}
 	if fmt.Sprintf("%+v", a.counts) != fmt.Sprintf("%+v", b.counts) {
 		return fmt.Sprintf("counts %+v, want %+v", a.counts, b.counts)
+	}
+	return diffSteps(a.steps, b.steps)
+}
+
+// diffSteps describes how two sets of per-step rows differ, values bit
+// for bit, or "".
+func diffSteps(a, b diagnose.StepRows) string {
+	if a.Len() != b.Len() {
+		return fmt.Sprintf("%d per-step rows, want %d", a.Len(), b.Len())
+	}
+	for i := range a.Rows {
+		ra, va := a.Row(i)
+		rb, vb := b.Row(i)
+		ra.From, ra.To, rb.From, rb.To = 0, 0, 0, 0
+		if ra != rb || len(va) != len(vb) {
+			return fmt.Sprintf("per-step row %d: %+v %v, want %+v %v", i, ra, va, rb, vb)
+		}
+		for k := range va {
+			if va[k].Col != vb[k].Col || !sameFloat(va[k].V, vb[k].V) {
+				return fmt.Sprintf("per-step row %d: %+v %v, want %+v %v", i, ra, va, rb, vb)
+			}
+		}
 	}
 	return ""
 }
@@ -165,6 +188,7 @@ func TestParallel_ExhaustiveSteps(t *testing.T) {
 		if len(rows) > 0 {
 			body := strings.Join(rows, "\n") + "\n"
 			taken += checkSplits(t, head, []byte(body), Config{}, 2)
+			checkSplits(t, head, []byte(body), Config{Steps: true}, 2)
 			logs++
 		}
 	})

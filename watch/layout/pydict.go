@@ -64,13 +64,24 @@ type pyDictDecoder struct {
 
 func (d *pyDictDecoder) Finish() {}
 
+func (d *pyDictDecoder) readsAhead() bool { return d.epochKey != "" }
+
+func (d *pyDictDecoder) aheadState(prev aheadState) aheadState {
+	return d.aheadFor(d, prev, `'"`, func(w *Reader) Decoder { return &pyDictDecoder{keyed: newKeyed(w)} })
+}
+
 func (d *pyDictDecoder) Decode(line []byte, n int) {
+	if !d.r.general && d.shape.match(line, pyNumberAt) {
+		d.replay(n)
+		return
+	}
 	d.p, d.i = line, 0
 	d.startRecord()
 	d.space()
 	if d.i == len(d.p) {
 		return
 	}
+	d.shape.begin()
 	d.asm.BeginRow()
 	err := errPyNotDict
 	if d.p[d.i] == '{' {
@@ -89,9 +100,11 @@ func (d *pyDictDecoder) Decode(line []byte, n int) {
 			reason = "binary data"
 		}
 		d.r.bad(n, reason, line)
+		d.shape.end(line, false)
 		return
 	}
 	d.endRecord(n)
+	d.shape.end(line, true)
 }
 
 func (d *pyDictDecoder) space() {
@@ -182,11 +195,12 @@ func (d *pyDictDecoder) value(depth int) error {
 		d.stringValue(s)
 		return nil
 	case c == '-' || c == '+' || c == '.' || c >= '0' && c <= '9':
+		start := d.i
 		v, ok := d.num()
 		if !ok {
 			return errPySyntax
 		}
-		d.number(v)
+		d.numberAt(start, v)
 		return nil
 	case isWordByte(c):
 		return d.name(depth)
@@ -217,6 +231,15 @@ func (d *pyDictDecoder) num() (float64, bool) {
 		break
 	}
 	return parseNumber(d.p[start:d.i])
+}
+
+// numberAt files v, the number read from d.p[start:d.i], noting where it
+// lies for the shape unless it was written as a word (-inf).
+func (d *pyDictDecoder) numberAt(start int, v float64) {
+	if c := d.p[d.i-1]; c >= '0' && c <= '9' || c == '.' {
+		d.shape.numFrom, d.shape.numTo = start, d.i
+	}
+	d.number(v)
 }
 
 // word reads a name ([A-Za-z0-9_] and dots) at d.i.
@@ -259,8 +282,9 @@ func (d *pyDictDecoder) name(depth int) error {
 	d.space()
 	if d.i < len(d.p) {
 		if c := d.p[d.i]; c == '-' || c == '+' || c == '.' || c >= '0' && c <= '9' {
+			start := d.i
 			if v, ok := d.num(); ok {
-				d.number(v)
+				d.numberAt(start, v)
 			}
 		}
 	}

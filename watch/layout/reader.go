@@ -77,6 +77,9 @@ type Counts struct {
 	// Columns are the log's value columns so far, in the order they
 	// appeared, with what each holds.
 	Columns []diagnose.Column
+	// Header: a header line named the columns (CSV/TSV, aligned tables),
+	// so Columns holds them all from the start.
+	Header bool
 }
 
 // Reader turns the bytes of a log into points: it cuts lines, detects the
@@ -116,6 +119,7 @@ type Reader struct {
 	last       [examplesLast]ParseError
 	lastN      int
 	overrode   bool // checkRoles already reported
+	headed     bool // a header line named the columns (Counts.Header)
 
 	// spec marks a worker of the parallel path (ahead.go): it decodes a
 	// piece ahead of the Reader and gives up (bailed) at the first
@@ -195,14 +199,19 @@ func (r *Reader) Feed(p []byte) {
 // return ends a segment too, so that a progress bar redrawn across a whole
 // run is read as it is drawn. Other layouts get whole lines, the carriage
 // returns in them included.
+//
+// The first of the two is found without looking past it: a bar redrawn a
+// thousand times on one line would otherwise have the rest of the line
+// searched for its newline at every drawing.
 func crLineEnd(p []byte) int {
-	if i := bytes.IndexByte(p, '\n'); i >= 0 {
-		if j := bytes.IndexByte(p[:i], '\r'); j >= 0 {
-			return j
-		}
-		return i
+	cr := bytes.IndexByte(p, '\r')
+	if cr < 0 {
+		return bytes.IndexByte(p, '\n')
 	}
-	return bytes.IndexByte(p, '\r')
+	if nl := bytes.IndexByte(p[:cr], '\n'); nl >= 0 {
+		return nl
+	}
+	return cr
 }
 
 // endLine counts a line that ended (not a carriage-return segment).
@@ -437,8 +446,10 @@ func (r *Reader) End() {
 // log without evaluation values hands its open point on provisionally.
 func (r *Reader) CaughtUp() { r.asm.Provisional() }
 
-// checkRoles reports overrides that name no column of a header.
+// checkRoles notes that a header named the columns, and reports overrides
+// that name none of them.
 func (r *Reader) checkRoles(names []string) {
+	r.headed = true
 	o := r.roles.Overrides()
 	if o.Empty() || r.overrode {
 		return
@@ -473,7 +484,7 @@ func (r *Reader) Counts() Counts {
 		r.guesses = slices.Clone(r.asm.Guesses())
 	}
 	c := Counts{Format: r.format, Lines: r.lines, Skipped: r.skipped, Examples: r.examples(), NonFinite: r.asm.NonFinite(),
-		Roles: r.guesses, Columns: r.cols}
+		Roles: r.guesses, Columns: r.cols, Header: r.headed}
 	if r.lines > 0 {
 		c.Segments = r.asm.Segment()
 	}

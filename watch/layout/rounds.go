@@ -2,6 +2,7 @@ package layout
 
 import (
 	"bytes"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -40,6 +41,8 @@ type roundsDecoder struct {
 	r    *Reader
 	asm  *points.Assembler
 	cols map[string]int // by "set-metric" as written
+	// fields are the names of the last line's fields, by place.
+	fields []roundField
 	// sets are the evaluation sets named on the first round line, whose
 	// roles depend on one another (validation_0 beside validation_1).
 	sets []string
@@ -74,14 +77,14 @@ func (d *roundsDecoder) Decode(line []byte, n int) {
 	a.BeginRow()
 	a.Epoch(float64(round))
 	values := 0
-	for len(rest) > 0 {
+	for k := 0; len(rest) > 0; k++ {
 		f := firstField(rest)
 		rest = rest[min(len(f)+1, len(rest)):]
-		set, metric, v, ok := roundPair(f)
+		ci, v, ok := d.field(k, f)
 		if !ok {
 			continue
 		}
-		a.Value(d.column(set, metric), v)
+		a.Value(ci, v)
 		values++
 	}
 	if values == 0 {
@@ -89,6 +92,59 @@ func (d *roundsDecoder) Decode(line []byte, n int) {
 		return
 	}
 	a.EndRow(n)
+}
+
+// roundField is what the name of the k-th field of the last round line
+// is: as written, whether it splits into a set and a metric, which, and
+// its column once a value of it was read (-1 until then).
+type roundField struct {
+	raw         string
+	ok          bool
+	set, metric string
+	col         int
+}
+
+// field reads the k-th field of a round line as roundPair does: its
+// column and value. The name of the same field of the line before is not
+// split and looked up again.
+func (d *roundsDecoder) field(k int, f []byte) (ci int, v float64, ok bool) {
+	if d.r.general {
+		set, metric, v, ok := roundPair(f)
+		if !ok {
+			return 0, 0, false
+		}
+		return d.column(set, metric), v, true
+	}
+	t := bytes.TrimSpace(f)
+	colon := bytes.LastIndexByte(t, ':')
+	if colon <= 0 {
+		return 0, 0, false
+	}
+	if k >= maxLineNames {
+		set, metric, v, ok := roundPair(f)
+		if !ok {
+			return 0, 0, false
+		}
+		return d.column(set, metric), v, true
+	}
+	for len(d.fields) <= k {
+		d.fields = append(d.fields, roundField{col: -1})
+	}
+	rf := &d.fields[k]
+	if rf.raw != string(t[:colon]) || rf.raw == "" {
+		*rf = roundField{raw: string(t[:colon]), col: -1}
+		rf.set, rf.metric, rf.ok = splitRoundName(rf.raw)
+	}
+	if !rf.ok {
+		return 0, 0, false
+	}
+	if v, ok = roundNumber(t[colon+1:]); !ok {
+		return 0, 0, false
+	}
+	if rf.col < 0 {
+		rf.col = d.column(rf.set, rf.metric)
+	}
+	return rf.col, v, true
 }
 
 // column returns the column of a set's metric, named as the log writes it.
@@ -173,8 +229,7 @@ func roundPrefix(line []byte) (int, []byte, bool) {
 	if len(line) < 4 || line[0] != '[' {
 		return 0, nil, false
 	}
-	s := string(line[:min(len(line), maxIntDigits+3)])
-	round, end, ok := readInt(s, 1)
+	round, end, ok := readInt(line[:min(len(line), maxIntDigits+3)], 1)
 	if !ok || end+1 >= len(line) || line[end] != ']' || line[end+1] != '\t' && line[end+1] != ' ' {
 		return 0, nil, false
 	}
@@ -198,15 +253,31 @@ func roundPair(f []byte) (set, metric string, v float64, ok bool) {
 	if colon <= 0 {
 		return "", "", 0, false
 	}
-	num := bytes.TrimSpace(f[colon+1:])
-	if i := bytes.IndexByte(num[min(1, len(num)):], '+'); i >= 0 && (i == 0 || num[i] != 'e' && num[i] != 'E') {
-		num = num[:i+1] // "0.93+0.01": the mean
-	}
-	v, ok = parseNumber(num)
+	v, ok = roundNumber(f[colon+1:])
 	if !ok {
 		return "", "", 0, false
 	}
 	name := string(f[:colon])
+	set, metric, ok = splitRoundName(name)
+	if !ok {
+		return "", "", 0, false
+	}
+	return set, metric, v, true
+}
+
+// roundNumber reads the number of a round pair, the mean of a
+// cross-validation "0.93+0.01".
+func roundNumber(b []byte) (float64, bool) {
+	num := bytes.TrimSpace(b)
+	if i := bytes.IndexByte(num[min(1, len(num)):], '+'); i >= 0 && (i == 0 || num[i] != 'e' && num[i] != 'E') {
+		num = num[:i+1] // "0.93+0.01": the mean
+	}
+	return parseNumber(num)
+}
+
+// splitRoundName splits a round pair's name into its evaluation set and
+// metric: "train-logloss", "training's binary_logloss".
+func splitRoundName(name string) (set, metric string, ok bool) {
 	if i := strings.Index(name, "'s "); i > 0 {
 		set, metric = name[:i+2], strings.TrimSpace(name[i+3:])
 	} else {
@@ -217,12 +288,53 @@ func roundPair(f []byte) (set, metric string, v float64, ok bool) {
 			i = strings.LastIndexByte(name[:i], '-')
 		}
 		if i <= 0 {
-			return "", "", 0, false
+			return "", "", false
 		}
 		set, metric = name[:i], name[i+1:]
 	}
 	if set == "" || metric == "" || !column.ValidName(set) || !column.ValidName(metric) {
-		return "", "", 0, false
+		return "", "", false
 	}
-	return set, metric, v, true
+	return set, metric, true
 }
+
+// roundsAhead is the state workers of round lines start from (ahead.go):
+// the evaluation sets of the first line; every round line opens its
+// round.
+type roundsAhead struct {
+	dec  *roundsDecoder
+	sets []string
+}
+
+func (d *roundsDecoder) readsAhead() bool { return d.sets != nil }
+
+func (d *roundsDecoder) aheadState(prev aheadState) aheadState {
+	if d.sets == nil {
+		return nil
+	}
+	if p, ok := prev.(*roundsAhead); ok && p.dec == d {
+		return p
+	}
+	return &roundsAhead{dec: d, sets: slices.Clip(slices.Clone(d.sets))}
+}
+
+// lineEpoch is a round line's round; other lines belong to the round
+// before.
+func (s *roundsAhead) lineEpoch(line []byte) (int, lineKind) {
+	if round, _, ok := roundPrefix(line); ok {
+		return round, lineEpoch
+	}
+	return 0, lineNone
+}
+
+func (s *roundsAhead) newWorker(w *Reader) Decoder {
+	return &roundsDecoder{r: w, asm: w.asm, cols: map[string]int{}, sets: s.sets}
+}
+
+// holds: a best round announced just before the sync line would make the
+// Reader pass over it.
+func (s *roundsAhead) holds(d Decoder) bool { return d == s.dec && !s.dec.summary }
+
+func (s *roundsAhead) finished(Decoder) bool { return true }
+
+func (s *roundsAhead) adopt(d, wd Decoder) { d.(*roundsDecoder).summary = wd.(*roundsDecoder).summary }

@@ -2,7 +2,6 @@ package layout
 
 import (
 	"bytes"
-	"strings"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/column"
@@ -162,9 +161,12 @@ func (d *tableDecoder) Decode(line []byte, n int) {
 	}
 	vals := d.vals[:len(d.cells)]
 	for i, c := range d.cells {
-		v, ok := parseNumber(c.text)
-		if !ok && d.roles[i] == cellTime {
-			v, ok = parseClock(c.text)
+		var v float64
+		var ok bool
+		if d.roles[i] == cellTime && bytes.IndexByte(c.text, ':') >= 0 {
+			v, ok = parseClock(c.text) // no number has a colon
+		} else {
+			v, ok = parseNumber(c.text)
 		}
 		if !ok {
 			d.r.bad(n, "not a number under "+diagnose.Printable(d.names[i]), line)
@@ -225,17 +227,62 @@ func (d *tableDecoder) cutAtColumns(cells []tableCell) []tableCell {
 
 // parseClock reads an elapsed time "mm:ss" or "h:mm:ss" as seconds.
 func parseClock(b []byte) (float64, bool) {
-	parts := strings.Split(string(b), ":")
-	if len(parts) < 2 || len(parts) > 3 {
-		return 0, false
-	}
 	secs := 0.0
-	for _, p := range parts {
-		v, ok := parseNumber([]byte(p))
-		if !ok || v < 0 || bytes.IndexAny([]byte(p), "eE+-") >= 0 {
+	parts := 0
+	for {
+		p := b
+		colon := bytes.IndexByte(b, ':')
+		if colon >= 0 {
+			p = b[:colon]
+		}
+		parts++
+		v, ok := parseNumber(p)
+		if !ok || v < 0 || bytes.IndexAny(p, "eE+-") >= 0 || parts > 3 {
 			return 0, false
 		}
 		secs = secs*60 + v
+		if colon < 0 {
+			break
+		}
+		b = b[colon+1:]
 	}
-	return secs, true
+	return secs, parts >= 2
 }
+
+// tableAhead is the state workers of an aligned table start from
+// (ahead.go): the header, which never changes, shared read-only.
+type tableAhead struct{ dec *tableDecoder }
+
+func (d *tableDecoder) readsAhead() bool { return len(d.roles) > 0 && d.roles[0] == cellEpoch }
+
+func (d *tableDecoder) aheadState(prev aheadState) aheadState {
+	if !d.readsAhead() {
+		return nil
+	}
+	if p, ok := prev.(*tableAhead); ok && p.dec == d {
+		return p
+	}
+	return &tableAhead{dec: d}
+}
+
+// lineEpoch reads a row's first cell, the epoch.
+func (s *tableAhead) lineEpoch(line []byte) (int, lineKind) {
+	i := 0
+	for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
+		i++
+	}
+	e, kind, end := epochGuess(line, i)
+	if kind == lineEpoch && end < len(line) && line[end] != ' ' && line[end] != '\t' {
+		return 0, lineBreaks
+	}
+	return e, kind
+}
+
+func (s *tableAhead) newWorker(w *Reader) Decoder {
+	d := s.dec
+	return &tableDecoder{r: w, asm: w.asm, header: d.header, names: d.names, roles: d.roles, colOf: d.colOf}
+}
+
+func (s *tableAhead) holds(d Decoder) bool  { return d == s.dec }
+func (s *tableAhead) finished(Decoder) bool { return true }
+func (s *tableAhead) adopt(d, wd Decoder)   {}

@@ -42,6 +42,13 @@ type textDecoder struct {
 	epoch     int
 	haveEpoch bool
 	names     nameKinds
+
+	// The fast path's interned names and pairs (textfast.go), and the
+	// shape of the last plain line read in full (textshape.go).
+	fast      textNames
+	fastPairs []fastPair
+	shape     textShape
+	rec       shapeRecorder
 }
 
 // maxKinds bounds the cache of names: prose can hold endless distinct
@@ -88,8 +95,14 @@ func (d *textDecoder) Finish() { d.asm.ClosePoint() }
 func (d *textDecoder) lastSegment() bool { return true }
 
 func (d *textDecoder) Decode(line []byte, n int) {
+	if !d.r.general && d.decodeFast(line, n) {
+		return // a plain line: no carriage return in it
+	}
 	if i := bytes.LastIndexByte(line, '\r'); i >= 0 {
 		line = line[i+1:]
+		if !d.r.general && d.decodeFast(line, n) {
+			return
+		}
 	}
 	if len(line) == 0 {
 		return
@@ -100,7 +113,6 @@ func (d *textDecoder) Decode(line []byte, n int) {
 		d.r.bad(n, m.bad, line)
 		return
 	}
-	epoch, total, marked := m.epoch, m.total, m.ok
 	var lead int
 	d.pairs, lead = scanPairs(d.pairs[:0], s, &d.names)
 	if ctx := contextPrefix(s, m.mode, lead); ctx != "" {
@@ -108,11 +120,10 @@ func (d *textDecoder) Decode(line []byte, n int) {
 			d.pairs[i].name = ctx + d.pairs[i].name
 		}
 	}
-	a := d.asm
 	// A line counts when it marks an epoch or carries a recognised value;
 	// lines of prose with an incidental number ("Using device cuda: 0")
 	// are noise.
-	evidence := marked
+	evidence := m.ok
 	for _, p := range d.pairs {
 		if d.kind(p.name) != diagnose.KindOther {
 			evidence = true
@@ -122,39 +133,94 @@ func (d *textDecoder) Decode(line []byte, n int) {
 	if !evidence {
 		return
 	}
-	if marked && (!d.haveEpoch || epoch != d.epoch) {
-		back := d.haveEpoch && epoch < d.epoch
+	d.beginLine(m, n)
+	for _, p := range d.pairs {
+		if ci := d.asm.Column(p.name); ci >= 0 {
+			d.value(ci, p.value, p.total)
+		}
+	}
+	d.asm.EndLine(n, !d.haveEpoch)
+}
+
+// beginLine starts the row of a line that counts: a marker of another
+// epoch closes the open point (a marker going back resumes the run) and
+// opens the marked epoch's.
+func (d *textDecoder) beginLine(m marker, n int) {
+	a := d.asm
+	if m.ok && (!d.haveEpoch || m.epoch != d.epoch) {
+		back := d.haveEpoch && m.epoch < d.epoch
 		last := d.epoch
 		a.ClosePoint()
 		if back {
-			a.Resume(fmt.Sprintf("epoch went back from %d to %d at line %d", last, epoch, n))
+			a.Resume(fmt.Sprintf("epoch went back from %d to %d at line %d", last, m.epoch, n))
 		}
-		d.epoch, d.haveEpoch = epoch, true
-		a.OpenPoint(epoch, true)
+		d.epoch, d.haveEpoch = m.epoch, true
+		a.OpenPoint(m.epoch, true)
 	}
-	if marked && total > 0 {
-		a.SetTotal(total)
+	if m.ok && m.total > 0 {
+		a.SetTotal(m.total)
 	}
 	a.BeginRow()
-	for _, p := range d.pairs {
-		ci := a.Column(p.name)
-		if ci < 0 {
-			continue
+}
+
+// value files a pair's value into column ci of the row.
+func (d *textDecoder) value(ci int, v float64, total int) {
+	a := d.asm
+	switch col := a.Info(ci); col.Kind {
+	case diagnose.KindEpoch:
+		// the marker, already read
+	case diagnose.KindStep:
+		a.Step(v)
+	case diagnose.KindTime:
+		a.TimeNumber(ci, v)
+	default:
+		if total > 0 && col.Rate {
+			v /= float64(total) // "Accuracy: 9893/10000"
 		}
-		switch col := a.Info(ci); col.Kind {
-		case diagnose.KindEpoch:
-			continue // the marker, already read
-		case diagnose.KindStep:
-			a.Step(p.value)
-		case diagnose.KindTime:
-			a.TimeNumber(ci, p.value)
-		default:
-			v := p.value
-			if p.total > 0 && col.Rate {
-				v /= float64(p.total) // "Accuracy: 9893/10000"
-			}
-			a.Value(ci, v)
-		}
+		a.Value(ci, v)
 	}
-	a.EndLine(n, !d.haveEpoch)
+}
+
+// textAhead is the state workers of console text start from (ahead.go):
+// a worker's decoder starts with no epoch, and its piece's sync line is an
+// epoch marker, which opens the marked epoch whatever came before.
+type textAhead struct{ dec *textDecoder }
+
+func (d *textDecoder) readsAhead() bool { return d.haveEpoch }
+
+func (d *textDecoder) aheadState(prev aheadState) aheadState {
+	if p, ok := prev.(*textAhead); ok && p.dec == d {
+		return p
+	}
+	return &textAhead{dec: d}
+}
+
+// lineEpoch is the epoch a line marks; a line without a marker belongs to
+// the open epoch.
+func (s *textAhead) lineEpoch(line []byte) (int, lineKind) {
+	if i := bytes.LastIndexByte(line, '\r'); i >= 0 {
+		line = line[i+1:]
+	}
+	// A guess, on a worker: a line with tabs is looked at as it is.
+	var m marker
+	if printableOrTab(line) {
+		m = markerFast(line).marker
+	} else {
+		m = findMarker(diagnose.Printable(string(line)))
+	}
+	if !m.ok {
+		return 0, lineNone
+	}
+	return m.epoch, lineEpoch
+}
+
+func (s *textAhead) newWorker(w *Reader) Decoder { return newTextDecoder(w) }
+
+func (s *textAhead) holds(d Decoder) bool { return d == s.dec && s.dec.haveEpoch }
+
+func (s *textAhead) finished(Decoder) bool { return true }
+
+func (s *textAhead) adopt(d, wd Decoder) {
+	t, w := d.(*textDecoder), wd.(*textDecoder)
+	t.epoch, t.haveEpoch = w.epoch, w.haveEpoch
 }

@@ -214,5 +214,8 @@ func FuzzText(f *testing.F) {
 	}
 	f.Fuzz(func(t *testing.T, in []byte) {
 		fuzzIngest(t, in, Text)
+		if len(in) <= 1<<14 {
+			checkFastPath(t, in, Config{Format: Text})
+		}
 	})
 }

@@ -1,6 +1,7 @@
 package layout
 
 import (
+	"bytes"
 	"math"
 	"strings"
 
@@ -112,7 +113,7 @@ func isWordByte(c byte) bool {
 }
 
 // readFraction reads "3" or "3/50" (spaces allowed around the slash) at i.
-func readFraction(s string, i int) (n, total, end int, ok bool) {
+func readFraction[T string | []byte](s T, i int) (n, total, end int, ok bool) {
 	n, end, ok = readInt(s, i)
 	if !ok {
 		return 0, 0, i, false
@@ -139,7 +140,7 @@ func readFraction(s string, i int) (n, total, end int, ok bool) {
 
 // runsOn reports a number that ends at end only to go on as letters or
 // decimals ("1e400", "1.5"): it is no integer.
-func runsOn(s string, end int) bool {
+func runsOn[T string | []byte](s T, end int) bool {
 	return end < len(s) && (isWordByte(s[end]) || s[end] == '.' && end+1 < len(s) && s[end+1] >= '0' && s[end+1] <= '9')
 }
 
@@ -176,7 +177,7 @@ func impossibleEpoch(s string, k int) string {
 
 // readInt reads a decimal integer of at most maxIntDigits digits at i; a
 // longer run of digits is no epoch, step count or total.
-func readInt(s string, i int) (n, end int, ok bool) {
+func readInt[T string | []byte](s T, i int) (n, end int, ok bool) {
 	j := i
 	for j < len(s) && s[j] >= '0' && s[j] <= '9' && j-i < maxIntDigits {
 		n = n*10 + int(s[j]-'0')
@@ -267,3 +268,179 @@ func contextPrefix(s, mode string, lead int) string {
 // contextWords may stand beside the split word in a context: "Test set:",
 // "Validation results:".
 var contextWords = map[string]bool{"set": true, "results": true, "metrics": true, "split": true, "data": true}
+
+// The markers of the fast path (textfast.go): the same search over a plain
+// line, letters compared without regard to case.
+
+// lower is an ASCII letter's lower case, any other byte unchanged.
+func lower(c byte) byte {
+	if c >= 'A' && c <= 'Z' {
+		return c + 'a' - 'A'
+	}
+	return c
+}
+
+// markAt is a marker found by markerFast: the mode as the line writes
+// it, and where the epoch's and the total's digits start (-1 without).
+type markAt struct {
+	marker
+	mode             []byte
+	epochAt, totalAt int
+}
+
+// markerFast is findMarker over a plain line, comparing letters without
+// regard to case instead of lower-casing the line.
+func markerFast(s []byte) markAt {
+	if e, ok := sklearnIterationFast(s); ok {
+		return markAt{marker: marker{epoch: e, ok: true}, epochAt: len("iteration "), totalAt: -1}
+	}
+	for from := 0; from < len(s); {
+		i := indexEpochWord(s, from)
+		if i < 0 {
+			break
+		}
+		j := i
+		for j < len(s) && lower(s[j]) >= 'a' && lower(s[j]) <= 'z' {
+			j++
+		}
+		k := j
+		if k < len(s) && s[k] == '(' {
+			if e, md, at, good := bracketAfterModeFast(s, k); good {
+				return markAt{marker: marker{epoch: e, ok: true}, mode: md, epochAt: at, totalAt: -1}
+			}
+		}
+		for k < len(s) && (s[k] == ' ' || s[k] == ':' || s[k] == '=' || s[k] == '#') {
+			k++
+		}
+		if e, t, end, good := readFraction(s, k); good && end > k {
+			if t > 0 && runsOn(s, end) { // "Epoch 5/1e400" runs on past its total
+				return markAt{marker: marker{bad: "impossible epoch " + numberToken(strings.ToLower(string(s)), k)}, epochAt: -1, totalAt: -1}
+			}
+			return markAt{marker: marker{epoch: e, total: t, ok: true}, epochAt: k, totalAt: totalStart(s, k)}
+		}
+		if k < len(s) && s[k] >= '0' && s[k] <= '9' {
+			// A number no fraction reads (too many digits): lower-cased as
+			// the general path reads it (the line is ASCII).
+			if why := impossibleEpoch(strings.ToLower(string(s)), k); why != "" {
+				return markAt{marker: marker{bad: why}, epochAt: -1, totalAt: -1}
+			}
+		}
+		from = j
+	}
+	if i := bytes.IndexByte(s, '['); i >= 0 {
+		if e, t, end, good := readFraction(s, i+1); good && t > 0 && end < len(s) && s[end] == ']' {
+			return markAt{marker: marker{epoch: e, total: t, ok: true}, epochAt: i + 1, totalAt: totalStart(s, i+1)}
+		}
+	}
+	return markAt{epochAt: -1, totalAt: -1}
+}
+
+// totalStart is where the total of the fraction readFraction reads at i
+// starts, -1 when it has none.
+func totalStart(s []byte, i int) int {
+	_, j, ok := readInt(s, i)
+	if !ok {
+		return -1
+	}
+	for j < len(s) && s[j] == ' ' {
+		j++
+	}
+	if j >= len(s) || s[j] != '/' {
+		return -1
+	}
+	j++
+	for j < len(s) && s[j] == ' ' {
+		j++
+	}
+	if _, _, ok := readInt(s, j); ok {
+		return j
+	}
+	return -1
+}
+
+// indexEpochWord is indexWord(lower, "epoch", "ep") from byte from on:
+// the first place where "epoch" or "ep" (either with an "s") stands alone.
+// Candidates are found with IndexByte, for an "e" and for an "E".
+func indexEpochWord(s []byte, from int) int {
+	lo, up := nextByte(s, from, 'e'), nextByte(s, from, 'E')
+	for lo >= 0 || up >= 0 {
+		i := lo
+		if i < 0 || up >= 0 && up < i {
+			i = up
+		}
+		if epochWordAt(s, i) {
+			return i
+		}
+		if i == lo {
+			lo = nextByte(s, i+1, 'e')
+		} else {
+			up = nextByte(s, i+1, 'E')
+		}
+	}
+	return -1
+}
+
+// nextByte is the index of the first c in s from byte from on, or -1.
+func nextByte(s []byte, from int, c byte) int {
+	if from >= len(s) {
+		return -1
+	}
+	if i := bytes.IndexByte(s[from:], c); i >= 0 {
+		return from + i
+	}
+	return -1
+}
+
+// epochWordAt reports an "epoch" or "ep" that stands alone at s[i].
+func epochWordAt(s []byte, i int) bool {
+	if i+1 >= len(s) || lower(s[i+1]) != 'p' || i > 0 && isWordByte(s[i-1]) {
+		return false
+	}
+	if i+5 <= len(s) && lower(s[i+2]) == 'o' && lower(s[i+3]) == 'c' && lower(s[i+4]) == 'h' && wordEnds(s, i+5) {
+		return true
+	}
+	return wordEnds(s, i+2)
+}
+
+// wordEnds reports whether a word that ends before s[end] (an "s" may
+// follow) stands alone: the end of the line, a byte that is no word's, or
+// a digit ("ep3").
+func wordEnds(s []byte, end int) bool {
+	if end < len(s) && lower(s[end]) == 's' {
+		end++
+	}
+	return end == len(s) || !isWordByte(s[end]) || s[end] >= '0' && s[end] <= '9'
+}
+
+// sklearnIterationFast is sklearnIteration over a plain line.
+func sklearnIterationFast(s []byte) (int, bool) {
+	const word = "iteration "
+	if len(s) < len(word) {
+		return 0, false
+	}
+	for i := range len(word) {
+		if lower(s[i]) != word[i] {
+			return 0, false
+		}
+	}
+	e, end, ok := readInt(s, len(word))
+	return e, ok && end < len(s) && s[end] == ','
+}
+
+// bracketAfterModeFast is bracketAfterMode over a plain line; at is
+// where the epoch's digits start.
+func bracketAfterModeFast(s []byte, k int) (epoch int, mode []byte, at int, ok bool) {
+	paren := bytes.IndexByte(s[k:], ')')
+	if paren < 0 {
+		return 0, nil, 0, false
+	}
+	i := k + paren + 1
+	for i < len(s) && s[i] == ' ' {
+		i++
+	}
+	if i >= len(s) || s[i] != '[' {
+		return 0, nil, 0, false
+	}
+	e, end, good := readInt(s, i+1)
+	return e, s[k+1 : k+paren], i + 1, good && end < len(s) && s[end] == ']'
+}

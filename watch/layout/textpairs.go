@@ -85,6 +85,20 @@ func segmentPair(dst []textPair, seg string, names *nameKinds) []textPair {
 	return dst
 }
 
+// equalFoldASCII reports whether the ASCII letters of s spell word (lower
+// case) in any case.
+func equalFoldASCII[T string | []byte](s T, word string) bool {
+	if len(s) != len(word) {
+		return false
+	}
+	for i := range len(word) {
+		if lower(s[i]) != word[i] {
+			return false
+		}
+	}
+	return true
+}
+
 // maxUnitBytes is the longest unit readValue lets follow a number ("s",
 // "ms", "it/s", "MiB/s"): a longer word run into a number is prose or an
 // identifier, not a value. Unit: bytes.
@@ -94,14 +108,49 @@ const maxUnitBytes = 6
 // fraction "3/50"; a unit or percent sign may follow ("12.3s", "84%",
 // "5.1it/s"). The number must end at a boundary: not "12:00" (a clock) or
 // "2024-01-01" (a date).
-func readValue(s string, i int) (v float64, total, end int, ok bool) {
+func readValue[T string | []byte](s T, i int) (v float64, total, end int, ok bool) {
+	va, ok := readValueAt(s, i)
+	return va.v, va.total, va.end, ok
+}
+
+// valueAt is a value readValueAt found: v, and the total of a fraction;
+// end is past its unit, num past the number itself, and totalAt where the
+// total's digits start (-1 without one).
+type valueAt struct {
+	v        float64
+	total    int
+	end, num int
+	totalAt  int
+}
+
+// readValueAt is readValue, saying where the parts of the value lie. The
+// digits are read once: a plain decimal (one point at most, no exponent,
+// a mantissa of at most 19 digits and 2^53) is made as fastFloat makes it,
+// anything else by parseNumber, the same as reading it apart.
+func readValueAt[T string | []byte](s T, i int) (valueAt, bool) {
 	j := i
+	neg := false
 	if j < len(s) && (s[j] == '-' || s[j] == '+') {
+		neg = s[j] == '-'
 		j++
 	}
 	digits := j
-	for j < len(s) && (s[j] >= '0' && s[j] <= '9' || s[j] == '.') {
-		j++
+	var mant uint64
+	nd, frac, dots := 0, 0, 0
+	for ; j < len(s); j++ {
+		c := s[j]
+		if d := c - '0'; d <= 9 {
+			mant = mant*10 + uint64(d)
+			nd++
+			if dots > 0 {
+				frac++
+			}
+			continue
+		}
+		if c != '.' {
+			break
+		}
+		dots++
 	}
 	if j == digits {
 		// nan, inf, infinity
@@ -109,15 +158,15 @@ func readValue(s string, i int) (v float64, total, end int, ok bool) {
 		for w < len(s) && (s[w] >= 'a' && s[w] <= 'z' || s[w] >= 'A' && s[w] <= 'Z') {
 			w++
 		}
-		switch strings.ToLower(s[j:w]) {
-		case "nan", "inf", "infinity":
+		if word := s[j:w]; equalFoldASCII(word, "nan") || equalFoldASCII(word, "inf") || equalFoldASCII(word, "infinity") {
 			f, good := parseNumber([]byte(s[i:w]))
 			if good && (w == len(s) || !isWordByte(s[w])) {
-				return f, 0, w, true
+				return valueAt{v: f, end: w, num: w, totalAt: -1}, true
 			}
 		}
-		return 0, 0, i, false
+		return valueAt{}, false
 	}
+	plain := dots <= 1 && nd > 0 && nd <= 19 && mant <= 1<<53
 	if j < len(s) && (s[j] == 'e' || s[j] == 'E') && j+1 < len(s) {
 		k := j + 1
 		if s[k] == '-' || s[k] == '+' {
@@ -128,15 +177,24 @@ func readValue(s string, i int) (v float64, total, end int, ok bool) {
 				k++
 			}
 			j = k
+			plain = false
 		}
 	}
-	f, good := parseNumber([]byte(s[i:j]))
-	if !good {
-		return 0, 0, i, false
+	var f float64
+	if plain {
+		f = float64(int64(mant)) / pow10[frac] // as fastFloat makes it
+		if neg {
+			f = -f
+		}
+	} else {
+		var good bool
+		if f, good = parseNumber([]byte(s[i:j])); !good {
+			return valueAt{}, false
+		}
 	}
 	if j < len(s) && s[j] == '/' {
 		if t, e, tok := readInt(s, j+1); tok && (e == len(s) || !isWordByte(s[e])) {
-			return f, t, e, true
+			return valueAt{v: f, total: t, end: e, num: j, totalAt: j + 1}, true
 		}
 	}
 	// Unit letters or a percent sign.
@@ -145,17 +203,17 @@ func readValue(s string, i int) (v float64, total, end int, ok bool) {
 		k++
 	}
 	if k-j > maxUnitBytes {
-		return 0, 0, i, false
+		return valueAt{}, false
 	}
 	if k < len(s) {
 		switch c := s[k]; {
 		case c == ' ' || isSeparator(c):
 		case c == '.' && (k+1 == len(s) || s[k+1] == ' '):
 		default:
-			return 0, 0, i, false
+			return valueAt{}, false
 		}
 	}
-	return f, 0, k, true
+	return valueAt{v: f, end: k, num: j, totalAt: -1}, true
 }
 
 // logLevels are words a logging prefix puts before the message.

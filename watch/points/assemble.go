@@ -24,7 +24,9 @@ const MaxEpoch = 1e9
 // sanitized.
 type Out interface {
 	Point(p diagnose.Point)
-	Step(r diagnose.StepRow)
+	// Steps returns where per-step rows go: the Assembler appends them
+	// (diagnose.StepRows.Append), their values by its column index.
+	Steps() *diagnose.StepRows
 	Notice(text string)
 }
 
@@ -138,7 +140,7 @@ type Assembler struct {
 	// frozen: the column table is shared with the ingester (a worker of
 	// the parallel path) and must not grow; a new name gives up instead.
 	frozen    bool
-	slab      []diagnose.Sample // shared storage of per-step rows
+	pointSlab []diagnose.Sample // shared storage of the points' samples
 	nonFinite int
 
 	// guesses are the roles assumed (roles.go); version counts changes

@@ -25,6 +25,7 @@ type Snapshot struct {
 	byName       map[string]int
 	roles        column.Roles
 	evalExpected bool
+	steps        bool // per-step rows are wanted
 	// single and multi are the counts of one-row and many-row epochs the
 	// workers start from: (0, 1) guesses a per-step log (never one row
 	// per epoch), (2, 0) a log of one row per epoch so far.
@@ -32,14 +33,13 @@ type Snapshot struct {
 }
 
 // Snapshot returns the state a worker starts from, or nil when workers
-// cannot read for this Assembler: per-step rows are wanted, or the column
-// table is full. The name index
+// cannot read for this Assembler: the column table is full. The name index
 // is cloned only when columns were added since prev.
 func (a *Assembler) Snapshot(prev *Snapshot) *Snapshot {
-	if a.steps || a.full {
+	if a.full {
 		return nil
 	}
-	s := &Snapshot{ncols: len(a.cols), roles: a.roles, evalExpected: a.evalExpected, single: 0, multi: 1}
+	s := &Snapshot{ncols: len(a.cols), roles: a.roles, evalExpected: a.evalExpected, steps: a.steps, single: 0, multi: 1}
 	if prev != nil && prev.ncols == len(a.cols) {
 		s.byName = prev.byName
 	} else {
@@ -55,6 +55,13 @@ func (a *Assembler) Snapshot(prev *Snapshot) *Snapshot {
 	return s
 }
 
+// Steps reports whether per-step rows are wanted.
+func (s *Snapshot) Steps() bool { return s.steps }
+
+// Values returns how many value columns the snapshot's table has: the
+// most values a row can hold.
+func (s *Snapshot) Values() int { return s.ncols }
+
 // Roles returns how the snapshot's Assembler names columns.
 func (s *Snapshot) Roles() column.Roles { return s.roles }
 
@@ -66,14 +73,15 @@ func (s *Snapshot) Guess() (single, multi int) { return s.single, s.multi }
 // table is frozen: a new name is a notice (the worker gives up).
 func (s *Snapshot) Worker(out Out, single, multi int) *Assembler {
 	return &Assembler{out: out, roles: s.roles, cols: slices.Clone(s.cols), byName: s.byName, segment: 1,
-		lastStep: -1, frozen: true, evalExpected: s.evalExpected, singleRow: single, multiRow: multi}
+		lastStep: -1, frozen: true, evalExpected: s.evalExpected, steps: s.steps, singleRow: single, multiRow: multi}
 }
 
 // SyncEpoch returns the epoch of a worker that has read its first line
-// only, when that line opened an epoch as the protocol assumes.
+// only, when that line opened an epoch as the protocol assumes (with its
+// row, or with none: a console marker alone on its line).
 func (a *Assembler) SyncEpoch() (int, bool) {
 	g := &a.g
-	return g.epoch, g.open && g.epochLogged && g.rows == 1 && a.ordinal == 0
+	return g.epoch, g.open && g.epochLogged && g.rows <= 1 && a.ordinal == 0
 }
 
 // Settled reports a worker that read its piece without a new segment and

@@ -193,7 +193,9 @@ func (a *Assembler) emit() {
 	if !g.open || !g.dirty || len(a.touched) == 0 {
 		return
 	}
-	slices.Sort(a.touched)
+	if !slices.IsSorted(a.touched) { // rows usually name their columns in order
+		slices.Sort(a.touched)
+	}
 	p := diagnose.Point{
 		Segment:     a.segment,
 		Epoch:       g.epoch,
@@ -203,16 +205,21 @@ func (a *Assembler) emit() {
 		Time:        g.time,
 		Rows:        g.rows,
 		Line:        g.line,
-		Samples:     make([]diagnose.Sample, 0, len(a.touched)),
 	}
+	n := len(a.touched)
+	if cap(a.pointSlab)-len(a.pointSlab) < n {
+		a.pointSlab = make([]diagnose.Sample, 0, max(pointSlab, n))
+	}
+	start := len(a.pointSlab)
 	for _, ci := range a.touched {
 		c := &a.cols[ci]
 		v := c.last
 		if !c.eval && c.n > 1 {
 			v = c.sum / float64(c.n)
 		}
-		p.Samples = append(p.Samples, diagnose.Sample{Column: c.col, Value: v, Last: c.last})
+		a.pointSlab = append(a.pointSlab, diagnose.Sample{Column: c.col, Value: v, Last: c.last})
 	}
+	p.Samples = a.pointSlab[start:len(a.pointSlab):len(a.pointSlab)]
 	g.emitted, g.dirty, g.provisional = true, false, false
 	a.lastEpoch, a.haveLast = g.epoch, true
 	a.out.Point(p)

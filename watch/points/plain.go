@@ -1,6 +1,10 @@
 package points
 
-import "math"
+import (
+	"math"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
 
 // Plan says, for the header in force, where a decoder's fast path finds
 // the epoch, the step and the value columns of a plain row (fields that
@@ -35,16 +39,17 @@ func (a *Assembler) PlanValue(i, ci int) PlanValue {
 // PlainRow files a plain row (vals by field, mask the fields that hold a
 // number) of the epoch that is open, when nothing but adding its values
 // is to be done: the row has a valid epoch equal to the open one, its step
-// does not go back, the log is not one row per epoch (whose repeated rows
-// start a new segment) and no per-step rows are wanted. It does what
-// BeginRow, Value, Epoch, Step and EndRow do for such a row, in one pass
+// does not go back, and the log is not one row per epoch (whose repeated
+// rows start a new segment). It does what BeginRow, Value, Epoch, Step and
+// EndRow do for such a row, in one pass, but for the per-step row, which
+// the caller hands on with PlainStep when Steps says they are wanted
 // (the CSV decoder's tests compare both exhaustively and by fuzzing);
 // false, having changed nothing, sends any other row to them.
 func (a *Assembler) PlainRow(p *Plan, vals []float64, mask uint64, line int) bool {
 	g := &a.g
 	// After the point was handed on, a row may be an event that echoes
 	// the evaluation (echoes): the general path decides.
-	if mask&p.EpochBit == 0 || !g.open || !g.epochLogged || g.emitted || a.steps || a.onePerEpoch() {
+	if mask&p.EpochBit == 0 || !g.open || !g.epochLogged || g.emitted || a.onePerEpoch() {
 		return false
 	}
 	ev := vals[p.Epoch]
@@ -97,4 +102,34 @@ func (a *Assembler) PlainRow(p *Plan, vals []float64, mask uint64, line int) boo
 		a.emit()
 	}
 	return true
+}
+
+// Steps reports whether per-step rows are wanted.
+func (a *Assembler) Steps() bool { return a.steps }
+
+// PlainStep hands a plain row that PlainRow filed on as a per-step row, as
+// emitStep does for the row the general path builds: its values in field
+// order. (Apart from PlainRow, whose loop stays as short as it was.)
+func (a *Assembler) PlainStep(p *Plan, vals []float64, mask uint64) {
+	hasStep, step := false, int64(0)
+	if mask&p.StepBit != 0 {
+		if sv := vals[p.Step]; sv-sv == 0 && math.Abs(sv) <= math.MaxInt64/2 {
+			hasStep, step = true, int64(sv)
+		}
+	}
+	s := a.out.Steps()
+	from := len(s.Values)
+	for _, f := range p.Vals {
+		if mask&f.Bit != 0 {
+			s.Values = append(s.Values, diagnose.StepValue{Col: int32(f.Col), V: vals[f.Field]})
+		}
+	}
+	if len(s.Values) == from {
+		return
+	}
+	r := diagnose.StepRowAt{Segment: int32(a.segment), Epoch: int32(a.g.epoch), Step: -1, From: int32(from), To: int32(len(s.Values))}
+	if hasStep {
+		r.Step = step
+	}
+	s.Rows = append(s.Rows, r)
 }

@@ -16,13 +16,13 @@ import (
 // recorder is the Out of a test.
 type recorder struct {
 	points  []diagnose.Point
-	steps   []diagnose.StepRow
+	steps   diagnose.StepRows
 	notices []string
 }
 
-func (o *recorder) Point(p diagnose.Point)  { o.points = append(o.points, p) }
-func (o *recorder) Step(r diagnose.StepRow) { o.steps = append(o.steps, r) }
-func (o *recorder) Notice(text string)      { o.notices = append(o.notices, text) }
+func (o *recorder) Point(p diagnose.Point)    { o.points = append(o.points, p) }
+func (o *recorder) Steps() *diagnose.StepRows { return &o.steps }
+func (o *recorder) Notice(text string)        { o.notices = append(o.notices, text) }
 
 // row is one row of a test: its epoch and step (NaN-free; -1 for none)
 // and values by column name.
@@ -117,7 +117,7 @@ func TestAssembler_Grouping(t *testing.T) {
 // StepRow with its epoch and step.
 func TestAssembler_Steps(t *testing.T) {
 	_, o := file([]row{{1, 1, map[string]float64{"loss": 0.9}}, {1, 2, map[string]float64{"loss": 0.8}}}, true)
-	if len(o.steps) != 2 || o.steps[1].Step != 2 || o.steps[1].Epoch != 1 || o.steps[1].Samples[0].Value != 0.8 {
+	if r, vals := o.steps.Row(1); o.steps.Len() != 2 || r.Step != 2 || r.Epoch != 1 || vals[0].V != 0.8 {
 		t.Fatalf("steps = %+v", o.steps)
 	}
 }

@@ -1,0 +1,69 @@
+package layout
+
+import (
+	"bytes"
+	"io"
+	"testing"
+
+	"github.com/fitgap/fitgap/bench/loggen"
+	"github.com/fitgap/fitgap/diagnose"
+)
+
+// discard is the points.Out of a benchmark: it counts and forgets.
+type discard struct {
+	points int
+	steps  diagnose.StepRows
+}
+
+func (d *discard) Point(diagnose.Point) { d.points++ }
+
+// Steps keeps one batch's worth of per-step rows at a time.
+func (d *discard) Steps() *diagnose.StepRows {
+	if d.steps.Len() > 8192 {
+		d.steps.Rows, d.steps.Values = d.steps.Rows[:0], d.steps.Values[:0]
+	}
+	return &d.steps
+}
+func (d *discard) Notice(string) {}
+
+// layoutWriters write the same invented run in each layout (bench/loggen).
+var layoutWriters = []struct {
+	name  string
+	write func(w io.Writer, n int) error
+}{
+	{"csv", loggen.WriteCSV}, {"jsonl", loggen.WriteJSONL}, {"text", loggen.WriteText},
+	{"table", loggen.WriteTable}, {"pydict", loggen.WritePyDict}, {"rounds", loggen.WriteRounds}, {"bars", loggen.WriteBars},
+}
+
+// BenchmarkDecode feeds 100,000 lines of each layout to one Reader, on one
+// core, in 64 KiB reads as the tailer hands them on: the decoder's own
+// cost per line (ns/line) and its allocations, without the disk or the
+// parallel backlog. bench/ingest.sh times the whole process.
+func BenchmarkDecode(b *testing.B) {
+	const lines = 100_000
+	for _, wr := range layoutWriters {
+		var buf bytes.Buffer
+		if err := wr.write(&buf, lines); err != nil {
+			b.Fatal(err)
+		}
+		data := buf.Bytes()
+		b.Run(wr.name, func(b *testing.B) {
+			b.SetBytes(int64(len(data)))
+			b.ReportAllocs()
+			for b.Loop() {
+				out := &discard{}
+				r := NewReader(out, Config{})
+				for p := data; len(p) > 0; {
+					n := min(len(p), 64<<10)
+					r.Feed(p[:n])
+					p = p[n:]
+				}
+				r.End()
+				if out.points == 0 {
+					b.Fatal("no point")
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/lines, "ns/line")
+		})
+	}
+}
