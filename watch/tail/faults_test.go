@@ -276,3 +276,76 @@ func TestFile_RotatedCopyReadAfterRegrowth(t *testing.T) {
 		t.Errorf("fed %d bytes, want %d", len(got), len(want))
 	}
 }
+
+// TestFile_RotatedTwiceBetweenLooks: a log renamed away (run.log →
+// run.log.1) twice between two looks leaves the generation between them
+// only in run.log.1; it is read whole, in order, between the file that was
+// being read and the new one. A rotated copy from before (older than the
+// file being read) and the copy of the file being read are not read again.
+// Source: logrotate(8), "create" mode renames the log and starts a new one
+// (from memory); the rates of the fault bench (a rotation each 0.5 s) make
+// two rotations between looks happen on a loaded machine.
+func TestFile_RotatedTwiceBetweenLooks(t *testing.T) {
+	for _, tt := range []struct {
+		name    string
+		rotate  func(t *testing.T, path string)
+		want    string
+		restart string
+	}{
+		{"TwiceLooksOnce", func(t *testing.T, path string) {
+			rename(t, path, path+".1")
+			watchtest.WriteRaw(t, path, "b\n")
+			rename(t, path, path+".1")
+			watchtest.WriteRaw(t, path, "c\n")
+		}, "a\nb\nc\n", "read the file between"},
+		{"OnceNothingTwice", func(t *testing.T, path string) {
+			rename(t, path, path+".1")
+			watchtest.WriteRaw(t, path, "c\n")
+		}, "a\nc\n", ""},
+		{"StaleCopyNotRead", func(t *testing.T, path string) {
+			stale := path + ".1"
+			watchtest.WriteRaw(t, stale, "yesterday\n")
+			old := time.Now().Add(-24 * time.Hour)
+			if err := os.Chtimes(stale, old, old); err != nil {
+				t.Fatal(err)
+			}
+			if err := os.Remove(path); err != nil {
+				t.Fatal(err)
+			}
+			watchtest.WriteRaw(t, path, "c\n")
+		}, "a\nc\n", ""},
+	} {
+		t.Run(tt.name, func(t *testing.T) {
+			path := filepath.Join(t.TempDir(), "run.log")
+			watchtest.WriteRaw(t, path, "a\n")
+			f, err := Open(path, Options{Follow: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer func() {
+				if f.f != nil {
+					f.f.Close()
+				}
+			}()
+			r := newRecorder()
+			ctx := context.Background()
+			f.check(ctx, r)
+			tt.rotate(t, path)
+			f.check(ctx, r)
+			if got := r.all.String(); got != tt.want {
+				t.Errorf("read %q, want %q (restarts %q)", got, tt.want, r.restarts)
+			}
+			said := strings.Contains(strings.Join(r.restarts, "|"), "the file between")
+			if said != (tt.restart != "") {
+				t.Errorf("restarts %q: a missed file said %v, want %v", r.restarts, said, tt.restart != "")
+			}
+		})
+	}
+}
+
+func rename(t *testing.T, from, to string) {
+	t.Helper()
+	if err := os.Rename(from, to); err != nil {
+		t.Fatal(err)
+	}
+}

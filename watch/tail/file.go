@@ -302,7 +302,7 @@ func (t *File) check(ctx context.Context, sink Sink) {
 	}
 	// A new file under the name: created late, created again, or moved in
 	// over the old one.
-	t.drop(ctx, sink)
+	last := t.drop(ctx, sink)
 	f, err := openLog(t.path)
 	if err != nil {
 		if errors.Is(err, errNotRegular) {
@@ -312,6 +312,9 @@ func (t *File) check(ctx context.Context, sink Sink) {
 		return
 	}
 	again := t.seen
+	if last != nil {
+		t.readMissed(sink, last, f)
+	}
 	t.setFile(f)
 	t.setState(sink, Live)
 	if again {
@@ -320,14 +323,20 @@ func (t *File) check(ctx context.Context, sink Sink) {
 	t.read(ctx, sink)
 }
 
-// drop reads what the open file still holds and closes it.
-func (t *File) drop(ctx context.Context, sink Sink) {
+// drop reads what the open file still holds and closes it. It returns
+// the file as last found (nil when none was open).
+func (t *File) drop(ctx context.Context, sink Sink) os.FileInfo {
 	if t.f == nil {
-		return
+		return nil
 	}
 	t.read(ctx, sink)
+	last, err := t.f.Stat()
+	if err != nil {
+		last = t.info
+	}
 	t.f.Close()
 	t.f = nil
+	return last
 }
 
 // refuse answers a special file under the name (a named pipe, a device, a

@@ -120,3 +120,38 @@ func (t *File) readRotated(sink Sink) {
 	sink.Notice(fmt.Sprintf("%s was rotated with %d bytes not yet read: read them from its copy %s",
 		t.name, fed, sanitize(filepath.Base(name))))
 }
+
+// readMissed feeds, whole, a file that was under the log's name and was
+// moved away before it was ever opened: two rename rotations between two
+// looks (run.log → run.log.1 twice) leave the generation between them
+// only in run.log.1. The copy counts as missed when it is neither the
+// file last read (last) nor the one now under the name (next), and was
+// last written no earlier than the file last read: an older rotated copy
+// is a previous run's, already read or never ours.
+func (t *File) readMissed(sink Sink, last os.FileInfo, next *os.File) {
+	name := t.links.target(t.abs) + rotatedSuffix
+	f, err := openLog(name)
+	if err != nil {
+		return
+	}
+	defer f.Close()
+	fi, err := f.Stat()
+	if err != nil || fi.Size() == 0 || os.SameFile(fi, last) || fi.ModTime().Before(last.ModTime()) {
+		return
+	}
+	if now, err := next.Stat(); err != nil || os.SameFile(fi, now) {
+		return
+	}
+	sink.Restart(fmt.Sprintf("%s was replaced twice before it was read again: reading the file between from its copy %s",
+		t.name, sanitize(filepath.Base(name))))
+	for at := int64(0); at < fi.Size(); {
+		n, err := f.ReadAt(t.buf[:min(int64(len(t.buf)), fi.Size()-at)], at)
+		if n > 0 {
+			sink.Feed(t.buf[:n])
+			at += int64(n)
+		}
+		if err != nil {
+			break
+		}
+	}
+}
