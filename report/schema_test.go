@@ -15,6 +15,7 @@ import (
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/forecast"
+	"github.com/fitgap/fitgap/sweep"
 )
 
 // The published schemas are generated from the Go types of the JSON forms
@@ -40,6 +41,8 @@ func schemaFor(t *testing.T, v any, title string) *jsonschema.Schema {
 	for _, dir := range []struct{ pkg, path string }{
 		{"github.com/fitgap/fitgap/diagnose", "../diagnose"},
 		{"github.com/fitgap/fitgap/report", "."},
+		{"github.com/fitgap/fitgap/sweep", "../sweep"},
+		{"github.com/fitgap/fitgap/forecast", "../forecast"},
 	} {
 		if err := r.AddGoComments(dir.pkg, dir.path); err != nil {
 			t.Fatalf("read the comments of %s: %v", dir.path, err)
@@ -93,6 +96,22 @@ func mapType(t reflect.Type) *jsonschema.Schema {
 		return enum(diagnose.Progresses(), diagnose.Progress.Description)
 	case reflect.TypeOf(diagnose.Signal(0)):
 		return enum(diagnose.Signals(), diagnose.Signal.Description)
+	case reflect.TypeOf(forecast.Interval{}):
+		// Its MarshalJSON writes null for a bound that is not finite.
+		o := &jsonschema.Schema{Type: "object", Properties: jsonschema.NewProperties(), Required: []string{"value", "lo", "hi"},
+			AdditionalProperties: jsonschema.FalseSchema}
+		for _, k := range []struct{ key, about string }{
+			{"value", "the expected value"}, {"lo", "the lower end; null when unbounded"}, {"hi", "the upper end; null when unbounded"},
+		} {
+			n := nullable(&jsonschema.Schema{Type: "number"})
+			n.Description = k.about
+			o.Properties.Set(k.key, n)
+		}
+		return o
+	case reflect.TypeOf(sweep.State(0)):
+		return enum(sweep.States(), sweep.State.Description)
+	case reflect.TypeOf(sweep.Rule(0)):
+		return enum(sweep.Rules(), func(r sweep.Rule) string { return r.Phrase() + " — " + r.Source() })
 	case reflect.TypeOf(forecast.Status(0)):
 		return enum(forecast.Statuses(), forecast.Status.Description)
 	case reflect.TypeOf(forecast.BreakCause(0)):

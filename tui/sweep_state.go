@@ -180,7 +180,7 @@ func (t *tableState) row(id int) (*sweep.Row, bool) {
 // sortColumns are the columns the table can be sorted by, in the order s
 // cycles through them.
 func (t *tableState) sortColumns() []sortKey {
-	keys := []sortKey{{id: tcRank}, {id: tcRun}, {id: tcState}, {id: tcEpoch}, {id: tcBest}, {id: tcNow}, {id: tcDiagnosis}, {id: tcSignal}}
+	keys := []sortKey{{id: tcRank}, {id: tcRun}, {id: tcState}, {id: tcEpoch}, {id: tcBest}, {id: tcNow}, {id: tcForecast}, {id: tcDiagnosis}, {id: tcSignal}}
 	for _, k := range t.snap.differing {
 		keys = append(keys, sortKey{id: tcParam, param: k})
 	}

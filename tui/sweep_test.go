@@ -63,10 +63,17 @@ func demoSweep() []sweepRun {
 	}
 }
 
-// newFakeSweep judges the runs and evaluates the sweep at fixedNow.
+// sweepLength is every invented run's last epoch, as an epochs
+// hyperparameter would give it.
+const sweepLength = 30
+
+// newFakeSweep judges the runs, forecasts those not ended to
+// sweepLength, and evaluates the sweep at fixedNow.
 func newFakeSweep(t testing.TB, runs []sweepRun) *fakeSweep {
 	t.Helper()
-	f := &fakeSweep{s: sweep.New(sweep.DefaultConfig())}
+	cfg := sweep.DefaultConfig()
+	cfg.Epochs = sweepLength
+	f := &fakeSweep{s: sweep.New(cfg)}
 	for _, r := range runs {
 		var p sweep.Params
 		for i := 0; i+1 < len(r.params); i += 2 {
@@ -88,6 +95,9 @@ func newFakeSweep(t testing.TB, runs []sweepRun) *fakeSweep {
 		j, _ := tr.Latest()
 		f.s.Observe(id, sweep.Observation{Latest: j, Points: tr.Len(), Ended: r.ended,
 			LastWrite: fixedNow.Add(-2 * time.Second), Pace: 3 * time.Second})
+		if !r.ended && tr.Len() > 0 {
+			f.s.SetForecast(id, forecast.Tracked(tr, tr.Len()-1, diagnose.SplitVal, nil, f.s.Length(id), forecast.Options{}))
+		}
 		f.trackers = append(f.trackers, tr)
 	}
 	f.s.Evaluate(fixedNow)

@@ -310,6 +310,10 @@ func (m *SweepModel) cellStyle(c tableCol, r *sweep.Row) lipgloss.Style {
 		return st.Stop
 	case tcRank:
 		return st.Dim
+	case tcForecast:
+		if _, ok := forecastValue(r); !ok {
+			return st.Dim
+		}
 	}
 	return st.Plain
 }
@@ -329,6 +333,10 @@ func (m *SweepModel) selectedLine() string {
 	}
 	if len(parts) == 0 && r.Judged {
 		parts = append(parts, r.Diagnosis.Description())
+	}
+	if f := r.Forecast; f != nil {
+		// The refusal's reason already says "no forecast: …".
+		parts = append(parts, "forecast: "+strings.TrimPrefix(f.Phrase(), "no forecast: "))
 	}
 	if r.StopFile != "" {
 		parts = append(parts, "stop file "+clean(r.StopFile))

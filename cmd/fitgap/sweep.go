@@ -30,7 +30,7 @@ type sweepFlags struct {
 }
 
 func (s *sweepFlags) register(fs *flag.FlagSet) {
-	fs.StringVar(&s.rules, "rules", "median,rungs", "on a sweep: the `rules` that flag hopeless runs, median and/or rungs (successive halving), or none")
+	fs.StringVar(&s.rules, "rules", "median,rungs,forecast", "on a sweep: the `rules` that flag hopeless runs, any of median, rungs (successive halving) and forecast (its chance to beat the best other run), or none")
 	fs.IntVar(&s.eta, "eta", sweep.DefaultEta, "on a sweep: successive halving's reduction `factor` η: at each rung only the top 1/η go on")
 	fs.IntVar(&s.firstRung, "first-rung", sweep.DefaultFirstRung, "on a sweep: the `epoch` of the first rung (then ×η); the median rule starts there too")
 }
@@ -46,8 +46,10 @@ func (s *sweepFlags) config() (sweep.Config, error) {
 			c.Median = true
 		case "rungs":
 			c.UseRungs = true
+		case "forecast":
+			c.UseForecast = true
 		default:
-			return c, usageErrorf("--rules: unknown rule %q: want median, rungs or none", name)
+			return c, usageErrorf("--rules: unknown rule %q: want median, rungs, forecast or none", name)
 		}
 	}
 	if s.eta < 2 {
@@ -95,6 +97,10 @@ func sweepOptions(args []string, l *logFlags, sw *sweepFlags, follow bool) (live
 	if err != nil {
 		return live.Options{}, err
 	}
+	if l.epochs < 0 {
+		return live.Options{}, usageErrorf("--epochs: must not be negative, got %d", l.epochs)
+	}
+	rules.Epochs = l.epochs
 	return live.Options{Paths: args, Read: read, Judge: cfg, Rules: rules}, nil
 }
 
@@ -178,16 +184,6 @@ loop:
 	return err2
 }
 
-// sweepLine is one line of follow DIR: the run's name, the point's
-// summary (the keys of report --json and "time", as follow FILE prints),
-// and the run's place in the sweep as of that point.
-type sweepLine struct {
-	Run string `json:"run"`
-	report.Document
-	Time  string         `json:"time"`
-	Sweep *sweep.RowJSON `json:"sweep,omitempty"`
-}
-
 // sweepPrinter writes follow DIR's output.
 type sweepPrinter struct {
 	out, errOut io.Writer
@@ -204,7 +200,7 @@ func (p *sweepPrinter) print(u live.Update) error {
 		row = &r
 	}
 	for _, sum := range u.Applied.Summaries {
-		b, err := json.Marshal(sweepLine{Run: diagnose.Printable(u.Name), Document: sum.Document(), Time: at, Sweep: row})
+		b, err := json.Marshal(report.SweepLine{Run: diagnose.Printable(u.Name), Document: sum.Document(), Time: at, Sweep: row})
 		if err != nil {
 			return fmt.Errorf("encode line: %w", err)
 		}

@@ -46,7 +46,16 @@ func (s *Sweep) Load(ctx context.Context) error {
 	wg.Wait()
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	s.dom.Evaluate(s.now())
+	now := s.now()
+	s.dom.Evaluate(now)
+	// The forecasts of the runs not finished, then the rules again.
+	due := s.dueForecasts(now, false)
+	s.mu.Unlock()
+	ms := forecastAll(due)
+	s.mu.Lock()
+	s.keep(ms, now)
+	s.dom.Evaluate(now)
+	s.markFinished()
 	judged := 0
 	for _, r := range s.dom.Rows() {
 		if r.Points > 0 {
@@ -102,7 +111,7 @@ func (s *Sweep) loadOne(ctx context.Context, e *entry) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	e.stats, e.consts, e.total = last.Stats, c, total
-	e.read = true
+	e.read, e.fcStale = true, true
 	s.read++
 	s.dom.SetParams(e.id, e.params())
 	s.observeFrom(e, math.MinInt, revisionOf(e))
