@@ -38,6 +38,9 @@ type RunScreen struct {
 	History History
 	Feed    <-chan FeedMsg
 	Close   func()
+	// Epochs is the run's last epoch as the table knows it, 0 when
+	// unknown (the screen's Options.Epochs).
+	Epochs int
 }
 
 // SweepOptions configure the run table.

@@ -251,7 +251,7 @@ func TestSweepModel_OpenAndBack(t *testing.T) {
 		if id == 7 {
 			return RunScreen{}, errors.New("the log is gone")
 		}
-		return RunScreen{History: ownHistory{src.trackers[id]}, Feed: feed, Close: func() { closed++ }}, nil
+		return RunScreen{History: ownHistory{src.trackers[id]}, Feed: feed, Close: func() { closed++ }, Epochs: sweepLength}, nil
 	}
 	m := newSweepModel(t, src, 120, 40, SweepOptions{Open: open, Run: Options{Now: func() time.Time { return fixedNow }}})
 	m = pressSweep(t, m, "down")
@@ -263,6 +263,9 @@ func TestSweepModel_OpenAndBack(t *testing.T) {
 	m = sendSweep(t, m, cmd()) // the open, off the loop
 	if m.detail == nil || len(opened) != 1 {
 		t.Fatalf("no run screen (opened %v)", opened)
+	}
+	if m.detail.opts.Epochs != sweepLength {
+		t.Errorf("the run's screen has last epoch %d, want the table's %d", m.detail.opts.Epochs, sweepLength)
 	}
 	id := opened[0]
 	pts := runs[id].spec.points()

@@ -233,6 +233,9 @@ func (m SweepModel) opened(msg sweepOpenedMsg) (tea.Model, tea.Cmd) {
 	}
 	opts := m.opts.Run
 	opts.History, opts.Back = msg.run.History, true
+	if msg.run.Epochs > 0 {
+		opts.Epochs = msg.run.Epochs
+	}
 	opts.NoColor = m.opts.NoColor
 	d := New(opts)
 	d.setRenderer(m.renderer)
