@@ -50,7 +50,15 @@ or a picture path that cannot be written; 1 when drawing or writing it fails.`,
 				if err != nil {
 					return err
 				}
-				return runSweepReport(ctx, e, opts, asJSON)
+				var pic *plotOutput
+				if plot != "" {
+					// The runs' logs are known once found: each is
+					// checked before the picture is written.
+					if pic, err = checkPlot(plot, "", e.stdout); err != nil {
+						return err
+					}
+				}
+				return runSweepReport(ctx, e, opts, asJSON, pic)
 			}
 			path, opts, cfg, err := log.parse(args, false)
 			if err != nil {

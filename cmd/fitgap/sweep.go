@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -113,8 +114,11 @@ func newSweep(opts live.Options) (*live.Sweep, error) {
 	return s, nil
 }
 
-// runSweepReport reads every run's log once and prints the ranked table.
-func runSweepReport(ctx context.Context, e *env, opts live.Options, asJSON bool) error {
+// runSweepReport reads every run's log once and prints the ranked table,
+// with pic (--plot) the picture of the runs beside it. A picture that
+// cannot be drawn or written leaves the report whole, without it (exit
+// status 1); one that would land on a run's log is refused first.
+func runSweepReport(ctx context.Context, e *env, opts live.Options, asJSON bool, pic *plotOutput) error {
 	s, err := newSweep(opts)
 	if err != nil {
 		return err
@@ -123,16 +127,30 @@ func runSweepReport(ctx context.Context, e *env, opts live.Options, asJSON bool)
 		return &inputError{err: err, hint: "a run is a directory holding a metrics log (CSV/TSV, JSON Lines, console text); name the logs or a glob if they are elsewhere"}
 	}
 	r := s.Report(asJSON)
+	var plotErr error
+	if pic != nil {
+		r.Picture, plotErr = pic.saveSweep(s, r, e.stdout)
+		var usage *usageError
+		if errors.As(plotErr, &usage) {
+			return plotErr
+		}
+	}
 	if !asJSON {
 		_, err = io.WriteString(e.stdout, r.Markdown())
+	} else {
+		var b []byte
+		if b, err = json.MarshalIndent(r.Document(), "", "  "); err != nil {
+			return fmt.Errorf("encode sweep report: %w", err)
+		}
+		_, err = e.stdout.Write(append(b, '\n'))
+	}
+	if err != nil {
 		return err
 	}
-	b, err := json.MarshalIndent(r.Document(), "", "  ")
-	if err != nil {
-		return fmt.Errorf("encode sweep report: %w", err)
+	if plotErr != nil {
+		return fmt.Errorf("--plot %s: %s", diagnose.Printable(pic.path), diagnose.Printable(plotErr.Error()))
 	}
-	_, err = e.stdout.Write(append(b, '\n'))
-	return err
+	return nil
 }
 
 // runSweepFollow follows every run and prints one JSON line per new point

@@ -2,6 +2,7 @@ package live
 
 import (
 	"runtime"
+	"slices"
 	"sync"
 	"time"
 
@@ -14,18 +15,26 @@ import (
 // forecast column and the forecast rule. One forecast costs about 0.4 ms
 // of CPU on a 300-epoch curve (DEVELOPERS.md, "The forecast in the
 // pipeline"), so a run is forecast again only when it got new points, and
-// while following at most once per forecastEvery, each evaluation
-// spending at most forecastBudget on them (the rest wait for the next
-// one, fairest first): a thousand runs read at start fill the column in a
-// few evaluations instead of holding the first table back, and runs that
-// log an epoch a second cost what runs logging one every two seconds do.
+// while following:
+//   - a run not forecast yet comes first, each evaluation spending at most
+//     forecastBudget on forecasts (the rest wait for the next, soon after):
+//     a thousand runs read at start fill the column in a few evaluations
+//     instead of holding the first table back;
+//   - a run forecast before waits at least forecastEvery, and such
+//     refreshes come at most refreshRate a second, the longest waiting
+//     first: a few runs that log an epoch a second are forecast at each
+//     epoch, a hundred every five seconds, for about 1 % of a core.
+//
 // A forecast is made by the run's pipeline (pipeline.Run.Forecast, with
 // its learning rates and last epoch), outside the sweep's lock.
 const (
 	// forecastEvery is the least time between two forecasts of one run
-	// while following; real epochs are slower, so every new epoch of a
-	// real run is forecast. Unit: time.
-	forecastEvery = 2 * time.Second
+	// while following. Unit: time.
+	forecastEvery = time.Second
+	// refreshRate is how many runs already forecast are forecast again
+	// per second at most: 20 × 0.4 ms is under 1 % of a core. Unit:
+	// forecasts per second.
+	refreshRate = 20
 	// forecastBudget is the most time one evaluation spends forecasting
 	// (about 50 forecasts of 300 epochs); evaluations come at most ten a
 	// second. Unit: time.
@@ -38,23 +47,42 @@ type made struct {
 	f forecast.Forecast
 }
 
-// dueForecasts returns the runs whose forecast is due as of now, starting
-// after the last one forecast; with paced, only those not forecast within
-// forecastEvery. A finished run needs none (its row shows none), nor a run
-// without a validation value yet. s.mu is held.
+// dueForecasts returns the runs whose forecast is due as of now: those
+// not forecast yet first, then the longest waiting. With paced (following),
+// a run forecast within forecastEvery waits, and runs forecast before are
+// taken only as the refresh rate allows. A finished run needs none (its
+// row shows none), nor a run without a validation value yet. s.mu is held.
 func (s *Sweep) dueForecasts(now time.Time, paced bool) []*entry {
 	rows := s.dom.Rows()
 	var due []*entry
-	n := len(s.runs)
-	for k := range n {
-		e := s.runs[(s.fcNext+k)%n]
-		if !e.fcStale || paced && now.Sub(e.fcAt) < forecastEvery {
+	for _, e := range s.runs {
+		if !e.fcStale || paced && !e.fcAt.IsZero() && now.Sub(e.fcAt) < forecastEvery {
 			continue
 		}
 		if e.id < len(rows) && rows[e.id].State == sweep.Finished || s.dom.Curve(e.id).Len() == 0 {
 			continue
 		}
 		due = append(due, e)
+	}
+	slices.SortStableFunc(due, func(a, b *entry) int { return a.fcAt.Compare(b.fcAt) }) // zero: never, first
+	if !paced {
+		return due
+	}
+	if s.fcTokensAt.IsZero() {
+		s.fcTokens = refreshRate
+	} else {
+		s.fcTokens = min(refreshRate, s.fcTokens+now.Sub(s.fcTokensAt).Seconds()*refreshRate)
+	}
+	s.fcTokensAt = now
+	refreshes := int(s.fcTokens)
+	for i, e := range due {
+		if e.fcAt.IsZero() {
+			continue
+		}
+		if refreshes == 0 {
+			return due[:i]
+		}
+		refreshes--
 	}
 	return due
 }
@@ -96,14 +124,15 @@ func forecastAll(due []*entry) []made {
 	return out
 }
 
-// keep hands the forecasts made to the domain. s.mu is held.
+// keep hands the forecasts made to the domain; each one of a run
+// forecast before spends a refresh. s.mu is held.
 func (s *Sweep) keep(ms []made, now time.Time) {
 	for _, m := range ms {
 		s.dom.SetForecast(m.e.id, m.f)
+		if !m.e.fcAt.IsZero() {
+			s.fcTokens = max(0, s.fcTokens-1)
+		}
 		m.e.fcStale, m.e.fcAt = false, now
-	}
-	if len(ms) > 0 {
-		s.fcNext = (ms[len(ms)-1].e.id + 1) % max(len(s.runs), 1)
 	}
 }
 

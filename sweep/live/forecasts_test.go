@@ -2,8 +2,10 @@ package live
 
 import (
 	"context"
+	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"testing"
 	"time"
 
@@ -97,8 +99,7 @@ func TestSweep_FollowForecasts(t *testing.T) {
 }
 
 // TestForecastWithin: each evaluation makes at least one due forecast and
-// stops when its budget is spent; the next round starts after the last
-// one made.
+// stops when its budget is spent.
 func TestForecastWithin(t *testing.T) {
 	root := t.TempDir()
 	for _, name := range []string{"a", "b", "c"} {
@@ -112,8 +113,7 @@ func TestForecastWithin(t *testing.T) {
 	for _, e := range s.runs {
 		e.fcStale = true
 	}
-	now := s.now()
-	due := s.dueForecasts(now, false)
+	due := s.dueForecasts(s.now(), false)
 	s.mu.Unlock()
 	if len(due) != 3 {
 		t.Fatalf("%d due, want 3", len(due))
@@ -122,22 +122,8 @@ func TestForecastWithin(t *testing.T) {
 	if len(ms) != 1 || !more {
 		t.Fatalf("made %d (more %v) within a nanosecond, want 1 and more", len(ms), more)
 	}
-	s.mu.Lock()
-	s.keep(ms, now)
-	next := s.dueForecasts(now, false)
-	soon := s.dueForecasts(now.Add(forecastEvery/2), true)
-	paced := s.dueForecasts(now.Add(forecastEvery), true)
-	s.mu.Unlock()
-	if len(next) != 2 || next[0].id != (ms[0].e.id+1)%3 {
-		t.Errorf("next round %d runs from %d, want 2 from the one after %d", len(next), next[0].id, ms[0].e.id)
-	}
-	// Load forecast every run at now: paced, they are due again after
-	// forecastEvery, but for the one just made.
-	if len(soon) != 0 || len(paced) != 2 {
-		t.Errorf("paced: %d due before forecastEvery, %d after; want 0 and the 2 not forecast", len(soon), len(paced))
-	}
-	all, more := forecastWithin(next, 0)
-	if len(all) != 2 || more {
+	all, more := forecastWithin(due, 0)
+	if len(all) != 3 || more {
 		t.Errorf("without a budget: %d made, more %v", len(all), more)
 	}
 	for _, m := range all {
@@ -147,5 +133,69 @@ func TestForecastWithin(t *testing.T) {
 		if got := m.e.run.Forecast(diagnose.SplitVal); got.At != m.f.At {
 			t.Errorf("the run's own forecast %+v differs from the one made %+v", got.At, m.f.At)
 		}
+	}
+}
+
+// TestDueForecasts_Paced: while following, a run not forecast yet comes
+// first; a run forecast within forecastEvery waits; runs forecast before
+// are refreshed at most refreshRate a second, the longest waiting first.
+func TestDueForecasts_Paced(t *testing.T) {
+	root := t.TempDir()
+	n := 2*refreshRate + 10
+	for i := range n {
+		csvRun(t, filepath.Join(root, fmt.Sprintf("r%02d", i), "metrics.csv"), 10, 0.5, 0.1)
+	}
+	s, _ := New(Options{Paths: []string{root}, Rules: sweep.Config{UseForecast: true}})
+	if err := s.Load(context.Background()); err != nil {
+		t.Fatal(err)
+	}
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	t0 := s.now()
+	stale := func(at time.Time, ids ...int) {
+		for _, id := range ids {
+			s.runs[id].fcStale, s.runs[id].fcAt = true, at
+		}
+	}
+	names := func(es []*entry) []int {
+		var out []int
+		for _, e := range es {
+			out = append(out, e.id)
+		}
+		return out
+	}
+	// Every run has new points; run 3 was forecast last, run 5 never.
+	for id := range n {
+		stale(t0.Add(-time.Duration(n-id)*time.Second), id)
+	}
+	stale(t0, 3)
+	stale(time.Time{}, 5)
+	if got := s.dueForecasts(t0.Add(forecastEvery/2), true); len(got) != 1+refreshRate || got[0].id != 5 || slices.Contains(names(got), 3) {
+		t.Errorf("due %v: want run 5 (never forecast) first, then %d refreshes, not run 3 (forecast %v ago)", names(got), refreshRate, forecastEvery/2)
+	}
+	// The refreshes are spent: only a run never forecast is due.
+	var ms []made
+	for _, e := range s.dueForecasts(t0.Add(forecastEvery), true) {
+		ms = append(ms, made{e: e})
+	}
+	s.keep(ms, t0.Add(forecastEvery))
+	stale(time.Time{}, 7)
+	if got := s.dueForecasts(t0.Add(forecastEvery), true); len(got) != 1 || got[0].id != 7 {
+		t.Errorf("with no refresh left, due %v; want the new run 7 only", names(got))
+	}
+	// Half a second later, half the rate again, the longest waiting first.
+	got := s.dueForecasts(t0.Add(forecastEvery+500*time.Millisecond), true)
+	if len(got) != 1+refreshRate/2 || got[1].fcAt.After(got[len(got)-1].fcAt) {
+		t.Errorf("due %v half a second later; want run 7 and %d refreshes, oldest first", names(got), refreshRate/2)
+	}
+	// Unpaced (report DIR, follow DIR), every stale run.
+	want := 0
+	for _, e := range s.runs {
+		if e.fcStale {
+			want++
+		}
+	}
+	if got := s.dueForecasts(t0, false); len(got) != want {
+		t.Errorf("unpaced: %d due, want every stale run, %d", len(got), want)
 	}
 }

@@ -74,8 +74,10 @@ type Sweep struct {
 	observed map[string]bool
 	// read counts the runs whose log was read to its end once.
 	read int
-	// fcNext is where the next round of forecasts starts (forecasts.go).
-	fcNext int
+	// fcTokens are the refreshes of forecasts allowed now, as of
+	// fcTokensAt (forecasts.go).
+	fcTokens   float64
+	fcTokensAt time.Time
 }
 
 // maxNotices bounds the notices kept for the screen.
