@@ -267,6 +267,11 @@ func TestSweepModel_OpenAndBack(t *testing.T) {
 	if m.detail.opts.Epochs != sweepLength {
 		t.Errorf("the run's screen has last epoch %d, want the table's %d", m.detail.opts.Epochs, sweepLength)
 	}
+	// The second row is a finished run: its forecast, which would look
+	// past its end, starts hidden.
+	if r, _ := m.tab.row(opened[0]); r.State != sweep.Finished || m.detail.showForecast {
+		t.Errorf("run %s (%v) opened with the forecast shown %v; want a finished run, forecast hidden", r.Name, r.State, m.detail.showForecast)
+	}
 	id := opened[0]
 	pts := runs[id].spec.points()
 	var js []diagnose.Judgement

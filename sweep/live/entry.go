@@ -35,8 +35,10 @@ type entry struct {
 	// batches that brought points, for the run's pace.
 	added    time.Time
 	arrivals []time.Time
-	// read: the first batch came, so the log was read to its end once.
-	read bool
+	// read: the first batch came, so the log was read to its end once;
+	// readErr is why the log could not be read (Load).
+	read    bool
+	readErr string
 	// The run's forecast (forecasts.go): fcStale says points came since
 	// the last one, made at fcAt; epochs is the last epoch the pipeline
 	// was told (pipeline.Run.SetEpochs).

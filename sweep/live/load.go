@@ -63,8 +63,15 @@ func (s *Sweep) Load(ctx context.Context) error {
 		}
 	}
 	if judged == 0 && ctx.Err() == nil {
+		// The first run's reason, whichever worker read it first.
 		why := ""
-		if len(s.notices) > 0 {
+		for _, e := range runs {
+			if e.readErr != "" {
+				why = "; " + e.readErr
+				break
+			}
+		}
+		if why == "" && len(s.notices) > 0 {
 			why = "; " + s.notices[0]
 		}
 		return fmt.Errorf("%s: no evaluation points in the %d run(s) found%s", s.finder.Root(), len(runs), why)
@@ -79,7 +86,8 @@ func (s *Sweep) loadOne(ctx context.Context, e *entry) {
 	batches, err := watch.Follow(ctx, e.found.Path, opts)
 	if err != nil {
 		s.mu.Lock()
-		s.notice(fmt.Sprintf("%s: %v", e.found.Name, err))
+		e.readErr = watch.Sanitize(fmt.Sprintf("%s: %v", e.found.Name, err))
+		s.notice(e.readErr)
 		e.read = true
 		s.read++
 		s.mu.Unlock()
