@@ -29,6 +29,9 @@ type SweepSource interface {
 	// Progress says how many runs' logs were read to their end once, of
 	// how many found.
 	Progress() (read, total int)
+	// Forecasts says how many runs have had a forecast made, of how many
+	// want one.
+	Forecasts() (made, wanted int)
 }
 
 // RunScreen is a run opened from the table: its judged history and a feed

@@ -45,6 +45,8 @@ type snapshot struct {
 	pollWhy   string
 	read      int
 	total     int
+	// forecast of wanted runs have had a forecast made.
+	forecast, wanted int
 	// curves are the validation curves of the runs the chart shows.
 	curves map[int][]chart.Point
 }
@@ -84,6 +86,7 @@ func (t *tableState) read(src SweepSource) {
 	s.notices = src.Notices()
 	s.polled, s.pollWhy = src.Polling()
 	s.read, s.total = src.Progress()
+	s.forecast, s.wanted = src.Forecasts()
 	t.snap = s
 	t.reorder()
 	want := t.chartRuns()

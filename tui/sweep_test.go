@@ -25,6 +25,8 @@ type fakeSweep struct {
 	polled   int
 	why      string
 	unread   int
+	// forecast of wanted runs were forecast (0 of 0 unless a test says).
+	forecast, wanted int
 }
 
 func (f *fakeSweep) Read(fn func(*sweep.Sweep)) {
@@ -36,6 +38,7 @@ func (f *fakeSweep) Notices() []string                 { return f.notices }
 func (f *fakeSweep) Polling() (int, string)            { return f.polled, f.why }
 func (f *fakeSweep) DataOptions() forecast.DataOptions { return forecast.DataOptions{} }
 func (f *fakeSweep) Progress() (int, int)              { return f.s.Len() - f.unread, f.s.Len() }
+func (f *fakeSweep) Forecasts() (int, int)             { return f.forecast, f.wanted }
 
 // sweepRun is an invented run of a sweep.
 type sweepRun struct {
@@ -349,6 +352,12 @@ func TestSweepView_Notices(t *testing.T) {
 	}
 	if strings.ContainsAny(v, "\x1b\x07") {
 		t.Errorf("escape sequences reached the screen: %q", v)
+	}
+	// Once every log is read, the forecasts still to make.
+	src.unread, src.forecast, src.wanted = 0, 1, 4
+	m = sendSweep(t, sendSweep(t, m, SweepMsg{}), sweepFrameMsg{})
+	if v := m.View(); !strings.Contains(v, "forecasting 1/4") || strings.Contains(v, "reading") {
+		t.Errorf("no forecasting progress:\n%s", v)
 	}
 }
 

@@ -168,6 +168,8 @@ func (m *SweepModel) statusLine() string {
 	parts := []string{strconv.Itoa(len(t.snap.rows)) + " runs"}
 	if t.snap.read < t.snap.total {
 		parts = append(parts, st.Watch.Render("reading "+strconv.Itoa(t.snap.read)+"/"+strconv.Itoa(t.snap.total)))
+	} else if t.snap.forecast < t.snap.wanted {
+		parts = append(parts, st.Watch.Render("forecasting "+strconv.Itoa(t.snap.forecast)+"/"+strconv.Itoa(t.snap.wanted)))
 	}
 	for _, s := range []sweep.State{sweep.Live, sweep.Quiet, sweep.Finished, sweep.Waiting, sweep.Removed} {
 		if n := counts[s]; n > 0 {

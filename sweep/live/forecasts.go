@@ -136,6 +136,25 @@ func (s *Sweep) keep(ms []made, now time.Time) {
 	}
 }
 
+// Forecasts says how many runs have had a forecast made, of how many
+// want one (not finished, with a validation value): the table's forecast
+// column is complete when they are equal.
+func (s *Sweep) Forecasts() (made, wanted int) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	rows := s.dom.Rows()
+	for _, e := range s.runs {
+		if e.id < len(rows) && rows[e.id].State == sweep.Finished || s.dom.Curve(e.id).Len() == 0 {
+			continue
+		}
+		wanted++
+		if !e.fcAt.IsZero() {
+			made++
+		}
+	}
+	return made, wanted
+}
+
 // markFinished closes the done channel of every run the last evaluation
 // found finished. s.mu is held.
 func (s *Sweep) markFinished() {
