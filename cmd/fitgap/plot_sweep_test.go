@@ -176,3 +176,24 @@ func TestReportDir_PlotRefused(t *testing.T) {
 		t.Errorf("the log changed: %q", b)
 	}
 }
+
+// TestReportDir_PlotNothingToDraw: runs without a validation value leave
+// nothing to draw: the report is printed whole, without the picture, and
+// the status is 1 with the reason.
+func TestReportDir_PlotNothingToDraw(t *testing.T) {
+	t.Parallel()
+	root := t.TempDir()
+	for _, r := range []string{"a", "b"} {
+		os.MkdirAll(filepath.Join(root, r), 0o755)
+		writeFile(t, filepath.Join(root, r, "metrics.csv"), "epoch,loss\n1,0.9\n2,0.8\n3,0.7\n")
+	}
+	plain, _, _ := runCLI(t, "", "report", root)
+	pic := filepath.Join(t.TempDir(), "p.svg")
+	md, stderr, code := runCLI(t, "", "report", "--plot", pic, root)
+	if code != 1 || md != plain || !strings.Contains(stderr, "no evaluation point to draw") {
+		t.Errorf("exit %d, stderr %q; want 1, the reason, and the plain report:\n%s", code, stderr, md)
+	}
+	if _, err := os.Stat(pic); err == nil {
+		t.Error("a picture was written")
+	}
+}
