@@ -23,7 +23,10 @@ import (
 //   - a run forecast before waits at least forecastEvery, and such
 //     refreshes come at most refreshRate a second, the longest waiting
 //     first: a few runs that log an epoch a second are forecast at each
-//     epoch, a hundred every five seconds, for about 1 % of a core.
+//     epoch, a hundred every ten seconds, for about half a percent of a
+//     core (bench/sweep.sh, 100 runs appending: with 20 a second the run
+//     table took 9.5–9.8 % of a core against 7.5 % without forecasts, near
+//     the 10 % it may take).
 //
 // A forecast is made by the run's pipeline (pipeline.Run.Forecast, with
 // its learning rates and last epoch), outside the sweep's lock.
@@ -32,9 +35,9 @@ const (
 	// while following. Unit: time.
 	forecastEvery = time.Second
 	// refreshRate is how many runs already forecast are forecast again
-	// per second at most: 20 × 0.4 ms is under 1 % of a core. Unit:
-	// forecasts per second.
-	refreshRate = 20
+	// per second at most: 10 × 0.4 ms is under half a percent of a core.
+	// Unit: forecasts per second.
+	refreshRate = 10
 	// forecastBudget is the most time one evaluation spends forecasting
 	// (about 50 forecasts of 300 epochs); evaluations come at most ten a
 	// second. Unit: time.
