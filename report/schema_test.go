@@ -145,14 +145,24 @@ func marshalSchema(t *testing.T, s *jsonschema.Schema) []byte {
 func TestSchema_UpToDate(t *testing.T) {
 	report := schemaFor(t, &Document{}, "fitgap report --json")
 	stop := schemaFor(t, &diagnose.StopJSON{}, "fitgap stop file")
-	for _, f := range []struct {
-		path string
-		got  []byte
-	}{
-		{reportSchemaPath, marshalSchema(t, report)},
-		{stopSchemaPath, marshalSchema(t, stop)},
-		{keysDocPath, keysMarkdown(report, stop)},
-	} {
+	checkGenerated(t,
+		generated{reportSchemaPath, marshalSchema(t, report)},
+		generated{stopSchemaPath, marshalSchema(t, stop)},
+		generated{keysDocPath, keysMarkdown(report, stop)})
+}
+
+// generated is a file made from the Go types: its path and what the types
+// make of it now.
+type generated struct {
+	path string
+	got  []byte
+}
+
+// checkGenerated writes the files with -update, and otherwise fails when
+// one is out of step with the types.
+func checkGenerated(t *testing.T, files ...generated) {
+	t.Helper()
+	for _, f := range files {
 		if *update {
 			if err := os.WriteFile(f.path, f.got, 0o644); err != nil {
 				t.Fatal(err)
@@ -169,24 +179,27 @@ func TestSchema_UpToDate(t *testing.T) {
 	}
 }
 
+// compileSchema compiles a published schema with the independent
+// validator.
+func compileSchema(t *testing.T, path string) *validator.Schema {
+	t.Helper()
+	abs, err := filepath.Abs(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := validator.NewCompiler().Compile(abs)
+	if err != nil {
+		t.Fatalf("compile %s: %v", path, err)
+	}
+	return s
+}
+
 // TestSchema_ValidatesOutput validates the summaries, the golden files
 // and a stop file against the published schemas with an independent
 // implementation of JSON Schema 2020-12. Source: JSON Schema 2020-12
 // (json-schema.org), as implemented by santhosh-tekuri/jsonschema v6.
 func TestSchema_ValidatesOutput(t *testing.T) {
-	compile := func(path string) *validator.Schema {
-		t.Helper()
-		c := validator.NewCompiler()
-		abs, err := filepath.Abs(path)
-		if err != nil {
-			t.Fatal(err)
-		}
-		s, err := c.Compile(abs)
-		if err != nil {
-			t.Fatalf("compile %s: %v", path, err)
-		}
-		return s
-	}
+	compile := func(path string) *validator.Schema { return compileSchema(t, path) }
 	reportSchema := compile(reportSchemaPath)
 	check := func(name string, s *validator.Schema, doc []byte) {
 		t.Helper()

@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 
@@ -32,28 +31,10 @@ func sweepSchemas(t *testing.T) (doc, line *jsonschema.Schema) {
 
 func TestSweepSchema_UpToDate(t *testing.T) {
 	doc, line := sweepSchemas(t)
-	for _, f := range []struct {
-		path string
-		got  []byte
-	}{
-		{sweepSchemaPath, marshalSchema(t, doc)},
-		{sweepLineSchemaPath, marshalSchema(t, line)},
-		{sweepKeysDocPath, sweepKeysMarkdown(doc, line)},
-	} {
-		if *update {
-			if err := os.WriteFile(f.path, f.got, 0o644); err != nil {
-				t.Fatal(err)
-			}
-			continue
-		}
-		want, err := os.ReadFile(f.path)
-		if err != nil {
-			t.Fatalf("read %s (go test ./report -update writes it): %v", f.path, err)
-		}
-		if !bytes.Equal(f.got, want) {
-			t.Errorf("%s is out of step with the Go types it is generated from: go test ./report -update rewrites it", f.path)
-		}
-	}
+	checkGenerated(t,
+		generated{sweepSchemaPath, marshalSchema(t, doc)},
+		generated{sweepLineSchemaPath, marshalSchema(t, line)},
+		generated{sweepKeysDocPath, sweepKeysMarkdown(doc, line)})
 }
 
 // TestSweepSchema_ValidatesOutput validates the invented sweep's JSON and
@@ -62,18 +43,6 @@ func TestSweepSchema_UpToDate(t *testing.T) {
 // Source: JSON Schema 2020-12 (json-schema.org), as implemented by
 // santhosh-tekuri/jsonschema v6.
 func TestSweepSchema_ValidatesOutput(t *testing.T) {
-	compile := func(path string) *validator.Schema {
-		t.Helper()
-		abs, err := filepath.Abs(path)
-		if err != nil {
-			t.Fatal(err)
-		}
-		s, err := validator.NewCompiler().Compile(abs)
-		if err != nil {
-			t.Fatalf("compile %s: %v", path, err)
-		}
-		return s
-	}
 	valid := func(s *validator.Schema, doc []byte) error {
 		t.Helper()
 		v, err := validator.UnmarshalJSON(bytes.NewReader(doc))
@@ -82,7 +51,7 @@ func TestSweepSchema_ValidatesOutput(t *testing.T) {
 		}
 		return s.Validate(v)
 	}
-	docSchema, lineSchema := compile(sweepSchemaPath), compile(sweepLineSchemaPath)
+	docSchema, lineSchema := compileSchema(t, sweepSchemaPath), compileSchema(t, sweepLineSchemaPath)
 	golden, err := os.ReadFile("testdata/sweep/report.json")
 	if err != nil {
 		t.Fatal(err)
