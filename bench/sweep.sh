@@ -9,7 +9,8 @@
 #   - report DIR: wall time, CPU and peak RSS (median of 3), against
 #     reading the same logs with cat | wc -l in the same run;
 #   - the run table (fitgap DIR in a 200×50 tmux pane): the time to the
-#     first complete table (every run read, none left "reading"), idle CPU
+#     first complete table (every run read, none left "reading"), to every
+#     run's first forecast (none left "forecasting"), idle CPU
 #     over 30 s, CPU while 100 runs each append an epoch a second, the
 #     write-to-screen latency of one run's new epoch (capture-pane every
 #     2 ms), and peak RSS; once with inotify and once with --poll 2s.

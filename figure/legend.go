@@ -32,7 +32,9 @@ func drawKeys(c draw.Canvas, r vg.Rectangle, keys []key, t vgText) vg.Length {
 		rows = t.lineHeight()
 	}
 	for _, k := range keys {
-		w := t.width(k.label)
+		// The room fit leaves a label: an entry that fits no more wraps,
+		// rather than lose its start (a rank) to "…".
+		w := t.width(k.label) / textRoom
 		if !k.muted {
 			w += swatchWidth + 4
 		}

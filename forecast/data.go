@@ -45,32 +45,23 @@ const MinSizes = 4
 // ICLR 2020). Intervals are at Level, from the fit's covariance with a
 // Student-t quantile for the residual degrees of freedom.
 type DataForecast struct {
-	Status   Status  `json:"status"`
-	Reason   string  `json:"reason,omitempty"`
-	Fraction bool    `json:"fraction"`
-	Level    float64 `json:"level"`
-	// Runs and Sizes count the runs fitted and their distinct sizes;
-	// Largest is the largest size.
-	Runs    int     `json:"runs"`
-	Sizes   int     `json:"sizes"`
-	Largest float64 `json:"largest"`
-	// A, B and Floor are the parameters a, b and c of the law.
-	A     Interval `json:"a"`
-	B     Interval `json:"b"`
-	Floor Interval `json:"floor"`
-	// Doubled is the best value a run on twice the largest size would
-	// reach (the interval holds a new run, its scatter included); Gain is
-	// the expected change of the law from Largest to twice it (negative
-	// is better).
-	Doubled Interval `json:"doubled"`
-	Gain    Interval `json:"gain"`
-	// Need answers DataOptions.Target, when given.
-	Need *DataNeed `json:"need,omitempty"`
-	// Optimal is the optimal error given, and FloorAbove says the floor's
-	// interval lies more than the tolerance above it: the model family,
-	// not the amount of data, limits the error.
-	Optimal    diagnose.Num `json:"optimal"`
-	FloorAbove bool         `json:"floor_above_optimal"`
+	Status   Status   `json:"status"`           // whether the law was fitted, and if not, why
+	Reason   string   `json:"reason,omitempty"` // why there is no forecast; absent when there is one
+	Fraction bool     `json:"fraction"`         // the values are error rates (fractions)
+	Level    float64  `json:"level"`            // the probability of every interval (0.8)
+	Runs     int      `json:"runs"`             // the runs fitted: the best run of each size
+	Sizes    int      `json:"sizes"`            // their distinct training-set sizes
+	Largest  float64  `json:"largest"`          // the largest training-set size fitted
+	A        Interval `json:"a"`                // the law's a, with its interval
+	B        Interval `json:"b"`                // the law's exponent b
+	Floor    Interval `json:"floor"`            // the law's c: the floor more data approaches
+	// the best value a run on twice the largest size would reach (the interval holds a new run, its scatter included)
+	Doubled Interval     `json:"doubled"`
+	Gain    Interval     `json:"gain"`           // the expected change of the law from the largest size to twice it (negative is better)
+	Need    *DataNeed    `json:"need,omitempty"` // the size a target value needs, when a target is given
+	Optimal diagnose.Num `json:"optimal"`        // the optimal error given; null when none
+	// the floor's interval lies more than the tolerance above the optimal error: the model family, not the amount of data, limits the error
+	FloorAbove bool `json:"floor_above_optimal"`
 
 	law      powerLaw
 	cov      []float64 // (JᵀJ)⁻¹ of the law's parameters
@@ -99,12 +90,9 @@ func (f *DataForecast) At(m float64) (iv Interval, ok bool) {
 
 // DataNeed is the training-set size that reaches a target value.
 type DataNeed struct {
-	Target float64 `json:"target"`
-	// Reachable is false when the floor itself is at or above the target.
-	Reachable bool `json:"reachable"`
-	// Size is the size needed; Hi is +Inf (null in JSON) when the
-	// floor's interval reaches the target.
-	Size Interval `json:"size"`
+	Target    float64  `json:"target"`    // the value aimed at
+	Reachable bool     `json:"reachable"` // false when the floor itself is at or above the target
+	Size      Interval `json:"size"`      // the training-set size needed; hi null when the floor's interval reaches the target
 }
 
 // powerLaw is ε(m) = a·m^(−b) + c.

@@ -114,6 +114,19 @@ func (r *Run) targetAt(i int) int {
 	return r.opts.Epochs
 }
 
+// SetEpochs sets the run's last epoch when the log announces none
+// (Options.Epochs): a sweep learns a run's length from its
+// hyperparameters, which may come after the run was made. A change drops
+// the forecasts kept.
+func (r *Run) SetEpochs(n int) {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	if r.opts.Epochs != n {
+		r.opts.Epochs = n
+		r.cached = [2]cachedForecast{}
+	}
+}
+
 // Forecast returns the forecast of split ("what more epochs would buy")
 // as of the latest point; see ForecastAt.
 func (r *Run) Forecast(split diagnose.Split) forecast.Forecast {

@@ -15,6 +15,7 @@ import (
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/forecast"
+	"github.com/fitgap/fitgap/sweep"
 )
 
 // The published schemas are generated from the Go types of the JSON forms
@@ -40,6 +41,8 @@ func schemaFor(t *testing.T, v any, title string) *jsonschema.Schema {
 	for _, dir := range []struct{ pkg, path string }{
 		{"github.com/fitgap/fitgap/diagnose", "../diagnose"},
 		{"github.com/fitgap/fitgap/report", "."},
+		{"github.com/fitgap/fitgap/sweep", "../sweep"},
+		{"github.com/fitgap/fitgap/forecast", "../forecast"},
 	} {
 		if err := r.AddGoComments(dir.pkg, dir.path); err != nil {
 			t.Fatalf("read the comments of %s: %v", dir.path, err)
@@ -93,6 +96,22 @@ func mapType(t reflect.Type) *jsonschema.Schema {
 		return enum(diagnose.Progresses(), diagnose.Progress.Description)
 	case reflect.TypeOf(diagnose.Signal(0)):
 		return enum(diagnose.Signals(), diagnose.Signal.Description)
+	case reflect.TypeOf(forecast.Interval{}):
+		// Its MarshalJSON writes null for a bound that is not finite.
+		o := &jsonschema.Schema{Type: "object", Properties: jsonschema.NewProperties(), Required: []string{"value", "lo", "hi"},
+			AdditionalProperties: jsonschema.FalseSchema}
+		for _, k := range []struct{ key, about string }{
+			{"value", "the expected value"}, {"lo", "the lower end; null when unbounded"}, {"hi", "the upper end; null when unbounded"},
+		} {
+			n := nullable(&jsonschema.Schema{Type: "number"})
+			n.Description = k.about
+			o.Properties.Set(k.key, n)
+		}
+		return o
+	case reflect.TypeOf(sweep.State(0)):
+		return enum(sweep.States(), sweep.State.Description)
+	case reflect.TypeOf(sweep.Rule(0)):
+		return enum(sweep.Rules(), func(r sweep.Rule) string { return r.Phrase() + " — " + r.Source() })
 	case reflect.TypeOf(forecast.Status(0)):
 		return enum(forecast.Statuses(), forecast.Status.Description)
 	case reflect.TypeOf(forecast.BreakCause(0)):
@@ -128,14 +147,24 @@ func marshalSchema(t *testing.T, s *jsonschema.Schema) []byte {
 func TestSchema_UpToDate(t *testing.T) {
 	report := schemaFor(t, &Document{}, "fitgap report --json")
 	stop := schemaFor(t, &diagnose.StopJSON{}, "fitgap stop file")
-	for _, f := range []struct {
-		path string
-		got  []byte
-	}{
-		{reportSchemaPath, marshalSchema(t, report)},
-		{stopSchemaPath, marshalSchema(t, stop)},
-		{keysDocPath, keysMarkdown(report, stop)},
-	} {
+	checkGenerated(t,
+		generated{reportSchemaPath, marshalSchema(t, report)},
+		generated{stopSchemaPath, marshalSchema(t, stop)},
+		generated{keysDocPath, keysMarkdown(report, stop)})
+}
+
+// generated is a file made from the Go types: its path and what the types
+// make of it now.
+type generated struct {
+	path string
+	got  []byte
+}
+
+// checkGenerated writes the files with -update, and otherwise fails when
+// one is out of step with the types.
+func checkGenerated(t *testing.T, files ...generated) {
+	t.Helper()
+	for _, f := range files {
 		if *update {
 			if err := os.WriteFile(f.path, f.got, 0o644); err != nil {
 				t.Fatal(err)
@@ -152,24 +181,27 @@ func TestSchema_UpToDate(t *testing.T) {
 	}
 }
 
+// compileSchema compiles a published schema with the independent
+// validator.
+func compileSchema(t *testing.T, path string) *validator.Schema {
+	t.Helper()
+	abs, err := filepath.Abs(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := validator.NewCompiler().Compile(abs)
+	if err != nil {
+		t.Fatalf("compile %s: %v", path, err)
+	}
+	return s
+}
+
 // TestSchema_ValidatesOutput validates the summaries, the golden files
 // and a stop file against the published schemas with an independent
 // implementation of JSON Schema 2020-12. Source: JSON Schema 2020-12
 // (json-schema.org), as implemented by santhosh-tekuri/jsonschema v6.
 func TestSchema_ValidatesOutput(t *testing.T) {
-	compile := func(path string) *validator.Schema {
-		t.Helper()
-		c := validator.NewCompiler()
-		abs, err := filepath.Abs(path)
-		if err != nil {
-			t.Fatal(err)
-		}
-		s, err := c.Compile(abs)
-		if err != nil {
-			t.Fatalf("compile %s: %v", path, err)
-		}
-		return s
-	}
+	compile := func(path string) *validator.Schema { return compileSchema(t, path) }
 	reportSchema := compile(reportSchemaPath)
 	check := func(name string, s *validator.Schema, doc []byte) {
 		t.Helper()

@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/forecast"
 	"github.com/fitgap/fitgap/sweep"
 )
 
@@ -21,20 +22,32 @@ type SweepReport struct {
 	// Completed counts the finished runs the median rule compares with.
 	Completed int
 	Notices   []string
+	// Picture is the path of the sweep's picture (report DIR --plot),
+	// relative to where the Markdown goes; empty for none.
+	Picture string
 }
 
 // SweepDocument is the JSON form of a sweep report: the sweep's summary
 // and one object per run (its row, and its run summary as report --json
 // writes it for one log).
 type SweepDocument struct {
-	Sweep sweep.SummaryJSON `json:"sweep"`
-	Runs  []SweepRunJSON    `json:"runs"`
+	Sweep sweep.SummaryJSON `json:"sweep"` // what the sweep as a whole says
+	Runs  []SweepRunJSON    `json:"runs"`  // every run, in the table's order: ranked runs first
 }
 
 // SweepRunJSON is one run of a SweepDocument.
 type SweepRunJSON struct {
 	sweep.RowJSON
-	Summary *Document `json:"summary,omitempty"`
+	Summary *Document `json:"summary,omitempty"` // the run's summary: the keys of report --json for its log (report-json.md)
+}
+
+// SweepLine is one line of follow DIR: the run, the keys of report --json
+// as of the point, the time, and the run's row in the sweep then.
+type SweepLine struct {
+	Run string `json:"run"` // the run's name: its path from the sweep's common root
+	Document
+	Time  string         `json:"time"`            // when the line was written: UTC, RFC 3339 with milliseconds
+	Sweep *sweep.RowJSON `json:"sweep,omitempty"` // the run's row in the sweep as of the point: state, rank, flags, forecast
 }
 
 // Document returns the JSON form.
@@ -77,6 +90,9 @@ func (r SweepReport) Markdown() string {
 		b.WriteString("- Note: " + inline(n) + "\n")
 	}
 	b.WriteString("\n")
+	if r.Picture != "" {
+		b.WriteString("![Validation curves of the sweep " + inline(orDash(r.Root)) + "](" + pictureURL(r.Picture) + ")\n\n")
+	}
 	r.writeTable(&b)
 	var flagged []string
 	for _, row := range r.Rows {
@@ -92,7 +108,7 @@ func (r SweepReport) Markdown() string {
 
 // writeTable writes the ranked table.
 func (r SweepReport) writeTable(b *strings.Builder) {
-	head := []string{"#", "run", "state", "epoch", "best (epoch)", "now", "diagnosis", "signal"}
+	head := []string{"#", "run", "state", "epoch", "best (epoch)", "now", "forecast at the end", "diagnosis", "signal"}
 	head = append(head, r.Summary.Differing...)
 	head = append(head, "hopeless")
 	b.WriteString("| " + strings.Join(escapeAll(head), " | ") + " |\n|")
@@ -102,7 +118,7 @@ func (r SweepReport) writeTable(b *strings.Builder) {
 	b.WriteString("\n")
 	for _, row := range r.Rows {
 		cells := []string{orDash(rankText(row.Rank)), row.Name, row.State.String(), EpochText(row.Epoch, row.Total),
-			BestText(row), sweepValue(row.Now, row.Metric), DiagnosisText(row), signalText(row)}
+			BestText(row), sweepValue(row.Now, row.Metric), ForecastText(row, false), DiagnosisText(row), signalText(row)}
 		for _, k := range r.Summary.Differing {
 			v, _ := row.Params.Get(k)
 			cells = append(cells, orDash(v))
@@ -153,6 +169,35 @@ func sweepValue(n diagnose.Num, m diagnose.Metric) string {
 	return sweep.FormatValue(n.V, m.Fraction)
 }
 
+// ForecastText is the run's validation forecast at its last epoch with
+// its interval: "6.5% [4.0, 9.1]"; when the run's length is unknown the
+// forecast looks as many epochs ahead as it fitted, and says to which
+// epoch ("6.5% [4.0, 9.1] at epoch 80", short "… @80"). "–" for a
+// finished run or before the first forecast; "– " and why there is none,
+// in a word (short, for the screen's column: "– turned") or a few.
+func ForecastText(row sweep.Row, short bool) string {
+	f := row.Forecast
+	switch {
+	case f == nil:
+		return "–"
+	case f.Status != forecast.OK:
+		if short {
+			return "– " + f.Status.String()
+		}
+		return "– " + f.Status.Phrase()
+	}
+	bare := func(v float64) string { return strings.TrimSuffix(sweep.FormatValue(v, row.Metric.Fraction), "%") }
+	s := sweep.FormatValue(f.At.Value, row.Metric.Fraction) + " [" + bare(f.At.Lo) + ", " + bare(f.At.Hi) + "]"
+	switch {
+	case f.TargetGiven:
+	case short:
+		s += " @" + strconv.Itoa(f.Target)
+	default:
+		s += " at epoch " + strconv.Itoa(f.Target)
+	}
+	return s
+}
+
 // DiagnosisText is the diagnosis in a word or two, "–" before any.
 func DiagnosisText(row sweep.Row) string {
 	if !row.Judged {
@@ -179,7 +224,8 @@ func FlagsShort(row sweep.Row) string {
 
 // RulesText says which rules flag runs and how the median rule stands:
 // "median rule (against 4 finished runs) · rungs at epochs 3, 9, 27, …
-// (η = 3)".
+// (η = 3) · forecast rule (a chance below 5.0% to beat the best other
+// run)".
 func RulesText(r sweep.RulesJSON, completed int) string {
 	var parts []string
 	if r.Median {
@@ -198,6 +244,9 @@ func RulesText(r sweep.RulesJSON, completed int) string {
 			}
 		}
 		parts = append(parts, "rungs at epochs "+strings.Join(es, ", ")+", … (η = "+strconv.Itoa(r.Eta)+")")
+	}
+	if r.Forecast {
+		parts = append(parts, "forecast rule (a chance below "+diagnose.Percent(r.Delta)+"% to beat the best other run)")
 	}
 	if len(parts) == 0 {
 		return "none"

@@ -2,6 +2,7 @@ package sweep
 
 import (
 	"strconv"
+	"strings"
 
 	"github.com/fitgap/fitgap/diagnose"
 )
@@ -14,11 +15,15 @@ const (
 	RuleMedian Rule = iota
 	// RuleRungs is successive halving's rungs, asynchronous form (halving.go).
 	RuleRungs
+	// RuleForecast is the forecast's chance to beat the best other run
+	// (reach.go).
+	RuleForecast
 )
 
 var ruleNames = [...]struct{ name, phrase, source string }{
-	RuleMedian: {"median", "median rule", "Golovin et al., KDD 2017"},
-	RuleRungs:  {"rungs", "rungs", "successive halving: Jamieson & Talwalkar, AISTATS 2016; asynchronous: Li et al., MLSys 2020"},
+	RuleMedian:   {"median", "median rule", "Golovin et al., KDD 2017"},
+	RuleRungs:    {"rungs", "rungs", "successive halving: Jamieson & Talwalkar, AISTATS 2016; asynchronous: Li et al., MLSys 2020"},
+	RuleForecast: {"forecast", "forecast rule", "Domhan, Springenberg & Hutter, IJCAI 2015"},
 }
 
 // String is the rule's machine name ("median"), as JSON and --rules write it.
@@ -49,7 +54,7 @@ func (r Rule) Source() string {
 func (r Rule) MarshalText() ([]byte, error) { return []byte(r.String()), nil }
 
 // Rules lists every rule.
-func Rules() []Rule { return []Rule{RuleMedian, RuleRungs} }
+func Rules() []Rule { return []Rule{RuleMedian, RuleRungs, RuleForecast} }
 
 // ParseRule reads a rule's name.
 func ParseRule(s string) (Rule, bool) {
@@ -65,14 +70,18 @@ func ParseRule(s string) (Rule, bool) {
 // behind it. Value and Bar are in the judged metric (lower is better).
 type Flag struct {
 	Rule Rule
-	// Epoch is the epoch judged: the run's latest (median rule) or the
-	// rung's (rungs).
+	// Epoch is the epoch judged: the run's latest (median rule), the
+	// rung's (rungs), or the run's last epoch, forecast (forecast rule).
 	Epoch int
-	// Value is the run's number: its best value by Epoch (median rule) or
-	// its value at the rung. Bar is what it had to beat: the median of the
-	// finished runs' running means, or the value of the last run kept at
-	// the rung.
+	// Value is the run's number: its best value by Epoch (median rule),
+	// its value at the rung, or its forecast value at Epoch. Bar is what
+	// it had to beat: the median of the finished runs' running means, the
+	// value of the last run kept at the rung, or the best other run's best
+	// value.
 	Value, Bar float64
+	// Lo and Hi are the forecast's interval around Value, and Chance the
+	// probability that the run ends below Bar (forecast rule).
+	Lo, Hi, Chance float64
 	// Count is how many finished runs made the median, or how many runs
 	// reached the rung.
 	Count int
@@ -94,20 +103,37 @@ func (f Flag) Text(metric diagnose.Metric) string {
 		return "rung " + strconv.Itoa(f.Rung+1) + " (epoch " + strconv.Itoa(f.Epoch) + "): " + v(f.Value) +
 			", " + ordinal(f.Place) + " of " + strconv.Itoa(f.Count) + "; only the top " +
 			strconv.Itoa(f.Keep) + " (1/η) go on, the last at " + v(f.Bar)
+	case RuleForecast:
+		bare := func(x float64) string { return strings.TrimSuffix(v(x), "%") }
+		return "forecast rule: " + v(f.Value) + " [" + bare(f.Lo) + ", " + bare(f.Hi) + "] at epoch " +
+			strconv.Itoa(f.Epoch) + ", a " + ChanceText(f.Chance) + " chance to beat the best other run's " +
+			v(f.Bar) + " (below δ = " + diagnose.Percent(Delta) + "%)"
 	}
 	return f.Rule.String()
 }
 
-// Short says the flag in a few words for a table cell: "median 12",
-// "rung 2: 7/12".
+// Short says the flag in a few words for a table cell: "median@12",
+// "rung2 7/12", "fcst 2.3%".
 func (f Flag) Short() string {
 	switch f.Rule {
 	case RuleMedian:
 		return "median@" + strconv.Itoa(f.Epoch)
 	case RuleRungs:
 		return "rung" + strconv.Itoa(f.Rung+1) + " " + strconv.Itoa(f.Place) + "/" + strconv.Itoa(f.Count)
+	case RuleForecast:
+		return "fcst " + ChanceText(f.Chance)
 	}
 	return f.Rule.String()
+}
+
+// ChanceText prints a probability in percent ("2.3%", "0.45%"), and one
+// that would print as zero as "<0.01%": a forecast never makes a run's
+// chance nil, only small.
+func ChanceText(p float64) string {
+	if p < 0.0001 {
+		return "<0.01%"
+	}
+	return diagnose.Percent(p) + "%"
 }
 
 // FormatValue prints a value of the judged metric: percent for a

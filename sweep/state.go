@@ -29,6 +29,25 @@ var stateNames = [...]string{
 	Removed:  "removed",
 }
 
+var stateAbout = [...]string{
+	Waiting:  "the run is known but its log holds no epoch yet",
+	Live:     "the log was written lately",
+	Quiet:    "no write for three usual epoch intervals (at least 10 s): stopped or hung",
+	Finished: "the run reached its last epoch, its writer ended, or it went quiet after its own stop signal",
+	Removed:  "the log was deleted or moved away; what was read is kept",
+}
+
+// States lists every state, in order.
+func States() []State { return []State{Waiting, Live, Quiet, Finished, Removed} }
+
+// Description says what the state means (the JSON reference).
+func (s State) Description() string {
+	if int(s) < len(stateAbout) {
+		return stateAbout[s]
+	}
+	return s.String()
+}
+
 // String names the state ("quiet").
 func (s State) String() string {
 	if int(s) < len(stateNames) {

@@ -2,6 +2,7 @@ package sweep
 
 import (
 	"cmp"
+	"math"
 	"slices"
 	"sort"
 	"strings"
@@ -11,16 +12,20 @@ import (
 	"github.com/fitgap/fitgap/forecast"
 )
 
-// Config chooses the rules that flag hopeless runs.
+// Config chooses the rules that flag hopeless runs, and the runs' length
+// when nothing else says it.
 type Config struct {
-	// Median and UseRungs switch the rules on.
-	Median, UseRungs bool
-	Rungs            Rungs
+	// Median, UseRungs and UseForecast switch the rules on.
+	Median, UseRungs, UseForecast bool
+	Rungs                         Rungs
+	// Epochs is every run's last epoch when neither its log nor its
+	// hyperparameters say it (--epochs); 0 for unknown.
+	Epochs int
 }
 
-// DefaultConfig has both rules on with the default rungs.
+// DefaultConfig has every rule on with the default rungs.
 func DefaultConfig() Config {
-	return Config{Median: true, UseRungs: true, Rungs: Rungs{First: DefaultFirstRung, Eta: DefaultEta}}
+	return Config{Median: true, UseRungs: true, UseForecast: true, Rungs: Rungs{First: DefaultFirstRung, Eta: DefaultEta}}
 }
 
 // Observation is what the caller knows of a run after a batch: its
@@ -59,6 +64,15 @@ type run struct {
 	length     int
 	rungVals   []float64 // value at rung k; NaN: not reached
 	rungsStale bool
+	// fc is the run's validation forecast with its fit (nil before any),
+	// bare its copy without the fit that rows hand out; reach is the
+	// forecast rule's verdict against the bar it was worked out for
+	// (reachBar; NaN: to work out again).
+	fc       *forecast.Forecast
+	bare     *forecast.Forecast
+	reach    ReachCheck
+	reachOK  bool
+	reachBar float64
 }
 
 // Sweep holds the runs of a sweep and judges them side by side. It is not
@@ -103,8 +117,8 @@ func (s *Sweep) Config() Config { return s.cfg }
 
 // Add adds a run and returns its id (0, 1, …). name is untrusted text.
 func (s *Sweep) Add(name string, p Params) int {
-	r := &run{name: name, params: Sorted(append(Params(nil), p...)), rungsStale: true}
-	r.length = r.total()
+	r := &run{name: name, params: Sorted(append(Params(nil), p...)), rungsStale: true, reachBar: math.NaN()}
+	r.length = s.total(r)
 	s.runs = append(s.runs, r)
 	s.dirty, s.paramsDirty = true, true
 	return len(s.runs) - 1
@@ -120,7 +134,7 @@ func (s *Sweep) Name(id int) string { return s.runs[id].name }
 func (s *Sweep) SetParams(id int, p Params) {
 	r := s.runs[id]
 	r.params = Sorted(append(Params(nil), p...))
-	r.length = r.total()
+	r.length = s.total(r)
 	s.dirty, s.paramsDirty = true, true
 }
 
@@ -131,7 +145,24 @@ func (s *Sweep) Params(id int) Params { return s.runs[id].params }
 func (s *Sweep) Observe(id int, o Observation) {
 	r := s.runs[id]
 	r.obs = o
-	r.length = r.total()
+	r.length = s.total(r)
+	s.dirty = true
+}
+
+// Length returns run id's last epoch as the sweep knows it: announced by
+// its log, else its epochs hyperparameter, else Config.Epochs; 0 when
+// unknown. It is the epoch the run's forecast looks to.
+func (s *Sweep) Length(id int) int { return s.runs[id].length }
+
+// SetForecast records run id's validation forecast (what more epochs
+// would buy, made from its judged curve to its Length): the table's
+// forecast column and the forecast rule read it. The sweep keeps it
+// until the next call.
+func (s *Sweep) SetForecast(id int, f forecast.Forecast) {
+	r := s.runs[id]
+	bare := f.Bare()
+	r.fc, r.bare = &f, &bare
+	r.reachBar = math.NaN()
 	s.dirty = true
 }
 
@@ -197,6 +228,13 @@ type Row struct {
 	StopFile string
 	// Comparable says the run is judged in the sweep's metric.
 	Comparable bool
+	// Forecast is the run's validation forecast to its last epoch (its
+	// numbers, not its fit); nil before the first, and for a finished run.
+	Forecast *forecast.Forecast
+	// Chance is the probability, by the forecast, that the run beats the
+	// best other run at its last epoch (the forecast rule's number); absent
+	// where that rule does not apply.
+	Chance diagnose.Num
 }
 
 // Hopeless reports whether a rule flags the run.
@@ -228,6 +266,9 @@ func (s *Sweep) Evaluate(now time.Time) bool {
 		j := r.obs.Latest
 		row := Row{ID: id, Name: r.name, State: states[id], Epoch: r.curve.LastEpoch(), Points: r.obs.Points,
 			Total: r.length, Judged: j.Judged() && r.obs.Points > 0, Params: r.params, StopFile: r.stopFile}
+		if row.State != Finished {
+			row.Forecast = r.bare
+		}
 		if row.Judged {
 			row.Metric, row.Diagnosis, row.Signal = j.Metric, j.Diagnosis, j.EarlyStop.Signal
 			row.Best, row.BestEpoch, row.Now = j.EarlyStop.BestVal, j.EarlyStop.BestEpoch, j.Val.Smooth
@@ -287,15 +328,16 @@ func (s *Sweep) Evaluate(now time.Time) bool {
 	return true
 }
 
-// total is the run's length: announced by the log, else its params'.
-func (r *run) total() int {
+// total is the run's length: announced by the log, else its params',
+// else the sweep's.
+func (s *Sweep) total(r *run) int {
 	if r.obs.Total > 0 {
 		return r.obs.Total
 	}
 	if n, ok := r.params.Epochs(); ok {
 		return n
 	}
-	return 0
+	return max(s.cfg.Epochs, 0)
 }
 
 // states works out every run's state as of now. The quiet threshold of a
@@ -381,6 +423,7 @@ func (s *Sweep) applyRules() {
 		first = DefaultFirstRung
 	}
 	var scratch []float64
+	best, second, bestID := bestTwo(s.rows)
 	for id := range s.rows {
 		row := &s.rows[id]
 		if curves[id] == nil || row.State == Finished {
@@ -403,7 +446,33 @@ func (s *Sweep) applyRules() {
 			row.Flags = append(row.Flags, Flag{Rule: RuleRungs, Epoch: c.Epoch, Value: c.Value, Bar: c.Bar,
 				Count: c.Reached, Rung: c.Rung, Place: c.Place, Keep: c.Keep})
 		}
+		if s.cfg.UseForecast {
+			bar := best
+			if id == bestID {
+				bar = second
+			}
+			if c, ok := s.reachOf(s.runs[id], bar); ok {
+				row.Chance = diagnose.Some(c.Chance)
+				if c.Hopeless {
+					row.Flags = append(row.Flags, Flag{Rule: RuleForecast, Epoch: c.Target, Value: c.At.Value,
+						Lo: c.At.Lo, Hi: c.At.Hi, Bar: c.Bar, Chance: c.Chance})
+				}
+			}
+		}
 	}
+}
+
+// reachOf is the forecast rule's verdict on run r against bar, worked out
+// again only when the forecast or the bar changed.
+func (s *Sweep) reachOf(r *run, bar float64) (ReachCheck, bool) {
+	if r.fc == nil {
+		return ReachCheck{}, false
+	}
+	if r.reachBar != bar { // NaN: never worked out
+		r.reach, r.reachOK = Reach(r.fc, bar)
+		r.reachBar = bar
+	}
+	return r.reach, r.reachOK
 }
 
 // rungValue is run id's value at rung epoch e, from the run's cached rung

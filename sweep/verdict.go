@@ -25,8 +25,8 @@ type Verdict struct {
 
 // DiagnosisCount is how many runs have one diagnosis.
 type DiagnosisCount struct {
-	Diagnosis diagnose.Diagnosis `json:"diagnosis"`
-	Runs      int                `json:"runs"`
+	Diagnosis diagnose.Diagnosis `json:"diagnosis"` // a diagnosis
+	Runs      int                `json:"runs"`      // the runs with it
 }
 
 // MinShared is the fewest runs a shared diagnosis needs: two runs that

@@ -131,6 +131,10 @@ type Options struct {
 	// Back shows the key back to the run table (a run opened from a
 	// sweep's table; the table handles the key).
 	Back bool
+	// HideForecast starts with the forecast hidden (f shows it): a
+	// finished run opened from the table, whose forecast would look past
+	// its end.
+	HideForecast bool
 }
 
 // ExitReason says why the screen closed.
@@ -254,7 +258,7 @@ func New(opts Options) Model {
 		cache:  &frame{},
 		dirty:  true,
 
-		showForecast: true,
+		showForecast: !opts.HideForecast,
 	}
 	if m.hist == nil {
 		m.hist = ownHistory{diagnose.New(opts.Config)}

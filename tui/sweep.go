@@ -29,6 +29,9 @@ type SweepSource interface {
 	// Progress says how many runs' logs were read to their end once, of
 	// how many found.
 	Progress() (read, total int)
+	// Forecasts says how many runs have had a forecast made, of how many
+	// want one.
+	Forecasts() (made, wanted int)
 }
 
 // RunScreen is a run opened from the table: its judged history and a feed
@@ -38,6 +41,9 @@ type RunScreen struct {
 	History History
 	Feed    <-chan FeedMsg
 	Close   func()
+	// Epochs is the run's last epoch as the table knows it, 0 when
+	// unknown (the screen's Options.Epochs).
+	Epochs int
 }
 
 // SweepOptions configure the run table.

@@ -45,6 +45,8 @@ type snapshot struct {
 	pollWhy   string
 	read      int
 	total     int
+	// forecast of wanted runs have had a forecast made.
+	forecast, wanted int
 	// curves are the validation curves of the runs the chart shows.
 	curves map[int][]chart.Point
 }
@@ -84,6 +86,7 @@ func (t *tableState) read(src SweepSource) {
 	s.notices = src.Notices()
 	s.polled, s.pollWhy = src.Polling()
 	s.read, s.total = src.Progress()
+	s.forecast, s.wanted = src.Forecasts()
 	t.snap = s
 	t.reorder()
 	want := t.chartRuns()
@@ -180,7 +183,7 @@ func (t *tableState) row(id int) (*sweep.Row, bool) {
 // sortColumns are the columns the table can be sorted by, in the order s
 // cycles through them.
 func (t *tableState) sortColumns() []sortKey {
-	keys := []sortKey{{id: tcRank}, {id: tcRun}, {id: tcState}, {id: tcEpoch}, {id: tcBest}, {id: tcNow}, {id: tcDiagnosis}, {id: tcSignal}}
+	keys := []sortKey{{id: tcRank}, {id: tcRun}, {id: tcState}, {id: tcEpoch}, {id: tcBest}, {id: tcNow}, {id: tcForecast}, {id: tcDiagnosis}, {id: tcSignal}}
 	for _, k := range t.snap.differing {
 		keys = append(keys, sortKey{id: tcParam, param: k})
 	}

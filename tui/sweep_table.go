@@ -5,6 +5,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/fitgap/fitgap/forecast"
 	"github.com/fitgap/fitgap/report"
 	"github.com/fitgap/fitgap/sweep"
 )
@@ -20,6 +21,7 @@ const (
 	tcEpoch
 	tcBest
 	tcNow
+	tcForecast
 	tcDiagnosis
 	tcSignal
 	tcHopeless
@@ -48,13 +50,16 @@ const (
 	runShrinkTo   = 24
 	maxParamWidth = 14
 	maxFlagWidth  = 24
-	colGap        = 2
+	// maxForecastWidth holds "12.3% [10.1, 14.6] @120" and a loss's
+	// "0.2345 [0.2101, 0.259]" whole.
+	maxForecastWidth = 24
+	colGap           = 2
 )
 
 // columns returns the table's columns for the rows: the fixed ones, one per
 // differing hyperparameter, and the flags, with widths from their content.
 func columns(rows []sweep.Row, differing []string) []tableCol {
-	runW, flagW := len("run"), len("hopeless")
+	runW, flagW, fcW := len("run"), len("hopeless"), len("fcst end")
 	paramW := make([]int, len(differing))
 	for i, k := range differing {
 		paramW[i] = min(maxParamWidth, ansiLen(clean(k)))
@@ -63,6 +68,7 @@ func columns(rows []sweep.Row, differing []string) []tableCol {
 		r := &rows[i]
 		runW = max(runW, min(maxRunWidth, ansiLen(clean(r.Name))))
 		flagW = max(flagW, min(maxFlagWidth, ansiLen(report.FlagsShort(*r))))
+		fcW = max(fcW, min(maxForecastWidth, ansiLen(report.ForecastText(*r, true))))
 		for j, k := range differing {
 			if v, ok := r.Params.Get(k); ok {
 				paramW[j] = max(paramW[j], min(maxParamWidth, ansiLen(clean(v))))
@@ -72,17 +78,19 @@ func columns(rows []sweep.Row, differing []string) []tableCol {
 	cols := []tableCol{
 		{id: tcRank, title: "#", width: 3, right: true, drop: 0},
 		{id: tcRun, title: "run", width: runW, drop: 0},
-		{id: tcState, title: "state", width: 8, drop: 7},
-		{id: tcEpoch, title: "epoch", width: 7, right: true, drop: 8},
+		{id: tcState, title: "state", width: 8, drop: 8},
+		{id: tcEpoch, title: "epoch", width: 7, right: true, drop: 9},
 		{id: tcBest, title: "best (ep)", width: 13, right: true, drop: 1},
-		{id: tcNow, title: "now", width: 6, right: true, drop: 9},
+		{id: tcNow, title: "now", width: 6, right: true, drop: 10},
+		{id: tcForecast, title: "fcst end", width: fcW, right: true, drop: 5},
 		{id: tcDiagnosis, title: "diagnosis", width: 14, drop: 4},
-		{id: tcSignal, title: "signal", width: 8, drop: 10},
+		{id: tcSignal, title: "signal", width: 8, drop: 11},
 	}
-	// The first differing hyperparameter goes after the flags, the next
-	// two after the diagnosis, the others first of all.
+	// The first differing hyperparameter goes after the flags, the second
+	// after the forecast, the third after the state, the others first of
+	// all.
 	for i, k := range differing {
-		drop := []int{3, 5, 6}[min(i, 2)]
+		drop := []int{3, 6, 7}[min(i, 2)]
 		if i >= 3 {
 			drop = 12 + i
 		}
@@ -159,6 +167,8 @@ func cellText(c tableCol, r *sweep.Row) string {
 			return "–"
 		}
 		return sweep.FormatValue(r.Now.V, r.Metric.Fraction)
+	case tcForecast:
+		return report.ForecastText(*r, true)
 	case tcDiagnosis:
 		return report.DiagnosisText(*r)
 	case tcSignal:
@@ -206,6 +216,10 @@ func compareRows(k sortKey, a, b *sweep.Row) (c int, missingA, missingB bool) {
 		return num(a.Best.V, b.Best.V, a.Judged && a.Best.OK, b.Judged && b.Best.OK)
 	case tcNow:
 		return num(a.Now.V, b.Now.V, a.Judged && a.Now.OK, b.Judged && b.Now.OK)
+	case tcForecast:
+		fa, okA := forecastValue(a)
+		fb, okB := forecastValue(b)
+		return num(fa, fb, okA, okB)
 	case tcState:
 		return int(a.State) - int(b.State), false, false
 	case tcDiagnosis:
@@ -223,6 +237,16 @@ func compareRows(k sortKey, a, b *sweep.Row) (c int, missingA, missingB bool) {
 		return sweep.CompareValues(va, vb), false, false
 	}
 	return strings.Compare(a.Name, b.Name), false, false
+}
+
+// forecastValue is what the forecast column sorts by: the value forecast
+// at the run's last epoch; false for a run without one (finished, or a
+// forecast refused), which sorts after the others, by rank.
+func forecastValue(r *sweep.Row) (float64, bool) {
+	if f := r.Forecast; f != nil && f.Status == forecast.OK {
+		return f.At.Value, true
+	}
+	return 0, false
 }
 
 // orderRows returns the indexes of the rows that match the filter, sorted

@@ -25,6 +25,8 @@ type fakeSweep struct {
 	polled   int
 	why      string
 	unread   int
+	// forecast of wanted runs were forecast (0 of 0 unless a test says).
+	forecast, wanted int
 }
 
 func (f *fakeSweep) Read(fn func(*sweep.Sweep)) {
@@ -36,6 +38,7 @@ func (f *fakeSweep) Notices() []string                 { return f.notices }
 func (f *fakeSweep) Polling() (int, string)            { return f.polled, f.why }
 func (f *fakeSweep) DataOptions() forecast.DataOptions { return forecast.DataOptions{} }
 func (f *fakeSweep) Progress() (int, int)              { return f.s.Len() - f.unread, f.s.Len() }
+func (f *fakeSweep) Forecasts() (int, int)             { return f.forecast, f.wanted }
 
 // sweepRun is an invented run of a sweep.
 type sweepRun struct {
@@ -63,10 +66,17 @@ func demoSweep() []sweepRun {
 	}
 }
 
-// newFakeSweep judges the runs and evaluates the sweep at fixedNow.
+// sweepLength is every invented run's last epoch, as an epochs
+// hyperparameter would give it.
+const sweepLength = 30
+
+// newFakeSweep judges the runs, forecasts those not ended to
+// sweepLength, and evaluates the sweep at fixedNow.
 func newFakeSweep(t testing.TB, runs []sweepRun) *fakeSweep {
 	t.Helper()
-	f := &fakeSweep{s: sweep.New(sweep.DefaultConfig())}
+	cfg := sweep.DefaultConfig()
+	cfg.Epochs = sweepLength
+	f := &fakeSweep{s: sweep.New(cfg)}
 	for _, r := range runs {
 		var p sweep.Params
 		for i := 0; i+1 < len(r.params); i += 2 {
@@ -88,6 +98,9 @@ func newFakeSweep(t testing.TB, runs []sweepRun) *fakeSweep {
 		j, _ := tr.Latest()
 		f.s.Observe(id, sweep.Observation{Latest: j, Points: tr.Len(), Ended: r.ended,
 			LastWrite: fixedNow.Add(-2 * time.Second), Pace: 3 * time.Second})
+		if !r.ended && tr.Len() > 0 {
+			f.s.SetForecast(id, forecast.Tracked(tr, tr.Len()-1, diagnose.SplitVal, nil, f.s.Length(id), forecast.Options{}))
+		}
 		f.trackers = append(f.trackers, tr)
 	}
 	f.s.Evaluate(fixedNow)
@@ -241,7 +254,7 @@ func TestSweepModel_OpenAndBack(t *testing.T) {
 		if id == 7 {
 			return RunScreen{}, errors.New("the log is gone")
 		}
-		return RunScreen{History: ownHistory{src.trackers[id]}, Feed: feed, Close: func() { closed++ }}, nil
+		return RunScreen{History: ownHistory{src.trackers[id]}, Feed: feed, Close: func() { closed++ }, Epochs: sweepLength}, nil
 	}
 	m := newSweepModel(t, src, 120, 40, SweepOptions{Open: open, Run: Options{Now: func() time.Time { return fixedNow }}})
 	m = pressSweep(t, m, "down")
@@ -253,6 +266,14 @@ func TestSweepModel_OpenAndBack(t *testing.T) {
 	m = sendSweep(t, m, cmd()) // the open, off the loop
 	if m.detail == nil || len(opened) != 1 {
 		t.Fatalf("no run screen (opened %v)", opened)
+	}
+	if m.detail.opts.Epochs != sweepLength {
+		t.Errorf("the run's screen has last epoch %d, want the table's %d", m.detail.opts.Epochs, sweepLength)
+	}
+	// The second row is a finished run: its forecast, which would look
+	// past its end, starts hidden.
+	if r, _ := m.tab.row(opened[0]); r.State != sweep.Finished || m.detail.showForecast {
+		t.Errorf("run %s (%v) opened with the forecast shown %v; want a finished run, forecast hidden", r.Name, r.State, m.detail.showForecast)
 	}
 	id := opened[0]
 	pts := runs[id].spec.points()
@@ -331,6 +352,12 @@ func TestSweepView_Notices(t *testing.T) {
 	}
 	if strings.ContainsAny(v, "\x1b\x07") {
 		t.Errorf("escape sequences reached the screen: %q", v)
+	}
+	// Once every log is read, the forecasts still to make.
+	src.unread, src.forecast, src.wanted = 0, 1, 4
+	m = sendSweep(t, sendSweep(t, m, SweepMsg{}), sweepFrameMsg{})
+	if v := m.View(); !strings.Contains(v, "forecasting 1/4") || strings.Contains(v, "reading") {
+		t.Errorf("no forecasting progress:\n%s", v)
 	}
 }
 

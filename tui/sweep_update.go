@@ -3,6 +3,8 @@ package tui
 import (
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
+
+	"github.com/fitgap/fitgap/sweep"
 )
 
 // Update handles one message: the table's own, or, while a run is open,
@@ -233,6 +235,14 @@ func (m SweepModel) opened(msg sweepOpenedMsg) (tea.Model, tea.Cmd) {
 	}
 	opts := m.opts.Run
 	opts.History, opts.Back = msg.run.History, true
+	if msg.run.Epochs > 0 {
+		opts.Epochs = msg.run.Epochs
+	}
+	// A finished run's forecast would look past the end it reached: it
+	// starts hidden (f shows what training longer would have bought).
+	if r, ok := m.tab.row(msg.id); ok && r.State == sweep.Finished {
+		opts.HideForecast = true
+	}
 	opts.NoColor = m.opts.NoColor
 	d := New(opts)
 	d.setRenderer(m.renderer)

@@ -168,6 +168,8 @@ func (m *SweepModel) statusLine() string {
 	parts := []string{strconv.Itoa(len(t.snap.rows)) + " runs"}
 	if t.snap.read < t.snap.total {
 		parts = append(parts, st.Watch.Render("reading "+strconv.Itoa(t.snap.read)+"/"+strconv.Itoa(t.snap.total)))
+	} else if t.snap.forecast < t.snap.wanted {
+		parts = append(parts, st.Watch.Render("forecasting "+strconv.Itoa(t.snap.forecast)+"/"+strconv.Itoa(t.snap.wanted)))
 	}
 	for _, s := range []sweep.State{sweep.Live, sweep.Quiet, sweep.Finished, sweep.Waiting, sweep.Removed} {
 		if n := counts[s]; n > 0 {
@@ -310,6 +312,10 @@ func (m *SweepModel) cellStyle(c tableCol, r *sweep.Row) lipgloss.Style {
 		return st.Stop
 	case tcRank:
 		return st.Dim
+	case tcForecast:
+		if _, ok := forecastValue(r); !ok {
+			return st.Dim
+		}
 	}
 	return st.Plain
 }
@@ -329,6 +335,10 @@ func (m *SweepModel) selectedLine() string {
 	}
 	if len(parts) == 0 && r.Judged {
 		parts = append(parts, r.Diagnosis.Description())
+	}
+	if f := r.Forecast; f != nil {
+		// The refusal's reason already says "no forecast: …".
+		parts = append(parts, "forecast: "+strings.TrimPrefix(f.Phrase(), "no forecast: "))
 	}
 	if r.StopFile != "" {
 		parts = append(parts, "stop file "+clean(r.StopFile))

@@ -34,6 +34,8 @@ func TestHostileNames_NeverReachATerminalRaw(t *testing.T) {
 		{"ReportMissingFile", []string{"report", filepath.Join(dir, "missing-"+hostile)}, nil},
 		{"ReportHostileFile", []string{"report", named}, nil},
 		{"ReportHostileFileJSON", []string{"report", "--json", named}, nil},
+		{"ReportSweepPlot", []string{"report", "--plot", filepath.Join(dir, "p-"+hostile+".svg"), dir}, nil},
+		{"ReportSweepJSON", []string{"report", "--json", dir}, nil},
 		{"UnknownFlag", []string{"report", "--j" + hostile, log}, nil},
 		{"UnknownCommand", []string{"help", hostile}, nil},
 		{"BadFormat", []string{"report", "--format", hostile, log}, nil},

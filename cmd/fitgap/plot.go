@@ -9,6 +9,9 @@ import (
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/figure"
 	"github.com/fitgap/fitgap/pipeline"
+	"github.com/fitgap/fitgap/report"
+	"github.com/fitgap/fitgap/sweep"
+	"github.com/fitgap/fitgap/sweep/live"
 )
 
 // plotOutput is `report --plot FILE`: the picture of the run beside the
@@ -84,4 +87,60 @@ func pictureRef(path string, stdout io.Writer) string {
 		return filepath.ToSlash(abs)
 	}
 	return filepath.ToSlash(rel)
+}
+
+// saveSweep draws the sweep's runs (report DIR --plot) and writes the
+// picture; it returns how the Markdown printed to stdout refers to it. The
+// picture never lands on a run's log: that is refused (a usage error)
+// before anything is written.
+func (p *plotOutput) saveSweep(s *live.Sweep, rep report.SweepReport, stdout io.Writer) (string, error) {
+	for _, r := range rep.Rows {
+		if err := pipeline.NotTheLog(p.path, s.Path(r.ID)); err != nil {
+			return "", usageErrorf("--plot %v", err)
+		}
+	}
+	b, err := sweepRuns(s, rep).Draw(p.format, figure.Size{})
+	if err != nil {
+		return "", err
+	}
+	// Not the log of any run read (checked above): the first run's is
+	// the one SaveOutput checks again.
+	log := ""
+	if len(rep.Rows) > 0 {
+		log = s.Path(rep.Rows[0].ID)
+	}
+	if err := pipeline.SaveOutput(p.path, log, b); err != nil {
+		return "", err
+	}
+	return pictureRef(p.path, stdout), nil
+}
+
+// sweepRuns is the sweep as the picture of several runs takes it: the
+// validation curves of the runs judged in the sweep's metric (the others
+// are on another scale), each run's best value and training-set size, the
+// runs a rule flags, the optimal error given, and the data-size fit when
+// the runs differ in size.
+func sweepRuns(s *live.Sweep, rep report.SweepReport) figure.Runs {
+	rs := figure.Runs{Title: rep.Root, Metric: rep.Metric, Optimal: s.DataOptions().Optimal}
+	if f := rep.Summary.DataForecast; f != nil {
+		df := f.DataForecast
+		rs.Sizes = &df
+	}
+	s.Read(func(d *sweep.Sweep) {
+		for _, row := range rep.Rows {
+			if !row.Comparable {
+				continue
+			}
+			l := figure.Line{Name: row.Name, Hopeless: row.Hopeless()}
+			l.Epochs, l.Values = d.Curve(row.ID).Points()
+			if row.Best.OK {
+				l.Best = row.Best
+			}
+			if size, ok := row.Params.TrainSize(); ok {
+				l.TrainSize = size
+			}
+			rs.Lines = append(rs.Lines, l)
+		}
+	})
+	return rs
 }

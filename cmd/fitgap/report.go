@@ -24,15 +24,17 @@ by its path from where the Markdown goes (the file standard output is
 redirected to, else the working directory).
 Given a directory, several logs or a glob (runs/*/metrics.csv, ** for any
 depth), it reads every run of the sweep and prints them ranked: state, best
-value, diagnosis, stop signal, the hyperparameters that differ, the runs the
-median rule or successive halving's rungs find hopeless, and what most runs
-say about the problem (--json: the sweep and one object per run).
+value, each run's forecast at its last epoch, diagnosis, stop signal, the
+hyperparameters that differ, the runs the median rule, successive halving's
+rungs or the forecast rule find hopeless, and what most runs say about the
+problem (--json: the sweep and one object per run; --plot: the best runs'
+validation curves).
 Exit status 0 after a report; 2 on a usage error, an unreadable or empty log,
 or a picture path that cannot be written; 1 when drawing or writing it fails.`,
 	example: `  fitgap report --bayes-error 4% runs/resnet-small.csv
   fitgap report --json --val-size 5000 train.log | jq .diagnosis
   fitgap report --plot out/curves.png runs/resnet-small.csv > out/report.md
-  fitgap report runs/`,
+  fitgap report --plot out/sweep.svg runs/ > out/sweep.md`,
 	flags: func(fs *flag.FlagSet) func(context.Context, *env, []string) error {
 		var (
 			log    logFlags
@@ -43,14 +45,22 @@ or a picture path that cannot be written; 1 when drawing or writing it fails.`,
 		log.register(fs)
 		sw.register(fs)
 		fs.BoolVar(&asJSON, "json", false, "print one JSON object instead of Markdown")
-		fs.StringVar(&plot, "plot", "", "also draw the run to this `file` (.svg or .png): curves, optimal error, epoch to restore, forecast, and the parts of the validation error; the Markdown shows it")
+		fs.StringVar(&plot, "plot", "", "also draw the run to this `file` (.svg or .png): curves, optimal error, epoch to restore, forecast, and the parts of the validation error (a sweep: the best runs' validation curves, the data-size fit); the Markdown shows it")
 		return func(ctx context.Context, e *env, args []string) error {
 			if isSweep(args) {
 				opts, err := sweepOptions(args, &log, &sw, false)
 				if err != nil {
 					return err
 				}
-				return runSweepReport(ctx, e, opts, asJSON)
+				var pic *plotOutput
+				if plot != "" {
+					// The runs' logs are known once found: each is
+					// checked before the picture is written.
+					if pic, err = checkPlot(plot, "", e.stdout); err != nil {
+						return err
+					}
+				}
+				return runSweepReport(ctx, e, opts, asJSON, pic)
 			}
 			path, opts, cfg, err := log.parse(args, false)
 			if err != nil {

@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -30,7 +31,7 @@ type sweepFlags struct {
 }
 
 func (s *sweepFlags) register(fs *flag.FlagSet) {
-	fs.StringVar(&s.rules, "rules", "median,rungs", "on a sweep: the `rules` that flag hopeless runs, median and/or rungs (successive halving), or none")
+	fs.StringVar(&s.rules, "rules", "median,rungs,forecast", "on a sweep: the `rules` that flag hopeless runs, any of median, rungs (successive halving) and forecast (its chance to beat the best other run), or none")
 	fs.IntVar(&s.eta, "eta", sweep.DefaultEta, "on a sweep: successive halving's reduction `factor` η: at each rung only the top 1/η go on")
 	fs.IntVar(&s.firstRung, "first-rung", sweep.DefaultFirstRung, "on a sweep: the `epoch` of the first rung (then ×η); the median rule starts there too")
 }
@@ -46,8 +47,10 @@ func (s *sweepFlags) config() (sweep.Config, error) {
 			c.Median = true
 		case "rungs":
 			c.UseRungs = true
+		case "forecast":
+			c.UseForecast = true
 		default:
-			return c, usageErrorf("--rules: unknown rule %q: want median, rungs or none", name)
+			return c, usageErrorf("--rules: unknown rule %q: want median, rungs, forecast or none", name)
 		}
 	}
 	if s.eta < 2 {
@@ -95,6 +98,10 @@ func sweepOptions(args []string, l *logFlags, sw *sweepFlags, follow bool) (live
 	if err != nil {
 		return live.Options{}, err
 	}
+	if l.epochs < 0 {
+		return live.Options{}, usageErrorf("--epochs: must not be negative, got %d", l.epochs)
+	}
+	rules.Epochs = l.epochs
 	return live.Options{Paths: args, Read: read, Judge: cfg, Rules: rules}, nil
 }
 
@@ -107,8 +114,11 @@ func newSweep(opts live.Options) (*live.Sweep, error) {
 	return s, nil
 }
 
-// runSweepReport reads every run's log once and prints the ranked table.
-func runSweepReport(ctx context.Context, e *env, opts live.Options, asJSON bool) error {
+// runSweepReport reads every run's log once and prints the ranked table,
+// with pic (--plot) the picture of the runs beside it. A picture that
+// cannot be drawn or written leaves the report whole, without it (exit
+// status 1); one that would land on a run's log is refused first.
+func runSweepReport(ctx context.Context, e *env, opts live.Options, asJSON bool, pic *plotOutput) error {
 	s, err := newSweep(opts)
 	if err != nil {
 		return err
@@ -117,16 +127,30 @@ func runSweepReport(ctx context.Context, e *env, opts live.Options, asJSON bool)
 		return &inputError{err: err, hint: "a run is a directory holding a metrics log (CSV/TSV, JSON Lines, console text); name the logs or a glob if they are elsewhere"}
 	}
 	r := s.Report(asJSON)
+	var plotErr error
+	if pic != nil {
+		r.Picture, plotErr = pic.saveSweep(s, r, e.stdout)
+		var usage *usageError
+		if errors.As(plotErr, &usage) {
+			return plotErr
+		}
+	}
 	if !asJSON {
 		_, err = io.WriteString(e.stdout, r.Markdown())
+	} else {
+		var b []byte
+		if b, err = json.MarshalIndent(r.Document(), "", "  "); err != nil {
+			return fmt.Errorf("encode sweep report: %w", err)
+		}
+		_, err = e.stdout.Write(append(b, '\n'))
+	}
+	if err != nil {
 		return err
 	}
-	b, err := json.MarshalIndent(r.Document(), "", "  ")
-	if err != nil {
-		return fmt.Errorf("encode sweep report: %w", err)
+	if plotErr != nil {
+		return fmt.Errorf("--plot %s: %s", diagnose.Printable(pic.path), diagnose.Printable(plotErr.Error()))
 	}
-	_, err = e.stdout.Write(append(b, '\n'))
-	return err
+	return nil
 }
 
 // runSweepFollow follows every run and prints one JSON line per new point
@@ -178,16 +202,6 @@ loop:
 	return err2
 }
 
-// sweepLine is one line of follow DIR: the run's name, the point's
-// summary (the keys of report --json and "time", as follow FILE prints),
-// and the run's place in the sweep as of that point.
-type sweepLine struct {
-	Run string `json:"run"`
-	report.Document
-	Time  string         `json:"time"`
-	Sweep *sweep.RowJSON `json:"sweep,omitempty"`
-}
-
 // sweepPrinter writes follow DIR's output.
 type sweepPrinter struct {
 	out, errOut io.Writer
@@ -204,7 +218,7 @@ func (p *sweepPrinter) print(u live.Update) error {
 		row = &r
 	}
 	for _, sum := range u.Applied.Summaries {
-		b, err := json.Marshal(sweepLine{Run: diagnose.Printable(u.Name), Document: sum.Document(), Time: at, Sweep: row})
+		b, err := json.Marshal(report.SweepLine{Run: diagnose.Printable(u.Name), Document: sum.Document(), Time: at, Sweep: row})
 		if err != nil {
 			return fmt.Errorf("encode line: %w", err)
 		}

@@ -147,7 +147,10 @@ func runSweepScreen(ctx context.Context, e *env, spec sweepScreenSpec) error {
 // openRun opens one run's screen: its log read again from the start
 // through the sweep's watcher into a pipeline of its own (the same
 // judgements as the sweep's, with the other columns' sparklines), until
-// the screen goes back to the table.
+// the screen goes back to the table. The run's last epoch is the one the
+// table knows (its log's, its epochs hyperparameter, or --epochs), so its
+// forecast ends where the run will; and the screen says finished once the
+// table finds it finished (its writer ended, its length reached).
 func openRun(ctx context.Context, s *live.Sweep, id int, opts live.Options) (tui.RunScreen, error) {
 	ctx, cancel := context.WithCancel(ctx)
 	batches, err := s.FollowRun(ctx, id)
@@ -155,10 +158,11 @@ func openRun(ctx context.Context, s *live.Sweep, id int, opts live.Options) (tui
 		cancel()
 		return tui.RunScreen{}, err
 	}
-	run := pipeline.New(pipeline.Options{Name: s.Path(id), Judge: opts.Judge})
+	epochs := s.Length(id)
+	run := pipeline.New(pipeline.Options{Name: s.Path(id), Judge: opts.Judge, Epochs: epochs, WriterDone: s.Finished(id)})
 	feed := make(chan tui.FeedMsg, 4)
 	go relay(ctx, run, batches, feed)
-	return tui.RunScreen{History: run, Feed: feed, Close: cancel}, nil
+	return tui.RunScreen{History: run, Feed: feed, Close: cancel, Epochs: epochs}, nil
 }
 
 // saveSweepReport writes the sweep's report: JSON when the name ends in

@@ -1,12 +1,21 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
+
+	"github.com/fitgap/fitgap/diagnose"
+	"github.com/fitgap/fitgap/pipeline"
+	"github.com/fitgap/fitgap/sweep"
+	"github.com/fitgap/fitgap/sweep/live"
+	"github.com/fitgap/fitgap/tui"
+	"github.com/fitgap/fitgap/watch"
 )
 
 // sweepTree writes a sweep of runs under a new directory: run name →
@@ -147,5 +156,81 @@ func TestFollowOne_StopFileName(t *testing.T) {
 	_, stderr, code := runCLI(t, "", "follow", "--stop-file-name", "STOP", log)
 	if code != exitUsage || !strings.Contains(stderr, "already exists") {
 		t.Errorf("exit %d, %q: want the existing file refused", code, stderr)
+	}
+}
+
+// TestOpenRun_FinishedAndLength: a run opened from the table gets the
+// last epoch the table knows (its epochs hyperparameter here), so its
+// forecast ends there, and its screen says finished once the table finds
+// it finished.
+func TestOpenRun_FinishedAndLength(t *testing.T) {
+	t.Parallel()
+	root := sweepTree(t, 12, map[string]float64{"done": 0.05, "going": 0.10})
+	os.WriteFile(filepath.Join(root, "done", "hparams.json"), []byte(`{"epochs": 12}`), 0o644)
+	os.WriteFile(filepath.Join(root, "going", "hparams.json"), []byte(`{"epochs": 30}`), 0o644)
+	opts := live.Options{Paths: []string{root}, Read: watch.Options{Follow: true}, Rules: sweep.DefaultConfig()}
+	s, err := live.New(opts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	evaluated := make(chan struct{}, 1)
+	go s.Follow(ctx, func(u live.Update) error {
+		if u.Evaluated {
+			select {
+			case evaluated <- struct{}{}:
+			default:
+			}
+		}
+		return nil
+	})
+	ids := map[string]int{}
+	for deadline := time.After(15 * time.Second); len(ids) < 2; {
+		select {
+		case <-evaluated:
+		case <-deadline:
+			t.Fatal("the sweep was not read")
+		}
+		s.Read(func(d *sweep.Sweep) {
+			for _, r := range d.Rows() {
+				if r.Points == 12 {
+					ids[r.Name] = r.ID
+				}
+			}
+		})
+	}
+	for _, tt := range []struct {
+		name     string
+		epochs   int
+		finished bool
+	}{{"done", 12, true}, {"going", 30, false}} {
+		rs, err := openRun(ctx, s, ids[tt.name], opts)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if rs.Epochs != tt.epochs {
+			t.Errorf("%s: opened with last epoch %d, want %d", tt.name, rs.Epochs, tt.epochs)
+		}
+		state, points := tui.SourceState(0), 0
+		for deadline := time.After(15 * time.Second); points < 12 || tt.finished && state != tui.Finished; {
+			select {
+			case msg := <-rs.Feed:
+				points += len(msg.Points)
+				if msg.Source.State != tui.Waiting || msg.Source.Format != "" {
+					state = msg.Source.State
+				}
+			case <-deadline:
+				t.Fatalf("%s: %d points, state %v; want 12 points, finished %v", tt.name, points, state, tt.finished)
+			}
+		}
+		if !tt.finished && state == tui.Finished {
+			t.Errorf("%s: shown finished at epoch 12 of 30", tt.name)
+		}
+		run := rs.History.(*pipeline.Run)
+		if f := run.Forecast(diagnose.SplitVal); f.Target != tt.epochs && tt.name == "going" {
+			t.Errorf("%s: forecast to epoch %d, want %d", tt.name, f.Target, tt.epochs)
+		}
+		rs.Close()
 	}
 }

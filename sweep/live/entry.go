@@ -35,8 +35,20 @@ type entry struct {
 	// batches that brought points, for the run's pace.
 	added    time.Time
 	arrivals []time.Time
-	// read: the first batch came, so the log was read to its end once.
-	read bool
+	// read: the first batch came, so the log was read to its end once;
+	// readErr is why the log could not be read (Load).
+	read    bool
+	readErr string
+	// The run's forecast (forecasts.go): fcStale says points came since
+	// the last one, made at fcAt; epochs is the last epoch the pipeline
+	// was told (pipeline.Run.SetEpochs).
+	fcStale bool
+	fcAt    time.Time
+	epochs  int
+	// done is closed once the sweep finds the run finished (an opened
+	// run's screen then says so).
+	done       chan struct{}
+	doneClosed bool
 }
 
 // params are the run's hyperparameters: discovery's, then the log's
@@ -153,6 +165,7 @@ func (s *Sweep) take(e *entry, b *watch.Batch) {
 		e.consts.add(p)
 	}
 	if len(b.Points) > 0 {
+		e.fcStale = true
 		e.arrived(s.now())
 		if after := e.consts.params(); len(after) != before || e.consts.points == constantAfter {
 			s.dom.SetParams(e.id, e.params())
@@ -196,4 +209,16 @@ func (s *Sweep) observeFrom(e *entry, fromEpoch int, revision uint64) {
 		s.dom.CurveChanged(e.id)
 	})
 	s.dom.Observe(e.id, o)
+	s.syncEpochs(e)
+}
+
+// syncEpochs tells the run's pipeline the last epoch the sweep knows for
+// it (its log's, its params', or --epochs), the epoch its forecast looks
+// to. s.mu is held.
+func (s *Sweep) syncEpochs(e *entry) {
+	if n := s.dom.Length(e.id); n != e.epochs {
+		e.epochs = n
+		e.run.SetEpochs(n)
+		e.fcStale = true
+	}
 }

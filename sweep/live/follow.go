@@ -35,6 +35,8 @@ type Update struct {
 	Evaluated bool
 	// FirstRead says Run's log was read to its end for the first time.
 	FirstRead bool
+	// more: forecasts are still due (the evaluation's budget ran out).
+	more bool
 }
 
 // StopEvent is a stop file created for a run, or why it could not be.
@@ -137,7 +139,13 @@ func (s *Sweep) Follow(ctx context.Context, emit func(Update) error) error {
 		if evaluate {
 			lastEval = time.Now()
 		}
-		if err := emit(s.finish(u, evaluate)); err != nil {
+		u = s.finish(u, evaluate)
+		if u.more && !settling {
+			// Forecasts left for lack of time: another evaluation soon.
+			settling = true
+			settle.Reset(evalEvery)
+		}
+		if err := emit(u); err != nil {
 			return err
 		}
 	}
@@ -181,7 +189,7 @@ func (s *Sweep) apply(b watch.Tagged) Update {
 // for, and adds the pending notices to u.
 func (s *Sweep) finish(u Update, evaluate bool) Update {
 	if evaluate {
-		u.Stops, u.Evaluated = s.evaluate()
+		u.Stops, u.Evaluated, u.more = s.evaluate()
 	}
 	s.mu.Lock()
 	defer s.mu.Unlock()
@@ -193,9 +201,10 @@ func (s *Sweep) finish(u Update, evaluate bool) Update {
 	return u
 }
 
-// evaluate judges the sweep as of now and creates the stop files of the
-// runs it finds hopeless or told to stop, outside the lock.
-func (s *Sweep) evaluate() ([]StopEvent, bool) {
+// evaluate makes the forecasts due, judges the sweep as of now and
+// creates the stop files of the runs it finds hopeless or told to stop,
+// outside the lock; more says forecasts are still due.
+func (s *Sweep) evaluate() (stops []StopEvent, changed, more bool) {
 	type todo struct {
 		e      *entry
 		j      diagnose.Judgement
@@ -204,7 +213,20 @@ func (s *Sweep) evaluate() ([]StopEvent, bool) {
 	}
 	var list []todo
 	s.mu.Lock()
-	changed := s.dom.Evaluate(s.now())
+	now := s.now()
+	// With summaries (follow DIR) every point's forecast was made already
+	// and is kept by its run: taking them costs nothing.
+	due := s.dueForecasts(now, !s.opts.Summaries)
+	s.mu.Unlock()
+	budget := forecastBudget
+	if s.opts.Summaries {
+		budget = 0
+	}
+	ms, more := forecastWithin(due, budget)
+	s.mu.Lock()
+	s.keep(ms, now)
+	changed = s.dom.Evaluate(now)
+	s.markFinished()
 	if changed && s.opts.StopFileName != "" {
 		rows := s.dom.Rows()
 		for _, e := range s.runs {
@@ -229,14 +251,13 @@ func (s *Sweep) evaluate() ([]StopEvent, bool) {
 		}
 	}
 	s.mu.Unlock()
-	var out []StopEvent
 	for _, t := range list {
 		ev := t.e.stop.Create(t.j, t.reason)
 		why := t.reason
 		if why == "" {
 			why = t.j.EarlyStop.Reason
 		}
-		out = append(out, StopEvent{Run: t.e.id, Name: t.e.found.Name, StopEvent: *ev, Reason: why})
+		stops = append(stops, StopEvent{Run: t.e.id, Name: t.e.found.Name, StopEvent: *ev, Reason: why})
 		s.mu.Lock()
 		if ev.Err == nil {
 			t.e.stopped = true
@@ -247,5 +268,5 @@ func (s *Sweep) evaluate() ([]StopEvent, bool) {
 		}
 		s.mu.Unlock()
 	}
-	return out, changed || len(out) > 0
+	return stops, changed || len(stops) > 0, more
 }

@@ -74,6 +74,10 @@ type Sweep struct {
 	observed map[string]bool
 	// read counts the runs whose log was read to its end once.
 	read int
+	// fcTokens are the refreshes of forecasts allowed now, as of
+	// fcTokensAt (forecasts.go).
+	fcTokens   float64
+	fcTokensAt time.Time
 }
 
 // maxNotices bounds the notices kept for the screen.
@@ -191,6 +195,24 @@ func (s *Sweep) FollowRun(ctx context.Context, id int) (<-chan watch.Batch, erro
 	return g.Follow(ctx, path, opts)
 }
 
+// Length returns run id's last epoch as the sweep knows it (its log's
+// announced total, its epochs hyperparameter, or Rules.Epochs); 0 when
+// unknown.
+func (s *Sweep) Length(id int) int {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.dom.Length(id)
+}
+
+// Finished returns a channel closed once the sweep finds run id finished
+// (it reached its length, its writer ended, or it went quiet after its own
+// stop signal): the screen of one run says it then.
+func (s *Sweep) Finished(id int) <-chan struct{} {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.runs[id].done
+}
+
 // MarkEnded says that the process writing a log has ended (the demo's
 // trainer): its run is finished.
 func (s *Sweep) MarkEnded(path string) {
@@ -210,11 +232,13 @@ func (s *Sweep) add(found []discover.Run, u *Update) {
 		if e, ok := s.byPath[f.Path]; ok {
 			e.found.Params = f.Params
 			s.dom.SetParams(e.id, e.params())
+			s.syncEpochs(e)
 			continue
 		}
-		e := &entry{found: f, added: s.now()}
+		e := &entry{found: f, added: s.now(), done: make(chan struct{})}
 		e.id = s.dom.Add(f.Name, f.Params)
 		e.run = pipeline.New(pipeline.Options{Name: f.Path, Judge: s.opts.Judge, Summaries: s.opts.Summaries})
+		s.syncEpochs(e)
 		s.runs = append(s.runs, e)
 		s.byPath[f.Path] = e
 		u.Added = append(u.Added, e.id)

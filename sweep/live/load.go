@@ -46,7 +46,16 @@ func (s *Sweep) Load(ctx context.Context) error {
 	wg.Wait()
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	s.dom.Evaluate(s.now())
+	now := s.now()
+	s.dom.Evaluate(now)
+	// The forecasts of the runs not finished, then the rules again.
+	due := s.dueForecasts(now, false)
+	s.mu.Unlock()
+	ms := forecastAll(due)
+	s.mu.Lock()
+	s.keep(ms, now)
+	s.dom.Evaluate(now)
+	s.markFinished()
 	judged := 0
 	for _, r := range s.dom.Rows() {
 		if r.Points > 0 {
@@ -54,8 +63,15 @@ func (s *Sweep) Load(ctx context.Context) error {
 		}
 	}
 	if judged == 0 && ctx.Err() == nil {
+		// The first run's reason, whichever worker read it first.
 		why := ""
-		if len(s.notices) > 0 {
+		for _, e := range runs {
+			if e.readErr != "" {
+				why = "; " + e.readErr
+				break
+			}
+		}
+		if why == "" && len(s.notices) > 0 {
 			why = "; " + s.notices[0]
 		}
 		return fmt.Errorf("%s: no evaluation points in the %d run(s) found%s", s.finder.Root(), len(runs), why)
@@ -70,7 +86,8 @@ func (s *Sweep) loadOne(ctx context.Context, e *entry) {
 	batches, err := watch.Follow(ctx, e.found.Path, opts)
 	if err != nil {
 		s.mu.Lock()
-		s.notice(fmt.Sprintf("%s: %v", e.found.Name, err))
+		e.readErr = watch.Sanitize(fmt.Sprintf("%s: %v", e.found.Name, err))
+		s.notice(e.readErr)
 		e.read = true
 		s.read++
 		s.mu.Unlock()
@@ -102,7 +119,7 @@ func (s *Sweep) loadOne(ctx context.Context, e *entry) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	e.stats, e.consts, e.total = last.Stats, c, total
-	e.read = true
+	e.read, e.fcStale = true, true
 	s.read++
 	s.dom.SetParams(e.id, e.params())
 	s.observeFrom(e, math.MinInt, revisionOf(e))
