@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -324,6 +325,43 @@ func TestRun_ForecastRefusals(t *testing.T) {
 			js := s.Document().Forecast
 			if js == nil || js.Val.Status != tt.status || !strings.Contains(js.Val.Text, tt.reason) || js.Val.AtTarget != nil {
 				t.Errorf("JSON form: %+v", js)
+			}
+		})
+	}
+}
+
+// TestRun_SummaryForecastsOfALongBatch: in a batch longer than
+// fitsPerBatch the summaries carry forecasts fitted at most fitsPerBatch
+// times and at the batch's last point; each point carries the last one
+// fitted at or before it, which names its epoch, and the last point's is
+// the run's forecast as of that point. A short batch has every point
+// fitted.
+func TestRun_SummaryForecastsOfALongBatch(t *testing.T) {
+	for _, n := range []int{fitsPerBatch, 300} {
+		t.Run(strconv.Itoa(n), func(t *testing.T) {
+			pts := runPoints(n, 0, falling, stepAt(10_000))
+			run := New(Options{Name: "run.csv", Summaries: true})
+			u := run.Apply(watch.Batch{Points: pts})
+			if len(u.Summaries) != n {
+				t.Fatalf("%d summaries, want %d", len(u.Summaries), n)
+			}
+			fitted := map[int]bool{}
+			for i, s := range u.Summaries {
+				made := s.Forecasts.Val.LastEpoch
+				if made > pts[i].Epoch {
+					t.Fatalf("point %d (epoch %d) carries a forecast made at epoch %d, after it", i, pts[i].Epoch, made)
+				}
+				fitted[made] = true
+				if n <= fitsPerBatch && made != pts[i].Epoch {
+					t.Errorf("short batch: point %d carries the forecast of epoch %d", i, made)
+				}
+			}
+			if len(fitted) > fitsPerBatch+1 {
+				t.Errorf("%d forecasts fitted in a batch of %d, want at most %d", len(fitted), n, fitsPerBatch+1)
+			}
+			last := u.Summaries[n-1].Forecasts.Val
+			if want := run.Forecast(diagnose.SplitVal).Bare(); !reflect.DeepEqual(last, want) {
+				t.Errorf("last point: %s, want the run's forecast %s", last.Phrase(), want.Phrase())
 			}
 		})
 	}

@@ -85,6 +85,10 @@ type Run struct {
 	extras extras
 	gen    uint64
 	cached [2]cachedForecast
+	// carried are the forecasts last made for a summary, which the points
+	// of a long batch between two fits carry (summaryForecasts). Apply's
+	// own: no lock.
+	carried report.Forecasts
 }
 
 // New returns a run with no point judged yet.
@@ -172,7 +176,7 @@ func (r *Run) Apply(b watch.Batch) Update {
 		r.mu.Unlock()
 		switch {
 		case r.opts.Summaries:
-			fc := r.Forecasts(nil, -1)
+			fc := r.summaryForecasts(i, len(b.Points))
 			j = fc.Val.Decide(j)
 			u.Summaries = append(u.Summaries, sum.WithForecasts(fc))
 		case i == len(b.Points)-1:

@@ -27,6 +27,9 @@ func Follow(ctx context.Context, path string, opts Options) (<-chan Batch, error
 	if err := opts.validate(); err != nil {
 		return nil, err
 	}
+	if err := tail.CheckSource(path); err != nil {
+		return nil, err
+	}
 	out := make(chan Batch, 4)
 	g := newIngester(opts, out, time.Now)
 	if tail.IsStream(path) {

@@ -31,6 +31,9 @@ func TestReport_BadLogs(t *testing.T) {
 		{"Directory", []string{"report", dir}, []string{filepath.Base(dir), "no evaluation points in the 1 run(s) found"}},
 		{"Empty", []string{"report", empty}, []string{"empty.csv", "no evaluation points", "empty"}},
 		{"HeaderOnly", []string{"report", headerOnly}, []string{"header.csv", "no evaluation points"}},
+		// Source: zero(4): /dev/zero reads without end; refused at start.
+		{"Device", []string{"report", "/dev/zero"}, []string{"/dev/zero", "a device, not a log file"}},
+		{"DeviceFollowed", []string{"follow", "/dev/urandom"}, []string{"/dev/urandom", "a device, not a log file"}},
 		// The hint names every layout the reader knows.
 		{"Garbage", []string{"report", "--format", "jsonl", garbage}, []string{"garbage.jsonl", "no evaluation points", "skipped",
 			"--format " + strings.Join(watch.FormatNames(), ", ")}},

@@ -349,3 +349,40 @@ func rename(t *testing.T, from, to string) {
 		t.Fatal(err)
 	}
 }
+
+// TestCheckSource: a device given as the log is refused at start (read,
+// /dev/zero would never end); a terminal, a pipe, a regular file and a
+// path not there yet are let through.
+// Source: null(4) and zero(4) for the two devices; a pipe's mode from
+// pipe(7).
+func TestCheckSource(t *testing.T) {
+	dir := t.TempDir()
+	regular := filepath.Join(dir, "run.log")
+	watchtest.WriteRaw(t, regular, "a\n")
+	fifo := filepath.Join(dir, "pipe")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, tt := range []struct {
+		path    string
+		refused bool
+	}{
+		{"/dev/zero", true},
+		{"/dev/null", true},
+		{regular, false},
+		{fifo, false},
+		{filepath.Join(dir, "not-yet.log"), false},
+	} {
+		err := CheckSource(tt.path)
+		if (err != nil) != tt.refused {
+			t.Errorf("%s: %v, want refused %v", tt.path, err, tt.refused)
+		}
+		if err != nil && !strings.Contains(err.Error(), "a device, not a log file") {
+			t.Errorf("%s: %q does not say why", tt.path, err)
+		}
+	}
+	// A terminal, when the test has one to look at.
+	if fi, err := os.Stat("/dev/tty"); err == nil && !isTerminal(fi) {
+		t.Errorf("/dev/tty is not taken for a terminal")
+	}
+}

@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"github.com/fsnotify/fsnotify"
+	"golang.org/x/sys/unix"
 )
 
 const (
@@ -112,6 +113,40 @@ func open(path string, opts Options, bufSize int) (*File, error) {
 func IsStream(path string) bool {
 	fi, err := os.Stat(path)
 	return err == nil && !fi.IsDir() && !fi.Mode().IsRegular()
+}
+
+// CheckSource refuses a device given as the log, /dev/zero or a disk: it
+// would be read without end, or not be a log at all. A terminal is let
+// through (/dev/stdin on a terminal: lines typed or pasted, ended with
+// ^D), and so is anything else that exists; what does not exist is left
+// to the open to say.
+func CheckSource(path string) error {
+	fi, err := os.Stat(path)
+	if err != nil || fi.Mode()&fs.ModeDevice == 0 || isTerminal(fi) {
+		return nil
+	}
+	return fmt.Errorf("open log %q: %s, not a log file", sanitize(path), kindOf(fi))
+}
+
+// isTerminal reports a character device that is a terminal, by its major
+// number, without opening it (opening some devices acts on them).
+// Source: the Linux kernel's list of devices, Documentation/admin-guide/
+// devices.txt: major 4 the virtual consoles and serial ports, 5 /dev/tty,
+// /dev/console and /dev/ptmx, 136–143 the pseudo-terminals /dev/pts/N
+// (from memory).
+func isTerminal(fi os.FileInfo) bool {
+	if fi.Mode()&fs.ModeCharDevice == 0 {
+		return false
+	}
+	st, ok := fi.Sys().(*syscall.Stat_t)
+	if !ok {
+		return false
+	}
+	switch major := unix.Major(uint64(st.Rdev)); {
+	case major == 4, major == 5, major >= 136 && major <= 143:
+		return true
+	}
+	return false
 }
 
 // errNotRegular is the refusal of something other than a regular file
