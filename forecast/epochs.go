@@ -95,17 +95,17 @@ const (
 	BadInput
 )
 
-// statusWords are each status's machine name, its phrase (a few words
-// for a screen line: "no forecast: the curve has turned") and what it
-// means (the JSON reference).
-var statusWords = [...]struct{ name, phrase, about string }{
-	OK:        {"ok", "a forecast with its intervals", "a forecast was made; every number comes with its interval"},
-	TooFew:    {"too-few-points", "too few epochs", "too few epochs to fit, since the start or since a break in the curve"},
-	Turned:    {"turned", "the curve has turned", "the curve has turned upward (overfitting, or a blow-up beginning): extrapolating a falling curve would hide it"},
-	Diverging: {"diverging", "diverging", "the latest value is NaN or infinite"},
-	NoFit:     {"no-fit", "no curve family fits", "no learning-curve family could be fitted to the curve"},
-	LRRising:  {"lr-rising", "the learning rate is rising", "the learning rate keeps rising (a range test, a warm-up, the rising half of a cycle): the curve's shape is still changing with it"},
-	BadInput:  {"bad-input", "inconsistent input", "the series given are inconsistent (their lengths differ)"},
+// statusWords are each status's machine name, its word (a table cell:
+// "too few"), its phrase (a few words for a screen line: "no forecast:
+// the curve has turned") and what it means (the JSON reference).
+var statusWords = [...]struct{ name, word, phrase, about string }{
+	OK:        {"ok", "ok", "a forecast with its intervals", "a forecast was made; every number comes with its interval"},
+	TooFew:    {"too-few-points", "too few", "too few epochs", "too few epochs to fit, since the start or since a break in the curve"},
+	Turned:    {"turned", "turned", "the curve has turned", "the curve has turned upward (overfitting, or a blow-up beginning): extrapolating a falling curve would hide it"},
+	Diverging: {"diverging", "diverging", "diverging", "the latest value is NaN or infinite"},
+	NoFit:     {"no-fit", "no fit", "no curve family fits", "no learning-curve family could be fitted to the curve"},
+	LRRising:  {"lr-rising", "lr rising", "the learning rate is rising", "the learning rate keeps rising (a range test, a warm-up, the rising half of a cycle): the curve's shape is still changing with it"},
+	BadInput:  {"bad-input", "bad input", "inconsistent input", "the series given are inconsistent (their lengths differ)"},
 }
 
 // Statuses lists every status, in order.
@@ -115,6 +115,14 @@ func Statuses() []Status {
 		out[i] = Status(i)
 	}
 	return out
+}
+
+// Word returns the status in a word or two, for a table cell ("too few").
+func (s Status) Word() string {
+	if int(s) < len(statusWords) {
+		return statusWords[s].word
+	}
+	return s.String()
 }
 
 // String returns the stable machine name used in JSON ("turned").

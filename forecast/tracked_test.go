@@ -232,12 +232,17 @@ func TestForecast_Brief(t *testing.T) {
 			t.Errorf("%v: %q", s, got)
 		}
 	}
-	names := map[string]bool{}
+	names, words := map[string]bool{}, map[string]bool{}
 	for _, s := range Statuses() {
 		if names[s.String()] {
 			t.Errorf("status name %q twice", s)
 		}
 		names[s.String()] = true
+		// A word fits a table cell beside "– " and tells the statuses apart.
+		if w := s.Word(); w == "" || len(w) > 10 || words[w] {
+			t.Errorf("status %v: word %q empty, longer than 10 bytes or said twice", s, w)
+		}
+		words[s.Word()] = true
 	}
 	for _, b := range BreakCauses() {
 		if b.Phrase() == "" || strings.HasPrefix(b.String(), "break(") {

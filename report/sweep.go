@@ -174,7 +174,8 @@ func sweepValue(n diagnose.Num, m diagnose.Metric) string {
 // forecast looks as many epochs ahead as it fitted, and says to which
 // epoch ("6.5% [4.0, 9.1] at epoch 80", short "… @80"). "–" for a
 // finished run or before the first forecast; "– " and why there is none,
-// in a word (short, for the screen's column: "– turned") or a few.
+// in a word or two (short, for the screen's column: "– too few") or a
+// few.
 func ForecastText(row sweep.Row, short bool) string {
 	f := row.Forecast
 	switch {
@@ -182,7 +183,7 @@ func ForecastText(row sweep.Row, short bool) string {
 		return "–"
 	case f.Status != forecast.OK:
 		if short {
-			return "– " + f.Status.String()
+			return "– " + f.Status.Word()
 		}
 		return "– " + f.Status.Phrase()
 	}
