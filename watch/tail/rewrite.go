@@ -105,18 +105,7 @@ func (t *File) readRotated(sink Sink) {
 	if err != nil || fi.Size() <= t.offset || !t.kept.hold(f, t.offset) {
 		return
 	}
-	var fed int64
-	for at := t.offset; at < fi.Size(); {
-		n, err := f.ReadAt(t.buf[:min(int64(len(t.buf)), fi.Size()-at)], at)
-		if n > 0 {
-			sink.Feed(t.buf[:n])
-			at += int64(n)
-			fed += int64(n)
-		}
-		if err != nil {
-			break
-		}
-	}
+	fed := t.feedRange(sink, f, t.offset, fi.Size())
 	sink.Notice(fmt.Sprintf("%s was rotated with %d bytes not yet read: read them from its copy %s",
 		t.name, fed, sanitize(filepath.Base(name))))
 }
@@ -144,8 +133,15 @@ func (t *File) readMissed(sink Sink, last os.FileInfo, next *os.File) {
 	}
 	sink.Restart(fmt.Sprintf("%s was replaced twice before it was read again: reading the file between from its copy %s",
 		t.name, sanitize(filepath.Base(name))))
-	for at := int64(0); at < fi.Size(); {
-		n, err := f.ReadAt(t.buf[:min(int64(len(t.buf)), fi.Size()-at)], at)
+	t.feedRange(sink, f, 0, fi.Size())
+}
+
+// feedRange feeds the bytes of f from offset from up to end, in chunks of
+// the read buffer, and returns how many it fed (fewer when a read fails).
+func (t *File) feedRange(sink Sink, f io.ReaderAt, from, end int64) int64 {
+	at := from
+	for at < end {
+		n, err := f.ReadAt(t.buf[:min(int64(len(t.buf)), end-at)], at)
 		if n > 0 {
 			sink.Feed(t.buf[:n])
 			at += int64(n)
@@ -154,4 +150,5 @@ func (t *File) readMissed(sink Sink, last os.FileInfo, next *os.File) {
 			break
 		}
 	}
+	return at - from
 }
