@@ -177,11 +177,19 @@ const stepValuesGuess = 4
 // points.
 const collectChunk = 1024
 
+// firstChunk is the size of a collector's first chunk when the pool has
+// none: a piece of a per-step log holds a few points, and a full chunk
+// (104 KB) a piece was most of the garbage of reading such a log. The
+// chunks after the first are full. Unit: points.
+const firstChunk = 16
+
 func (c *collector) Point(p diagnose.Point) {
 	if n := len(c.points); n == 0 || len(c.points[n-1]) == cap(c.points[n-1]) {
 		var chunk []diagnose.Point
 		if p, ok := chunks.Get().(*[]diagnose.Point); ok {
 			chunk = (*p)[:0]
+		} else if n == 0 {
+			chunk = make([]diagnose.Point, 0, firstChunk)
 		} else {
 			chunk = make([]diagnose.Point, 0, collectChunk)
 		}
