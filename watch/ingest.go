@@ -52,9 +52,9 @@ type ingester struct {
 	// rows the Reader adds itself will need (those before a piece's sync
 	// line: a few hundred).
 	merged bool
-	batch                             Batch
-	sent                              Stats
-	sentAt                            time.Time
+	batch  Batch
+	sent   Stats
+	sentAt time.Time
 }
 
 func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester {
