@@ -140,8 +140,10 @@ type StopEvent struct {
 // file is created when the signal first reaches stop, and the Update says
 // what changed. The forecast's reason to stop (forecast.Forecast.Decide)
 // is weighed at every point when summaries are asked for (follow), else
-// at the batch's last point: a backlog read in one batch is judged as of
-// its end, and a live log brings its epochs one batch each. The lock is
+// at the last point of a batch that ends what was written (not
+// watch.Batch.More): a backlog, in one batch or in many (a per-step log's
+// rows fill a batch every few epochs), is judged as of its end, and a
+// live log brings its epochs one batch each. The lock is
 // held while judging a point, never while fitting a forecast or writing
 // a file.
 func (r *Run) Apply(b watch.Batch) Update {
@@ -179,7 +181,7 @@ func (r *Run) Apply(b watch.Batch) Update {
 			fc := r.summaryForecasts(i, len(b.Points))
 			j = fc.Val.Decide(j)
 			u.Summaries = append(u.Summaries, sum.WithForecasts(fc))
-		case i == len(b.Points)-1:
+		case i == len(b.Points)-1 && !b.More:
 			f := r.Forecast(diagnose.SplitVal)
 			j = f.Decide(j)
 		}

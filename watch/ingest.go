@@ -139,6 +139,7 @@ func (g *ingester) Flush(ctx context.Context, when tail.Flush) bool {
 		}
 	}
 	b := g.take()
+	b.More = when == tail.IfFull
 	if g.emit != nil {
 		if !g.emit(ctx, b) {
 			return false
