@@ -126,6 +126,8 @@ type Update struct {
 	// Err ends the run: a column named on the command line is not in the
 	// log (a *watch.ColumnsError). The batch's points were not judged.
 	Err error
+	// More is the batch's watch.Batch.More: written data follows at once.
+	More bool
 }
 
 // StopEvent is the outcome of creating the stop file.
@@ -147,7 +149,7 @@ type StopEvent struct {
 // held while judging a point, never while fitting a forecast or writing
 // a file.
 func (r *Run) Apply(b watch.Batch) Update {
-	u := Update{Steps: b.Steps, Notices: b.Notices}
+	u := Update{Steps: b.Steps, Notices: b.Notices, More: b.More}
 	stopAt := -1 // the first point of the batch that says stop, for the stop file
 	r.mu.Lock()
 	r.stats = b.Stats
