@@ -260,6 +260,25 @@ func TestRun_ForecastStop(t *testing.T) {
 	}
 }
 
+// TestRun_ForecastAtTheBacklogsEnd: a backlog handed on in many batches
+// (watch.Batch.More but the last) is weighed against the forecast as of
+// its end only, as a backlog in one batch is.
+func TestRun_ForecastAtTheBacklogsEnd(t *testing.T) {
+	cfg := diagnose.Config{MinDelta: 0.01, Patience: 100}
+	pts := runPoints(60, 100, plateau, stepAt(1000))
+	run := New(Options{Name: "run.csv", Judge: cfg})
+	batches := batchesOf(pts, watch.Stats{}, 10)
+	for k, b := range batches {
+		b.More = k < len(batches)-1
+		u := run.Apply(b)
+		last := u.Judgements[len(u.Judgements)-1]
+		forecastStop := strings.HasPrefix(last.EarlyStop.Reason, "even the optimistic forecast")
+		if forecastStop == b.More {
+			t.Fatalf("batch %d (more %v): last signal %v %q", k, b.More, last.EarlyStop.Signal, last.EarlyStop.Reason)
+		}
+	}
+}
+
 // TestRun_ForecastWhileApplying reads forecasts while batches are applied
 // (run under -race).
 func TestRun_ForecastWhileApplying(t *testing.T) {

@@ -126,6 +126,8 @@ type Update struct {
 	// Err ends the run: a column named on the command line is not in the
 	// log (a *watch.ColumnsError). The batch's points were not judged.
 	Err error
+	// More is the batch's watch.Batch.More: written data follows at once.
+	More bool
 }
 
 // StopEvent is the outcome of creating the stop file.
@@ -140,12 +142,14 @@ type StopEvent struct {
 // file is created when the signal first reaches stop, and the Update says
 // what changed. The forecast's reason to stop (forecast.Forecast.Decide)
 // is weighed at every point when summaries are asked for (follow), else
-// at the batch's last point: a backlog read in one batch is judged as of
-// its end, and a live log brings its epochs one batch each. The lock is
+// at the last point of a batch that ends what was written (not
+// watch.Batch.More): a backlog, in one batch or in many (a per-step log's
+// rows fill a batch every few epochs), is judged as of its end, and a
+// live log brings its epochs one batch each. The lock is
 // held while judging a point, never while fitting a forecast or writing
 // a file.
 func (r *Run) Apply(b watch.Batch) Update {
-	u := Update{Steps: b.Steps, Notices: b.Notices}
+	u := Update{Steps: b.Steps, Notices: b.Notices, More: b.More}
 	stopAt := -1 // the first point of the batch that says stop, for the stop file
 	r.mu.Lock()
 	r.stats = b.Stats
@@ -179,7 +183,7 @@ func (r *Run) Apply(b watch.Batch) Update {
 			fc := r.summaryForecasts(i, len(b.Points))
 			j = fc.Val.Decide(j)
 			u.Summaries = append(u.Summaries, sum.WithForecasts(fc))
-		case i == len(b.Points)-1:
+		case i == len(b.Points)-1 && !b.More:
 			f := r.Forecast(diagnose.SplitVal)
 			j = f.Decide(j)
 		}

@@ -87,9 +87,13 @@ type FeedMsg struct {
 	// Rejudged says the run judged every earlier point again (another
 	// metric, a rate found to be in percent): the screen reads them anew.
 	Rejudged bool
-	Steps    diagnose.StepRows
-	Source   SourceInfo
-	Notices  []string
+	// More: the message is the middle of a backlog, whose next part
+	// follows at once (watch.Batch.More); the screen draws the part that
+	// ends it without waiting for its frame tick.
+	More    bool
+	Steps   diagnose.StepRows
+	Source  SourceInfo
+	Notices []string
 	// WaitNotices are notices that say the reader waits ("waiting for
 	// run.csv"): shown as the others, and dropped once evaluation points
 	// come again, when they would be stale.
@@ -218,8 +222,12 @@ type Model struct {
 
 	dirty       bool // data changed since the last rebuild
 	tickPending bool
-	clockAt     time.Time // when the pending clock tick fires; zero when none
-	cache       *frame
+	// lastBuild is when the screen was last rebuilt (the clock); inBacklog:
+	// the last message said More.
+	lastBuild time.Time
+	inBacklog bool
+	clockAt   time.Time // when the pending clock tick fires; zero when none
+	cache     *frame
 
 	feed   <-chan FeedMsg
 	reason ExitReason

@@ -81,8 +81,11 @@ func (m Model) handleResize(msg tea.WindowSizeMsg) (tea.Model, tea.Cmd) {
 }
 
 // handleData stores the judged points and the series and marks the screen
-// dirty; the rebuild waits for the next tick, so a fast log costs one
-// rebuild per tick, not one per batch.
+// dirty. The screen is rebuilt at once for the first message, when
+// nothing was drawn for a frame interval, or when the message ends a
+// backlog (the first full frame need not wait for a tick); else the
+// rebuild waits for the next tick, so a fast log costs one rebuild per
+// tick, not one per batch.
 func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 	m.batches++
 	now := m.now()
@@ -126,6 +129,12 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 	}
 	m.clampView()
 	m.dirty = true
+	backlogEnd := m.inBacklog && !msg.More
+	m.inBacklog = msg.More
+	if m.batches == 1 || backlogEnd || m.now().Sub(m.lastBuild) >= frameInterval {
+		m.rebuild()
+		return m, m.waitFeed()
+	}
 	cmd := tea.Batch(m.waitFeed(), m.frameTick())
 	return m, cmd
 }

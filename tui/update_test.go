@@ -2,6 +2,7 @@ package tui
 
 import (
 	"errors"
+	"fmt"
 	"strings"
 	"testing"
 	"time"
@@ -373,6 +374,44 @@ func TestModel_IdleDoesNoWork(t *testing.T) {
 	_, cmd := m.Update(FeedMsg{Points: runSpec{epochs: 31, turn: 15, trainBase: 0.05, valBase: 0.1}.points()[30:]})
 	if cmd == nil {
 		t.Errorf("new data scheduled no rebuild")
+	}
+}
+
+// TestModel_DrawsAtOnce: the first data, and data after a frame interval
+// without a rebuild, are drawn at once; more data within the interval
+// waits for the tick, but the message that ends a backlog (after messages
+// saying More) is drawn at once, so the first full frame never waits for
+// a tick.
+func TestModel_DrawsAtOnce(t *testing.T) {
+	clock := fixedNow
+	m := newTestModel(t, 120, 40, Options{Now: func() time.Time { return clock }})
+	pts := overfitRun.points()
+	steps := []struct {
+		pts       []diagnose.Point
+		more      bool
+		rebuilt   bool
+		situation string
+	}{
+		{pts[:3], true, true, "the first data"},
+		{pts[3:5], true, false, "more of the backlog within the interval"},
+		{pts[5:10], true, false, "more of the backlog within the interval"},
+		{pts[10:20], true, false, "more of the backlog within the interval"},
+		{pts[20:], false, true, "the end of the backlog"},
+		{runSpec{epochs: 31, turn: 15, trainBase: 0.05, valBase: 0.1}.points()[30:], false, false, "a live epoch within the interval"},
+		{runSpec{epochs: 32, turn: 15, trainBase: 0.05, valBase: 0.1}.points()[31:], false, true, "a live epoch after a quiet interval"},
+	}
+	for k, st := range steps {
+		if k == 6 {
+			clock = clock.Add(frameInterval) // quiet for a frame interval
+		}
+		builds := m.cache.builds
+		m = send(t, m, FeedMsg{Points: st.pts, More: st.more, Source: liveSource(31)})
+		if rebuilt := m.cache.builds > builds; rebuilt != st.rebuilt || m.dirty == rebuilt {
+			t.Fatalf("%s: rebuilt %v (dirty %v), want %v", st.situation, rebuilt, m.dirty, st.rebuilt)
+		}
+		if s := m.cache.status; k == 4 && !strings.Contains(s, fmt.Sprintf("epoch %d/", len(pts))) {
+			t.Errorf("status after the backlog %q, want its last epoch %d", s, len(pts))
+		}
 	}
 }
 

@@ -77,6 +77,7 @@ func (m Model) View() string {
 // rebuild lays the screen out and renders every panel into the cache.
 func (m *Model) rebuild() {
 	m.dirty = false
+	m.lastBuild = m.now()
 	f := m.cache
 	f.builds++
 	idx := m.inspected()

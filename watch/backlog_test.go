@@ -192,3 +192,28 @@ func TestParallel_FollowBacklog(t *testing.T) {
 		t.Fatalf("followed %d points, want %d: %v", len(f.points), len(want), epochs(f.points))
 	}
 }
+
+// TestFollow_BacklogBatchesSayMore: the batches of a long per-step
+// backlog that went because they were full say More; the one that ends
+// the read does not.
+func TestFollow_BacklogBatchesSayMore(t *testing.T) {
+	var gen bytes.Buffer
+	if err := loggen.WriteCSV(&gen, 60_000); err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(t.TempDir(), "run.csv")
+	if err := os.WriteFile(path, gen.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	ch, err := Follow(context.Background(), path, Options{Steps: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var more []bool
+	for b := range ch {
+		more = append(more, b.More)
+	}
+	if len(more) < 3 || !more[0] || more[len(more)-1] {
+		t.Fatalf("batches' More: %v", more)
+	}
+}

@@ -47,9 +47,14 @@ type ingester struct {
 	// lastPoints, lastSteps and lastValues are how many points, per-step
 	// rows and their values the last batch held.
 	lastPoints, lastSteps, lastValues int
-	batch                             Batch
-	sent                              Stats
-	sentAt                            time.Time
+	// merged: the batch holds pieces of the parallel backlog, whose
+	// workers' rows it took whole; its size says nothing of the room the
+	// rows the Reader adds itself will need (those before a piece's sync
+	// line: a few hundred).
+	merged bool
+	batch  Batch
+	sent   Stats
+	sentAt time.Time
 }
 
 func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester {
@@ -85,7 +90,7 @@ func (g *ingester) Steps() *diagnose.StepRows {
 	if s.Rows == nil {
 		// The room the last batch needed, so that a batch is not copied as
 		// it grows.
-		s.Rows = make([]diagnose.StepRowAt, 0, min(batchSteps, max(8, g.lastSteps)))
+		s.Rows = make([]diagnose.StepRowAt, 0, max(8, g.lastSteps))
 		s.Values = make([]diagnose.StepValue, 0, max(8, g.lastValues))
 	}
 	return s
@@ -134,6 +139,7 @@ func (g *ingester) Flush(ctx context.Context, when tail.Flush) bool {
 		}
 	}
 	b := g.take()
+	b.More = when == tail.IfFull
 	if g.emit != nil {
 		if !g.emit(ctx, b) {
 			return false
@@ -180,6 +186,9 @@ func (g *ingester) take() Batch {
 	g.batch = Batch{}
 	g.lastPoints = len(b.Points)
 	g.lastSteps, g.lastValues = len(b.Steps.Rows), len(b.Steps.Values)
+	if g.merged {
+		g.lastSteps, g.lastValues, g.merged = 0, 0, false
+	}
 	c := g.r.Counts()
 	if b.Steps.Len() > 0 {
 		b.Steps.Columns = c.Columns // by the index the rows' values use
@@ -213,5 +222,6 @@ func (a aheadPiece) Decode(data []byte) { a.p.Decode(data) }
 
 func (a aheadPiece) Merge(data []byte) {
 	a.g.lastWrite = a.g.now()
+	a.g.merged = true
 	a.p.Merge(data)
 }

@@ -155,6 +155,11 @@ type Batch struct {
 	Steps   diagnose.StepRows
 	Notices []Notice
 	Stats   Stats
+	// More: the batch went because it was full while the data already
+	// written goes on (the middle of a backlog), and the next batch
+	// follows at once. A consumer may leave what only the newest state
+	// needs (a forecast) to a batch without More.
+	More bool
 }
 
 // AppendPoint adds p to points with the replacement rule of Batch: points

@@ -5,6 +5,10 @@
 //	ingest [-format auto|csv|tsv|jsonl|text] FILE
 //	ingest -follow FILE    follow FILE until interrupted (idle CPU check)
 //	ingest -cpuprofile OUT FILE   also write a CPU profile (go tool pprof)
+//	ingest -trace OUT FILE        also write an execution trace (go tool trace)
+//	ingest -memprofile OUT FILE   also write an allocation profile (go tool pprof -sample_index=alloc_space)
+//	ingest -memstats FILE         also print the bytes allocated and the GC cycles
+//	ingest -piece BYTES FILE      cut the backlog into pieces of BYTES (tail.PieceBytes)
 //	ingest -steps FILE     also make the per-step rows (the live screen's reading)
 package main
 
@@ -14,11 +18,14 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"runtime"
 	"runtime/pprof"
+	"runtime/trace"
 	"syscall"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch"
+	tailpkg "github.com/fitgap/fitgap/watch/tail"
 )
 
 func main() {
@@ -33,7 +40,34 @@ func run() error {
 	follow := flag.Bool("follow", false, "follow the file until interrupted")
 	profile := flag.String("cpuprofile", "", "write a CPU profile to this file")
 	steps := flag.Bool("steps", false, "also make the per-step rows the live screen asks for")
+	traceOut := flag.String("trace", "", "write an execution trace to this file")
+	memOut := flag.String("memprofile", "", "write an allocation profile to this file at the end")
+	memStats := flag.Bool("memstats", false, "print the bytes allocated and the GC cycles to stderr at the end")
+	piece := flag.Int("piece", 0, "the parallel backlog's piece size in bytes (0: tail.PieceBytes)")
 	flag.Parse()
+	if *memOut != "" {
+		runtime.MemProfileRate = 4096
+		defer func() {
+			if mf, err := os.Create(*memOut); err == nil {
+				_ = pprof.Lookup("allocs").WriteTo(mf, 0)
+				mf.Close()
+			}
+		}()
+	}
+	if *piece > 0 {
+		tailpkg.PieceBytes = *piece
+	}
+	if *traceOut != "" {
+		tf, err := os.Create(*traceOut)
+		if err != nil {
+			return err
+		}
+		defer tf.Close()
+		if err := trace.Start(tf); err != nil {
+			return err
+		}
+		defer trace.Stop()
+	}
 	if *profile != "" {
 		pf, err := os.Create(*profile)
 		if err != nil {
@@ -93,6 +127,11 @@ func run() error {
 	tail := ""
 	if points > 0 {
 		tail = fmt.Sprintf(", last epoch %d (%d rows)", last.Epoch, last.Rows)
+	}
+	if *memStats {
+		var ms runtime.MemStats
+		runtime.ReadMemStats(&ms)
+		fmt.Fprintf(os.Stderr, "allocated %.2f MB in %d objects, %d GC cycles\n", float64(ms.TotalAlloc)/1e6, ms.Mallocs, ms.NumGC)
 	}
 	fmt.Printf("%s: %d lines, %d points, %d skipped%s\n", st.Format, st.Lines, points, st.Skipped, tail)
 	return nil

@@ -291,6 +291,7 @@ func screenFeed(run *pipeline.Run, u pipeline.Update) tui.FeedMsg {
 		Points:      u.Points,
 		Judgements:  u.Judgements,
 		Rejudged:    u.Rejudged,
+		More:        u.More,
 		Steps:       u.Steps,
 		Notices:     notices,
 		WaitNotices: waits,

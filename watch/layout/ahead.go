@@ -98,6 +98,9 @@ type aheadSnap struct {
 	overrode bool
 	general  bool
 	asm      *points.Snapshot
+	// perRow is the room for values a worker gives a per-step row, on
+	// average.
+	perRow float64
 }
 
 // ReadsAhead reports whether pieces of the backlog can be decoded ahead
@@ -154,7 +157,11 @@ func (r *Reader) snapshot(prev *aheadSnap) *aheadSnap {
 	if as == nil {
 		return nil
 	}
-	return &aheadSnap{format: r.format, state: st, overrode: r.overrode, general: r.general, asm: as}
+	perRow := float64(min(as.Values(), stepValuesGuess))
+	if r.stepValues > 0 {
+		perRow = r.stepValues
+	}
+	return &aheadSnap{format: r.format, state: st, overrode: r.overrode, general: r.general, asm: as, perRow: perRow}
 }
 
 // collector is a worker's points.Out: it keeps the points and gives up at
@@ -166,22 +173,42 @@ type collector struct {
 	// again and again.
 	points [][]diagnose.Point
 	steps  diagnose.StepRows
+	// frontRows and frontValues are room reserved in front of steps.Rows
+	// and steps.Values, in the same arrays, for the rows the Reader reads
+	// itself before the sync line: takeSteps puts them there rather than
+	// copying the worker's rows after them.
+	frontRows   []diagnose.StepRowAt
+	frontValues []diagnose.StepValue
 }
 
 // stepValuesGuess is how many values a per-step row is given room for
-// before it is read: a training loop logs a handful per step (loss,
-// accuracy, learning rate). Unit: values.
+// before a piece's rows were read (after, the room they needed): a
+// training loop logs a handful per step (loss, accuracy, learning rate).
+// Unit: values.
 const stepValuesGuess = 4
+
+// stepValuesSlack is the room for values a worker adds to its guess, for
+// the rows that log more than the others (an evaluation's row every
+// epoch; a piece holds a few). Unit: values.
+const stepValuesSlack = 64
 
 // collectChunk is how many points one chunk of a collector holds. Unit:
 // points.
 const collectChunk = 1024
+
+// firstChunk is the size of a collector's first chunk when the pool has
+// none: a piece of a per-step log holds a few points, and a full chunk
+// (104 KB) a piece was most of the garbage of reading such a log. The
+// chunks after the first are full. Unit: points.
+const firstChunk = 16
 
 func (c *collector) Point(p diagnose.Point) {
 	if n := len(c.points); n == 0 || len(c.points[n-1]) == cap(c.points[n-1]) {
 		var chunk []diagnose.Point
 		if p, ok := chunks.Get().(*[]diagnose.Point); ok {
 			chunk = (*p)[:0]
+		} else if n == 0 {
+			chunk = make([]diagnose.Point, 0, firstChunk)
 		} else {
 			chunk = make([]diagnose.Point, 0, collectChunk)
 		}
@@ -253,10 +280,15 @@ func (s *aheadSnap) decodePiece(piece []byte) pieceResult {
 	if s.asm.Steps() {
 		// A per-step row a line at most: room for all, so that the rows
 		// are not copied as they grow, and for a few values each (a wide
-		// log's rows grow the values as they come).
-		lines := bytes.Count(rest, []byte{'\n'})
-		c.steps.Rows = make([]diagnose.StepRowAt, 0, lines)
-		c.steps.Values = make([]diagnose.StepValue, 0, lines*min(s.asm.Values(), stepValuesGuess))
+		// log's rows grow the values as they come); and room in front for
+		// the rows of the lines before the sync line, which the Reader
+		// reads (takeSteps).
+		head, lines := bytes.Count(piece[:r.sync], []byte{'\n'}), bytes.Count(rest, []byte{'\n'})
+		front, room := int(float64(head)*s.perRow)+stepValuesSlack, int(float64(lines)*s.perRow)+stepValuesSlack
+		rows := make([]diagnose.StepRowAt, head+lines)
+		values := make([]diagnose.StepValue, front+room)
+		c.frontRows, c.frontValues = rows[:head], values[:front]
+		c.steps.Rows, c.steps.Values = rows[head:head], values[front:front]
 	}
 	w.Feed(rest[:nl])
 	epoch, ok := w.asm.SyncEpoch()
@@ -337,19 +369,39 @@ func (r *Reader) canTake(s *aheadSnap, res pieceResult) bool {
 	return r.asm.CanJoin(s.asm, res.epoch, res.single, res.multi)
 }
 
-// takeSteps hands on a worker's per-step rows, in the segment seg: as
-// they are when the sink holds none yet, else after the sink's.
-func (r *Reader) takeSteps(ws *diagnose.StepRows, seg int) {
+// takeSteps hands on the per-step rows of the worker whose output is c,
+// in the segment seg: as they are when the sink holds none yet, else
+// after the sink's: the sink's rows are copied into the room in front of
+// the worker's when they fit there (the rows of the lines before the sync
+// line, usually), else the worker's are appended to the sink's.
+func (r *Reader) takeSteps(c *collector, seg int) {
+	ws := &c.steps
 	if ws.Len() == 0 {
 		return
 	}
 	for i := range ws.Rows {
 		ws.Rows[i].Segment = int32(seg)
 	}
+	r.stepValues = float64(len(ws.Values)) / float64(len(ws.Rows))
 	s := r.out.Steps()
 	if s.Len() == 0 {
 		s.Rows, s.Values = ws.Rows, ws.Values
 		ws.Rows, ws.Values = nil, nil
+		return
+	}
+	if k, kv, fr, fv := len(s.Rows), len(s.Values), len(c.frontRows), len(c.frontValues); k <= fr && kv <= fv &&
+		adjoins(c.frontRows, ws.Rows) && adjoins(c.frontValues, ws.Values) {
+		// The sink's values keep their indexes from the start of the
+		// joined values; the worker's move up by the sink's count.
+		copy(c.frontRows[fr-k:], s.Rows)
+		copy(c.frontValues[fv-kv:], s.Values)
+		for i := range ws.Rows {
+			ws.Rows[i].From += int32(kv)
+			ws.Rows[i].To += int32(kv)
+		}
+		s.Rows = c.frontRows[fr-k : fr+len(ws.Rows)]
+		s.Values = c.frontValues[fv-kv : fv+len(ws.Values)]
+		ws.Rows, ws.Values, c.frontRows, c.frontValues = nil, nil, nil, nil
 		return
 	}
 	s.Rows = slices.Grow(s.Rows, len(ws.Rows))
@@ -361,6 +413,13 @@ func (r *Reader) takeSteps(ws *diagnose.StepRows, seg int) {
 		s.Rows = append(s.Rows, row)
 	}
 	s.Values = append(s.Values, ws.Values...)
+}
+
+// adjoins reports whether rest starts right after front in front's array
+// (a worker's values outgrew their room when they no longer do).
+func adjoins[T any](front, rest []T) bool {
+	n := len(front)
+	return len(rest) > 0 && cap(front) > n && &front[:n+1][n] == &rest[0]
 }
 
 // takePiece closes the open epoch and takes over what the worker of res
@@ -376,7 +435,7 @@ func (r *Reader) takePiece(s *aheadSnap, res pieceResult) {
 			r.out.Point(p)
 		}
 	}
-	r.takeSteps(&res.c.steps, a.Segment())
+	r.takeSteps(res.c, a.Segment())
 	res.c.release()
 	for _, e := range w.examples() {
 		e.Line += shift

@@ -31,6 +31,32 @@ type recorder struct {
 	points  []diagnose.Point // as emitted, before replacement
 	steps   diagnose.StepRows
 	notices []string
+	// batched: the per-step rows are handed on after each piece merged,
+	// as watch's ingester hands on a batch (the next piece's rows then
+	// start in an empty sink); handed holds those handed on.
+	batched bool
+	handed  diagnose.StepRows
+}
+
+// handOn moves the per-step rows held into handed, when batched.
+func (o *recorder) handOn() {
+	if !o.batched {
+		return
+	}
+	for i := range o.steps.Rows {
+		row, vals := o.steps.Row(i)
+		o.handed.Append(row, vals...)
+	}
+	o.steps = diagnose.StepRows{}
+}
+
+// allSteps returns every per-step row handed on or held.
+func (o *recorder) allSteps() diagnose.StepRows {
+	o.handOn()
+	if o.batched {
+		return o.handed
+	}
+	return o.steps
 }
 
 func (o *recorder) Point(p diagnose.Point)    { o.points = append(o.points, p) }

@@ -146,6 +146,10 @@ func FuzzParallelLayouts(f *testing.F) {
 			if d := diffResults(got, want); d != "" {
 				t.Fatalf("format %s head %q body %q cut at %v: %s", format, head, body, bounds, d)
 			}
+			got = ingestPiecesBatched(opts, []feedPiece{{data: head}, {data: body, bounds: bounds}}, true)
+			if d := diffResults(got, want); d != "" {
+				t.Fatalf("format %s head %q body %q cut at %v, rows handed on after each piece: %s", format, head, body, bounds, d)
+			}
 		}
 	})
 }

@@ -31,7 +31,14 @@ type ingestResult struct {
 
 // ingestPieces reads the pieces in order to the end of the input.
 func ingestPieces(c Config, pieces []feedPiece) ingestResult {
+	return ingestPiecesBatched(c, pieces, false)
+}
+
+// ingestPiecesBatched is ingestPieces, the per-step rows handed on after
+// each piece merged when batched (recorder.batched).
+func ingestPiecesBatched(c Config, pieces []feedPiece, batched bool) ingestResult {
 	r, o := newTestReader(c)
+	o.batched = batched
 	for _, p := range pieces {
 		if p.bounds == nil {
 			r.Feed(p.data)
@@ -40,7 +47,7 @@ func ingestPieces(c Config, pieces []feedPiece) ingestResult {
 		}
 	}
 	r.End()
-	return ingestResult{points: o.points, notices: o.notices, counts: r.Counts(), steps: o.steps, taken: r.taken}
+	return ingestResult{points: o.points, notices: o.notices, counts: r.Counts(), steps: o.allSteps(), taken: r.taken}
 }
 
 // diffResults describes how two reads differ, bit for bit, or "".
@@ -107,6 +114,12 @@ func checkSplits(t *testing.T, head, body []byte, opts Config, maxCuts int) (tak
 				t.Fatalf("input %q cut at %v: %s", string(head)+string(body), b, d)
 			}
 			taken += got.taken
+			if opts.Steps {
+				got = ingestPiecesBatched(opts, []feedPiece{{data: head}, {data: body, bounds: b}}, true)
+				if d := diffResults(got, want); d != "" {
+					t.Fatalf("input %q cut at %v, rows handed on after each piece: %s", string(head)+string(body), b, d)
+				}
+			}
 		}
 		if len(bounds) > maxCuts {
 			return
@@ -275,11 +288,15 @@ func FuzzParallel(f *testing.F) {
 			bounds = append(bounds, c+at+1)
 		}
 		bounds = append(bounds, len(body))
-		for _, opts := range []Config{{}, {Format: CSV}} {
+		for _, opts := range []Config{{}, {Format: CSV}, {Steps: true}} {
 			want := ingestPieces(opts, []feedPiece{{data: append(append([]byte(nil), head...), body...)}})
 			got := ingestPieces(opts, []feedPiece{{data: head}, {data: body, bounds: bounds}})
 			if d := diffResults(got, want); d != "" {
 				t.Fatalf("head %q body %q cut at %v: %s", head, body, bounds, d)
+			}
+			got = ingestPiecesBatched(opts, []feedPiece{{data: head}, {data: body, bounds: bounds}}, true)
+			if d := diffResults(got, want); d != "" {
+				t.Fatalf("head %q body %q cut at %v, rows handed on after each piece: %s", head, body, bounds, d)
 			}
 		}
 	})
@@ -325,6 +342,9 @@ func (r *Reader) merge(w *window) {
 	}
 	for j, ch := range w.results {
 		r.mergePiece(w.snap, w.data[w.bounds[j]:w.bounds[j+1]], <-ch)
+		if o, ok := r.out.(*recorder); ok {
+			o.handOn()
+		}
 	}
 }
 

@@ -138,6 +138,10 @@ type Reader struct {
 	// taken counts the pieces whose workers' results were taken (tests
 	// check that the parallel path is not silently sequential).
 	taken int
+	// stepValues is how many values the per-step rows of the last piece
+	// taken had, a row on average: the room its successors' workers give
+	// a row.
+	stepValues float64
 }
 
 // NewReader returns a Reader that hands what it reads to out.

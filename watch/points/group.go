@@ -208,7 +208,7 @@ func (a *Assembler) emit() {
 	}
 	n := len(a.touched)
 	if cap(a.pointSlab)-len(a.pointSlab) < n {
-		a.pointSlab = make([]diagnose.Sample, 0, max(pointSlab, n))
+		a.pointSlab = make([]diagnose.Sample, 0, max(nextSlab(cap(a.pointSlab)), n))
 	}
 	start := len(a.pointSlab)
 	for _, ci := range a.touched {

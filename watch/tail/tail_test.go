@@ -314,6 +314,36 @@ func TestFile_Backlog(t *testing.T) {
 	}
 }
 
+// TestFile_BacklogLongLines reads, through the parallel path, a file
+// whose lines are often longer than lineProbe (so a piece's last line is
+// found by the second read) but shorter than PieceSlack: the sink gets
+// the file's bytes exactly, every piece decoded ahead.
+func TestFile_BacklogLongLines(t *testing.T) {
+	defer func(piece, procs int) {
+		PieceBytes = piece
+		runtime.GOMAXPROCS(procs)
+	}(PieceBytes, runtime.GOMAXPROCS(3))
+	PieceBytes = 16 << 10
+	var b strings.Builder
+	for i := range 400 {
+		fmt.Fprintf(&b, "%d,%s\n", i, strings.Repeat("y", i*397%(3*lineProbe)))
+	}
+	path := filepath.Join(t.TempDir(), "run.log")
+	watchtest.WriteRaw(t, path, b.String())
+	f, err := Open(path, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := &aheadRecorder{recorder: newRecorder()}
+	f.Run(context.Background(), a)
+	if a.data.String() != b.String() || len(a.notices) > 0 {
+		t.Fatalf("%d bytes read of %d; notices %q", a.data.Len(), b.Len(), a.notices)
+	}
+	if a.pieces < 10 || a.merged != a.pieces {
+		t.Fatalf("%d pieces, %d merged", a.pieces, a.merged)
+	}
+}
+
 // rewinder asks for the file to be read again each time it is fed.
 type rewinder struct {
 	*recorder
