@@ -77,3 +77,67 @@ func TestRoundsFast_ExhaustiveFields(t *testing.T) {
 	}
 	t.Logf("%d logs", n)
 }
+
+// pyNumberByScan is pyDictDecoder.num as it read a plain number before
+// its one-pass reading: the bytes the number may be made of, then
+// parseNumber on them.
+func pyNumberByScan(p []byte, i int) (end int, v float64, ok bool) {
+	start := i
+	if p[i] == '-' || p[i] == '+' {
+		i++
+	}
+	for i < len(p) {
+		c := p[i]
+		if c >= '0' && c <= '9' || c == '.' || c == 'e' || c == 'E' || (c == '-' || c == '+') && (p[i-1]|0x20 == 'e') {
+			i++
+			continue
+		}
+		break
+	}
+	v, ok = parseNumber(p[start:i])
+	return i, v, ok
+}
+
+// checkPyNumber compares the one-pass reading of a dict line's number with
+// the scan-then-parse reading, on every start of b that num is called at.
+func checkPyNumber(t *testing.T, b []byte) {
+	t.Helper()
+	for i := range b {
+		if c := b[i]; c != '-' && c != '+' && c != '.' && (c < '0' || c > '9') {
+			continue
+		}
+		if (b[i] == '-' || b[i] == '+') && i+1 < len(b) && (b[i+1] == 'i' || b[i+1] == 'n') {
+			continue // a signed word: read as a word by both
+		}
+		d := pyDictDecoder{p: b, i: i}
+		v, ok := d.num()
+		wantEnd, want, wantOK := pyNumberByScan(b, i)
+		if ok != wantOK || d.i != wantEnd || ok && !sameFloat(v, want) {
+			t.Fatalf("%q at %d: %v %v ends %d, want %v %v ends %d", b, i, v, ok, d.i, want, wantOK, wantEnd)
+		}
+	}
+}
+
+// TestPyDictNum_ExhaustiveBytes reads every string of up to five (seven
+// with -exhaustive) of the bytes a number is made of or stops at.
+func TestPyDictNum_ExhaustiveBytes(t *testing.T) {
+	alphabet := []byte("05.eE-+x ,}")
+	n := 0
+	eachSequence(alphabet, size(5, 7), func(seq []byte) {
+		checkPyNumber(t, append([]byte(nil), seq...))
+		n++
+	})
+	t.Logf("%d strings", n)
+}
+
+func FuzzPyDictNum(f *testing.F) {
+	for _, s := range []string{"0.30079500000000003,", "-1e-3}", "1e+5.5", "+.5e", "12345678901234567890.5"} {
+		f.Add([]byte(s))
+	}
+	f.Fuzz(func(t *testing.T, b []byte) {
+		if len(b) > 64 {
+			return
+		}
+		checkPyNumber(t, b)
+	})
+}

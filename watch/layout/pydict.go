@@ -222,15 +222,29 @@ func (d *pyDictDecoder) num() (float64, bool) {
 			return v, ok
 		}
 	}
-	for d.i < len(d.p) {
-		c := d.p[d.i]
-		if c >= '0' && c <= '9' || c == '.' || c == 'e' || c == 'E' || (c == '-' || c == '+') && (d.p[d.i-1]|0x20 == 'e') {
-			d.i++
-			continue
-		}
-		break
+	// A plain number is read where it lies, in one pass: when fastFloat
+	// stops where the loop below would stop too, the bytes between are
+	// the ones the loop hands to parseNumber, which reads them with
+	// fastFloat alike (nothing to trim: they start with a sign, a digit
+	// or a point and end with a digit or a point).
+	if v, end, ok := fastFloat(d.p, start); ok && !pyNumberGoesOn(d.p, end) {
+		d.i = end
+		return v, true
+	}
+	for pyNumberGoesOn(d.p, d.i) {
+		d.i++
 	}
 	return parseNumber(d.p[start:d.i])
+}
+
+// pyNumberGoesOn reports whether p[i] continues the number before it: a
+// digit, a point, an exponent's letter, or a sign after that letter.
+func pyNumberGoesOn(p []byte, i int) bool {
+	if i >= len(p) {
+		return false
+	}
+	c := p[i]
+	return c >= '0' && c <= '9' || c == '.' || c == 'e' || c == 'E' || (c == '-' || c == '+') && (p[i-1]|0x20 == 'e')
 }
 
 // numberAt files v, the number read from d.p[start:d.i], noting where it
