@@ -234,7 +234,11 @@ func (d *pyDictDecoder) num() (float64, bool) {
 	for pyNumberGoesOn(d.p, d.i) {
 		d.i++
 	}
-	return parseNumber(d.p[start:d.i])
+	// fastFloat reads these bytes as it read them above (it stops no
+	// later than the loop, at a byte that cannot go on its number, and
+	// there is nothing to trim), so parseNumber would only read them with
+	// it again before strconv.
+	return slowNumber(d.p[start:d.i])
 }
 
 // pyNumberGoesOn reports whether p[i] continues the number before it: a
