@@ -52,7 +52,7 @@ func TestTableFast_ExhaustiveRows(t *testing.T) {
 func TestRoundsFast_ExhaustiveFields(t *testing.T) {
 	names := []string{"train-logloss", "eval-error", "training's binary_logloss", "valid_1's auc", "ndcg@5-"}
 	seps := []string{":", ": ", " :"}
-	values := []string{"0.5", "-0.25", "1e-3", "0.9+0.1", "nan", "12", "x", ".5", "-", "1.5 "}
+	values := []string{"0.5", "-0.25", "1e-3", "0.9+0.1", "nan", "12", "x", ".5", "-", "1.5 ", "+0.5", "1e+3", "2E+1+1"}
 	var fields []string
 	for _, name := range names {
 		for _, sep := range seps {

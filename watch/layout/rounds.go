@@ -151,11 +151,12 @@ func (d *roundsDecoder) field(k int, f []byte) (ci int, v float64, ok bool) {
 }
 
 // sameField reads the k-th field when it is the same field's name as on
-// the line before, read and found a column, then a colon and a plain
-// decimal (digits, a point, a minus sign) up to the field's end. Such a
-// field has nothing for TrimSpace to trim, its last colon is the one
-// after the name, and its number has no "+" for roundNumber to cut: the
-// general reading gives the same column and value. Anything else, false.
+// the line before, read and found a column, then a colon and a number
+// that fastFloat reads to the field's end. Such a field has nothing for
+// TrimSpace to trim, its last colon is the one after the name, and its
+// number has a "+" only first or after its exponent's letter, which
+// roundNumber does not cut at: the general reading gives the same column
+// and value. Anything else, false.
 func (d *roundsDecoder) sameField(k int, f []byte) (int, float64, bool) {
 	if k >= len(d.fields) {
 		return 0, 0, false
@@ -166,11 +167,6 @@ func (d *roundsDecoder) sameField(k int, f []byte) (int, float64, bool) {
 		return 0, 0, false
 	}
 	num := f[n+1:]
-	for _, c := range num {
-		if c-'0' > 9 && c != '.' && c != '-' {
-			return 0, 0, false
-		}
-	}
 	v, end, ok := fastFloat(num, 0)
 	if !ok || end != len(num) {
 		return 0, 0, false
