@@ -141,3 +141,28 @@ func FuzzPyDictNum(f *testing.F) {
 		checkPyNumber(t, b)
 	})
 }
+
+// TestPlainClock_ExhaustiveBytes: every clock plainClock reads is read the
+// same by parseClock, on every string of up to six (eight with
+// -exhaustive) of the bytes clocks are made of, and on long parts.
+func TestPlainClock_ExhaustiveBytes(t *testing.T) {
+	check := func(c []byte) {
+		v, ok := plainClock(c)
+		if !ok {
+			return // timeCell reads it
+		}
+		want, wantOK := parseClock(c)
+		if !wantOK || !sameFloat(v, want) {
+			t.Fatalf("%q: %v, want %v %v", c, v, want, wantOK)
+		}
+	}
+	n := 0
+	eachSequence([]byte("059:.-e"), size(6, 8), func(seq []byte) {
+		check(seq)
+		n++
+	})
+	for _, c := range []string{"999999999999999:59", "9999999999999999:59", "1:0000000000000001", "12345678901234:59:59"} {
+		check([]byte(c))
+	}
+	t.Logf("%d strings", n)
+}
