@@ -233,7 +233,6 @@ func pyNumberAt(line []byte, i int) (int, float64, bool) {
 	default:
 		return 0, 0, false
 	}
-	d := pyDictDecoder{p: line, i: i}
-	v, ok := d.num()
-	return d.i, v, ok
+	v, end, ok := pyNumber(line, i)
+	return end, v, ok
 }

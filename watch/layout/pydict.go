@@ -210,16 +210,27 @@ func (d *pyDictDecoder) value(depth int) error {
 
 // num reads a number: digits, a point, an exponent, or a signed nan/inf.
 func (d *pyDictDecoder) num() (float64, bool) {
-	start := d.i
-	if c := d.p[d.i]; c == '-' || c == '+' {
-		d.i++
-		if d.i < len(d.p) && (d.p[d.i] == 'i' || d.p[d.i] == 'n') {
-			w := d.word()
-			v, ok := special(w)
-			if ok && d.p[start] == '-' {
+	v, end, ok := pyNumber(d.p, d.i)
+	d.i = end
+	return v, ok
+}
+
+// pyNumber reads the number at p[i:] as num does, and where it ends. It
+// is apart from the decoder so that a record line matched to its shape
+// (pyNumberAt) reads its numbers without making a decoder for each.
+func pyNumber(p []byte, i int) (float64, int, bool) {
+	start := i
+	if c := p[i]; c == '-' || c == '+' {
+		i++
+		if i < len(p) && (p[i] == 'i' || p[i] == 'n') {
+			for i < len(p) && (isWordByte(p[i]) || p[i] == '.') {
+				i++ // the word, as pyDictDecoder.word reads it
+			}
+			v, ok := special(p[start+1 : i])
+			if ok && p[start] == '-' {
 				v = -v
 			}
-			return v, ok
+			return v, i, ok
 		}
 	}
 	// A plain number is read where it lies, in one pass: when fastFloat
@@ -227,18 +238,18 @@ func (d *pyDictDecoder) num() (float64, bool) {
 	// the ones the loop hands to parseNumber, which reads them with
 	// fastFloat alike (nothing to trim: they start with a sign, a digit
 	// or a point and end with a digit or a point).
-	if v, end, ok := fastFloat(d.p, start); ok && !pyNumberGoesOn(d.p, end) {
-		d.i = end
-		return v, true
+	if v, end, ok := fastFloat(p, start); ok && !pyNumberGoesOn(p, end) {
+		return v, end, true
 	}
-	for pyNumberGoesOn(d.p, d.i) {
-		d.i++
+	for pyNumberGoesOn(p, i) {
+		i++
 	}
 	// fastFloat reads these bytes as it read them above (it stops no
 	// later than the loop, at a byte that cannot go on its number, and
 	// there is nothing to trim), so parseNumber would only read them with
 	// it again before strconv.
-	return slowNumber(d.p[start:d.i])
+	v, ok := slowNumber(p[start:i])
+	return v, i, ok
 }
 
 // pyNumberGoesOn reports whether p[i] continues the number before it: a
