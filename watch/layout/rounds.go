@@ -260,7 +260,11 @@ func roundPrefix(line []byte) (int, []byte, bool) {
 	if !ok || end+1 >= len(line) || line[end] != ']' || line[end+1] != '\t' && line[end+1] != ' ' {
 		return 0, nil, false
 	}
-	return round, bytes.TrimLeft(line[end+1:], " \t"), true
+	i := end + 1
+	for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
+		i++ // bytes.TrimLeft(…, " \t"), without making its byte set each line
+	}
+	return round, line[i:], true
 }
 
 // firstField returns the text up to the next tab.
