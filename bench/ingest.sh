@@ -10,6 +10,8 @@
 #   LAYOUTS="csv text" bench/ingest.sh
 #   BIG=1 bench/ingest.sh        # also peak RSS at 10,000,000 lines
 #   INSTR=1 bench/ingest.sh      # also instruction counts (valgrind), at INSTR_LINES (200,000)
+#   BASE=/tmp/ingest.old bench/ingest.sh   # also a build of bench/ingest from another
+#                                # commit, interleaved: before and after under one load
 #
 # Wall times are medians over RUNS interleaved runs (the machine may be
 # shared: the load average is printed before and after); ratios are of
@@ -64,6 +66,9 @@ for _ in $(seq "$runs"); do
 		wall "wc_$f" wc -l "$work/run.$f"
 		wall "lc_$f" "$work/linecount" "$work/run.$f"
 		wall "in_$f" "$work/ingest" "$work/run.$f"
+		if [ -n "${BASE:-}" ]; then
+			wall "base_$f" "$BASE" "$work/run.$f"
+		fi
 		if [ "$f" = csv ]; then
 			wall seq_csv env GOMAXPROCS=1 "$work/ingest" "$work/run.csv"
 			wall awk_csv awk -F, '{s+=$3} END{print s}' "$work/run.csv"
@@ -83,6 +88,14 @@ for f in $layouts; do
 	printf '%-7s %6d %8s %8s %8s %8sx %9sx  <= %sx wc -l: %s\n' "$f" "$(($(stat -c %s "$work/run.$f") / 1000000))" \
 		"$in" "$wc" "$lc" "$r" "$(ratio "$in" "$lc")" "$(goal "$f")" "$met"
 done
+if [ -n "${BASE:-}" ]; then
+	printf 'baseline %s, same runs:' "$BASE"
+	for f in $layouts; do
+		b=$(median "base_$f")
+		printf ' %s %s ms (%sx wc -l, this build %sx faster);' "$f" "$b" "$(ratio "$b" "$(median "wc_$f")")" "$(ratio "$b" "$(median "in_$f")")"
+	done
+	echo
+fi
 case " $layouts " in *" csv "*)
 	seq=$(median seq_csv)
 	awk_ms=$(median awk_csv)

@@ -50,7 +50,7 @@ func TestActions_NegativeVarianceNeedsEvidence(t *testing.T) {
 // fractions (shown in percent, gaps in points); a loss is in its own units.
 func TestMetric_Fraction(t *testing.T) {
 	f1 := func(split Split, v float64) Sample {
-		return Sample{Column: col("f1", split, false, HigherIsBetter), Value: v, Last: v}
+		return Sample{Column: ref(col("f1", split, false, HigherIsBetter)), Value: v, Last: v}
 	}
 	tests := []struct {
 		name   string

@@ -22,7 +22,7 @@ func benchPoint(e int) Point {
 	tr := 0.5/float64(e) + 0.01
 	va := 0.12 + 0.3/float64(e) + 0.004*wiggle(e) + 0.00001*float64(e)
 	return metricPoint(e, acc(SplitTrain, printed(1-tr)), acc(SplitVal, printed(1-va)), loss(SplitTrain, printed(3*tr)), loss(SplitVal, printed(3*va)),
-		Sample{Column: Column{Name: "lr", Kind: KindOther}, Value: 0.001})
+		Sample{Column: &Column{Name: "lr", Kind: KindOther}, Value: 0.001})
 }
 
 // printed is v as a script prints it with six decimals and a reader

@@ -88,7 +88,7 @@ func bishopErrors(tb testing.TB, n, m int) (train, test float64) {
 func judgeFit(t *testing.T, cfg Config, train, test float64) Judgement {
 	t.Helper()
 	rmse := func(s Split, v float64) Sample {
-		return Sample{Column: col("rmse", s, false, LowerIsBetter), Value: v}
+		return Sample{Column: ref(col("rmse", s, false, LowerIsBetter)), Value: v}
 	}
 	tr := New(cfg)
 	var j Judgement

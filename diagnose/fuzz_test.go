@@ -55,7 +55,7 @@ func fuzzBody(t *testing.T, data []byte) {
 		p := Point{Epoch: epoch, Line: epoch}
 		for k, c := range cols {
 			if head&(1<<(k%8)) != 0 {
-				p.Samples = append(p.Samples, Sample{Column: c, Value: v * float64(k+1)})
+				p.Samples = append(p.Samples, Sample{Column: &c, Value: v * float64(k+1)})
 			}
 		}
 		j := tr.Add(p)

@@ -4,6 +4,9 @@ import "strings"
 
 // Helpers that build evaluation points the way a reader would.
 
+// ref returns a sample's column: a pointer to its own copy of c.
+func ref(c Column) *Column { return &c }
+
 func col(base string, split Split, rate bool, dir Direction) Column {
 	name := base
 	switch split {
@@ -28,7 +31,7 @@ func errPoint(epoch int, train, trainDev, val, test float64) Point {
 		v float64
 	}{{SplitTrain, train}, {SplitTrainDev, trainDev}, {SplitVal, val}, {SplitTest, test}} {
 		if sv.v >= 0 || sv.v != sv.v {
-			p.Samples = append(p.Samples, Sample{Column: col("err", sv.s, true, LowerIsBetter), Value: sv.v, Last: sv.v})
+			p.Samples = append(p.Samples, Sample{Column: ref(col("err", sv.s, true, LowerIsBetter)), Value: sv.v, Last: sv.v})
 		}
 	}
 	return p
@@ -40,11 +43,11 @@ func metricPoint(epoch int, samples ...Sample) Point {
 }
 
 func loss(split Split, v float64) Sample {
-	return Sample{Column: col("loss", split, false, LowerIsBetter), Value: v, Last: v}
+	return Sample{Column: ref(col("loss", split, false, LowerIsBetter)), Value: v, Last: v}
 }
 
 func acc(split Split, v float64) Sample {
-	return Sample{Column: col("acc", split, true, HigherIsBetter), Value: v, Last: v}
+	return Sample{Column: ref(col("acc", split, true, HigherIsBetter)), Value: v, Last: v}
 }
 
 const absent = -1.0

@@ -98,7 +98,7 @@ func (h *history) add(p *Point, keep func(c *Column) int) {
 	marked := false
 	for k := range p.Samples {
 		smp := &p.Samples[k]
-		c := &smp.Column
+		c := smp.Column
 		if c.Kind != KindMetric {
 			continue
 		}

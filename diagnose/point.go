@@ -80,7 +80,12 @@ type Column struct {
 
 // Sample is one value of one column at one evaluation point.
 type Sample struct {
-	Column Column
+	// Column is the column's meaning when the value was read. It is shared
+	// by every sample of the column until its meaning changes (a rate found
+	// to be written in percent gets a new Column), so it must never be
+	// written through: a reader hands on a million points, and a pointer
+	// instead of a copy of the names is what keeps that cheap.
+	Column *Column
 	// Value is the value the diagnosis judges. For a per-step log it is the
 	// mean over the epoch's steps; otherwise the logged value. NaN and ±Inf
 	// are kept: they are evidence of divergence.

@@ -10,10 +10,10 @@ import (
 // and what is added to either afterwards, is untouched by the other.
 func TestTracker_Rejudged(t *testing.T) {
 	acc := func(sp Split, v float64) Sample {
-		return Sample{Column: Column{Name: sp.String() + "_acc", Base: "acc", Split: sp, Kind: KindMetric, Dir: HigherIsBetter, Rate: true}, Value: v, Last: v}
+		return Sample{Column: &Column{Name: sp.String() + "_acc", Base: "acc", Split: sp, Kind: KindMetric, Dir: HigherIsBetter, Rate: true}, Value: v, Last: v}
 	}
 	loss := func(sp Split, v float64) Sample {
-		return Sample{Column: Column{Name: sp.String() + "_loss", Base: "loss", Split: sp, Kind: KindMetric, Dir: LowerIsBetter}, Value: v, Last: v}
+		return Sample{Column: &Column{Name: sp.String() + "_loss", Base: "loss", Split: sp, Kind: KindMetric, Dir: LowerIsBetter}, Value: v, Last: v}
 	}
 	var pts []Point
 	for e := 1; e <= 300; e++ { // more than one checkpoint interval

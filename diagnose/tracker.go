@@ -270,7 +270,7 @@ func (t *Tracker) learn(p *Point) bool {
 	grew, flipped, listed := false, false, false
 	for i := range p.Samples {
 		s := &p.Samples[i]
-		c := &s.Column
+		c := s.Column
 		if c.Kind != KindMetric || c.Split == SplitNone || c.Split > SplitTest {
 			continue
 		}

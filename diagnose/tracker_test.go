@@ -254,7 +254,7 @@ func TestTracker_Metrics(t *testing.T) {
 		tr := New(Config{})
 		var j Judgement
 		for e := 1; e <= 3; e++ {
-			j = tr.Add(metricPoint(e, Sample{Column: ct, Value: 0.4}, Sample{Column: c, Value: 0.9}))
+			j = tr.Add(metricPoint(e, Sample{Column: &ct, Value: 0.4}, Sample{Column: &c, Value: 0.9}))
 		}
 		if !near(j.Val.Raw.V, 0.009, 1e-12) || !near(j.Train.Raw.V, 0.004, 1e-12) {
 			t.Errorf("val %v train %v, want 0.009 and 0.004", j.Val.Raw, j.Train.Raw)

@@ -12,7 +12,7 @@ import (
 )
 
 func metricSample(name, base string, split diagnose.Split, v float64) diagnose.Sample {
-	return diagnose.Sample{Column: diagnose.Column{Name: name, Base: base, Split: split, Kind: diagnose.KindMetric,
+	return diagnose.Sample{Column: &diagnose.Column{Name: name, Base: base, Split: split, Kind: diagnose.KindMetric,
 		Rate: true, Dir: diagnose.LowerIsBetter}, Value: v, Last: v}
 }
 

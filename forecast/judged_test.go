@@ -48,9 +48,9 @@ func TestFromJudged(t *testing.T) {
 		if e > 20 {
 			rate = 0.01
 		}
-		s := []diagnose.Sample{{Column: acc, Value: v + 0.02, Last: v + 0.02}, {Column: lr, Value: rate, Last: rate}}
+		s := []diagnose.Sample{{Column: &acc, Value: v + 0.02, Last: v + 0.02}, {Column: &lr, Value: rate, Last: rate}}
 		if e != 7 { // epoch 7 has no validation
-			s = append(s, diagnose.Sample{Column: valAcc, Value: v, Last: v})
+			s = append(s, diagnose.Sample{Column: &valAcc, Value: v, Last: v})
 		}
 		p := diagnose.Point{Epoch: e, EpochLogged: true, Total: 50, Samples: s}
 		js, pts = append(js, tr.Add(p)), append(pts, p)
@@ -84,7 +84,7 @@ func TestFromJudged(t *testing.T) {
 	if _, ok := TrainSize(pts); ok {
 		t.Error("no size column, yet a size")
 	}
-	sized := []diagnose.Point{{Samples: []diagnose.Sample{{Column: diagnose.Column{Name: "Train-Size"}, Last: 700}}}, {}}
+	sized := []diagnose.Point{{Samples: []diagnose.Sample{{Column: &diagnose.Column{Name: "Train-Size"}, Last: 700}}}, {}}
 	if m, ok := TrainSize(sized); !ok || m != 700 {
 		t.Errorf("size %v %v, want 700", m, ok)
 	}

@@ -26,9 +26,9 @@ func trackedRun(n int, sd float64, f func(float64) float64, lr func(int) float64
 	var pts []diagnose.Point
 	for e := 1; e <= n; e++ {
 		v := 1 - f(float64(e)) + sd*r.NormFloat64()
-		s := []diagnose.Sample{{Column: acc, Value: v + 0.02, Last: v + 0.02}, {Column: valAcc, Value: v, Last: v}}
+		s := []diagnose.Sample{{Column: &acc, Value: v + 0.02, Last: v + 0.02}, {Column: &valAcc, Value: v, Last: v}}
 		if lr != nil && lr(e) > 0 {
-			s = append(s, diagnose.Sample{Column: rateCol, Value: lr(e), Last: lr(e)})
+			s = append(s, diagnose.Sample{Column: &rateCol, Value: lr(e), Last: lr(e)})
 		}
 		p := diagnose.Point{Epoch: e, EpochLogged: true, Total: 2 * n, Samples: s}
 		js, pts = append(js, tr.Add(p)), append(pts, p)

@@ -63,9 +63,9 @@ func runPoints(n, total int, f func(x float64) float64, lr func(e int) float64) 
 	for e := 1; e <= n; e++ {
 		v := 1 - f(float64(e)) - 0.002*math.Sin(1.7*float64(e))
 		pts = append(pts, diagnose.Point{Epoch: e, EpochLogged: true, Total: total, Line: e + 1, Samples: []diagnose.Sample{
-			{Column: acc, Value: v + 0.02, Last: v + 0.02},
-			{Column: valAcc, Value: v, Last: v},
-			{Column: rate, Value: lr(e), Last: lr(e)},
+			{Column: &acc, Value: v + 0.02, Last: v + 0.02},
+			{Column: &valAcc, Value: v, Last: v},
+			{Column: &rate, Value: lr(e), Last: lr(e)},
 		}})
 	}
 	return pts
@@ -325,7 +325,7 @@ func TestRun_ForecastRefusals(t *testing.T) {
 		{"LRRising", runPoints(30, 0, falling, func(e int) float64 { return 1e-4 * math.Pow(1.3, float64(e)) }),
 			forecast.LRRising, "the learning rate is rising"},
 		{"Diverging", append(runPoints(20, 0, falling, stepAt(100)), diagnose.Point{Epoch: 21, EpochLogged: true,
-			Samples: []diagnose.Sample{{Column: diagnose.Column{Name: "val_acc", Base: "acc", Split: diagnose.SplitVal,
+			Samples: []diagnose.Sample{{Column: &diagnose.Column{Name: "val_acc", Base: "acc", Split: diagnose.SplitVal,
 				Kind: diagnose.KindMetric, Dir: diagnose.HigherIsBetter, Rate: true}, Value: math.NaN(), Last: math.NaN()}}}),
 			forecast.Diverging, "NaN at epoch 21"},
 	}

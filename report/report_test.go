@@ -17,7 +17,7 @@ import (
 var update = flag.Bool("update", false, "rewrite the golden files")
 
 func sample(name, base string, split diagnose.Split, rate bool, dir diagnose.Direction, v float64) diagnose.Sample {
-	return diagnose.Sample{Column: diagnose.Column{Name: name, Base: base, Split: split, Kind: diagnose.KindMetric, Rate: rate, Dir: dir}, Value: v, Last: v}
+	return diagnose.Sample{Column: &diagnose.Column{Name: name, Base: base, Split: split, Kind: diagnose.KindMetric, Rate: rate, Dir: dir}, Value: v, Last: v}
 }
 
 // wiggle is a fixed pseudo-random sequence in [−1, 1].

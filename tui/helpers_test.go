@@ -30,6 +30,9 @@ func metricCol(name, base string, sp diagnose.Split, dir diagnose.Direction, rat
 	return diagnose.Column{Name: name, Base: base, Split: sp, Kind: diagnose.KindMetric, Dir: dir, Rate: rate}
 }
 
+// ref returns a sample's column: a pointer to its own copy of c.
+func ref(c diagnose.Column) *diagnose.Column { return &c }
+
 func otherCol(name string) diagnose.Column {
 	return diagnose.Column{Name: name, Base: name, Kind: diagnose.KindOther}
 }
@@ -71,17 +74,17 @@ func (r runSpec) points() []diagnose.Point {
 			Epoch: e, EpochLogged: true, Step: step, Total: r.total, Rows: 1, Line: e + 1,
 			Time: fixedNow.Add(time.Duration(e-r.epochs) * 30 * time.Second),
 			Samples: []diagnose.Sample{
-				{Column: metricCol("train_acc", "acc", diagnose.SplitTrain, diagnose.HigherIsBetter, true), Value: 1 - tr},
-				{Column: metricCol("val_acc", "acc", diagnose.SplitVal, diagnose.HigherIsBetter, true), Value: 1 - va},
-				{Column: metricCol("train_loss", "loss", diagnose.SplitTrain, diagnose.LowerIsBetter, false), Value: 2.2 * tr},
-				{Column: metricCol("val_loss", "loss", diagnose.SplitVal, diagnose.LowerIsBetter, false), Value: 2.2 * va},
-				{Column: otherCol("lr"), Value: 0.1 * math.Pow(0.9, float64(e/5))},
-				{Column: otherCol("epoch_seconds"), Value: 30 + math.Sin(float64(e))},
+				{Column: ref(metricCol("train_acc", "acc", diagnose.SplitTrain, diagnose.HigherIsBetter, true)), Value: 1 - tr},
+				{Column: ref(metricCol("val_acc", "acc", diagnose.SplitVal, diagnose.HigherIsBetter, true)), Value: 1 - va},
+				{Column: ref(metricCol("train_loss", "loss", diagnose.SplitTrain, diagnose.LowerIsBetter, false)), Value: 2.2 * tr},
+				{Column: ref(metricCol("val_loss", "loss", diagnose.SplitVal, diagnose.LowerIsBetter, false)), Value: 2.2 * va},
+				{Column: ref(otherCol("lr")), Value: 0.1 * math.Pow(0.9, float64(e/5))},
+				{Column: ref(otherCol("epoch_seconds")), Value: 30 + math.Sin(float64(e))},
 			},
 		}
 		if r.trainDev {
 			p.Samples = append(p.Samples, diagnose.Sample{
-				Column: metricCol("train_dev_acc", "acc", diagnose.SplitTrainDev, diagnose.HigherIsBetter, true), Value: 1 - td})
+				Column: ref(metricCol("train_dev_acc", "acc", diagnose.SplitTrainDev, diagnose.HigherIsBetter, true)), Value: 1 - td})
 		}
 		for i := range p.Samples {
 			p.Samples[i].Last = p.Samples[i].Value
@@ -209,5 +212,5 @@ func press(t testing.TB, m Model, keys ...string) Model {
 func tea_WindowSize(w, h int) tea.WindowSizeMsg { return tea.WindowSizeMsg{Width: w, Height: h} }
 
 func sampleOf(c diagnose.Column, v float64) diagnose.Sample {
-	return diagnose.Sample{Column: c, Value: v, Last: v}
+	return diagnose.Sample{Column: &c, Value: v, Last: v}
 }

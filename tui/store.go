@@ -119,7 +119,7 @@ func (s *store) add(j diagnose.Judgement, p diagnose.Point, arrived time.Time, b
 		name := clean(smp.Column.Name)
 		c := s.colByID[name]
 		if c == nil {
-			meta := smp.Column
+			meta := *smp.Column
 			meta.Name = name
 			c = &column{meta: meta}
 			s.colByID[name] = c

@@ -1,6 +1,9 @@
 package layout
 
-import "time"
+import (
+	"encoding/binary"
+	"time"
+)
 
 // The shape of a record line. A training loop logs one record shape over
 // and over ({"epoch": 3, "step": 812, "train": {"loss": 0.41}, "lr":
@@ -87,7 +90,16 @@ func (sh *keyShape) match(line []byte, scan numberAt) bool {
 			continue
 		}
 		n := sl.from - j
-		if i+n > len(line) || !equalAt(line, i, t, j, n) {
+		switch {
+		case i+n > len(line):
+			return false
+		case n <= 8 && i+8 <= len(line) && j+8 <= len(t):
+			// equalAt's one word, by hand: equalAt is too large to be
+			// inlined, and the call was the larger part of its cost.
+			if (binary.LittleEndian.Uint64(line[i:])^binary.LittleEndian.Uint64(t[j:]))&(uint64(1)<<(8*n)-1) != 0 {
+				return false
+			}
+		case !equalLong(line, i, t, j, n):
 			return false
 		}
 		end, v, ok := scan(line, i+n)
@@ -221,7 +233,6 @@ func pyNumberAt(line []byte, i int) (int, float64, bool) {
 	default:
 		return 0, 0, false
 	}
-	d := pyDictDecoder{p: line, i: i}
-	v, ok := d.num()
-	return d.i, v, ok
+	v, end, ok := pyNumber(line, i)
+	return end, v, ok
 }

@@ -210,27 +210,56 @@ func (d *pyDictDecoder) value(depth int) error {
 
 // num reads a number: digits, a point, an exponent, or a signed nan/inf.
 func (d *pyDictDecoder) num() (float64, bool) {
-	start := d.i
-	if c := d.p[d.i]; c == '-' || c == '+' {
-		d.i++
-		if d.i < len(d.p) && (d.p[d.i] == 'i' || d.p[d.i] == 'n') {
-			w := d.word()
-			v, ok := special(w)
-			if ok && d.p[start] == '-' {
+	v, end, ok := pyNumber(d.p, d.i)
+	d.i = end
+	return v, ok
+}
+
+// pyNumber reads the number at p[i:] as num does, and where it ends. It
+// is apart from the decoder so that a record line matched to its shape
+// (pyNumberAt) reads its numbers without making a decoder for each.
+func pyNumber(p []byte, i int) (float64, int, bool) {
+	start := i
+	if c := p[i]; c == '-' || c == '+' {
+		i++
+		if i < len(p) && (p[i] == 'i' || p[i] == 'n') {
+			for i < len(p) && (isWordByte(p[i]) || p[i] == '.') {
+				i++ // the word, as pyDictDecoder.word reads it
+			}
+			v, ok := special(p[start+1 : i])
+			if ok && p[start] == '-' {
 				v = -v
 			}
-			return v, ok
+			return v, i, ok
 		}
 	}
-	for d.i < len(d.p) {
-		c := d.p[d.i]
-		if c >= '0' && c <= '9' || c == '.' || c == 'e' || c == 'E' || (c == '-' || c == '+') && (d.p[d.i-1]|0x20 == 'e') {
-			d.i++
-			continue
-		}
-		break
+	// A plain number is read where it lies, in one pass: when fastFloat
+	// stops where the loop below would stop too, the bytes between are
+	// the ones the loop hands to parseNumber, which reads them with
+	// fastFloat alike (nothing to trim: they start with a sign, a digit
+	// or a point and end with a digit or a point).
+	if v, end, ok := fastFloat(p, start); ok && !pyNumberGoesOn(p, end) {
+		return v, end, true
 	}
-	return parseNumber(d.p[start:d.i])
+	for pyNumberGoesOn(p, i) {
+		i++
+	}
+	// fastFloat reads these bytes as it read them above (it stops no
+	// later than the loop, at a byte that cannot go on its number, and
+	// there is nothing to trim), so parseNumber would only read them with
+	// it again before strconv.
+	v, ok := slowNumber(p[start:i])
+	return v, i, ok
+}
+
+// pyNumberGoesOn reports whether p[i] continues the number before it: a
+// digit, a point, an exponent's letter, or a sign after that letter.
+func pyNumberGoesOn(p []byte, i int) bool {
+	if i >= len(p) {
+		return false
+	}
+	c := p[i]
+	return c >= '0' && c <= '9' || c == '.' || c == 'e' || c == 'E' || (c == '-' || c == '+') && (p[i-1]|0x20 == 'e')
 }
 
 // numberAt files v, the number read from d.p[start:d.i], noting where it

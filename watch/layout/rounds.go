@@ -115,6 +115,9 @@ func (d *roundsDecoder) field(k int, f []byte) (ci int, v float64, ok bool) {
 		}
 		return d.column(set, metric), v, true
 	}
+	if ci, v, ok := d.sameField(k, f); ok {
+		return ci, v, true
+	}
 	t := bytes.TrimSpace(f)
 	colon := bytes.LastIndexByte(t, ':')
 	if colon <= 0 {
@@ -143,6 +146,30 @@ func (d *roundsDecoder) field(k int, f []byte) (ci int, v float64, ok bool) {
 	}
 	if rf.col < 0 {
 		rf.col = d.column(rf.set, rf.metric)
+	}
+	return rf.col, v, true
+}
+
+// sameField reads the k-th field when it is the same field's name as on
+// the line before, read and found a column, then a colon and a number
+// that fastFloat reads to the field's end. Such a field has nothing for
+// TrimSpace to trim, its last colon is the one after the name, and its
+// number has a "+" only first or after its exponent's letter, which
+// roundNumber does not cut at: the general reading gives the same column
+// and value. Anything else, false.
+func (d *roundsDecoder) sameField(k int, f []byte) (int, float64, bool) {
+	if k >= len(d.fields) {
+		return 0, 0, false
+	}
+	rf := &d.fields[k]
+	n := len(rf.raw)
+	if !rf.ok || rf.col < 0 || len(f) <= n+1 || f[n] != ':' || string(f[:n]) != rf.raw {
+		return 0, 0, false
+	}
+	num := f[n+1:]
+	v, end, ok := fastFloat(num, 0)
+	if !ok || end != len(num) {
+		return 0, 0, false
 	}
 	return rf.col, v, true
 }
@@ -233,7 +260,11 @@ func roundPrefix(line []byte) (int, []byte, bool) {
 	if !ok || end+1 >= len(line) || line[end] != ']' || line[end+1] != '\t' && line[end+1] != ' ' {
 		return 0, nil, false
 	}
-	return round, bytes.TrimLeft(line[end+1:], " \t"), true
+	i := end + 1
+	for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
+		i++ // bytes.TrimLeft(…, " \t"), without making its byte set each line
+	}
+	return round, line[i:], true
 }
 
 // firstField returns the text up to the next tab.

@@ -142,6 +142,15 @@ func noSplitWord(name string) bool {
 }
 
 func (d *tableDecoder) Decode(line []byte, n int) {
+	if cap(d.vals) < len(d.header) {
+		d.vals = make([]float64, len(d.header))
+	}
+	if !d.r.general {
+		if vals, ok := d.fastRow(line); ok {
+			d.file(vals, n)
+			return
+		}
+	}
 	d.cells = tableCells(line, d.cells[:0])
 	if len(d.cells) == 0 {
 		return
@@ -156,15 +165,12 @@ func (d *tableDecoder) Decode(line []byte, n int) {
 		d.r.bad(n, "cells do not line up with the header", line)
 		return
 	}
-	if cap(d.vals) < len(d.cells) {
-		d.vals = make([]float64, len(d.cells))
-	}
 	vals := d.vals[:len(d.cells)]
 	for i, c := range d.cells {
 		var v float64
 		var ok bool
-		if d.roles[i] == cellTime && bytes.IndexByte(c.text, ':') >= 0 {
-			v, ok = parseClock(c.text) // no number has a colon
+		if d.roles[i] == cellTime {
+			v, ok = d.timeCell(c.text)
 		} else {
 			v, ok = parseNumber(c.text)
 		}
@@ -174,6 +180,97 @@ func (d *tableDecoder) Decode(line []byte, n int) {
 		}
 		vals[i] = v
 	}
+	d.file(vals, n)
+}
+
+// fastRow reads a row of plain numbers, one under each of the header's
+// names, in one pass over the line: each cell is read as a number where it
+// starts and must end at a space, a tab or the line's end. It gives what
+// the general path (tableCells, then parseNumber or parseClock per cell)
+// gives for such a row: a cell that fastFloat reads to its end is read so
+// by parseNumber too, and a row whose first cell is a number is not the
+// header (headerLike refuses numbers). Any other row, false: the general
+// path reads it.
+func (d *tableDecoder) fastRow(line []byte) ([]float64, bool) {
+	if len(d.header) == 0 {
+		return nil, false
+	}
+	vals := d.vals[:len(d.header)]
+	i := 0
+	for k := range vals {
+		for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
+			i++
+		}
+		if i == len(line) {
+			return nil, false // fewer cells than names
+		}
+		if d.roles[k] == cellTime {
+			start := i
+			for i < len(line) && line[i] != ' ' && line[i] != '\t' {
+				i++
+			}
+			v, ok := plainClock(line[start:i])
+			if !ok {
+				v, ok = d.timeCell(line[start:i])
+			}
+			if !ok {
+				return nil, false
+			}
+			vals[k] = v
+			continue
+		}
+		v, end, ok := fastFloat(line, i)
+		if !ok || end < len(line) && line[end] != ' ' && line[end] != '\t' {
+			return nil, false
+		}
+		vals[k], i = v, end
+	}
+	for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
+		i++
+	}
+	return vals, i == len(line)
+}
+
+// plainClock reads a clock of two or three parts of plain digits ("00:01",
+// "1:02:03") in one pass, as parseClock reads it: each part of at most 15
+// digits is an integer that parseNumber reads exactly, and the seconds
+// are summed in the same order. Anything else, false (timeCell reads it).
+func plainClock(c []byte) (float64, bool) {
+	secs, parts := 0.0, 0
+	var part uint64
+	digits := 0
+	for _, ch := range c {
+		if ch == ':' {
+			if digits == 0 {
+				return 0, false
+			}
+			secs = secs*60 + float64(part)
+			part, digits = 0, 0
+			parts++
+			continue
+		}
+		if ch-'0' > 9 || digits == 15 {
+			return 0, false
+		}
+		part = part*10 + uint64(ch-'0')
+		digits++
+	}
+	if digits == 0 {
+		return 0, false
+	}
+	return secs*60 + float64(part), parts == 1 || parts == 2
+}
+
+// timeCell reads a time cell: "mm:ss", "h:mm:ss" or a number of seconds.
+func (d *tableDecoder) timeCell(c []byte) (float64, bool) {
+	if bytes.IndexByte(c, ':') >= 0 {
+		return parseClock(c) // no number has a colon
+	}
+	return parseNumber(c)
+}
+
+// file hands the row's values (by cell) to the assembler.
+func (d *tableDecoder) file(vals []float64, n int) {
 	a := d.asm
 	a.BeginRow()
 	for i, v := range vals {
@@ -237,7 +334,7 @@ func parseClock(b []byte) (float64, bool) {
 		}
 		parts++
 		v, ok := parseNumber(p)
-		if !ok || v < 0 || bytes.IndexAny(p, "eE+-") >= 0 || parts > 3 {
+		if !ok || v < 0 || !clockDigits(p) || parts > 3 {
 			return 0, false
 		}
 		secs = secs*60 + v
@@ -247,6 +344,17 @@ func parseClock(b []byte) (float64, bool) {
 		b = b[colon+1:]
 	}
 	return secs, parts >= 2
+}
+
+// clockDigits reports a part of a clock without a sign or an exponent
+// (bytes.IndexAny(p, "eE+-") < 0, without building its set each time).
+func clockDigits(p []byte) bool {
+	for _, c := range p {
+		if c == 'e' || c == 'E' || c == '+' || c == '-' {
+			return false
+		}
+	}
+	return true
 }
 
 // tableAhead is the state workers of an aligned table start from

@@ -1,7 +1,6 @@
 package layout
 
 import (
-	"bytes"
 	"fmt"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -98,7 +97,7 @@ func (d *textDecoder) Decode(line []byte, n int) {
 	if !d.r.general && d.decodeFast(line, n) {
 		return // a plain line: no carriage return in it
 	}
-	if i := bytes.LastIndexByte(line, '\r'); i >= 0 {
+	if i := lastCR(line); i >= 0 {
 		line = line[i+1:]
 		if !d.r.general && d.decodeFast(line, n) {
 			return
@@ -198,7 +197,7 @@ func (d *textDecoder) aheadState(prev aheadState) aheadState {
 // lineEpoch is the epoch a line marks; a line without a marker belongs to
 // the open epoch.
 func (s *textAhead) lineEpoch(line []byte) (int, lineKind) {
-	if i := bytes.LastIndexByte(line, '\r'); i >= 0 {
+	if i := lastCR(line); i >= 0 {
 		line = line[i+1:]
 	}
 	// A guess, on a worker: a line with tabs is looked at as it is.

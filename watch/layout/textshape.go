@@ -172,20 +172,25 @@ func equalAt(a []byte, i int, b []byte, j, n int) bool {
 	return equalLong(a, i, b, j, n)
 }
 
-// equalLong is equalAt for the rest: eight bytes at a time, then bytes.
+// equalLong is equalAt for the rest: eight bytes at a time, the last
+// eight (overlapping the ones before) in one word, and bytes only when
+// there are fewer than eight.
 func equalLong(a []byte, i int, b []byte, j, n int) bool {
-	for n >= 8 {
+	if n < 8 {
+		for k := range n {
+			if a[i+k] != b[j+k] {
+				return false
+			}
+		}
+		return true
+	}
+	for n > 8 {
 		if binary.LittleEndian.Uint64(a[i:]) != binary.LittleEndian.Uint64(b[j:]) {
 			return false
 		}
 		i, j, n = i+8, j+8, n-8
 	}
-	for k := range n {
-		if a[i+k] != b[j+k] {
-			return false
-		}
-	}
-	return true
+	return binary.LittleEndian.Uint64(a[i+n-8:]) == binary.LittleEndian.Uint64(b[j+n-8:])
 }
 
 // digitsEnd returns the end of the run of ASCII digits at s[i:], and

@@ -33,6 +33,10 @@ type Out interface {
 // colState is one column of the log and its values in the open group.
 type colState struct {
 	col diagnose.Column
+	// shared is a copy of col that the samples handed on point to, made
+	// once and shared until col changes (nil then): a point per line
+	// would otherwise copy the column's names into every sample.
+	shared *diagnose.Column
 	// eval columns (validation, train-dev, test) are measured once per
 	// evaluation: a later value replaces an earlier one instead of being
 	// averaged with it.
@@ -47,6 +51,23 @@ type colState struct {
 	// column: a name repeated within one row replaces its value.
 	rowMark uint64
 	rowPos  int
+}
+
+// meaning returns the column's meaning for a sample: the shared copy,
+// made anew after a change.
+func (c *colState) meaning() *diagnose.Column {
+	if c.shared == nil {
+		m := c.col
+		c.shared = &m
+	}
+	return c.shared
+}
+
+// markPercent notes that the rate column is written in percent.
+func (c *colState) markPercent() {
+	if !c.col.Percent {
+		c.col.Percent, c.shared = true, nil
+	}
 }
 
 // rowValue is one value of the current row.

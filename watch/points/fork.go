@@ -47,7 +47,7 @@ func (a *Assembler) Snapshot(prev *Snapshot) *Snapshot {
 	}
 	s.cols = make([]colState, len(a.cols))
 	for i, c := range a.cols {
-		s.cols[i] = colState{col: c.col, eval: c.eval}
+		s.cols[i] = colState{col: c.col, shared: c.shared, eval: c.eval}
 	}
 	if a.multiRow == 0 && a.singleRow >= 2 {
 		s.single, s.multi = 2, 0
@@ -137,7 +137,9 @@ func (a *Assembler) Adopt(w *Assembler, single, multi, shift int) {
 	a.touched = append(a.touched[:0], w.touched...)
 	for i := range w.cols {
 		c, wc := &a.cols[i], &w.cols[i]
-		c.col.Percent = c.col.Percent || wc.col.Percent
+		if wc.col.Percent {
+			c.markPercent()
+		}
 		if wc.inGroup {
 			c.sum, c.n, c.last, c.inGroup = wc.sum, wc.n, wc.last, true
 		}

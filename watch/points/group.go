@@ -169,7 +169,7 @@ func (a *Assembler) merge(line int) {
 		c.n++
 		c.last = v
 		if c.col.Rate && !c.col.Percent && v > 1 && v <= 100 {
-			c.col.Percent = true
+			c.markPercent()
 		}
 		if c.eval {
 			g.hasEval = true
@@ -217,7 +217,7 @@ func (a *Assembler) emit() {
 		if !c.eval && c.n > 1 {
 			v = c.sum / float64(c.n)
 		}
-		a.pointSlab = append(a.pointSlab, diagnose.Sample{Column: c.col, Value: v, Last: c.last})
+		a.pointSlab = append(a.pointSlab, diagnose.Sample{Column: c.meaning(), Value: v, Last: c.last})
 	}
 	p.Samples = a.pointSlab[start:len(a.pointSlab):len(a.pointSlab)]
 	g.emitted, g.dirty, g.provisional = true, false, false

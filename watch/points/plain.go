@@ -85,7 +85,7 @@ func (a *Assembler) PlainRow(p *Plan, vals []float64, mask uint64, line int) boo
 		c.n++
 		c.last = v
 		if f.Rate && !c.col.Percent && v > 1 && v <= 100 {
-			c.col.Percent = true
+			c.markPercent()
 		}
 		eval = eval || f.Eval
 	}

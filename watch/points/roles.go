@@ -77,7 +77,7 @@ func (a *Assembler) undoTestAsVal() {
 			continue
 		}
 		c.testAsVal = false
-		c.col.Split = diagnose.SplitTest
+		c.col.Split, c.shared = diagnose.SplitTest, nil
 		a.guesses = slices.DeleteFunc(a.guesses, func(g column.Guess) bool {
 			return g.Column == c.col.Name && g.Source == testAsValSource
 		})

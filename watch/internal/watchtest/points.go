@@ -58,8 +58,8 @@ func Diff(a, b []diagnose.Point) string {
 		}
 		for k := range x.Samples {
 			s, r := x.Samples[k], y.Samples[k]
-			if s.Column != r.Column || !SameFloat(s.Value, r.Value) || !SameFloat(s.Last, r.Last) {
-				return fmt.Sprintf("point %d sample %d: %+v, want %+v", i, k, s, r)
+			if *s.Column != *r.Column || !SameFloat(s.Value, r.Value) || !SameFloat(s.Last, r.Last) {
+				return fmt.Sprintf("point %d sample %d: %+v %+v, want %+v %+v", i, k, *s.Column, s, *r.Column, r)
 			}
 		}
 	}
