@@ -235,6 +235,12 @@ func finishScreen(e *env, sum report.Summary, reason tui.ExitReason, outs screen
 	if fileErr != nil {
 		return fileErr
 	}
+	return exitOf(reason)
+}
+
+// exitOf is the status a screen that ended for reason exits with: a
+// signal's own (129, 143, 130), or 0.
+func exitOf(reason tui.ExitReason) error {
 	switch reason {
 	case tui.ExitHangup:
 		return &signalExit{code: exitHangup}

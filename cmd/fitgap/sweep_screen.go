@@ -133,15 +133,7 @@ func runSweepScreen(ctx context.Context, e *env, spec sweepScreenSpec) error {
 	if fileErr != nil {
 		return fileErr
 	}
-	switch reason {
-	case tui.ExitHangup:
-		return &signalExit{code: exitHangup}
-	case tui.ExitTerminated:
-		return &signalExit{code: exitTerminated}
-	case tui.ExitInterrupted:
-		return &signalExit{code: exitInterrupted}
-	}
-	return nil
+	return exitOf(reason)
 }
 
 // openRun opens one run's screen: its log read again from the start
