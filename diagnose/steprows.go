@@ -84,30 +84,32 @@ func (s *StepRows) Release() {
 
 // reuse returns an array of length n from pool when the one it holds is
 // big enough and not over reuseSlack times too big (a small request must
-// not pin a big array), else a new one with room to spare, so that the
-// next request, which varies by a few rows with the lines of a piece,
+// not pin a big array), else a new one with an eighth more room, so that
+// the next request, which varies by a few rows with the lines of a piece,
 // fits. An array too big goes back for the next request; one too small
-// is dropped. A request below reuseMin takes no array from the pool: the
-// first room of a batch that a worker's arrays then replace is 8 rows.
+// is dropped. A request below reuseMin is made as asked, not pooled: the
+// first room of a batch, which a worker's arrays then replace, is 8 rows,
+// and a live log's batch holds a few.
 func reuse[T any](pool *sync.Pool, n int) []T {
-	if n >= reuseMin {
-		if p, ok := pool.Get().(*[]T); ok {
-			switch c := cap(*p); {
-			case c >= n && c <= reuseSlack*n:
-				return (*p)[:n]
-			case c > reuseSlack*n:
-				pool.Put(p)
-			}
+	if n < reuseMin {
+		return make([]T, n)
+	}
+	if p, ok := pool.Get().(*[]T); ok {
+		switch c := cap(*p); {
+		case c >= n && c <= reuseSlack*n:
+			return (*p)[:n]
+		case c > reuseSlack*n:
+			pool.Put(p)
 		}
 	}
-	return make([]T, n, n+n/8+reuseMin)
+	return make([]T, n, n+n/8)
 }
 
-// reuseMin is the smallest request served from the pool, and the room a
-// new array has beyond an eighth more than asked; reuseSlack bounds the
-// waste of a reused array at that many times the elements asked for.
-// Unit: elements (1,024 rows are 24 KiB, just below a large allocation of
-// the runtime, 32 KiB) and a factor.
+// reuseMin is the smallest request served from the pool; reuseSlack bounds
+// the waste of a reused array at that many times the elements asked for.
+// Unit: elements (1,024 rows are 24 KiB, near the runtime's large
+// allocations, 32 KiB, which are zeroed and collected one by one) and a
+// factor.
 const (
 	reuseMin   = 1024
 	reuseSlack = 4
