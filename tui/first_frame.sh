@@ -3,6 +3,8 @@
 # backlog, and its peak memory, against the same epochs without step rows.
 #
 #   tui/first_frame.sh [LINES] [RUNS]   (default 1000000 steps, 5 runs; needs tmux, GNU time)
+#   BASE=/tmp/fitgap.old tui/first_frame.sh   # also a build of fitgap from another
+#                                # commit, interleaved: before and after under one load
 #
 # Builds fitgap and bench/genlog, writes a per-step CSV of LINES steps (an
 # epoch every 1,000 steps) and the same file cut to its epoch rows, then,
@@ -24,13 +26,14 @@ awk -F, 'NR == 1 || $6 != ""' "$tmp/steps.csv" >"$tmp/epochs.csv"
 last=$(tail -n 1 "$tmp/epochs.csv" | cut -d, -f1)
 cat "$tmp/steps.csv" "$tmp/epochs.csv" >/dev/null # page cache warm
 
-# once KIND: one run on $tmp/KIND.csv; appends "ms rss_kib" to $tmp/KIND.
+# once KIND [BIN [TAG]]: one run of BIN (this build) on $tmp/KIND.csv;
+# appends "ms rss_kib" to $tmp/TAGKIND.
 once() {
-	local kind=$1 t0 t1
+	local kind=$1 bin=${2:-$tmp/fitgap} tag=${3:-} t0 t1
 	rm -f "$tmp/rss"
 	t0=$(date +%s%N)
 	tmux -L "$name" new-session -d -s "$name" -x 200 -y 60 \
-		"/usr/bin/time -f %M -o $tmp/rss $tmp/fitgap watch $tmp/$kind.csv"
+		"/usr/bin/time -f %M -o $tmp/rss $bin watch $tmp/$kind.csv"
 	until tmux -L "$name" capture-pane -p -t "$name" 2>/dev/null | grep -q "epoch $last "; do
 		sleep 0.005
 	done
@@ -38,7 +41,7 @@ once() {
 	tmux -L "$name" send-keys -t "$name" q
 	while [ ! -s "$tmp/rss" ]; do sleep 0.05; done
 	tmux -L "$name" kill-server 2>/dev/null || true
-	echo "$(((t1 - t0) / 1000000)) $(tail -n 1 "$tmp/rss")" >>"$tmp/$kind"
+	echo "$(((t1 - t0) / 1000000)) $(tail -n 1 "$tmp/rss")" >>"$tmp/$tag$kind"
 }
 
 median() { sort -n | awk '{a[NR]=$1} END{print (NR%2) ? a[(NR+1)/2] : (a[NR/2]+a[NR/2+1])/2}'; }
@@ -47,6 +50,10 @@ echo "load before: $(cut -d' ' -f1-3 /proc/loadavg)"
 for _ in $(seq "$runs"); do
 	once steps
 	once epochs
+	if [ -n "${BASE:-}" ]; then
+		once steps "$BASE" base_
+		once epochs "$BASE" base_
+	fi
 done
 echo "load after:  $(cut -d' ' -f1-3 /proc/loadavg)"
 for kind in epochs steps; do
@@ -57,3 +64,13 @@ for kind in epochs steps; do
 done
 awk -v a="$(cut -d' ' -f1 "$tmp/steps" | median)" -v b="$(cut -d' ' -f1 "$tmp/epochs" | median)" \
 	'BEGIN{printf "ratio   %.2f× (%d step rows against %d epoch rows)\n", a/b, '"$lines"', '"$last"'}'
+if [ -n "${BASE:-}" ]; then
+	for kind in epochs steps; do
+		ms=$(cut -d' ' -f1 "$tmp/base_$kind" | median)
+		rss=$(cut -d' ' -f2 "$tmp/base_$kind" | median)
+		printf "base %-7s first full frame %6s ms (runs: %s), peak RSS %s MiB\n" "$kind" "$ms" \
+			"$(cut -d' ' -f1 "$tmp/base_$kind" | tr '\n' ' ' | sed 's/ $//')" "$(awk -v k="$rss" 'BEGIN{printf "%.1f", k/1024}')"
+	done
+	awk -v a="$(cut -d' ' -f1 "$tmp/base_steps" | median)" -v b="$(cut -d' ' -f1 "$tmp/base_epochs" | median)" \
+		'BEGIN{printf "base ratio %.2f× (%s)\n", a/b, "'"$BASE"'"}'
+fi

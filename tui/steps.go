@@ -36,8 +36,23 @@ type stepSeries struct {
 
 // add appends one sample. A step not above the last one replaces the samples
 // from that step on: the run was resumed from a checkpoint, and the old
-// future did not happen.
+// future did not happen. The common case, a later step into a block with
+// room, is kept small enough to inline.
 func (s *stepSeries) add(step int64, v float64) {
+	if n := len(s.blocks); n > 0 {
+		if b := &s.blocks[n-1]; step > b.last && b.n < s.width {
+			b.last = step
+			b.n++
+			b.take(v)
+			return
+		}
+	}
+	s.addBlock(step, v)
+}
+
+// addBlock appends a sample that opens a block, after dropping the samples
+// from its step on when it is not above the last one.
+func (s *stepSeries) addBlock(step int64, v float64) {
 	if n := len(s.blocks); n > 0 && step <= s.blocks[n-1].last {
 		s.truncate(step)
 	}
@@ -53,9 +68,21 @@ func (s *stepSeries) add(step int64, v float64) {
 	b := &s.blocks[len(s.blocks)-1]
 	b.last = step
 	b.n++
-	if f := float32(v); isFinite(v) && !math.IsInf(float64(f), 0) {
-		b.lo = min(b.lo, f)
-		b.hi = max(b.hi, f)
+	b.take(v)
+}
+
+// take widens the block's range to v when v is finite in float32 (f−f is 0
+// for a finite f, NaN for NaN and ±Inf, and a float64 beyond float32's range
+// becomes ±Inf). Plain comparisons, not min and max: those order NaN and
+// −0, which a finite f needs not, at twice the cost.
+func (b *stepBlock) take(v float64) {
+	if f := float32(v); f-f == 0 {
+		if f < b.lo {
+			b.lo = f
+		}
+		if f > b.hi {
+			b.hi = f
+		}
 	}
 }
 
@@ -143,6 +170,8 @@ func (c *stepClock) observe(epoch int, step int64) {
 	}
 	last := &c.ends[n-1]
 	switch {
+	case epoch == last.epoch && n > 1:
+		last.step = step // the common case: a step of the epoch in progress
 	case epoch == last.epoch:
 		last.step = step
 		if n == 1 && step < c.first {

@@ -41,7 +41,7 @@ type store struct {
 	stepOrder []string
 	// stepCols is what each column of the per-step rows feeds, by the
 	// rows' column index, worked out once per column.
-	stepCols []stepCol
+	stepCols []*stepCol
 	clock    stepClock
 	// percent remembers bases seen above 1 in per-step rows: a rate or score
 	// written in percent (the same inference the judgement makes).
@@ -189,30 +189,38 @@ func loggedValue(n diagnose.Num) float64 {
 
 // stepCol is what one column of the per-step rows feeds: its series (nil
 // for a column that is no metric), and whether a value above 1 says its
-// base metric is written in percent.
+// base metric is written in percent (seen once that was noted).
 type stepCol struct {
-	known   bool
 	series  *stepSeries
 	bounded bool
+	seen    bool // a value above 1 was noted in store.percent
 	base    string
 }
 
 // addSteps stores per-step rows: their metric columns, and their places
 // on the epoch axis. A column is looked up by name once, when it first
-// comes; a value then costs an index.
+// comes; a value then costs an index and a min/max into its series' last
+// block (tui/addsteps_bench_test.go).
 func (s *store) addSteps(rows *diagnose.StepRows) {
-	for i := range rows.Rows {
-		r, vals := rows.Row(i)
-		if r.Step < 0 {
+	if len(rows.Rows) == 0 {
+		return
+	}
+	feeds := s.stepFeeds(rows.Columns)
+	for _, r := range rows.Rows {
+		if r.Step < 0 || r.From < 0 || r.To > int32(len(rows.Values)) || r.From > r.To {
 			continue
 		}
 		s.clock.observe(int(r.Epoch), r.Step)
-		for _, v := range vals {
-			c := s.stepCol(rows.Columns, int(v.Col))
+		for _, v := range rows.Values[r.From:r.To] {
+			if uint32(v.Col) >= uint32(len(feeds)) {
+				continue
+			}
+			c := feeds[v.Col]
 			if c.series == nil {
 				continue
 			}
-			if c.bounded && v.V > 1 {
+			if c.bounded && v.V > 1 && !c.seen {
+				c.seen = true
 				s.percent[c.base] = true
 			}
 			c.series.add(r.Step, v.V)
@@ -220,18 +228,20 @@ func (s *store) addSteps(rows *diagnose.StepRows) {
 	}
 }
 
-// stepCol returns what column k of cols feeds, working it out on first
-// sight.
-func (s *store) stepCol(cols []diagnose.Column, k int) *stepCol {
-	if k >= len(s.stepCols) {
-		s.stepCols = append(s.stepCols, make([]stepCol, k+1-len(s.stepCols))...)
+// stepFeeds returns what each of cols feeds, by column index, working out
+// the columns not seen before. A batch's columns extend the last batch's,
+// never change them (diagnose.StepRows), so the work is done once per
+// column of the log.
+func (s *store) stepFeeds(cols []diagnose.Column) []*stepCol {
+	for k := len(s.stepCols); k < len(cols); k++ {
+		s.stepCols = append(s.stepCols, s.newStepCol(cols[k]))
 	}
-	c := &s.stepCols[k]
-	if c.known || k >= len(cols) {
-		return c
-	}
-	c.known = true
-	col := cols[k]
+	return s.stepCols
+}
+
+// newStepCol works out what a column of the per-step rows feeds.
+func (s *store) newStepCol(col diagnose.Column) *stepCol {
+	c := &stepCol{}
 	if col.Kind != diagnose.KindMetric {
 		return c
 	}
@@ -246,6 +256,7 @@ func (s *store) stepCol(cols []diagnose.Column, k int) *stepCol {
 		s.stepOrder = append(s.stepOrder, name)
 	}
 	c.series, c.bounded, c.base = ss, col.Rate || col.Dir == diagnose.HigherIsBetter, col.Base
+	c.seen = s.percent[c.base]
 	return c
 }
 

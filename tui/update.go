@@ -112,6 +112,7 @@ func (m Model) handleData(msg FeedMsg) (tea.Model, tea.Cmd) {
 		m.read(m.data.rejudge)
 	}
 	m.data.addSteps(&msg.Steps)
+	msg.Steps.Release() // downsampled into the store: the arrays go round again
 	m.mergeSource(msg.Source)
 	for k, ns := range [][]string{msg.Notices, msg.WaitNotices} {
 		for _, n := range ns {

@@ -93,9 +93,9 @@ func (g *ingester) Steps() *diagnose.StepRows {
 	s := &g.batch.Steps
 	if s.Rows == nil {
 		// The room the last batch needed, so that a batch is not copied as
-		// it grows.
-		s.Rows = make([]diagnose.StepRowAt, 0, max(8, g.lastSteps))
-		s.Values = make([]diagnose.StepValue, 0, max(8, g.lastValues))
+		// it grows, in arrays the consumer released when it did.
+		rows, values := diagnose.StepRoom(max(8, g.lastSteps), max(8, g.lastValues))
+		s.Rows, s.Values = rows[:0], values[:0]
 	}
 	return s
 }

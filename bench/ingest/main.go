@@ -123,6 +123,7 @@ func run() error {
 			last = p
 		}
 		st = b.Stats
+		b.Steps.Release() // as the screen does once it has downsampled them
 	}
 	tail := ""
 	if points > 0 {

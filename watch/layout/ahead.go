@@ -285,8 +285,7 @@ func (s *aheadSnap) decodePiece(piece []byte) pieceResult {
 		// reads (takeSteps).
 		head, lines := bytes.Count(piece[:r.sync], []byte{'\n'}), bytes.Count(rest, []byte{'\n'})
 		front, room := int(float64(head)*s.perRow)+stepValuesSlack, int(float64(lines)*s.perRow)+stepValuesSlack
-		rows := make([]diagnose.StepRowAt, head+lines)
-		values := make([]diagnose.StepValue, front+room)
+		rows, values := diagnose.StepRoom(head+lines, front+room)
 		c.frontRows, c.frontValues = rows[:head], values[:front]
 		c.steps.Rows, c.steps.Values = rows[head:head], values[front:front]
 	}
