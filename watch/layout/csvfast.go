@@ -179,17 +179,21 @@ func plainFields(b []byte, delim byte, vals []float64) (mask uint64, end int, ok
 		if i >= n {
 			return mask, int(n), true // an empty last field
 		}
-		c := b[i]
-		if c == delim {
-			i++
-			continue // an empty field
-		}
-		if c == '\n' || c == '\r' && i+1 < n && b[i+1] == '\n' {
-			return mask, int(i), true // an empty last field
-		}
-		neg := c == '-'
-		if neg || c == '+' {
-			i++
+		// Most fields start with a digit: one test lets them through.
+		neg := false
+		if c := b[i]; c-'0' > 9 {
+			switch {
+			case c == delim:
+				i++
+				continue // an empty field
+			case c == '\n' || c == '\r' && i+1 < n && b[i+1] == '\n':
+				return mask, int(i), true // an empty last field
+			case c == '-':
+				neg = true
+				i++
+			case c == '+':
+				i++
+			}
 		}
 		start := i
 		var mant uint64
