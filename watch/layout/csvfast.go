@@ -103,6 +103,10 @@ func (d *csvDecoder) plainLines(p []byte) int {
 		d.vals = make([]float64, nroles)
 	}
 	vals := d.vals[:nroles]
+	// The header cannot change within a run of plain rows: the plan
+	// holds for all of them.
+	a, plan := d.asm, d.rowPlan()
+	steps := a.Steps()
 	read := 0
 	for read < len(p) && !r.bailed {
 		row := p[read:]
@@ -116,7 +120,13 @@ func (d *csvDecoder) plainLines(p []byte) int {
 		}
 		r.lineNo++
 		r.lines++
-		d.applyPlain(vals, mask, r.lineNo)
+		if plan.OK && a.PlainRow(plan, vals, mask, r.lineNo) {
+			if steps {
+				a.PlainStep(plan, vals, mask)
+			}
+		} else {
+			d.generalRow(vals, mask, r.lineNo)
+		}
 		if row[end] == '\r' {
 			end++ // the newline after it
 		}
@@ -139,6 +149,13 @@ func (d *csvDecoder) applyPlain(vals []float64, mask uint64, n int) {
 		}
 		return
 	}
+	d.generalRow(vals, mask, n)
+}
+
+// generalRow files a plain row value by value, as row n: the rows
+// PlainRow leaves to the assembler's general path.
+func (d *csvDecoder) generalRow(vals []float64, mask uint64, n int) {
+	a := d.asm
 	a.BeginRow()
 	roles, colOf := d.roles, d.colOf
 	for m := mask; m != 0; m &= m - 1 {
