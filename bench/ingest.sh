@@ -2,7 +2,8 @@
 # Times the whole process of reading a metrics log backlog in every layout,
 # against `wc -l` and a plain Go line count (bufio.Scanner) on the same
 # generated file, in the same run, and prints the ratios with their goals;
-# for CSV also one core (GOMAXPROCS=1) and an awk column sum. Then peak RSS,
+# for CSV also one core (GOMAXPROCS=1), two cores whatever the load
+# (-busyload 0) and an awk column sum. Then peak RSS,
 # idle CPU while following, and the follow latency benchmark.
 #
 #   bench/ingest.sh              # 1,000,000 lines per layout, 11 runs each
@@ -71,6 +72,7 @@ for _ in $(seq "$runs"); do
 		fi
 		if [ "$f" = csv ]; then
 			wall seq_csv env GOMAXPROCS=1 "$work/ingest" "$work/run.csv"
+			wall par_csv "$work/ingest" -busyload 0 "$work/run.csv"
 			wall awk_csv awk -F, '{s+=$3} END{print s}' "$work/run.csv"
 		fi
 	done
@@ -101,6 +103,9 @@ case " $layouts " in *" csv "*)
 	awk_ms=$(median awk_csv)
 	printf 'CSV on 1 core (GOMAXPROCS=1): %s ms, %sx wc -l; awk column sum %s ms: %sx slower than fitgap on 2 cores (goal >= 4x), %sx than on 1 core\n' \
 		"$seq" "$(ratio "$seq" "$(median wc_csv)")" "$awk_ms" "$(ratio "$awk_ms" "$(median in_csv)")" "$(ratio "$awk_ms" "$seq")"
+	par=$(median par_csv)
+	printf 'CSV always on 2 cores (-busyload 0, whatever the load): %s ms, %sx wc -l; the load-chosen path above: %s ms\n' \
+		"$par" "$(ratio "$par" "$(median wc_csv)")" "$(median in_csv)"
 	echo "awk: $(readlink -f "$(command -v awk)")"
 	;;
 esac

@@ -9,6 +9,7 @@
 //	ingest -memprofile OUT FILE   also write an allocation profile (go tool pprof -sample_index=alloc_space)
 //	ingest -memstats FILE         also print the bytes allocated and the GC cycles
 //	ingest -piece BYTES FILE      cut the backlog into pieces of BYTES (tail.PieceBytes)
+//	ingest -busyload L FILE       read on one core from load average L per core (0: never; tail.BusyLoadPerCore)
 //	ingest -steps FILE     also make the per-step rows (the live screen's reading)
 package main
 
@@ -44,6 +45,7 @@ func run() error {
 	memOut := flag.String("memprofile", "", "write an allocation profile to this file at the end")
 	memStats := flag.Bool("memstats", false, "print the bytes allocated and the GC cycles to stderr at the end")
 	piece := flag.Int("piece", 0, "the parallel backlog's piece size in bytes (0: tail.PieceBytes)")
+	busyLoad := flag.Float64("busyload", tailpkg.BusyLoadPerCore, "load average per core from which the backlog is read on one core (0: never; tail.BusyLoadPerCore)")
 	flag.Parse()
 	if *memOut != "" {
 		runtime.MemProfileRate = 4096
@@ -54,6 +56,7 @@ func run() error {
 			}
 		}()
 	}
+	tailpkg.BusyLoadPerCore = *busyLoad
 	if *piece > 0 {
 		tailpkg.PieceBytes = *piece
 	}

@@ -244,6 +244,7 @@ func (s *aheadSnap) worker(single, multi int) (*Reader, *collector) {
 	w.asm = s.asm.Worker(c, single, multi)
 	w.dec = s.state.newWorker(w)
 	w.wholeLines = true
+	w.plain, _ = w.dec.(plainLiner)
 	return w, c
 }
 

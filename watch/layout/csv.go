@@ -53,6 +53,9 @@ type csvDecoder struct {
 	planGen int
 	// general turns fastRow off: tests compare it with the general path.
 	general bool
+	// skipFast: plainLines stopped at the next line because plainFields
+	// refused it, so fastRow would too.
+	skipFast bool
 }
 
 func newCSVDecoder(r *Reader, delim byte) *csvDecoder {
@@ -68,7 +71,9 @@ func (d *csvDecoder) format() Format {
 }
 
 func (d *csvDecoder) Decode(line []byte, n int) {
-	if d.names != nil && d.recs.pendingLines == 0 && !d.general && d.fastRow(line, n) {
+	if d.skipFast {
+		d.skipFast = false // plainLines found the line is no plain row
+	} else if d.names != nil && d.recs.pendingLines == 0 && !d.general && d.fastRow(line, n) {
 		return // a comment never passes fastRow: checked below
 	}
 	if d.recs.pendingLines == 0 && isComment(line) {

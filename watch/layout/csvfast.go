@@ -1,6 +1,7 @@
 package layout
 
 import (
+	"bytes"
 	"math/bits"
 
 	"github.com/fitgap/fitgap/watch/points"
@@ -76,12 +77,65 @@ func (d *csvDecoder) fastRow(line []byte, n int) bool {
 		d.vals = make([]float64, nroles)
 	}
 	vals := d.vals[:nroles]
-	mask, ok := plainFields(line, d.recs.delim, vals)
-	if !ok || mask == 0 {
+	mask, end, ok := plainFields(line, d.recs.delim, vals)
+	if !ok || mask == 0 || end != len(line) {
 		return false
 	}
 	d.applyPlain(vals, mask, n)
 	return true
+}
+
+// plainLines reads the lines at the start of p that are plain data rows
+// and end in a newline, as Reader.line and Decode would one by one, but
+// finding each line's end in the pass that reads its numbers (a search
+// for the newline and a call per line were an eighth of a CSV read). It
+// stops before the first line that is not one, is not whole in p or is
+// longer than maxLineBytes, or when a worker gave up, and returns the
+// bytes read. When it stopped at a whole line that plainFields refused,
+// the next Decode skips fastRow, which would refuse it again.
+func (d *csvDecoder) plainLines(p []byte) int {
+	r := d.r
+	nroles := len(d.roles)
+	if d.names == nil || d.recs.pendingLines != 0 || d.general || nroles > maxFastFields || r.lineNo == 0 {
+		return 0 // line 1 may start with a byte order mark: Reader.line
+	}
+	if len(d.vals) < nroles {
+		d.vals = make([]float64, nroles)
+	}
+	vals := d.vals[:nroles]
+	// The header cannot change within a run of plain rows: the plan
+	// holds for all of them.
+	a, plan := d.asm, d.rowPlan()
+	steps := a.Steps()
+	read := 0
+	for read < len(p) && !r.bailed {
+		row := p[read:]
+		mask, end, ok := plainFields(row, d.recs.delim, vals)
+		if end >= len(row) || end > maxLineBytes {
+			break // no newline in p yet, or a line the Reader skips
+		}
+		if !ok || mask == 0 {
+			d.skipFast = ok || bytes.IndexByte(row, '\n') >= 0
+			break
+		}
+		r.lineNo++
+		r.lines++
+		if plan.OK && a.PlainRow(plan, vals, mask, r.lineNo) {
+			if steps {
+				a.PlainStep(plan, vals, mask)
+			}
+		} else {
+			d.generalRow(vals, mask, r.lineNo)
+		}
+		if row[end] == '\r' {
+			end++ // the newline after it
+		}
+		read += end + 1
+	}
+	if read > 0 {
+		r.midLine = false
+	}
+	return read
 }
 
 // applyPlain files the numbers of a plain row (vals by field, mask the
@@ -95,6 +149,13 @@ func (d *csvDecoder) applyPlain(vals []float64, mask uint64, n int) {
 		}
 		return
 	}
+	d.generalRow(vals, mask, n)
+}
+
+// generalRow files a plain row value by value, as row n: the rows
+// PlainRow leaves to the assembler's general path.
+func (d *csvDecoder) generalRow(vals []float64, mask uint64, n int) {
+	a := d.asm
 	a.BeginRow()
 	roles, colOf := d.roles, d.colOf
 	for m := mask; m != 0; m &= m - 1 {
@@ -113,37 +174,48 @@ func (d *csvDecoder) applyPlain(vals []float64, mask uint64, n int) {
 	a.EndRow(n)
 }
 
-// plainFields reads the fields of line into vals, one per field, and sets
-// bit i of mask when field i holds a number. ok is false when a field is
+// plainFields reads the row at the start of b, up to its line end (the
+// first newline, a carriage return right before it, or the end of b),
+// into vals, one per field, and sets bit i of mask when field i holds a
+// number; end is the offset of the line end. ok is false when a field is
 // not a plain number (as fastFloat reads it, to the field's end) or there
-// are more fields than vals. The digits are read here rather than by a
-// call to fastFloat: this loop is where reading a log spends its time.
-// Its numbers are fastFloat's, bit for bit (tested exhaustively on short
-// fields and by fuzzing).
-func plainFields(line []byte, delim byte, vals []float64) (mask uint64, ok bool) {
-	// Indexes are unsigned so that i < n proves every line[i] in range:
-	// the loops carry no bounds checks.
-	n := uint(len(line))
+// are more fields than vals. Reading up to the newline lets the line loop
+// (plainLines) find each line's end in the same pass that reads its
+// digits. The digits are read here rather than by a call to fastFloat:
+// this loop is where reading a log spends its time. Its numbers are
+// fastFloat's, bit for bit (tested exhaustively on short fields and by
+// fuzzing).
+func plainFields(b []byte, delim byte, vals []float64) (mask uint64, end int, ok bool) {
+	// Indexes are unsigned so that i < n proves every b[i] in range: the
+	// loops carry no bounds checks.
+	n := uint(len(b))
 	for i, field := uint(0), uint(0); ; field++ {
 		if field >= uint(len(vals)) {
-			return 0, false
+			return 0, 0, false
 		}
 		if i >= n {
-			return mask, true // an empty last field
+			return mask, int(n), true // an empty last field
 		}
-		c := line[i]
-		if c == delim {
-			i++
-			continue // an empty field
-		}
-		neg := c == '-'
-		if neg || c == '+' {
-			i++
+		// Most fields start with a digit: one test lets them through.
+		neg := false
+		if c := b[i]; c-'0' > 9 {
+			switch {
+			case c == delim:
+				i++
+				continue // an empty field
+			case c == '\n' || c == '\r' && i+1 < n && b[i+1] == '\n':
+				return mask, int(i), true // an empty last field
+			case c == '-':
+				neg = true
+				i++
+			case c == '+':
+				i++
+			}
 		}
 		start := i
 		var mant uint64
 		for ; i < n; i++ {
-			d := line[i] - '0'
+			d := b[i] - '0'
 			if d > 9 {
 				break
 			}
@@ -151,11 +223,11 @@ func plainFields(line []byte, delim byte, vals []float64) (mask uint64, ok bool)
 		}
 		digits := i - start
 		frac := uint(0)
-		if i < n && line[i] == '.' {
+		if i < n && b[i] == '.' {
 			i++
 			from := i
 			for ; i < n; i++ {
-				d := line[i] - '0'
+				d := b[i] - '0'
 				if d > 9 {
 					break
 				}
@@ -166,19 +238,16 @@ func plainFields(line []byte, delim byte, vals []float64) (mask uint64, ok bool)
 		}
 		// As in fastFloat: 1 to 19 digits cannot overflow, 2^53 is exact.
 		if digits-1 > 18 || mant > 1<<53 {
-			return 0, false
+			return 0, 0, false
 		}
 		var v float64
-		if i < n && line[i] != delim {
-			if line[i]|0x20 != 'e' {
-				return 0, false
+		if i < n && b[i]|0x20 == 'e' {
+			var e int
+			v, e, ok = withExponent(b, int(i), mant, -int(frac), neg)
+			if !ok {
+				return 0, 0, false
 			}
-			var end int
-			v, end, ok = withExponent(line, int(i), mant, -int(frac), neg)
-			i = uint(end)
-			if !ok || i < n && line[i] != delim {
-				return 0, false
-			}
+			i = uint(e)
 		} else {
 			v = float64(int64(mant)) / pow10[frac&31]
 			if neg {
@@ -188,9 +257,16 @@ func plainFields(line []byte, delim byte, vals []float64) (mask uint64, ok bool)
 		vals[field&63] = v
 		mask |= 1 << (field & 63)
 		if i >= n {
-			return mask, true
+			return mask, int(n), true
 		}
-		i++ // the delimiter
+		switch c := b[i]; {
+		case c == delim:
+			i++
+		case c == '\n' || c == '\r' && i+1 < n && b[i+1] == '\n':
+			return mask, int(i), true
+		default:
+			return 0, 0, false
+		}
 	}
 }
 

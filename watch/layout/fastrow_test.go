@@ -102,6 +102,7 @@ func TestFastRow_OnePerEpochAndSteps(t *testing.T) {
 		"Percent":     "epoch,acc\n1,0.5\n1,55\n2,60\n2,61\n",
 		"Duplicate":   "epoch,loss,loss\n1,0.5,0.6\n1,0.4,0.3\n2,0.2,0.1\n",
 		"Overrides":   "epoch,a,b\n1,0.5,0.6\n1,0.4,0.3\n2,0.2,0.1\n",
+		"CRLF":        "epoch,step,loss\r\n1,1,0.5\r\n1,2,0.4\r\n1,3\r\r\n1,4,0.3\r\n2,5,0.2,\r\n2,6,\r\n",
 	} {
 		for _, opts := range []Config{{}, {Steps: true}, {Roles: column.Overrides{Train: "a", Val: "b"}}} {
 			t.Run(name, func(t *testing.T) { checkFastRow(t, []byte(in), opts) })
@@ -109,9 +110,21 @@ func TestFastRow_OnePerEpochAndSteps(t *testing.T) {
 	}
 }
 
-// plainReference is what plainFields must give: the fields split at the
-// delimiter, each empty or a number fastFloat reads whole.
-func plainReference(line []byte, delim byte, nvals int) ([]float64, uint64, bool) {
+// plainReference is what plainFields must give: the line is b up to its
+// first newline (less a carriage return right before it) or all of b, and
+// end its length; its fields split at the delimiter, each empty or a
+// number fastFloat reads whole.
+func plainReference(b []byte, delim byte, nvals int) ([]float64, uint64, int, bool) {
+	line := b
+	if nl := bytes.IndexByte(b, '\n'); nl >= 0 {
+		line = bytes.TrimSuffix(b[:nl], []byte{'\r'})
+	}
+	vals, mask, ok := plainLineReference(line, delim, nvals)
+	return vals, mask, len(line), ok
+}
+
+// plainLineReference is plainReference for a line without a newline.
+func plainLineReference(line []byte, delim byte, nvals int) ([]float64, uint64, bool) {
 	fields := bytes.Split(line, []byte{delim})
 	if len(fields) > nvals {
 		return nil, 0, false
@@ -135,10 +148,10 @@ func plainReference(line []byte, delim byte, nvals int) ([]float64, uint64, bool
 func checkPlainFields(t *testing.T, line []byte, delim byte, nvals int) {
 	t.Helper()
 	vals := make([]float64, nvals)
-	mask, ok := plainFields(line, delim, vals)
-	want, wmask, wok := plainReference(line, delim, nvals)
-	if ok != wok || ok && mask != wmask {
-		t.Fatalf("plainFields(%q) = %b,%v; want %b,%v", line, mask, ok, wmask, wok)
+	mask, end, ok := plainFields(line, delim, vals)
+	want, wmask, wend, wok := plainReference(line, delim, nvals)
+	if ok != wok || ok && (mask != wmask || end != wend) {
+		t.Fatalf("plainFields(%q) = %b,%d,%v; want %b,%d,%v", line, mask, end, ok, wmask, wend, wok)
 	}
 	for i := 0; ok && i < nvals; i++ {
 		if mask>>i&1 == 1 && math.Float64bits(vals[i]) != math.Float64bits(want[i]) {
@@ -155,6 +168,14 @@ func TestPlainFields_Exhaustive(t *testing.T) {
 	eachSequence(alphabet, maxLen, func(buf []byte) { checkPlainFields(t, buf, ',', 3) })
 }
 
+// TestPlainFields_LineEnds compares plainFields with the reference on
+// every row of up to 6 bytes with newlines and carriage returns in it: a
+// row ends at its first newline, less a carriage return right before.
+func TestPlainFields_LineEnds(t *testing.T) {
+	alphabet := []byte{'0', '.', 'e', '-', ',', '\r', '\n'}
+	eachSequence(alphabet, size(5, 6), func(buf []byte) { checkPlainFields(t, buf, ',', 3) })
+}
+
 // TestPlainFields_Numbers checks plainFields on numbers of every digit
 // count and exponent around the limits of the exact path (19 digits, 2^53,
 // 10^±22), each against strconv.ParseFloat as well.
@@ -168,7 +189,7 @@ func TestPlainFields_Numbers(t *testing.T) {
 		t.Run(s, func(t *testing.T) {
 			checkPlainFields(t, []byte(s+",1"), ',', 2)
 			vals := make([]float64, 1)
-			if mask, ok := plainFields([]byte(s), ',', vals); ok && mask == 1 {
+			if mask, _, ok := plainFields([]byte(s), ',', vals); ok && mask == 1 {
 				want, err := strconv.ParseFloat(s, 64)
 				if err != nil || math.Float64bits(vals[0]) != math.Float64bits(want) {
 					t.Fatalf("plainFields(%q) = %v, strconv gives %v (%v)", s, vals[0], want, err)

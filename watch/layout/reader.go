@@ -133,6 +133,9 @@ type Reader struct {
 	// rewind: the decoder found the file rewritten (a document read whole
 	// has data after its end); Rewind reports it to the tailer.
 	rewind bool
+	// plain is the decoder in use when it reads runs of plain rows
+	// straight from the bytes fed (plainLiner), while lines are whole.
+	plain plainLiner
 	// general makes the decoders take their general path (tests).
 	general bool
 	// taken counts the pieces whose workers' results were taken (tests
@@ -158,6 +161,12 @@ func (r *Reader) Feed(p []byte) {
 		if r.redraws { // the layout is known now: the rest goes there
 			r.feedRedrawn(p)
 			return
+		}
+		if r.plain != nil && r.wholeLines && len(r.carry) == 0 && !r.skipping {
+			if k := r.plain.plainLines(p); k > 0 {
+				p = p[k:]
+				continue
+			}
 		}
 		var i int
 		if r.wholeLines {
@@ -312,10 +321,19 @@ type segmenter interface {
 	segmented() bool
 }
 
+// plainLiner is a decoder that reads a run of whole plain rows straight
+// from the bytes fed, finding the lines' ends as it reads their fields
+// (csvDecoder.plainLines); it returns the bytes read, 0 when the next line
+// is for the line loop.
+type plainLiner interface {
+	plainLines(p []byte) int
+}
+
 // setLines sets how lines end for the decoder in use.
 func (r *Reader) setLines() {
 	s, ok := r.dec.(segmenter)
 	r.wholeLines = r.dec != nil && !(ok && s.segmented())
+	r.plain, _ = r.dec.(plainLiner)
 	d, ok := r.dec.(redrawer)
 	r.redraws = r.wholeLines && ok && d.lastSegment()
 }

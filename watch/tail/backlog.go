@@ -35,15 +35,16 @@ const (
 )
 
 // parallel reports whether the backlog before size is read by the
-// parallel path: several cores, a sink that can decode ahead now, and at
+// parallel path: several cores, a sink that can decode ahead now, at
 // least a piece per core left, so that a live append is read as it comes,
-// sequentially.
+// sequentially, and a machine not too busy to lend the other cores
+// (busy.go).
 func (t *File) parallel(sink Sink, size int64) bool {
 	if t.procs < 2 || size-t.offset < int64(t.procs*PieceBytes) {
 		return false
 	}
 	a, ok := sink.(Ahead)
-	return ok && a.ReadsAhead()
+	return ok && a.ReadsAhead() && !t.busy()
 }
 
 // piece is one part of the backlog, read and decoded by a worker: the

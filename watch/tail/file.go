@@ -71,6 +71,10 @@ type File struct {
 	state       State
 	buf         []byte
 	procs       int // cores for the parallel path
+	// busyNow is whether the machine was too busy for the parallel path
+	// when last checked, at busyAt (busy.go).
+	busyNow bool
+	busyAt  time.Time
 }
 
 // Open checks the options and opens the file at path if it is there. It

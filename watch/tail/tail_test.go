@@ -292,6 +292,7 @@ func TestFile_Backlog(t *testing.T) {
 		PieceBytes = piece
 		runtime.GOMAXPROCS(procs)
 	}(PieceBytes, runtime.GOMAXPROCS(3))
+	defer keepParallel()()
 	PieceBytes = 1 << 10
 	var b strings.Builder
 	for i := range 20_000 {
@@ -323,6 +324,7 @@ func TestFile_BacklogLongLines(t *testing.T) {
 		PieceBytes = piece
 		runtime.GOMAXPROCS(procs)
 	}(PieceBytes, runtime.GOMAXPROCS(3))
+	defer keepParallel()()
 	PieceBytes = 16 << 10
 	var b strings.Builder
 	for i := range 400 {
