@@ -49,6 +49,8 @@ type roundsDecoder struct {
 	// summary: the line before announced the best round ("Stopping. Best
 	// iteration:"), which the next round line repeats.
 	summary bool
+	// cells are the values of the line being read.
+	cells []points.Cell
 }
 
 func (d *roundsDecoder) Finish() {}
@@ -73,10 +75,7 @@ func (d *roundsDecoder) Decode(line []byte, n int) {
 	if d.sets == nil {
 		d.sets = roundSets(rest)
 	}
-	a := d.asm
-	a.BeginRow()
-	a.Epoch(float64(round))
-	values := 0
+	cells := d.cells[:0]
 	for k := 0; len(rest) > 0; k++ {
 		f := firstField(rest)
 		rest = rest[min(len(f)+1, len(rest)):]
@@ -84,12 +83,21 @@ func (d *roundsDecoder) Decode(line []byte, n int) {
 		if !ok {
 			continue
 		}
-		a.Value(ci, v)
-		values++
+		cells = append(cells, points.Cell{Col: ci, V: v})
 	}
-	if values == 0 {
+	d.cells = cells
+	if len(cells) == 0 {
 		d.r.bad(n, "no value in the round line", line)
 		return
+	}
+	a := d.asm
+	if !d.r.general && a.NextEpoch(float64(round), cells, n) {
+		return
+	}
+	a.BeginRow()
+	a.Epoch(float64(round))
+	for _, c := range cells {
+		a.Value(c.Col, c.V)
 	}
 	a.EndRow(n)
 }
