@@ -2,6 +2,7 @@ package layout
 
 import (
 	"bytes"
+	"slices"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/column"
@@ -140,16 +141,19 @@ func (d *tableDecoder) useHeader(cells []tableCell) {
 	d.r.checkRoles(d.names)
 }
 
-// rowsOpenEpochs reports a header whose rows NextEpoch may file: the
-// epoch first, then values and times only, each with its column.
+// rowsOpenEpochs reports a header whose rows NextEpoch may file (the
+// epoch first, then values and times only, each with its column) and sets
+// next's columns.
 func (d *tableDecoder) rowsOpenEpochs() bool {
 	if len(d.roles) < 2 || d.roles[0] != cellEpoch {
 		return false
 	}
+	d.next = make([]points.Cell, len(d.roles)-1)
 	for i, r := range d.roles[1:] {
 		if r == cellEpoch || r == cellStep || d.colOf[i+1] < 0 {
 			return false
 		}
+		d.next[i].Col = d.colOf[i+1]
 	}
 	return true
 }
@@ -159,14 +163,14 @@ func (d *tableDecoder) rowsOpenEpochs() bool {
 // other row (file files it). A time cell is a value as TimeNumber reads
 // it: finite and below its least Unix time.
 func (d *tableDecoder) nextEpoch(vals []float64, n int) bool {
-	cells := d.next[:0]
-	for i, v := range vals[1:] {
-		if d.roles[i+1] == cellTime && !(isNonFinite(v) || v < 1e8) {
+	cells := d.next[:len(vals)-1]
+	for i := range cells {
+		v := vals[i+1]
+		if d.roles[i+1] == cellTime && v >= 1e8 && !isNonFinite(v) {
 			return false
 		}
-		cells = append(cells, points.Cell{Col: d.colOf[i+1], V: v})
+		cells[i].V = v
 	}
-	d.next = cells
 	return d.asm.NextEpoch(vals[0], cells, n)
 }
 
@@ -427,7 +431,8 @@ func (s *tableAhead) lineEpoch(line []byte) (int, lineKind) {
 
 func (s *tableAhead) newWorker(w *Reader) Decoder {
 	d := s.dec
-	return &tableDecoder{r: w, asm: w.asm, header: d.header, names: d.names, roles: d.roles, colOf: d.colOf, oneRow: d.oneRow}
+	return &tableDecoder{r: w, asm: w.asm, header: d.header, names: d.names, roles: d.roles, colOf: d.colOf, oneRow: d.oneRow,
+		next: slices.Clone(d.next)}
 }
 
 func (s *tableAhead) holds(d Decoder) bool  { return d == s.dec }
