@@ -99,8 +99,11 @@ type textShape struct {
 	pairs              []shapePair
 
 	// where are the runs of the line being matched.
-	where []shapeRun
+	where []runAt
 }
+
+// runAt is where a run of digits of the matched line lies.
+type runAt struct{ start, end int }
 
 // digitRuns appends the runs of ASCII digits of s to dst.
 func digitRuns(s []byte, dst []shapeRun) []shapeRun {
@@ -126,7 +129,7 @@ func (sh *textShape) match(line []byte) bool {
 	}
 	t := sh.text
 	if cap(sh.where) < len(sh.runs) {
-		sh.where = make([]shapeRun, len(sh.runs))
+		sh.where = make([]runAt, len(sh.runs))
 	}
 	where := sh.where[:len(sh.runs)]
 	i, j := 0, 0 // in line, in t
@@ -175,7 +178,7 @@ func (sh *textShape) match(line []byte) bool {
 		case zero != (r.class == 0) || r.class == 2:
 			return false
 		}
-		where[k].start, where[k].end = start, i
+		where[k] = runAt{start, i}
 		j = r.end
 	}
 	sh.where = where
@@ -269,14 +272,14 @@ func (sh *textShape) number(line []byte, sp shapeSpan) float64 {
 // an exponent or the digits' end again. Beyond fastFloat's exact range
 // (19 digits, 2^53), false: number reads it as it reads any span.
 func (sh *textShape) plainNumber(line []byte, sp shapeSpan) (float64, bool) {
-	r := sh.where[sp.run]
+	r := &sh.where[sp.run]
 	var mant uint64
 	for _, c := range line[r.start:r.end] {
 		mant = mant*10 + uint64(c-'0')
 	}
 	digits, frac := r.end-r.start, 0
 	if sp.endRun != sp.run {
-		f := sh.where[sp.endRun]
+		f := &sh.where[sp.endRun]
 		for _, c := range line[f.start:f.end] {
 			mant = mant*10 + uint64(c-'0')
 		}
