@@ -150,9 +150,18 @@ func (sh *textShape) match(line []byte) bool {
 		i += n
 		start := i
 		var zero bool
-		if i+8 <= len(line) {
-			// digitsEnd's first word, by hand: runs are short.
-			x := binary.LittleEndian.Uint64(line[i:])
+		if len(line) < 8 {
+			i, zero = digitsEnd(line, i)
+		} else {
+			// digitsEnd's first word, by hand: runs are short. Near the
+			// line's end, its last eight bytes with those before i
+			// shifted out: the zero bytes shifted in end the run there.
+			var x uint64
+			if i+8 <= len(line) {
+				x = binary.LittleEndian.Uint64(line[i:])
+			} else {
+				x = binary.LittleEndian.Uint64(line[len(line)-8:]) >> (8 * (i + 8 - len(line)))
+			}
 			other := (^((x | highs) - 0x30*ones) | ((x | highs) - 0x3a*ones) | x) & highs
 			if other != 0 {
 				m := bits.TrailingZeros64(other) / 8
@@ -161,8 +170,6 @@ func (sh *textShape) match(line []byte) bool {
 			} else {
 				i, zero = digitsEnd(line, i)
 			}
-		} else {
-			i, zero = digitsEnd(line, i)
 		}
 		switch {
 		case i == start:
