@@ -2,7 +2,6 @@ package layout
 
 import (
 	"bytes"
-	"slices"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/column"
@@ -137,25 +136,37 @@ func (d *tableDecoder) useHeader(cells []tableCell) {
 		}
 	}
 	d.oneRow = d.rowsOpenEpochs()
+	d.next = d.nextCells()
 	d.asm.ExpectEval()
 	d.r.checkRoles(d.names)
 }
 
-// rowsOpenEpochs reports a header whose rows NextEpoch may file (the
-// epoch first, then values and times only, each with its column) and sets
-// next's columns.
+// rowsOpenEpochs reports a header whose rows NextEpoch may file: the
+// epoch first, then values and times only, each with its column.
 func (d *tableDecoder) rowsOpenEpochs() bool {
 	if len(d.roles) < 2 || d.roles[0] != cellEpoch {
 		return false
 	}
-	d.next = make([]points.Cell, len(d.roles)-1)
 	for i, r := range d.roles[1:] {
 		if r == cellEpoch || r == cellStep || d.colOf[i+1] < 0 {
 			return false
 		}
-		d.next[i].Col = d.colOf[i+1]
 	}
 	return true
+}
+
+// nextCells returns the cells of a row for NextEpoch, their columns set:
+// one per cell after the epoch. Each decoder has its own (a worker's too),
+// since nextEpoch writes their values.
+func (d *tableDecoder) nextCells() []points.Cell {
+	if !d.oneRow {
+		return nil
+	}
+	next := make([]points.Cell, len(d.colOf)-1)
+	for i := range next {
+		next[i].Col = d.colOf[i+1]
+	}
+	return next
 }
 
 // nextEpoch files a row of plain numbers (fastRow's) that opens the next
@@ -432,7 +443,7 @@ func (s *tableAhead) lineEpoch(line []byte) (int, lineKind) {
 func (s *tableAhead) newWorker(w *Reader) Decoder {
 	d := s.dec
 	return &tableDecoder{r: w, asm: w.asm, header: d.header, names: d.names, roles: d.roles, colOf: d.colOf, oneRow: d.oneRow,
-		next: slices.Clone(d.next)}
+		next: d.nextCells()}
 }
 
 func (s *tableAhead) holds(d Decoder) bool  { return d == s.dec }
