@@ -256,7 +256,7 @@ func (d *barsDecoder) file(epoch int, postfix []byte, n int) {
 		if ci < 0 {
 			continue
 		}
-		switch a.Info(ci).Kind {
+		switch kind, _ := a.Kind(ci); kind {
 		case diagnose.KindEpoch:
 		case diagnose.KindStep:
 			a.Step(p.value)

@@ -188,3 +188,24 @@ func FuzzJSONNumberAt(f *testing.F) {
 		}
 	})
 }
+
+// TestTextShape_PlainNumbers reads lines of one shape whose values are
+// read from their runs (textShape.plainNumber): signs, zeros, the limits
+// of the exact range (19 digits, 2^53) and beyond, after the line that
+// made the shape, through the fast and the general path.
+func TestTextShape_PlainNumbers(t *testing.T) {
+	values := []string{"0.5", "-0.5", "+0.5", "-0", "0.0", "12", "-12", "+7",
+		"9007199254740992", "9007199254740993", "9007199254740992.5", "1234567890123456789", "12345678901234567890",
+		"0.1234567890123456789", "1.2345678901234567890", "00000000000000000001.5", "1e5"}
+	otherDigits := strings.NewReplacer("0", "3", "1", "4", "2", "9", "5", "8", "9", "1")
+	n := 0
+	for _, first := range values {
+		for _, v := range []string{first, otherDigits.Replace(first)} {
+			line := func(step, v string) string { return "step " + step + " - loss: " + v + " - acc: " + v + "\n" }
+			log := "epoch 1\n" + line("1", first) + line("2", v) + line("3", first) + "epoch 2\n" + line("4", v)
+			checkFastPath(t, []byte(log), Config{Format: Text})
+			n++
+		}
+	}
+	t.Logf("%d logs", n)
+}

@@ -41,14 +41,16 @@ func FuzzJSONDoc(f *testing.F) {
 func FuzzTable(f *testing.F) {
 	fuzzLayout(f, Table,
 		"epoch  train_loss  valid_loss  accuracy  time\n0      2.190625    2.063380    0.680556  00:00\n1      2.000692    1.701130    0.822222  00:01\n",
-		"epoch  train_loss  valid_loss\n0      12.3456789012.000000\nepoch  train_loss  valid_loss\n1 0.5 0.4\n")
+		"epoch  train_loss  valid_loss\n0      12.3456789012.000000\nepoch  train_loss  valid_loss\n1 0.5 0.4\n",
+		"epoch  train_loss  valid_loss  time\n1  0.5  0.6  00:01\n2  0.4  -0  00:02\n3  nan  0.4  1e9\n4  0.2  0.3  00:04\n4  0.2  0.3  00:04\n2  0.1  0.2  00:05\n")
 }
 
 func FuzzRounds(f *testing.F) {
 	fuzzLayout(f, Rounds,
 		"[0]\ttrain-mlogloss:2.01212\ttrain-merror:0.16910\teval-mlogloss:2.04464\teval-merror:0.27500\n[10]\ttrain-mlogloss:0.84332\n",
 		"[1]\ttraining's multi_logloss: 2.01212\tvalid_1's multi_error: 0.275\nEarly stopping, best iteration is:\n[1]\ttraining's multi_logloss: 2.01212\n",
-		"[0]\tvalidation_0-auc:0.9+0.1\tvalidation_1-ndcg@5-:0.8\n")
+		"[0]\tvalidation_0-auc:0.9+0.1\tvalidation_1-ndcg@5-:0.8\n",
+		"[0]\ttrain-error:0.5\teval-error:0.4\n[1]\ttrain-error:-0\teval-error:0.3\n[2]\ttrain-error:50\teval-error:nan\n[3]\teval-error:0.2\ttrain-error:0.1\n[3]\ttrain-error:0.1\teval-error:0.2\n[1]\ttrain-error:0.1\teval-error:0.2\teval-error:0.3\n")
 }
 
 func FuzzBars(f *testing.F) {

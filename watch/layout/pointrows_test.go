@@ -166,3 +166,56 @@ func TestPlainClock_ExhaustiveBytes(t *testing.T) {
 	}
 	t.Logf("%d strings", n)
 }
+
+// TestTableNextEpoch_ExhaustiveRows reads every row of the shapes below
+// after three plain rows of one epoch each, so that the log is one row per
+// epoch and a row of plain numbers may open the next epoch in one pass
+// (points.Assembler.NextEpoch): the next epoch, a repeat, a step back, a
+// gap, values of every sign (-0 among them), non-finite ones and times
+// that are Unix times; then a plain row and a row of two epochs' values.
+func TestTableNextEpoch_ExhaustiveRows(t *testing.T) {
+	const header = "epoch  train_loss  valid_loss  accuracy  time\n"
+	const plain = "1  0.6  0.7  0.8  00:01\n2  0.5  0.6  17  00:02\n3  0.4  0.5  0.9  00:03\n"
+	epochs := []string{"4", "3", "2", "9", "4.5", "nan", "1e10", "-0"}
+	values := []string{"0.5", "-0", "0", "nan", "inf", "50", "1e-3", "x"}
+	times := []string{"00:04", "12", "1e9", "nan", "-0"}
+	n := 0
+	for _, e := range epochs {
+		for _, v1 := range values {
+			for _, v2 := range values {
+				for _, tm := range times {
+					row := strings.Join([]string{e, v1, v2, "0.9", tm}, "  ")
+					log := header + plain + row + "\n" + "10  " + v2 + "  " + v1 + "  0.3  00:10\n" + row + "\n11  0.1  0.2\n"
+					checkFastPath(t, []byte(log), Config{Format: Table})
+					n++
+				}
+			}
+		}
+	}
+	t.Logf("%d logs", n)
+}
+
+// TestRoundsNextEpoch_ExhaustiveLines reads round lines of each shape
+// after three plain rounds: the same fields, fewer, more, a field twice,
+// other values (-0, non-finite, a percent rate), repeated and earlier
+// rounds, a second line of the round (its sums then count: -0 + -0), so that points.Assembler.NextEpoch meets every case it gives
+// up on.
+func TestRoundsNextEpoch_ExhaustiveLines(t *testing.T) {
+	const plain = "[0]\ttrain-logloss:0.5\teval-error:0.25\n[1]\ttrain-logloss:0.4\teval-error:0.2\n[2]\ttrain-logloss:0.3\teval-error:0.15\n"
+	rounds := []string{"3", "2", "1", "7"}
+	fields := []string{"train-logloss:0.2", "train-logloss:-0", "eval-error:nan", "eval-error:50", "eval-auc:0.9", "train-logloss:inf", "eval-error:x"}
+	n := 0
+	for _, r := range rounds {
+		for _, f1 := range fields {
+			for _, f2 := range fields {
+				for _, f3 := range []string{"", "\teval-error:0.1", "\ttrain-logloss:0.1"} {
+					line := "[" + r + "]\t" + f1 + "\t" + f2 + f3
+					log := plain + line + "\n[" + r + "]\teval-auc:0.9\t" + f1 + "\n[8]\t" + f2 + "\t" + f1 + "\n" + line + "\n[9]\ttrain-logloss:0.1\teval-error:0.1\n"
+					checkFastPath(t, []byte(log), Config{Format: Rounds})
+					n++
+				}
+			}
+		}
+	}
+	t.Logf("%d logs", n)
+}

@@ -49,6 +49,8 @@ type roundsDecoder struct {
 	// summary: the line before announced the best round ("Stopping. Best
 	// iteration:"), which the next round line repeats.
 	summary bool
+	// cells are the values of the line being read.
+	cells []points.Cell
 }
 
 func (d *roundsDecoder) Finish() {}
@@ -73,23 +75,36 @@ func (d *roundsDecoder) Decode(line []byte, n int) {
 	if d.sets == nil {
 		d.sets = roundSets(rest)
 	}
-	a := d.asm
-	a.BeginRow()
-	a.Epoch(float64(round))
-	values := 0
+	cells := d.cells[:0]
 	for k := 0; len(rest) > 0; k++ {
+		if !d.r.general {
+			if ci, v, n, ok := d.sameField(k, rest); ok {
+				cells = append(cells, points.Cell{Col: ci, V: v})
+				rest = rest[n:]
+				continue
+			}
+		}
 		f := firstField(rest)
 		rest = rest[min(len(f)+1, len(rest)):]
 		ci, v, ok := d.field(k, f)
 		if !ok {
 			continue
 		}
-		a.Value(ci, v)
-		values++
+		cells = append(cells, points.Cell{Col: ci, V: v})
 	}
-	if values == 0 {
+	d.cells = cells
+	if len(cells) == 0 {
 		d.r.bad(n, "no value in the round line", line)
 		return
+	}
+	a := d.asm
+	if !d.r.general && a.NextEpoch(float64(round), cells, n) {
+		return
+	}
+	a.BeginRow()
+	a.Epoch(float64(round))
+	for _, c := range cells {
+		a.Value(c.Col, c.V)
 	}
 	a.EndRow(n)
 }
@@ -114,9 +129,6 @@ func (d *roundsDecoder) field(k int, f []byte) (ci int, v float64, ok bool) {
 			return 0, 0, false
 		}
 		return d.column(set, metric), v, true
-	}
-	if ci, v, ok := d.sameField(k, f); ok {
-		return ci, v, true
 	}
 	t := bytes.TrimSpace(f)
 	colon := bytes.LastIndexByte(t, ':')
@@ -150,28 +162,34 @@ func (d *roundsDecoder) field(k int, f []byte) (ci int, v float64, ok bool) {
 	return rf.col, v, true
 }
 
-// sameField reads the k-th field when it is the same field's name as on
-// the line before, read and found a column, then a colon and a number
-// that fastFloat reads to the field's end. Such a field has nothing for
-// TrimSpace to trim, its last colon is the one after the name, and its
-// number has a "+" only first or after its exponent's letter, which
-// roundNumber does not cut at: the general reading gives the same column
-// and value. Anything else, false.
-func (d *roundsDecoder) sameField(k int, f []byte) (int, float64, bool) {
+// sameField reads the k-th field at the start of rest when it is the same
+// field's name as on the line before, read and found a column, then a
+// colon and a number that fastFloat reads to the field's end (the next
+// tab, or the line's); n is how far the field and its tab go. Such a
+// field has nothing for TrimSpace to trim, its last colon is the one
+// after the name, and its number has a "+" only first or after its
+// exponent's letter, which roundNumber does not cut at: the general
+// reading gives the same column and value. fastFloat stops at a tab, so
+// reading on in rest changes nothing. Anything else, false.
+func (d *roundsDecoder) sameField(k int, rest []byte) (ci int, v float64, n int, ok bool) {
 	if k >= len(d.fields) {
-		return 0, 0, false
+		return 0, 0, 0, false
 	}
 	rf := &d.fields[k]
-	n := len(rf.raw)
-	if !rf.ok || rf.col < 0 || len(f) <= n+1 || f[n] != ':' || string(f[:n]) != rf.raw {
-		return 0, 0, false
+	at := len(rf.raw)
+	if !rf.ok || rf.col < 0 || len(rest) <= at+1 || rest[at] != ':' || string(rest[:at]) != rf.raw {
+		return 0, 0, 0, false
 	}
-	num := f[n+1:]
-	v, end, ok := fastFloat(num, 0)
-	if !ok || end != len(num) {
-		return 0, 0, false
+	v, end, ok := fastFloat(rest, at+1)
+	switch {
+	case !ok:
+		return 0, 0, 0, false
+	case end == len(rest):
+		return rf.col, v, end, true
+	case rest[end] == '\t':
+		return rf.col, v, end + 1, true
 	}
-	return rf.col, v, true
+	return 0, 0, 0, false
 }
 
 // column returns the column of a set's metric, named as the log writes it.

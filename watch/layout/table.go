@@ -88,6 +88,11 @@ type tableDecoder struct {
 	colOf  []int
 	cells  []tableCell
 	vals   []float64
+	// oneRow: the header starts with the epoch and names no step, so a
+	// row of plain numbers may open the next epoch in one pass
+	// (points.Assembler.NextEpoch); next holds that row's values.
+	oneRow bool
+	next   []points.Cell
 }
 
 func newTableDecoder(r *Reader, first []byte) Decoder {
@@ -130,8 +135,54 @@ func (d *tableDecoder) useHeader(cells []tableCell) {
 			d.colOf[i] = d.asm.Column(d.names[i])
 		}
 	}
+	d.oneRow = d.rowsOpenEpochs()
+	d.next = d.nextCells()
 	d.asm.ExpectEval()
 	d.r.checkRoles(d.names)
+}
+
+// rowsOpenEpochs reports a header whose rows NextEpoch may file: the
+// epoch first, then values and times only, each with its column.
+func (d *tableDecoder) rowsOpenEpochs() bool {
+	if len(d.roles) < 2 || d.roles[0] != cellEpoch {
+		return false
+	}
+	for i, r := range d.roles[1:] {
+		if r == cellEpoch || r == cellStep || d.colOf[i+1] < 0 {
+			return false
+		}
+	}
+	return true
+}
+
+// nextCells returns the cells of a row for NextEpoch, their columns set:
+// one per cell after the epoch. Each decoder has its own (a worker's too),
+// since nextEpoch writes their values.
+func (d *tableDecoder) nextCells() []points.Cell {
+	if !d.oneRow {
+		return nil
+	}
+	next := make([]points.Cell, len(d.colOf)-1)
+	for i := range next {
+		next[i].Col = d.colOf[i+1]
+	}
+	return next
+}
+
+// nextEpoch files a row of plain numbers (fastRow's) that opens the next
+// epoch of a table of one row per epoch, as file would; false for any
+// other row (file files it). A time cell is a value as TimeNumber reads
+// it: finite and below its least Unix time.
+func (d *tableDecoder) nextEpoch(vals []float64, n int) bool {
+	cells := d.next[:len(vals)-1]
+	for i := range cells {
+		v := vals[i+1]
+		if d.roles[i+1] == cellTime && v >= 1e8 && !isNonFinite(v) {
+			return false
+		}
+		cells[i].V = v
+	}
+	return d.asm.NextEpoch(vals[0], cells, n)
 }
 
 // noSplitWord reports a name without a split word ("accuracy", not
@@ -147,6 +198,9 @@ func (d *tableDecoder) Decode(line []byte, n int) {
 	}
 	if !d.r.general {
 		if vals, ok := d.fastRow(line); ok {
+			if d.oneRow && d.nextEpoch(vals, n) {
+				return
+			}
 			d.file(vals, n)
 			return
 		}
@@ -388,7 +442,8 @@ func (s *tableAhead) lineEpoch(line []byte) (int, lineKind) {
 
 func (s *tableAhead) newWorker(w *Reader) Decoder {
 	d := s.dec
-	return &tableDecoder{r: w, asm: w.asm, header: d.header, names: d.names, roles: d.roles, colOf: d.colOf}
+	return &tableDecoder{r: w, asm: w.asm, header: d.header, names: d.names, roles: d.roles, colOf: d.colOf, oneRow: d.oneRow,
+		next: d.nextCells()}
 }
 
 func (s *tableAhead) holds(d Decoder) bool  { return d == s.dec }

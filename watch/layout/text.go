@@ -165,7 +165,7 @@ func (d *textDecoder) beginLine(m marker, n int) {
 // value files a pair's value into column ci of the row.
 func (d *textDecoder) value(ci int, v float64, total int) {
 	a := d.asm
-	switch col := a.Info(ci); col.Kind {
+	switch kind, rate := a.Kind(ci); kind {
 	case diagnose.KindEpoch:
 		// the marker, already read
 	case diagnose.KindStep:
@@ -173,7 +173,7 @@ func (d *textDecoder) value(ci int, v float64, total int) {
 	case diagnose.KindTime:
 		a.TimeNumber(ci, v)
 	default:
-		if total > 0 && col.Rate {
+		if total > 0 && rate {
 			v /= float64(total) // "Accuracy: 9893/10000"
 		}
 		a.Value(ci, v)

@@ -26,6 +26,29 @@ type shapeRun struct {
 	start, end int
 	class      uint8
 	literal    bool // its digits must be the same
+	// gap is the (at most eight) bytes of the shape between the run
+	// before and this one, in the low bytes of a word, and gapMask
+	// covers them; gapLong: more than eight, compared by equalLong.
+	gap, gapMask uint64
+	gapLong      bool
+}
+
+// setGaps notes in each run the bytes of t before it, since the run
+// before.
+func setGaps(t []byte, runs []shapeRun) {
+	j := 0
+	for k := range runs {
+		r := &runs[k]
+		n := r.start - j
+		r.gap, r.gapMask, r.gapLong = 0, 0, n > 8
+		if !r.gapLong {
+			for b := n - 1; b >= 0; b-- {
+				r.gap = r.gap<<8 | uint64(t[j+b])
+				r.gapMask = r.gapMask<<8 | 0xff
+			}
+		}
+		j = r.end
+	}
 }
 
 // runClass is what reading a run of digits may depend on besides where it
@@ -50,6 +73,9 @@ func runClass(digits []byte) uint8 {
 type shapeSpan struct {
 	run, off, endRun, endOff int
 	constant                 float64
+	// plain: the number is its runs alone, a sign before them or not:
+	// digits, or digits, a point and digits (plainSpan).
+	plain bool
 }
 
 // shapePair is a pair of the shape: its name (its split context applied),
@@ -73,8 +99,11 @@ type textShape struct {
 	pairs              []shapePair
 
 	// where are the runs of the line being matched.
-	where []shapeRun
+	where []runAt
 }
+
+// runAt is where a run of digits of the matched line lies.
+type runAt struct{ start, end int }
 
 // digitRuns appends the runs of ASCII digits of s to dst.
 func digitRuns(s []byte, dst []shapeRun) []shapeRun {
@@ -100,7 +129,7 @@ func (sh *textShape) match(line []byte) bool {
 	}
 	t := sh.text
 	if cap(sh.where) < len(sh.runs) {
-		sh.where = make([]shapeRun, len(sh.runs))
+		sh.where = make([]runAt, len(sh.runs))
 	}
 	where := sh.where[:len(sh.runs)]
 	i, j := 0, 0 // in line, in t
@@ -110,9 +139,9 @@ func (sh *textShape) match(line []byte) bool {
 		switch {
 		case i+n > len(line):
 			return false
-		case n <= 8 && i+8 <= len(line) && j+8 <= len(t):
-			// equalAt, by hand: the call is the larger part of its cost.
-			if (binary.LittleEndian.Uint64(line[i:])^binary.LittleEndian.Uint64(t[j:]))&(uint64(1)<<(8*n)-1) != 0 {
+		case !r.gapLong && i+8 <= len(line):
+			// The shape's bytes before the run, in one masked word.
+			if binary.LittleEndian.Uint64(line[i:])&r.gapMask != r.gap {
 				return false
 			}
 		case !equalLong(line, i, t, j, n):
@@ -121,9 +150,18 @@ func (sh *textShape) match(line []byte) bool {
 		i += n
 		start := i
 		var zero bool
-		if i+8 <= len(line) {
-			// digitsEnd's first word, by hand: runs are short.
-			x := binary.LittleEndian.Uint64(line[i:])
+		if len(line) < 8 {
+			i, zero = digitsEnd(line, i)
+		} else {
+			// digitsEnd's first word, by hand: runs are short. Near the
+			// line's end, its last eight bytes with those before i
+			// shifted out: the zero bytes shifted in end the run there.
+			var x uint64
+			if i+8 <= len(line) {
+				x = binary.LittleEndian.Uint64(line[i:])
+			} else {
+				x = binary.LittleEndian.Uint64(line[len(line)-8:]) >> (8 * (i + 8 - len(line)))
+			}
 			other := (^((x | highs) - 0x30*ones) | ((x | highs) - 0x3a*ones) | x) & highs
 			if other != 0 {
 				m := bits.TrailingZeros64(other) / 8
@@ -132,8 +170,6 @@ func (sh *textShape) match(line []byte) bool {
 			} else {
 				i, zero = digitsEnd(line, i)
 			}
-		} else {
-			i, zero = digitsEnd(line, i)
 		}
 		switch {
 		case i == start:
@@ -149,7 +185,7 @@ func (sh *textShape) match(line []byte) bool {
 		case zero != (r.class == 0) || r.class == 2:
 			return false
 		}
-		where[k] = shapeRun{start: start, end: i}
+		where[k] = runAt{start, i}
 		j = r.end
 	}
 	sh.where = where
@@ -224,12 +260,47 @@ func (sh *textShape) number(line []byte, sp shapeSpan) float64 {
 	if sp.run < 0 {
 		return sp.constant
 	}
+	if sp.plain {
+		if v, ok := sh.plainNumber(line, sp); ok {
+			return v
+		}
+	}
 	b := line[sh.where[sp.run].start+sp.off : sh.where[sp.endRun].end+sp.endOff]
 	if v, end, ok := fastFloat(b, 0); ok && end == len(b) {
 		return v
 	}
 	v, _ := slowNumber(b)
 	return v
+}
+
+// plainNumber reads a plain span (digits, or digits, a point and digits,
+// a sign before them or not) from its runs, which match found to be
+// digits: fastFloat's mantissa and division without looking for a point,
+// an exponent or the digits' end again. Beyond fastFloat's exact range
+// (19 digits, 2^53), false: number reads it as it reads any span.
+func (sh *textShape) plainNumber(line []byte, sp shapeSpan) (float64, bool) {
+	r := &sh.where[sp.run]
+	var mant uint64
+	for _, c := range line[r.start:r.end] {
+		mant = mant*10 + uint64(c-'0')
+	}
+	digits, frac := r.end-r.start, 0
+	if sp.endRun != sp.run {
+		f := &sh.where[sp.endRun]
+		for _, c := range line[f.start:f.end] {
+			mant = mant*10 + uint64(c-'0')
+		}
+		frac = f.end - f.start
+		digits += frac
+	}
+	if digits > 19 || mant > 1<<53 {
+		return 0, false
+	}
+	v := float64(int64(mant)) / pow10[frac]
+	if sp.off < 0 && line[r.start-1] == '-' {
+		v = -v
+	}
+	return v, true
 }
 
 // integer reads run r of the matched line (a run readInt reads: its class
@@ -287,6 +358,7 @@ func (sh *textShape) record(line []byte, rc *shapeRecorder, m marker, pairs []fa
 	sh.valid = false
 	sh.text = append(sh.text[:0], line...)
 	sh.runs = digitRuns(line, sh.runs[:0])
+	setGaps(line, sh.runs)
 	runAt := func(pos int) int { // the run starting at pos, or -1
 		for k, r := range sh.runs {
 			if r.start == pos {
@@ -351,7 +423,27 @@ func (sh *textShape) span(from, to int, v float64) (shapeSpan, bool) {
 	if first < 0 {
 		return shapeSpan{run: -1, constant: v}, true
 	}
-	return shapeSpan{run: first, off: from - sh.runs[first].start, endRun: last, endOff: to - sh.runs[last].end}, true
+	sp := shapeSpan{run: first, off: from - sh.runs[first].start, endRun: last, endOff: to - sh.runs[last].end}
+	sp.plain = sh.plainSpan(sp)
+	return sp, true
+}
+
+// plainSpan reports a span that is its runs alone: one run, or two with
+// only a point between them, from the first run's start or from a sign
+// just before it, to the last run's end. The bytes between and before the
+// runs are the shape's, so every line that matches has them too.
+func (sh *textShape) plainSpan(sp shapeSpan) bool {
+	if sp.endOff != 0 || sp.off != 0 && sp.off != -1 {
+		return false
+	}
+	r := sh.runs[sp.run]
+	if sp.off == -1 && sh.text[r.start-1] != '-' && sh.text[r.start-1] != '+' {
+		return false
+	}
+	if sp.endRun == sp.run {
+		return true
+	}
+	return sp.endRun == sp.run+1 && sh.runs[sp.endRun].start == r.end+1 && sh.text[r.end] == '.'
 }
 
 // keptFrom is the offset in raw of the first word cleanName keeps (the

@@ -201,6 +201,13 @@ func (a *Assembler) Known(name string) bool {
 // Info returns what column ci holds (its Percent flag as seen so far).
 func (a *Assembler) Info(ci int) diagnose.Column { return a.cols[ci].col }
 
+// Kind returns column ci's kind and whether it is a rate: what a decoder
+// asks of a column for every value, without Info's copy of its names.
+func (a *Assembler) Kind(ci int) (kind diagnose.Kind, rate bool) {
+	c := &a.cols[ci].col
+	return c.Kind, c.Rate
+}
+
 // IsEval reports whether column ci is measured once per evaluation (a
 // validation, train-dev or test metric), so that a row with it closes a
 // point.

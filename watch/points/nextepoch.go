@@ -1,0 +1,79 @@
+package points
+
+import "math"
+
+// Cell is one value of a row for NextEpoch: the column it goes to (an
+// index from Column or ColumnAs) and the number.
+type Cell struct {
+	Col int
+	V   float64
+}
+
+// NextEpoch files a row that opens the next epoch of a log that has shown
+// only one row per epoch (a results table, round lines), and hands it on
+// as that epoch's point, when nothing else is to be done: the log is one
+// row per epoch, the open epoch was handed on and holds one row, the
+// row's epoch is valid and above it, and the row sets exactly the columns
+// of the open epoch, each once. It does what BeginRow, Epoch, Value and
+// EndRow do for such a row (close the open epoch, open the next, merge,
+// hand on) in one pass: the open epoch's columns stay the point's
+// columns, so only their values change. A row without a step, a time
+// stamp or a refused column (-1) only; false, having changed nothing,
+// sends any other row to the general path. The decoders' tests compare
+// both exhaustively and by fuzzing.
+func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
+	g := &a.g
+	if !g.open || !g.epochLogged || !g.emitted || g.dirty || g.rows != 1 ||
+		len(cells) == 0 || len(cells) != len(a.touched) || !a.onePerEpoch() {
+		return false
+	}
+	if epoch-epoch != 0 || math.Abs(epoch) > MaxEpoch {
+		return false // the general path counts the bad row
+	}
+	e := EpochKey(epoch)
+	if e <= g.epoch {
+		return false // a repeat or a step back: a resume
+	}
+	// The row's columns must be the open epoch's, each once: then the
+	// point's columns (touched, sorted by emit) are the same.
+	a.rowSeq++
+	for _, cl := range cells {
+		if cl.Col < 0 {
+			return false
+		}
+		c := &a.cols[cl.Col]
+		if !c.inGroup || c.rowMark == a.rowSeq {
+			return false
+		}
+		c.rowMark = a.rowSeq
+	}
+	a.singleRow++ // ClosePoint of the open epoch, of one row
+	eval := false
+	for _, cl := range cells {
+		v := cl.V
+		if v-v != 0 { // NaN or ±Inf, in one subtraction
+			a.nonFinite++
+		}
+		c := &a.cols[cl.Col]
+		// 0+v, as merge sums from zero: -0 becomes +0 there too.
+		c.sum, c.n, c.last = 0+v, 1, v
+		if c.col.Rate && !c.col.Percent && v > 1 && v <= 100 {
+			c.markPercent()
+		}
+		eval = eval || c.eval
+	}
+	if eval {
+		a.evalSeen = true
+	}
+	*g = group{open: true, epoch: e, epochLogged: true, step: -1, rows: 1, line: line, hasEval: eval, dirty: true}
+	a.emit()
+	if a.steps {
+		a.row = a.row[:0]
+		for _, cl := range cells {
+			a.row = append(a.row, rowValue{cl.Col, cl.V})
+		}
+		a.rowHasStep = false
+		a.emitStep()
+	}
+	return true
+}
