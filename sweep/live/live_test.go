@@ -183,15 +183,21 @@ func TestSweep_Follow(t *testing.T) {
 	if data, _ := os.ReadFile(filepath.Join(root, "b", "STOP")); string(data) != "someone else's\n" {
 		t.Errorf("b's STOP was written: %q", data)
 	}
-	c.mu.Lock()
+	// The file is on disk before the update that reports it is handed on.
 	var notices, stops []string
-	for _, u := range c.updates {
-		notices = append(notices, u.Notices...)
-		for _, st := range u.Stops {
-			stops = append(stops, st.Name)
+	said := func() bool {
+		c.mu.Lock()
+		defer c.mu.Unlock()
+		notices, stops = nil, nil
+		for _, u := range c.updates {
+			notices = append(notices, u.Notices...)
+			for _, st := range u.Stops {
+				stops = append(stops, st.Name)
+			}
 		}
+		return len(stops) > 0 && strings.Contains(strings.Join(notices, "\n"), "b: no stop file for this run")
 	}
-	c.mu.Unlock()
+	waitFor(t, c, "c's stop file and b's refusal reported", said)
 	if !strings.Contains(strings.Join(notices, "\n"), "b: no stop file for this run") {
 		t.Errorf("notices %q", notices)
 	}
