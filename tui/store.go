@@ -207,23 +207,26 @@ func (s *store) addSteps(rows *diagnose.StepRows) {
 	}
 	feeds := s.stepFeeds(rows.Columns)
 	for _, r := range rows.Rows {
-		if r.Step < 0 || r.From < 0 || r.To > int32(len(rows.Values)) || r.From > r.To {
+		if r.Step < 0 || !rows.Valid(r) {
 			continue
 		}
 		s.clock.observe(int(r.Epoch), r.Step)
-		for _, v := range rows.Values[r.From:r.To] {
-			if uint32(v.Col) >= uint32(len(feeds)) {
+		cols := rows.Shapes[r.Shape]
+		vals := rows.Values[r.From : int(r.From)+len(cols)]
+		for k, col := range cols {
+			if uint32(col) >= uint32(len(feeds)) {
 				continue
 			}
-			c := feeds[v.Col]
+			c := feeds[col]
 			if c.series == nil {
 				continue
 			}
-			if c.bounded && v.V > 1 && !c.seen {
+			v := vals[k]
+			if c.bounded && v > 1 && !c.seen {
 				c.seen = true
 				s.percent[c.base] = true
 			}
-			c.series.add(r.Step, v.V)
+			c.series.add(r.Step, v)
 		}
 	}
 }

@@ -117,17 +117,20 @@ func (a *Assembler) PlainStep(p *Plan, vals []float64, mask uint64) {
 			hasStep, step = true, int64(sv)
 		}
 	}
+	var room [stepColsRoom]int32 // the columns, on the stack for most rows
+	cols := room[:0]
 	s := a.out.Steps()
 	from := len(s.Values)
 	for _, f := range p.Vals {
 		if mask&f.Bit != 0 {
-			s.Values = append(s.Values, diagnose.StepValue{Col: int32(f.Col), V: vals[f.Field]})
+			cols = append(cols, int32(f.Col))
+			s.Values = append(s.Values, vals[f.Field])
 		}
 	}
 	if len(s.Values) == from {
 		return
 	}
-	r := diagnose.StepRowAt{Segment: int32(a.segment), Epoch: int32(a.g.epoch), Step: -1, From: int32(from), To: int32(len(s.Values))}
+	r := diagnose.StepRowAt{Segment: int32(a.segment), Epoch: int32(a.g.epoch), Step: -1, From: int32(from), Shape: s.ShapeOf(cols)}
 	if hasStep {
 		r.Step = step
 	}
