@@ -42,7 +42,11 @@ type store struct {
 	// stepCols is what each column of the per-step rows feeds, by the
 	// rows' column index, worked out once per column.
 	stepCols []*stepCol
-	clock    stepClock
+	// shapes and shapeRoom are what each shape of a batch's per-step rows
+	// feeds (shapeFeeds), kept for the next batch.
+	shapes    [][]shapeFeed
+	shapeRoom []shapeFeed
+	clock     stepClock
 	// percent remembers bases seen above 1 in per-step rows: a rate or score
 	// written in percent (the same inference the judgement makes).
 	percent map[string]bool
@@ -199,33 +203,53 @@ type stepCol struct {
 
 // addSteps stores per-step rows: their metric columns, and their places
 // on the epoch axis. A column is looked up by name once, when it first
-// comes; a value then costs an index and a min/max into its series' last
-// block (tui/addsteps_bench_test.go).
+// comes, and a shape of the batch's rows is resolved to the series its
+// values feed once a batch; a value then costs an index and a min/max
+// into its series' last block (tui/addsteps_bench_test.go).
 func (s *store) addSteps(rows *diagnose.StepRows) {
 	if len(rows.Rows) == 0 {
 		return
 	}
-	feeds := s.stepFeeds(rows.Columns)
+	shapes := s.shapeFeeds(rows)
 	for _, r := range rows.Rows {
-		if r.Step < 0 || r.From < 0 || r.To > int32(len(rows.Values)) || r.From > r.To {
+		if r.Step < 0 || !rows.Valid(r) {
 			continue
 		}
 		s.clock.observe(int(r.Epoch), r.Step)
-		for _, v := range rows.Values[r.From:r.To] {
-			if uint32(v.Col) >= uint32(len(feeds)) {
-				continue
-			}
-			c := feeds[v.Col]
-			if c.series == nil {
-				continue
-			}
-			if c.bounded && v.V > 1 && !c.seen {
+		vals := rows.Values[r.From:]
+		for _, f := range shapes[r.Shape] {
+			v, c := vals[f.at], f.col
+			if c.bounded && v > 1 && !c.seen {
 				c.seen = true
 				s.percent[c.base] = true
 			}
-			c.series.add(r.Step, v.V)
+			c.series.add(r.Step, v)
 		}
 	}
+}
+
+// shapeFeed is a value of a row of one shape that feeds a series: its
+// place among the row's values, and its column.
+type shapeFeed struct {
+	at  int
+	col *stepCol
+}
+
+// shapeFeeds returns, for each shape of rows, the values that feed a
+// series, in arrays the store reuses from batch to batch.
+func (s *store) shapeFeeds(rows *diagnose.StepRows) [][]shapeFeed {
+	feeds := s.stepFeeds(rows.Columns)
+	s.shapes, s.shapeRoom = s.shapes[:0], s.shapeRoom[:0]
+	for _, cols := range rows.Shapes {
+		from := len(s.shapeRoom)
+		for k, col := range cols {
+			if uint32(col) < uint32(len(feeds)) && feeds[col].series != nil {
+				s.shapeRoom = append(s.shapeRoom, shapeFeed{at: k, col: feeds[col]})
+			}
+		}
+		s.shapes = append(s.shapes, s.shapeRoom[from:len(s.shapeRoom):len(s.shapeRoom)])
+	}
+	return s.shapes
 }
 
 // stepFeeds returns what each of cols feeds, by column index, working out

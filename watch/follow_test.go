@@ -415,10 +415,10 @@ func TestFollowReader_Steps(t *testing.T) {
 	var steps []stepRow
 	for b := range FollowReader(t.Context(), "x", strings.NewReader(in), Options{Steps: true}) {
 		for i := range b.Steps.Rows {
-			r, vals := b.Steps.Row(i)
+			r, cols, vals := b.Steps.Row(i)
 			row := stepRow{epoch: r.Epoch, step: r.Step}
-			for _, v := range vals {
-				row.vals = append(row.vals, stepValue{b.Steps.Columns[v.Col].Name, v.V})
+			for k, v := range vals {
+				row.vals = append(row.vals, stepValue{b.Steps.Columns[cols[k]].Name, v})
 			}
 			steps = append(steps, row)
 		}

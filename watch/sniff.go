@@ -97,7 +97,7 @@ type counter struct {
 
 func (c *counter) Point(diagnose.Point) { c.points++ }
 func (c *counter) Steps() *diagnose.StepRows {
-	c.steps.Rows, c.steps.Values = c.steps.Rows[:0], c.steps.Values[:0]
+	c.steps.Rows, c.steps.Values = c.steps.Rows[:0], c.steps.Values[:0] // the shapes stay: any row may reuse them
 	return &c.steps
 }
 func (c *counter) Notice(string) {}

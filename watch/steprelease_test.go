@@ -31,9 +31,9 @@ func followSteps(t *testing.T, path string, release bool) []stepValue {
 	var out []stepValue
 	for b := range ch {
 		for i := range b.Steps.Rows {
-			r, vals := b.Steps.Row(i)
-			for _, v := range vals {
-				out = append(out, stepValue{r.Segment, r.Epoch, r.Step, v.Col, math.Float64bits(v.V)})
+			r, cols, vals := b.Steps.Row(i)
+			for k, v := range vals {
+				out = append(out, stepValue{r.Segment, r.Epoch, r.Step, cols[k], math.Float64bits(v)})
 			}
 		}
 		if release {

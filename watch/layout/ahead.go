@@ -3,7 +3,6 @@ package layout
 import (
 	"bytes"
 	"math"
-	"slices"
 	"sync"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -178,7 +177,7 @@ type collector struct {
 	// itself before the sync line: takeSteps puts them there rather than
 	// copying the worker's rows after them.
 	frontRows   []diagnose.StepRowAt
-	frontValues []diagnose.StepValue
+	frontValues []float64
 }
 
 // stepValuesGuess is how many values a per-step row is given room for
@@ -384,42 +383,12 @@ func (r *Reader) takeSteps(c *collector, seg int) {
 	}
 	r.stepValues = float64(len(ws.Values)) / float64(len(ws.Rows))
 	s := r.out.Steps()
-	if s.Len() == 0 {
-		s.Rows, s.Values = ws.Rows, ws.Values
-		ws.Rows, ws.Values = nil, nil
+	if s.Len() == 0 || ws.Prepend(s, c.frontRows, c.frontValues) {
+		s.Rows, s.Values, s.Shapes = ws.Rows, ws.Values, ws.Shapes
+		ws.Rows, ws.Values, ws.Shapes, c.frontRows, c.frontValues = nil, nil, nil, nil, nil
 		return
 	}
-	if k, kv, fr, fv := len(s.Rows), len(s.Values), len(c.frontRows), len(c.frontValues); k <= fr && kv <= fv &&
-		adjoins(c.frontRows, ws.Rows) && adjoins(c.frontValues, ws.Values) {
-		// The sink's values keep their indexes from the start of the
-		// joined values; the worker's move up by the sink's count.
-		copy(c.frontRows[fr-k:], s.Rows)
-		copy(c.frontValues[fv-kv:], s.Values)
-		for i := range ws.Rows {
-			ws.Rows[i].From += int32(kv)
-			ws.Rows[i].To += int32(kv)
-		}
-		s.Rows = c.frontRows[fr-k : fr+len(ws.Rows)]
-		s.Values = c.frontValues[fv-kv : fv+len(ws.Values)]
-		ws.Rows, ws.Values, c.frontRows, c.frontValues = nil, nil, nil, nil
-		return
-	}
-	s.Rows = slices.Grow(s.Rows, len(ws.Rows))
-	s.Values = slices.Grow(s.Values, len(ws.Values))
-	shift := int32(len(s.Values))
-	for _, row := range ws.Rows {
-		row.From += shift
-		row.To += shift
-		s.Rows = append(s.Rows, row)
-	}
-	s.Values = append(s.Values, ws.Values...)
-}
-
-// adjoins reports whether rest starts right after front in front's array
-// (a worker's values outgrew their room when they no longer do).
-func adjoins[T any](front, rest []T) bool {
-	n := len(front)
-	return len(rest) > 0 && cap(front) > n && &front[:n+1][n] == &rest[0]
+	s.Join(ws)
 }
 
 // takePiece closes the open epoch and takes over what the worker of res

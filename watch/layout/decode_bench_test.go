@@ -38,10 +38,16 @@ var layoutWriters = []struct {
 // BenchmarkDecode feeds 100,000 lines of each layout to one Reader, on one
 // core, in 64 KiB reads as the tailer hands them on: the decoder's own
 // cost per line (ns/line) and its allocations, without the disk or the
-// parallel backlog. bench/ingest.sh times the whole process.
+// parallel backlog. bench/ingest.sh times the whole process. csv+steps
+// also hands every row on as a per-step row, as for the live screen.
 func BenchmarkDecode(b *testing.B) {
 	const lines = 100_000
-	for _, wr := range layoutWriters {
+	writers := append(layoutWriters[:len(layoutWriters):len(layoutWriters)], layoutWriters[0])
+	for i, wr := range writers {
+		steps := i == len(layoutWriters)
+		if steps {
+			wr.name += "+steps"
+		}
 		var buf bytes.Buffer
 		if err := wr.write(&buf, lines); err != nil {
 			b.Fatal(err)
@@ -52,7 +58,7 @@ func BenchmarkDecode(b *testing.B) {
 			b.ReportAllocs()
 			for b.Loop() {
 				out := &discard{}
-				r := NewReader(out, Config{})
+				r := NewReader(out, Config{Steps: steps})
 				for p := data; len(p) > 0; {
 					n := min(len(p), 64<<10)
 					r.Feed(p[:n])

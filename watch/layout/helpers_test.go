@@ -44,8 +44,8 @@ func (o *recorder) handOn() {
 		return
 	}
 	for i := range o.steps.Rows {
-		row, vals := o.steps.Row(i)
-		o.handed.Append(row, vals...)
+		row, cols, vals := o.steps.Row(i)
+		o.handed.Add(row, cols, vals)
 	}
 	o.steps = diagnose.StepRows{}
 }

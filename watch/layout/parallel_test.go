@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -71,14 +72,14 @@ func diffSteps(a, b diagnose.StepRows) string {
 		return fmt.Sprintf("%d per-step rows, want %d", a.Len(), b.Len())
 	}
 	for i := range a.Rows {
-		ra, va := a.Row(i)
-		rb, vb := b.Row(i)
-		ra.From, ra.To, rb.From, rb.To = 0, 0, 0, 0
-		if ra != rb || len(va) != len(vb) {
-			return fmt.Sprintf("per-step row %d: %+v %v, want %+v %v", i, ra, va, rb, vb)
+		ra, ca, va := a.Row(i)
+		rb, cb, vb := b.Row(i)
+		ra.From, ra.Shape, rb.From, rb.Shape = 0, 0, 0, 0
+		if ra != rb || !slices.Equal(ca, cb) || len(va) != len(vb) {
+			return fmt.Sprintf("per-step row %d: %+v %v %v, want %+v %v %v", i, ra, ca, va, rb, cb, vb)
 		}
 		for k := range va {
-			if va[k].Col != vb[k].Col || !sameFloat(va[k].V, vb[k].V) {
+			if !sameFloat(va[k], vb[k]) {
 				return fmt.Sprintf("per-step row %d: %+v %v, want %+v %v", i, ra, va, rb, vb)
 			}
 		}

@@ -2,6 +2,7 @@ package points
 
 import (
 	"math"
+	"slices"
 
 	"github.com/fitgap/fitgap/diagnose"
 )
@@ -118,16 +119,40 @@ func (a *Assembler) PlainStep(p *Plan, vals []float64, mask uint64) {
 		}
 	}
 	s := a.out.Steps()
+	// Most rows have the columns of the row before: its shape is checked
+	// as the values are copied, and only another row's columns are listed
+	// and looked up (StepRows.ShapeOf).
+	shape, prev := int32(-1), []int32(nil)
+	if n := len(s.Rows); n > 0 {
+		shape = s.Rows[n-1].Shape
+		prev = s.Shapes[shape]
+	}
 	from := len(s.Values)
+	s.Values = slices.Grow(s.Values, len(p.Vals))
+	out := s.Values[from : from+len(p.Vals)]
+	n, same := 0, true
 	for _, f := range p.Vals {
 		if mask&f.Bit != 0 {
-			s.Values = append(s.Values, diagnose.StepValue{Col: int32(f.Col), V: vals[f.Field]})
+			out[n] = vals[f.Field]
+			same = same && n < len(prev) && prev[n] == int32(f.Col)
+			n++
 		}
 	}
-	if len(s.Values) == from {
+	if n == 0 {
 		return
 	}
-	r := diagnose.StepRowAt{Segment: int32(a.segment), Epoch: int32(a.g.epoch), Step: -1, From: int32(from), To: int32(len(s.Values))}
+	s.Values = s.Values[:from+n]
+	if !same || n != len(prev) {
+		var room [stepColsRoom]int32 // the columns, on the stack for most rows
+		cols := room[:0]
+		for _, f := range p.Vals {
+			if mask&f.Bit != 0 {
+				cols = append(cols, int32(f.Col))
+			}
+		}
+		shape = s.ShapeOf(cols)
+	}
+	r := diagnose.StepRowAt{Segment: int32(a.segment), Epoch: int32(a.g.epoch), Step: -1, From: int32(from), Shape: shape}
 	if hasStep {
 		r.Step = step
 	}

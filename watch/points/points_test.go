@@ -117,7 +117,7 @@ func TestAssembler_Grouping(t *testing.T) {
 // StepRow with its epoch and step.
 func TestAssembler_Steps(t *testing.T) {
 	_, o := file([]row{{1, 1, map[string]float64{"loss": 0.9}}, {1, 2, map[string]float64{"loss": 0.8}}}, true)
-	if r, vals := o.steps.Row(1); o.steps.Len() != 2 || r.Step != 2 || r.Epoch != 1 || vals[0].V != 0.8 {
+	if r, _, vals := o.steps.Row(1); o.steps.Len() != 2 || r.Step != 2 || r.Epoch != 1 || vals[0] != 0.8 {
 		t.Fatalf("steps = %+v", o.steps)
 	}
 }

@@ -19,20 +19,28 @@ const firstSlab = 32
 // nextSlab is the size of the slab after one of size last (0: none yet).
 func nextSlab(last int) int { return min(pointSlab, max(firstSlab, 2*last)) }
 
-// emitStep hands the current row on as a per-step row: its values by
-// column index, with no copy of the columns.
+// emitStep hands the current row on as a per-step row: its values, and
+// its columns by index, with no copy of the columns.
 func (a *Assembler) emitStep() {
 	if len(a.row) == 0 {
 		return
 	}
+	var room [stepColsRoom]int32 // the columns, on the stack for most rows
+	cols := room[:0]
 	s := a.out.Steps()
 	from := len(s.Values)
 	for _, r := range a.row {
-		s.Values = append(s.Values, diagnose.StepValue{Col: int32(r.col), V: r.v})
+		cols = append(cols, int32(r.col))
+		s.Values = append(s.Values, r.v)
 	}
-	r := diagnose.StepRowAt{Segment: int32(a.segment), Epoch: int32(a.g.epoch), Step: -1, From: int32(from), To: int32(len(s.Values))}
+	r := diagnose.StepRowAt{Segment: int32(a.segment), Epoch: int32(a.g.epoch), Step: -1, From: int32(from), Shape: s.ShapeOf(cols)}
 	if a.rowHasStep {
 		r.Step = int64(a.rowStep)
 	}
 	s.Rows = append(s.Rows, r)
 }
+
+// stepColsRoom is how many columns of a per-step row are listed without
+// an allocation; a wider row's list is allocated. Unit: columns (a
+// training loop logs a handful a step; common practice).
+const stepColsRoom = 32
