@@ -252,6 +252,9 @@ type Forecast struct {
 	Families []Family `json:"families"`
 
 	ens *ensemble
+	// atTarget is the predictive mixture of the logged value at Target,
+	// kept by Bare so that Chance still answers without the fits.
+	atTarget []component
 }
 
 // Epochs forecasts the curve c: the value at the target epoch, the change

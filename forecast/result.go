@@ -136,11 +136,16 @@ func (f *Forecast) Band(epoch int) (iv Interval, ok bool) {
 // is below DomhanDelta cannot be expected to beat them (Domhan et al.
 // 2015). NaN when there is no forecast.
 func (f *Forecast) Chance(v float64) float64 {
-	if f.Status != OK || f.ens == nil {
+	cs := f.atTarget
+	switch {
+	case f.Status != OK:
+		return math.NaN()
+	case f.ens != nil:
+		cs = f.ens.components(float64(f.Target), true, nil)
+	case cs == nil:
 		return math.NaN()
 	}
-	cs := f.ens.components(float64(f.Target), true, nil)
-	u := 1 - v/f.ens.scale
+	u := 1 - v/f.Scale
 	return 1 - mixtureCDF(cs, u)
 }
 

@@ -159,10 +159,16 @@ func (f *Forecast) Decide(j diagnose.Judgement) diagnose.Judgement {
 }
 
 // Bare returns f without its fitted ensemble: its numbers and words stay
-// (Phrase, Brief, Decide), while Band and Chance then answer as for no
-// forecast. A summary keeps its forecasts bare, so that a follow batch
-// of thousands of points holds their numbers, not their fits.
+// (Phrase, Brief, Decide), and Chance, from the mixture at the target
+// kept (a component per family, some 200 bytes), while Band then answers
+// as for no forecast. A summary keeps its forecasts bare, so that a
+// follow batch of thousands of points holds their numbers, not their
+// fits, and so does a sweep for each of its runs (the forecast rule asks
+// Chance against a best value that moves).
 func (f Forecast) Bare() Forecast {
+	if f.ens != nil && f.Status == OK && f.atTarget == nil {
+		f.atTarget = f.ens.components(float64(f.Target), true, nil)
+	}
 	f.ens = nil
 	return f
 }

@@ -220,8 +220,14 @@ func TestForecast_Brief(t *testing.T) {
 	if bare.Brief() != f.Brief() || bare.Phrase() != f.Phrase() || bare.Status != OK {
 		t.Errorf("bare: %q, %q", bare.Brief(), bare.Phrase())
 	}
-	if _, ok := bare.Band(60); ok || !math.IsNaN(bare.Chance(0.05)) {
-		t.Error("a bare forecast still draws a band or gives a chance")
+	if _, ok := bare.Band(60); ok {
+		t.Error("a bare forecast still draws a band")
+	}
+	// Its chance at the target is kept: the same as with the fit.
+	for _, v := range []float64{0.01, 0.05, 0.1, 0.3} {
+		if got, want := bare.Chance(v), f.Chance(v); got != want || math.IsNaN(got) {
+			t.Errorf("bare chance below %v: %v, with the fit %v", v, got, want)
+		}
 	}
 	if _, ok := f.Band(60); !ok {
 		t.Error("Bare changed the forecast it was called on")

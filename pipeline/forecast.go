@@ -166,6 +166,9 @@ func (r *Run) ForecastAt(t *diagnose.Tracker, i int, split diagnose.Split) forec
 	// The fit runs outside the lock: readers of the history never wait
 	// for it.
 	f := forecast.Of(c, split, last, forecast.Options{})
+	if r.opts.BareForecasts {
+		f = f.Bare()
+	}
 	if own && slot >= 0 {
 		r.mu.Lock()
 		if r.gen == key.gen {

@@ -385,3 +385,27 @@ func TestRun_SummaryForecastsOfALongBatch(t *testing.T) {
 		})
 	}
 }
+
+// TestRun_BareForecasts: a sweep's run keeps its forecasts bare — the
+// same numbers and chance as the forecast with its fit, no band.
+func TestRun_BareForecasts(t *testing.T) {
+	pts := runPoints(30, 60, falling, stepAt(100))
+	full, bare := New(Options{Name: "run.csv"}), New(Options{Name: "run.csv", BareForecasts: true})
+	for _, b := range batchesOf(pts, watch.Stats{}, 7) {
+		full.Apply(b)
+		bare.Apply(b)
+	}
+	f, g := full.Forecast(diagnose.SplitVal), bare.Forecast(diagnose.SplitVal)
+	if f.Status != forecast.OK {
+		t.Fatalf("no forecast: %s", f.Phrase())
+	}
+	if !reflect.DeepEqual(f.Bare(), g) {
+		t.Errorf("bare run: %s, want %s", g.Phrase(), f.Phrase())
+	}
+	if _, ok := g.Band(60); ok {
+		t.Error("a bare run's forecast draws a band")
+	}
+	if got, want := g.Chance(0.1), f.Chance(0.1); got != want {
+		t.Errorf("chance %v, want %v", got, want)
+	}
+}

@@ -51,7 +51,7 @@ func Reach(f *forecast.Forecast, bar float64) (ReachCheck, bool) {
 	}
 	p := f.Chance(bar)
 	if math.IsNaN(p) {
-		return ReachCheck{}, false // a forecast without its fit (Forecast.Bare)
+		return ReachCheck{}, false // a forecast that gives no chance
 	}
 	return ReachCheck{Target: f.Target, At: f.At, Bar: bar, Chance: p, Hopeless: p < Delta}, true
 }

@@ -80,7 +80,6 @@ func TestReach_NotApplied(t *testing.T) {
 		{"Refused", &few, 0.1},
 		{"LastEpochUnknown", &noTarget, 0.1},
 		{"LastEpochReached", &reached, 0.1},
-		{"WithoutItsFit", &bare, 0.1},
 		{"NoBar", &ok, math.Inf(1)},
 		{"NaNBar", &ok, math.NaN()},
 	}
@@ -90,6 +89,13 @@ func TestReach_NotApplied(t *testing.T) {
 				t.Errorf("the rule applied: %+v", c)
 			}
 		})
+	}
+	// A bare forecast (what the sweep keeps) gives the verdict of the
+	// forecast with its fit.
+	full, fok := Reach(&ok, 0.1)
+	kept, bok := Reach(&bare, 0.1)
+	if !fok || !bok || full != kept {
+		t.Errorf("bare forecast: %+v (%v), with its fit: %+v (%v)", kept, bok, full, fok)
 	}
 }
 

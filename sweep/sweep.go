@@ -64,12 +64,12 @@ type run struct {
 	length     int
 	rungVals   []float64 // value at rung k; NaN: not reached
 	rungsStale bool
-	// fc is the run's validation forecast with its fit (nil before any),
-	// bare its copy without the fit that rows hand out; reach is the
-	// forecast rule's verdict against the bar it was worked out for
-	// (reachBar; NaN: to work out again).
+	// fc is the run's validation forecast, bare (forecast.Forecast.Bare:
+	// its numbers and its chance at the target, not its fits, which would
+	// cost some 70 KB a run), nil before any; reach is the forecast
+	// rule's verdict against the bar it was worked out for (reachBar; NaN:
+	// to work out again).
 	fc       *forecast.Forecast
-	bare     *forecast.Forecast
 	reach    ReachCheck
 	reachOK  bool
 	reachBar float64
@@ -161,7 +161,7 @@ func (s *Sweep) Length(id int) int { return s.runs[id].length }
 func (s *Sweep) SetForecast(id int, f forecast.Forecast) {
 	r := s.runs[id]
 	bare := f.Bare()
-	r.fc, r.bare = &f, &bare
+	r.fc = &bare
 	r.reachBar = math.NaN()
 	s.dirty = true
 }
@@ -267,7 +267,7 @@ func (s *Sweep) Evaluate(now time.Time) bool {
 		row := Row{ID: id, Name: r.name, State: states[id], Epoch: r.curve.LastEpoch(), Points: r.obs.Points,
 			Total: r.length, Judged: j.Judged() && r.obs.Points > 0, Params: r.params, StopFile: r.stopFile}
 		if row.State != Finished {
-			row.Forecast = r.bare
+			row.Forecast = r.fc
 		}
 		if row.Judged {
 			row.Metric, row.Diagnosis, row.Signal = j.Metric, j.Diagnosis, j.EarlyStop.Signal

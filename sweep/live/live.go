@@ -237,7 +237,7 @@ func (s *Sweep) add(found []discover.Run, u *Update) {
 		}
 		e := &entry{found: f, added: s.now(), done: make(chan struct{})}
 		e.id = s.dom.Add(f.Name, f.Params)
-		e.run = pipeline.New(pipeline.Options{Name: f.Path, Judge: s.opts.Judge, Summaries: s.opts.Summaries})
+		e.run = pipeline.New(pipeline.Options{Name: f.Path, Judge: s.opts.Judge, Summaries: s.opts.Summaries, BareForecasts: true})
 		s.syncEpochs(e)
 		s.runs = append(s.runs, e)
 		s.byPath[f.Path] = e
