@@ -377,7 +377,7 @@ func (m *Model) verdictPanel(j diagnose.Judgement, idx int, w, h int) []string {
 		switch name {
 		case diagnose.SplitVal.String():
 		case diagnose.SplitTrain.String(), diagnose.SplitTrainDev.String():
-			note = name + ": val is below it"
+			note = name + " > val"
 		default:
 			note = name + ": negative parts take no room"
 		}
