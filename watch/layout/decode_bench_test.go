@@ -53,23 +53,28 @@ func BenchmarkDecode(b *testing.B) {
 			b.Fatal(err)
 		}
 		data := buf.Bytes()
-		b.Run(wr.name, func(b *testing.B) {
-			b.SetBytes(int64(len(data)))
-			b.ReportAllocs()
-			for b.Loop() {
-				out := &discard{}
-				r := NewReader(out, Config{Steps: steps})
-				for p := data; len(p) > 0; {
-					n := min(len(p), 64<<10)
-					r.Feed(p[:n])
-					p = p[n:]
-				}
-				r.End()
-				if out.points == 0 {
-					b.Fatal("no point")
-				}
-			}
-			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/lines, "ns/line")
-		})
+		b.Run(wr.name, func(b *testing.B) { benchRead(b, data, lines, Config{Steps: steps}, false) })
 	}
+}
+
+// benchRead times reading data, a log of lines lines, with c, in 64 KiB
+// reads; general sends every line through the general path.
+func benchRead(b *testing.B, data []byte, lines int, c Config, general bool) {
+	b.SetBytes(int64(len(data)))
+	b.ReportAllocs()
+	for b.Loop() {
+		out := &discard{}
+		r := NewReader(out, c)
+		r.general = general
+		for p := data; len(p) > 0; {
+			n := min(len(p), 64<<10)
+			r.Feed(p[:n])
+			p = p[n:]
+		}
+		r.End()
+		if out.points == 0 {
+			b.Fatal("no point")
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(lines), "ns/line")
 }

@@ -60,7 +60,7 @@ const maxRecordBytes = maxLineBytes
 // JSON Lines decoder.
 type jsonDocDecoder struct {
 	r   *Reader
-	rec *jsonDecoder
+	rec *recordWalker
 
 	depth    int
 	stack    [maxJSONDepth]byte // the open containers, '{' or '['

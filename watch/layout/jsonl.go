@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"math"
+	"unicode/utf16"
 	"unicode/utf8"
 )
 
@@ -20,9 +21,10 @@ func init() {
 	})
 }
 
-// maxJSONDepth bounds the nesting of a JSON Lines object. Metric records
-// nest two or three levels; deeper nesting is not a metrics record and
-// must not cost unbounded work. Unit: object levels.
+// maxJSONDepth bounds the nesting of a record (a JSON Lines object, a
+// Python dict line, a record of a JSON document). Metric records nest two
+// or three levels; deeper nesting is not a metrics record and must not
+// cost unbounded work. Unit: object, list or call levels.
 const maxJSONDepth = 32
 
 var (
@@ -32,190 +34,145 @@ var (
 	errJSONTrailing = errors.New("data after the JSON object")
 )
 
-// jsonDecoder reads JSON Lines: one object per line (RFC 8259). Nested
-// objects are flattened with "/" ({"train":{"loss":0.3}} is train/loss).
-// Numbers are values; the bare tokens NaN, Infinity and -Infinity, which
-// common JSON writers emit for non-finite floats, are read as such, and so
-// are the strings "NaN", "Infinity", "-Infinity", "inf", "-inf" and "nan".
-// Other strings, booleans, null and arrays are ignored, except a time
-// stamp (RFC 3339 string or unix seconds) in a time column.
-type jsonDecoder struct {
-	keyed
-	p   []byte // the line
-	i   int
-	tmp []byte // unescaped strings
+// jsonGrammar reads JSON Lines: one object per line (RFC 8259), walked
+// by recordWalker. Numbers are values; the bare tokens NaN, Infinity and
+// -Infinity, which common JSON writers emit for non-finite floats, are
+// read as such, and so are the strings "NaN", "Infinity", "-Infinity",
+// "inf", "-inf" and "nan". Other strings, booleans, null and arrays are
+// ignored, except a time stamp (RFC 3339 string or unix seconds) in a
+// time column. Arrays are moved over, but must be well formed.
+var jsonGrammar = grammar{
+	spaces:      spaceSet(" \t\r\n"), // RFC 8259 §2
+	quotes:      `"`,
+	shapeNumber: jsonNumberAt,
+	errSyntax:   errJSONSyntax, errNotRecord: errJSONNotObj, errTrailing: errJSONTrailing,
 }
 
-func newJSONDecoder(r *Reader) *jsonDecoder {
-	return &jsonDecoder{keyed: newKeyed(r)}
+func newJSONDecoder(r *Reader) *recordWalker { return newRecordWalker(r, jsonGrammar) }
+
+// jsonValue reads a JSON value that is no object, string or number: an
+// array, true, false, null, or a non-finite token (filed when record).
+func (w *recordWalker) jsonValue(depth int, c byte, record bool) error {
+	var v float64
+	switch {
+	case c == '[':
+		return w.array(depth + 1)
+	case c == 't' && w.literal("true"), c == 'f' && w.literal("false"), c == 'n' && w.literal("null"):
+		return nil
+	case c == 'N' && w.literal("NaN"):
+		v = math.NaN()
+	case c == 'I' && w.literal("Infinity"):
+		v = math.Inf(1)
+	case c == '-' && w.literal("-Infinity"):
+		v = math.Inf(-1)
+	default:
+		return errJSONSyntax
+	}
+	if record {
+		w.number(v)
+	}
+	return nil
 }
 
-func (d *jsonDecoder) Finish() {}
-
-func (d *jsonDecoder) readsAhead() bool { return d.epochKey != "" }
-
-func (d *jsonDecoder) aheadState(prev aheadState) aheadState {
-	return d.aheadFor(d, prev, `"`, func(w *Reader) Decoder { return newJSONDecoder(w) })
-}
-
-func (d *jsonDecoder) Decode(line []byte, n int) {
-	if !d.r.general && d.shape.match(line, jsonNumberAt) {
-		d.replay(n)
-		return
-	}
-	d.p, d.i = line, 0
-	d.startRecord()
-	d.skipSpace()
-	if d.i == len(d.p) {
-		return
-	}
-	d.shape.begin()
-	d.asm.BeginRow()
-	err := d.record()
-	if err == nil {
-		d.skipSpace()
-		if d.i != len(d.p) {
-			err = errJSONTrailing
-		}
-	}
-	if err != nil {
-		reason := err.Error()
-		if !utf8.Valid(line) {
-			reason = "binary data"
-		}
-		d.r.bad(n, reason, line)
-		d.shape.end(line, false)
-		return
-	}
-	d.endRecord(n)
-	d.shape.end(line, true)
-}
-
-// record reads the top-level object.
-func (d *jsonDecoder) record() error {
-	if d.p[d.i] != '{' {
-		return errJSONNotObj
-	}
-	d.key = d.key[:0]
-	return d.object(0)
-}
-
-func (d *jsonDecoder) skipSpace() {
-	for d.i < len(d.p) {
-		switch d.p[d.i] {
-		case ' ', '\t', '\r', '\n':
-			d.i++
-		default:
-			return
-		}
-	}
-}
-
-// object reads {...} at d.i with the key prefix in d.key.
-func (d *jsonDecoder) object(depth int) error {
+// array moves over [...]: arrays hold no metric of ours (a list of
+// per-class values is not one value).
+func (w *recordWalker) array(depth int) error {
 	if depth >= maxJSONDepth {
 		return errJSONDepth
 	}
-	d.i++ // {
-	prefix := len(d.key)
-	d.skipSpace()
-	if d.i < len(d.p) && d.p[d.i] == '}' {
-		d.i++
+	w.i++ // [
+	w.space()
+	if w.i < len(w.p) && w.p[w.i] == ']' {
+		w.i++
 		return nil
 	}
 	for {
-		d.skipSpace()
-		if d.i >= len(d.p) || d.p[d.i] != '"' {
-			return errJSONSyntax
-		}
-		name, err := d.str()
-		if err != nil {
+		w.space()
+		if closed, err := w.item(depth, false, ']'); err != nil || closed {
 			return err
-		}
-		d.key = d.key[:prefix]
-		if prefix > 0 {
-			d.key = append(d.key, '/')
-		}
-		d.key = append(d.key, name...)
-		d.skipSpace()
-		if d.i >= len(d.p) || d.p[d.i] != ':' {
-			return errJSONSyntax
-		}
-		d.i++
-		d.skipSpace()
-		if err := d.value(depth); err != nil {
-			return err
-		}
-		d.skipSpace()
-		if d.i >= len(d.p) {
-			return errJSONSyntax
-		}
-		switch d.p[d.i] {
-		case ',':
-			d.i++
-		case '}':
-			d.i++
-			d.key = d.key[:prefix]
-			return nil
-		default:
-			return errJSONSyntax
 		}
 	}
 }
 
-// value reads one value for the key in d.key.
-func (d *jsonDecoder) value(depth int) error {
-	if d.i >= len(d.p) {
-		return errJSONSyntax
+// literal moves over the word s when it is at w.i.
+func (w *recordWalker) literal(s string) bool {
+	if len(w.p)-w.i < len(s) || string(w.p[w.i:w.i+len(s)]) != s {
+		return false
 	}
-	switch c := d.p[d.i]; {
-	case c == '{':
-		return d.object(depth + 1)
-	case c == '[':
-		return d.skipArray(depth + 1)
-	case c == '"':
-		s, err := d.str()
-		if err != nil {
-			return err
-		}
-		d.stringValue(s)
-		return nil
-	case c == '-' || c >= '0' && c <= '9':
-		if c == '-' && d.i+1 < len(d.p) && d.p[d.i+1] == 'I' {
-			d.i++
-			if !d.literal("Infinity") {
-				return errJSONSyntax
+	w.i += len(s)
+	return true
+}
+
+// jsonStrSlow reads the rest of a JSON string from start (RFC 8259 §7)
+// into w.tmp: its escapes, a control byte (an error), non-ASCII UTF-8.
+// Invalid UTF-8 becomes U+FFFD, as encoding/json does.
+func (w *recordWalker) jsonStrSlow(start int) ([]byte, error) {
+	p := w.p
+	out := w.tmp[:0]
+	i := start
+	for i < len(p) {
+		c := p[i]
+		switch {
+		case c == '"':
+			w.i = i + 1
+			w.tmp = out
+			return out, nil
+		case c < 0x20:
+			return nil, errJSONSyntax
+		case c == '\\':
+			if i+1 >= len(p) {
+				return nil, errJSONSyntax
 			}
-			d.number(math.Inf(-1))
-			return nil
+			i++
+			switch p[i] {
+			case '"', '\\', '/':
+				out = append(out, p[i])
+			case 'b':
+				out = append(out, '\b')
+			case 'f':
+				out = append(out, '\f')
+			case 'n':
+				out = append(out, '\n')
+			case 'r':
+				out = append(out, '\r')
+			case 't':
+				out = append(out, '\t')
+			case 'u':
+				r, ok := hexDigits(p[i+1:], 4)
+				if !ok {
+					return nil, errJSONSyntax
+				}
+				i += 4
+				if utf16.IsSurrogate(r) {
+					r2, ok2 := rune(-1), false
+					if i+6 < len(p) && p[i+1] == '\\' && p[i+2] == 'u' {
+						r2, ok2 = hexDigits(p[i+3:], 4)
+					}
+					if dec := utf16.DecodeRune(r, r2); ok2 && dec != utf8.RuneError {
+						r = dec
+						i += 6
+					} else {
+						r = utf8.RuneError
+					}
+				}
+				out = utf8.AppendRune(out, r)
+			default:
+				return nil, errJSONSyntax
+			}
+			i++
+		case c < utf8.RuneSelf:
+			out = append(out, c)
+			i++
+		default:
+			r, size := utf8.DecodeRune(p[i:])
+			if r == utf8.RuneError && size == 1 {
+				out = utf8.AppendRune(out, utf8.RuneError)
+			} else {
+				out = append(out, p[i:i+size]...)
+			}
+			i += size
 		}
-		start := d.i
-		end, v, ok := jsonNumberAt(d.p, start)
-		if !ok {
-			return errJSONSyntax
-		}
-		d.i = end
-		d.shape.numFrom, d.shape.numTo = start, end
-		d.number(v)
-		return nil
-	case c == 't':
-		return d.lit("true")
-	case c == 'f':
-		return d.lit("false")
-	case c == 'n':
-		return d.lit("null")
-	case c == 'N':
-		if !d.literal("NaN") {
-			return errJSONSyntax
-		}
-		d.number(math.NaN())
-		return nil
-	case c == 'I':
-		if !d.literal("Infinity") {
-			return errJSONSyntax
-		}
-		d.number(math.Inf(1))
-		return nil
 	}
-	return errJSONSyntax
+	w.tmp = out
+	return nil, errJSONSyntax
 }

@@ -218,7 +218,7 @@ func jsonNumberAt(p []byte, i int) (end int, v float64, ok bool) {
 	return int(k), v, true
 }
 
-// pyNumberAt reads a Python number at line[i:] as pyDictDecoder.num
+// pyNumberAt reads a Python number at line[i:] as pyNumber
 // does; a signed nan or inf is read in full.
 func pyNumberAt(line []byte, i int) (int, float64, bool) {
 	if i >= len(line) {

@@ -78,7 +78,7 @@ func TestRoundsFast_ExhaustiveFields(t *testing.T) {
 	t.Logf("%d logs", n)
 }
 
-// pyNumberByScan is pyDictDecoder.num as it read a plain number before
+// pyNumberByScan is pyNumber as it read a plain number before
 // its one-pass reading: the bytes the number may be made of, then
 // parseNumber on them.
 func pyNumberByScan(p []byte, i int) (end int, v float64, ok bool) {
@@ -99,7 +99,7 @@ func pyNumberByScan(p []byte, i int) (end int, v float64, ok bool) {
 }
 
 // checkPyNumber compares the one-pass reading of a dict line's number with
-// the scan-then-parse reading, on every start of b that num is called at.
+// the scan-then-parse reading, on every start of b that pyNumber is called at.
 func checkPyNumber(t *testing.T, b []byte) {
 	t.Helper()
 	for i := range b {
@@ -109,11 +109,10 @@ func checkPyNumber(t *testing.T, b []byte) {
 		if (b[i] == '-' || b[i] == '+') && i+1 < len(b) && (b[i+1] == 'i' || b[i+1] == 'n') {
 			continue // a signed word: read as a word by both
 		}
-		d := pyDictDecoder{p: b, i: i}
-		v, ok := d.num()
+		v, end, ok := pyNumber(b, i)
 		wantEnd, want, wantOK := pyNumberByScan(b, i)
-		if ok != wantOK || d.i != wantEnd || ok && !sameFloat(v, want) {
-			t.Fatalf("%q at %d: %v %v ends %d, want %v %v ends %d", b, i, v, ok, d.i, want, wantOK, wantEnd)
+		if ok != wantOK || end != wantEnd || ok && !sameFloat(v, want) {
+			t.Fatalf("%q at %d: %v %v ends %d, want %v %v ends %d", b, i, v, ok, end, want, wantOK, wantEnd)
 		}
 	}
 }

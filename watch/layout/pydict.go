@@ -22,7 +22,7 @@ const PyDict Format = "pydict"
 func init() {
 	register(Layout{Format: PyDict, Aliases: []string{"python", "dict"}, Rank: 8,
 		Detect: isPyDictLine,
-		New:    func(r *Reader, _ []byte) Decoder { return &pyDictDecoder{keyed: newKeyed(r)} },
+		New:    func(r *Reader, _ []byte) Decoder { return newRecordWalker(r, pyGrammar) },
 	})
 }
 
@@ -54,177 +54,52 @@ var (
 	errPyTrailing = errors.New("data after the dict")
 )
 
-// pyDictDecoder reads Python dict lines.
-type pyDictDecoder struct {
-	keyed
-	p   []byte // the line
-	i   int
-	tmp []byte // unescaped strings
+// pyGrammar reads Python dict lines, walked by recordWalker where they
+// agree with JSON (objects, strings, nesting); its own are the values
+// below, bare keys, a comma before "}", and Python's escapes.
+var pyGrammar = grammar{
+	python:      true,
+	spaces:      spaceSet(" \t"),
+	quotes:      `'"`,
+	shapeNumber: pyNumberAt,
+	errSyntax:   errPySyntax, errNotRecord: errPyNotDict, errTrailing: errPyTrailing,
 }
 
-func (d *pyDictDecoder) Finish() {}
-
-func (d *pyDictDecoder) readsAhead() bool { return d.epochKey != "" }
-
-func (d *pyDictDecoder) aheadState(prev aheadState) aheadState {
-	return d.aheadFor(d, prev, `'"`, func(w *Reader) Decoder { return &pyDictDecoder{keyed: newKeyed(w)} })
-}
-
-func (d *pyDictDecoder) Decode(line []byte, n int) {
-	if !d.r.general && d.shape.match(line, pyNumberAt) {
-		d.replay(n)
-		return
+// bareKey reads a Python key written bare: a number or a name.
+func (w *recordWalker) bareKey() ([]byte, error) {
+	start := w.i
+	for w.i < len(w.p) && (isWordByte(w.p[w.i]) || w.p[w.i] == '.' || w.p[w.i] == '-') {
+		w.i++
 	}
-	d.p, d.i = line, 0
-	d.startRecord()
-	d.space()
-	if d.i == len(d.p) {
-		return
-	}
-	d.shape.begin()
-	d.asm.BeginRow()
-	err := errPyNotDict
-	if d.p[d.i] == '{' {
-		d.key = d.key[:0]
-		err = d.dict(0)
-	}
-	if err == nil {
-		d.space()
-		if d.i != len(d.p) {
-			err = errPyTrailing
-		}
-	}
-	if err != nil {
-		reason := err.Error()
-		if !utf8.Valid(line) {
-			reason = "binary data"
-		}
-		d.r.bad(n, reason, line)
-		d.shape.end(line, false)
-		return
-	}
-	d.endRecord(n)
-	d.shape.end(line, true)
-}
-
-func (d *pyDictDecoder) space() {
-	for d.i < len(d.p) && (d.p[d.i] == ' ' || d.p[d.i] == '\t') {
-		d.i++
-	}
-}
-
-// dict reads {...} at d.i with the key prefix in d.key.
-func (d *pyDictDecoder) dict(depth int) error {
-	if depth >= maxJSONDepth {
-		return errJSONDepth
-	}
-	d.i++ // {
-	prefix := len(d.key)
-	for {
-		d.space()
-		if d.i >= len(d.p) {
-			return errPySyntax
-		}
-		if d.p[d.i] == '}' {
-			d.i++
-			d.key = d.key[:prefix]
-			return nil
-		}
-		name, err := d.keyText()
-		if err != nil {
-			return err
-		}
-		d.key = d.key[:prefix]
-		if prefix > 0 {
-			d.key = append(d.key, '/')
-		}
-		d.key = append(d.key, name...)
-		d.space()
-		if d.i >= len(d.p) || d.p[d.i] != ':' {
-			return errPySyntax
-		}
-		d.i++
-		d.space()
-		if err := d.value(depth); err != nil {
-			return err
-		}
-		d.space()
-		if d.i >= len(d.p) {
-			return errPySyntax
-		}
-		switch d.p[d.i] {
-		case ',':
-			d.i++
-		case '}':
-		default:
-			return errPySyntax
-		}
-	}
-}
-
-// keyText reads a key: a string, or a number or name written bare.
-func (d *pyDictDecoder) keyText() ([]byte, error) {
-	if c := d.p[d.i]; c == '\'' || c == '"' {
-		return d.str()
-	}
-	start := d.i
-	for d.i < len(d.p) && (isWordByte(d.p[d.i]) || d.p[d.i] == '.' || d.p[d.i] == '-') {
-		d.i++
-	}
-	if d.i == start {
+	if w.i == start {
 		return nil, errPySyntax
 	}
-	return d.p[start:d.i], nil
+	return w.p[start:w.i], nil
 }
 
-// value reads one value for the key in d.key.
-func (d *pyDictDecoder) value(depth int) error {
-	if d.i >= len(d.p) {
-		return errPySyntax
-	}
-	switch c := d.p[d.i]; {
-	case c == '{':
-		return d.dict(depth + 1)
+// pyValue reads a Python value that is no dict, string or number: a
+// list or tuple (moved over), or a name (pyName).
+func (w *recordWalker) pyValue(depth int, c byte) error {
+	switch {
 	case c == '[' || c == '(':
-		return d.skip(depth + 1)
-	case c == '\'' || c == '"':
-		s, err := d.str()
-		if err != nil {
-			return err
-		}
-		d.stringValue(s)
-		return nil
-	case c == '-' || c == '+' || c == '.' || c >= '0' && c <= '9':
-		start := d.i
-		v, ok := d.num()
-		if !ok {
-			return errPySyntax
-		}
-		d.numberAt(start, v)
-		return nil
+		return w.pySkip(depth + 1)
 	case isWordByte(c):
-		return d.name(depth)
+		return w.pyName(depth)
 	}
 	return errPySyntax
 }
 
-// num reads a number: digits, a point, an exponent, or a signed nan/inf.
-func (d *pyDictDecoder) num() (float64, bool) {
-	v, end, ok := pyNumber(d.p, d.i)
-	d.i = end
-	return v, ok
-}
-
-// pyNumber reads the number at p[i:] as num does, and where it ends. It
-// is apart from the decoder so that a record line matched to its shape
-// (pyNumberAt) reads its numbers without making a decoder for each.
+// pyNumber reads a Python number at p[i:] (digits, a point, an exponent,
+// or a signed nan/inf), and where it ends. It is apart from the walker so
+// that a record line matched to its shape (pyNumberAt) reads its numbers
+// without making a walker for each.
 func pyNumber(p []byte, i int) (float64, int, bool) {
 	start := i
 	if c := p[i]; c == '-' || c == '+' {
 		i++
 		if i < len(p) && (p[i] == 'i' || p[i] == 'n') {
 			for i < len(p) && (isWordByte(p[i]) || p[i] == '.') {
-				i++ // the word, as pyDictDecoder.word reads it
+				i++ // the word, as recordWalker.word reads it
 			}
 			v, ok := special(p[start+1 : i])
 			if ok && p[start] == '-' {
@@ -262,22 +137,13 @@ func pyNumberGoesOn(p []byte, i int) bool {
 	return c >= '0' && c <= '9' || c == '.' || c == 'e' || c == 'E' || (c == '-' || c == '+') && (p[i-1]|0x20 == 'e')
 }
 
-// numberAt files v, the number read from d.p[start:d.i], noting where it
-// lies for the shape unless it was written as a word (-inf).
-func (d *pyDictDecoder) numberAt(start int, v float64) {
-	if c := d.p[d.i-1]; c >= '0' && c <= '9' || c == '.' {
-		d.shape.numFrom, d.shape.numTo = start, d.i
+// word reads a name ([A-Za-z0-9_] and dots) at w.i.
+func (w *recordWalker) word() []byte {
+	start := w.i
+	for w.i < len(w.p) && (isWordByte(w.p[w.i]) || w.p[w.i] == '.') {
+		w.i++
 	}
-	d.number(v)
-}
-
-// word reads a name ([A-Za-z0-9_] and dots) at d.i.
-func (d *pyDictDecoder) word() []byte {
-	start := d.i
-	for d.i < len(d.p) && (isWordByte(d.p[d.i]) || d.p[d.i] == '.') {
-		d.i++
-	}
-	return d.p[start:d.i]
+	return w.p[start:w.i]
 }
 
 // special reads nan and inf as Python writes them (and NaN, Infinity).
@@ -291,102 +157,90 @@ func special(w []byte) (float64, bool) {
 	return 0, false
 }
 
-// name reads True, False, None, nan, inf, or a call whose first argument
-// is the value (np.float64(0.41), tensor(0.41, device='cuda:0')).
-func (d *pyDictDecoder) name(depth int) error {
-	w := d.word()
-	switch string(w) {
+// pyName reads True, False, None, nan, inf, or a call whose first
+// argument is the value (np.float64(0.41), tensor(0.41, device='cuda:0')).
+func (w *recordWalker) pyName(depth int) error {
+	word := w.word()
+	switch string(word) {
 	case "True", "False", "None":
 		return nil
 	}
-	if v, ok := special(w); ok {
-		d.number(v)
+	if v, ok := special(word); ok {
+		w.number(v)
 		return nil
 	}
-	if d.i >= len(d.p) || d.p[d.i] != '(' {
+	if w.i >= len(w.p) || w.p[w.i] != '(' {
 		return errPySyntax
 	}
-	call := d.i
-	d.i++
-	d.space()
-	if d.i < len(d.p) {
-		if c := d.p[d.i]; c == '-' || c == '+' || c == '.' || c >= '0' && c <= '9' {
-			start := d.i
-			if v, ok := d.num(); ok {
-				d.numberAt(start, v)
+	call := w.i
+	w.i++
+	w.space()
+	if w.i < len(w.p) {
+		if c := w.p[w.i]; c == '-' || c == '+' || c == '.' || c >= '0' && c <= '9' {
+			start := w.i
+			if v, end, ok := pyNumber(w.p, w.i); ok {
+				w.i = end
+				w.noteNumber(start)
+				w.number(v)
 			}
 		}
 	}
-	d.i = call // the whole call is then moved over
-	return d.skip(depth + 1)
+	w.i = call // the whole call is then moved over
+	return w.pySkip(depth + 1)
 }
 
-// skip moves over a bracketed value ([...], (...), {...}) and the strings
-// in it, without recording it.
-func (d *pyDictDecoder) skip(depth int) error {
+// pySkip moves over a bracketed value ([...], (...), {...}) and the
+// strings in it, without recording it. Python's grammar is not checked
+// inside (a set, a keyword argument, a dtype are no metric): only the
+// brackets must match and the strings end.
+func (w *recordWalker) pySkip(depth int) error {
 	if depth >= maxJSONDepth {
 		return errJSONDepth
 	}
 	shut := byte(']')
-	switch d.p[d.i] {
+	switch w.p[w.i] {
 	case '(':
 		shut = ')'
 	case '{':
 		shut = '}'
 	}
-	d.i++
-	for d.i < len(d.p) {
-		switch c := d.p[d.i]; c {
+	w.i++
+	for w.i < len(w.p) {
+		switch c := w.p[w.i]; c {
 		case shut:
-			d.i++
+			w.i++
 			return nil
 		case '[', '(', '{':
-			if err := d.skip(depth + 1); err != nil {
+			if err := w.pySkip(depth + 1); err != nil {
 				return err
 			}
 		case '\'', '"':
-			if _, err := d.str(); err != nil {
+			if _, err := w.str(); err != nil {
 				return err
 			}
 		case ']', ')', '}':
 			return errPySyntax
 		default:
-			d.i++
+			w.i++
 		}
 	}
 	return errPySyntax
 }
 
-// str reads a quoted string: a slice of the line without escapes, else
-// unescaped into d.tmp (the escapes of Python's repr; others are kept).
-func (d *pyDictDecoder) str() ([]byte, error) {
-	q := d.p[d.i]
-	d.i++
-	start := d.i
-	for i := start; i < len(d.p); i++ {
-		switch d.p[i] {
-		case q:
-			d.i = i + 1
-			return d.p[start:i], nil
-		case '\\':
-			return d.strSlow(q, start)
-		}
-	}
-	return nil, errPySyntax
-}
-
-func (d *pyDictDecoder) strSlow(q byte, start int) ([]byte, error) {
-	out := d.tmp[:0]
-	for i := start; i < len(d.p); i++ {
-		c := d.p[i]
+// pyStrSlow reads the rest of a Python string from start into w.tmp: the
+// escapes of Python's repr; others are kept.
+func (w *recordWalker) pyStrSlow(q byte, start int) ([]byte, error) {
+	out := w.tmp[:0]
+	for i := start; i < len(w.p); i++ {
+		c := w.p[i]
 		switch {
 		case c == q:
-			d.i = i + 1
-			d.tmp = out
+			w.i = i + 1
+			w.tmp = out
 			return out, nil
-		case c == '\\' && i+1 < len(d.p):
+		case c == '\\' && i+1 < len(w.p):
 			i++
-			switch e := d.p[i]; e {
+			switch e := w.p[i]; e {
 			case 'n':
 				out = append(out, '\n')
 			case 't':
@@ -396,7 +250,7 @@ func (d *pyDictDecoder) strSlow(q byte, start int) ([]byte, error) {
 				if e == 'u' {
 					n = 4
 				}
-				if r, ok := hexDigits(d.p[i+1:], n); ok {
+				if r, ok := hexDigits(w.p[i+1:], n); ok {
 					out = utf8.AppendRune(out, r)
 					i += n
 					continue
@@ -409,25 +263,6 @@ func (d *pyDictDecoder) strSlow(q byte, start int) ([]byte, error) {
 			out = append(out, c)
 		}
 	}
-	d.tmp = out
+	w.tmp = out
 	return nil, errPySyntax
-}
-
-// hexDigits reads n hexadecimal digits.
-func hexDigits(p []byte, n int) (rune, bool) {
-	if len(p) < n {
-		return 0, false
-	}
-	var r rune
-	for _, c := range p[:n] {
-		switch {
-		case c >= '0' && c <= '9':
-			r = r<<4 | rune(c-'0')
-		case c|0x20 >= 'a' && c|0x20 <= 'f':
-			r = r<<4 | rune(c|0x20-'a'+10)
-		default:
-			return 0, false
-		}
-	}
-	return r, true
 }

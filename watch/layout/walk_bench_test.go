@@ -34,24 +34,6 @@ func BenchmarkWalk(b *testing.B) {
 		name string
 		data []byte
 	}{{"jsonl", jsonl.Bytes()}, {"pydict", pydict.Bytes()}, {"jsonl-mixed", mixedJSON.Bytes()}, {"pydict-mixed", mixedPy.Bytes()}} {
-		b.Run(c.name, func(b *testing.B) {
-			b.SetBytes(int64(len(c.data)))
-			b.ReportAllocs()
-			for b.Loop() {
-				out := &discard{}
-				r := NewReader(out, Config{})
-				r.general = true
-				for p := c.data; len(p) > 0; {
-					n := min(len(p), 64<<10)
-					r.Feed(p[:n])
-					p = p[n:]
-				}
-				r.End()
-				if out.points == 0 {
-					b.Fatal("no point")
-				}
-			}
-			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/lines, "ns/line")
-		})
+		b.Run(c.name, func(b *testing.B) { benchRead(b, c.data, lines, Config{}, true) })
 	}
 }
