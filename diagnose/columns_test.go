@@ -173,3 +173,51 @@ func TestIntColumn(t *testing.T) {
 		})
 	}
 }
+
+// TestFloatColumn_Room checks that a column's room follows the values set:
+// a batch announced with setAhead gets exactly its room, values set one at
+// a time leave at most a quarter of it empty, and a position past the
+// values set, or cut by truncate, reads as absent. Source: design choice
+// (columns.go, growth).
+func TestFloatColumn_Room(t *testing.T) {
+	tests := []struct {
+		name    string
+		n, end  int // values set; end announced (0: none)
+		maxRoom int
+	}{
+		{"BatchAnnounced", 300, 300, 300},
+		{"OneAtATime", 300, 0, 300 + 300/growthDiv},
+		{"Short", 3, 0, minGrowth},
+		{"PastAChunk", chunkLen + 10, chunkLen + 10, 10},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var c floatColumn
+			var e intColumn
+			for i := range tc.n {
+				c.setAhead(i, float64(i)/4, tc.end)
+				e.setAhead(i, i+1, tc.end)
+			}
+			last := c.chunks[len(c.chunks)-1]
+			if room := cap(last.dec.m); room > tc.maxRoom || room < tc.n%chunkLen {
+				t.Errorf("room of the last chunk %d, want %d to %d", room, tc.n%chunkLen, tc.maxRoom)
+			}
+			if room := cap(e.chunks[len(e.chunks)-1].off); room > tc.maxRoom {
+				t.Errorf("room of the last epoch chunk %d, want at most %d", room, tc.maxRoom)
+			}
+			for i := range tc.n {
+				if v, ok := c.at(i); !ok || v != float64(i)/4 || e.at(i) != i+1 {
+					t.Fatalf("at(%d) = %v, %v, %d", i, v, ok, e.at(i))
+				}
+			}
+			if _, ok := c.at(tc.n); ok {
+				t.Errorf("at(%d) is set past the values", tc.n)
+			}
+			c.truncate(tc.n - 2)
+			c.set(tc.n, 1)
+			if _, ok := c.at(tc.n - 1); ok {
+				t.Errorf("at(%d) is set after truncate(%d)", tc.n-1, tc.n-2)
+			}
+		})
+	}
+}

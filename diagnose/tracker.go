@@ -150,6 +150,11 @@ func (t *Tracker) Push(p Point) {
 	}
 }
 
+// Reserve says that the next n points are about to be pushed (a batch of
+// a log's backlog): the history grows once to hold them, not step by step
+// with room to spare. It changes no judgement.
+func (t *Tracker) Reserve(n int) { t.hist.ahead = t.hist.n + max(0, n) }
+
 // keep returns the series that holds metric column c, or -1 when its base
 // cannot be judged (learn has seen every base of the point).
 func (t *Tracker) keep(c *Column) int {

@@ -41,9 +41,22 @@ func (c *Curve) Set(from int, epochs []int, vals []float64) {
 	from = max(0, min(from, len(c.epochs)))
 	c.epochs, c.vals = c.epochs[:from], c.vals[:from]
 	c.sum, c.cnt, c.best = c.sum[:from], c.cnt[:from], c.best[:from]
+	if n := from + min(len(epochs), len(vals)); n > cap(c.epochs) && n-from > 1 {
+		// A backlog's points: room for exactly them, not append's doubling
+		// (a thousand runs of 300 epochs kept 60 bytes a point, not 32).
+		c.epochs, c.vals = withRoom(c.epochs, n), withRoom(c.vals, n)
+		c.sum, c.cnt, c.best = withRoom(c.sum, n), withRoom(c.cnt, n), withRoom(c.best, n)
+	}
 	for i := range min(len(epochs), len(vals)) {
 		c.Append(epochs[i], vals[i])
 	}
+}
+
+// withRoom returns s in new room for exactly n values.
+func withRoom[T any](s []T, n int) []T {
+	t := make([]T, len(s), n)
+	copy(t, s)
+	return t
 }
 
 // Append adds a point after the last; a point whose epoch is not above the
