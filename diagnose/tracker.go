@@ -26,10 +26,13 @@ import "sort"
 // new terms (Revision counts it); that happens at most a few times per
 // log.
 type Tracker struct {
-	cfg   Config // normalized
-	hist  history
-	cur   state    // the state after the last point
-	ckpts []*state // ckpts[c]: the state before point c·ckptEvery
+	cfg  Config // normalized
+	hist history
+	cur  state // the state after the last point
+	// ckpts[c] is the state before point c·ckptEvery; ckpts[0] is nil,
+	// since the state before the first point is always newState() (a
+	// thousand runs of 300 epochs kept 1.7 MB of it).
+	ckpts []*state
 	// lastRec is the record of the last point (cur is the state after it).
 	lastRec rec
 	// revision counts the times every kept point was judged again.
@@ -176,7 +179,9 @@ func (t *Tracker) keep(c *Column) int {
 func (t *Tracker) advance(i int) {
 	if i%ckptEvery == 0 {
 		c := i / ckptEvery
-		if c < len(t.ckpts) {
+		if c == 0 {
+			t.ckpts = append(t.ckpts[:0], nil)
+		} else if c < len(t.ckpts) {
 			*t.ckpts[c] = t.cur
 			t.ckpts = t.ckpts[:c+1]
 		} else {
@@ -201,12 +206,20 @@ func (t *Tracker) At(i int) Judgement {
 	// Judge again from the state copy at or before i: the same inputs in
 	// the same order give the same record, bit for bit.
 	c := i / ckptEvery
-	st := *t.ckpts[c]
+	st := t.ckpt(c)
 	var r rec
 	for k := c * ckptEvery; k <= i; k++ {
 		t.step(&st, k, &r)
 	}
 	return t.judgement(i, &r, &st, nil)
+}
+
+// ckpt returns the state before point c·ckptEvery.
+func (t *Tracker) ckpt(c int) state {
+	if p := t.ckpts[c]; p != nil {
+		return *p
+	}
+	return newState()
 }
 
 func (t *Tracker) check(i int) {
@@ -246,7 +259,7 @@ func (t *Tracker) truncate(epoch int) {
 	// (same inputs, same records).
 	c := n / ckptEvery
 	if c < len(t.ckpts) {
-		t.cur = *t.ckpts[c]
+		t.cur = t.ckpt(c)
 		t.ckpts = t.ckpts[:c]
 	}
 	for i := c * ckptEvery; i < n; i++ {
