@@ -64,8 +64,10 @@ type Tracker struct {
 	bayesNote    string
 
 	// last caches the judgement of the last point: Latest and At(n−1)
-	// after Add return it without building the texts again.
-	last      Judgement
+	// after Add return it without building the texts again. It is
+	// allocated by the first Add: a Tracker fed by Push alone (a sweep's
+	// runs) keeps no room for it (760 bytes).
+	last      *Judgement
 	lastValid bool
 	scratch   text // the texts of Add's judgements are built here
 }
@@ -131,9 +133,17 @@ func (t *Tracker) Metrics() []string {
 // itself: p may be reused afterwards.
 func (t *Tracker) Add(p Point) Judgement {
 	t.Push(p)
-	t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
+	t.keepLast()
+	return *t.last
+}
+
+// keepLast judges the last point into the cache Latest reads.
+func (t *Tracker) keepLast() {
+	if t.last == nil {
+		t.last = new(Judgement)
+	}
+	*t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
 	t.lastValid = true
-	return t.last
 }
 
 // Push is Add without building the judgement of p: for reading a whole
@@ -199,7 +209,7 @@ func (t *Tracker) At(i int) Judgement {
 	n := t.hist.n
 	if i == n-1 {
 		if t.lastValid {
-			return t.last
+			return *t.last
 		}
 		return t.judgement(i, &t.lastRec, &t.cur, nil)
 	}
@@ -243,8 +253,7 @@ func (t *Tracker) Reconfigure(cfg Config) {
 	t.choose()
 	t.replay()
 	if t.hist.n > 0 {
-		t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
-		t.lastValid = true
+		t.keepLast()
 	}
 }
 
