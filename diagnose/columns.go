@@ -255,12 +255,23 @@ func (c *floatColumn) truncate(n int) {
 
 // intColumn holds integers by position (epochs, line numbers). Only the
 // positions set are read.
+//
+// A chunk whose values so far step evenly (epochs 1, 2, 3, …; the lines of
+// a table of one row per epoch) keeps only its first value and the step:
+// nothing a value. The first value that breaks the step, or a gap, turns
+// the chunk into offsets (then plain values, as above). Each value is
+// checked as it is stored against the very sum that reads it back, in
+// the same wrapping integer arithmetic, so the values read are those set.
 type intColumn struct {
 	chunks []intChunk
 }
 
 type intChunk struct {
 	base int
+	// step and even: the chunk's first even values are base + j·step,
+	// while off and wide are nil.
+	step int
+	even int
 	off  []int32 // values as offsets from base; nil once widened
 	wide []int
 }
@@ -272,6 +283,8 @@ func (c *intColumn) at(i int) int {
 	}
 	ch, j := &c.chunks[k], i%chunkLen
 	switch {
+	case j < ch.even:
+		return ch.base + j*ch.step
 	case j < len(ch.off):
 		return ch.base + int(ch.off[j])
 	case j < len(ch.wide):
@@ -290,10 +303,23 @@ func (c *intColumn) setAhead(i, v, end int) {
 		c.chunks = append(c.chunks, intChunk{})
 	}
 	ch := &c.chunks[k]
-	if ch.off == nil && ch.wide == nil {
-		ch.base, ch.off = v, []int32{}
-	}
 	j, want := i%chunkLen, end-k*chunkLen
+	if ch.off == nil && ch.wide == nil {
+		switch {
+		case ch.even == 0 && j == 0:
+			ch.base, ch.even = v, 1
+			return
+		case ch.even == 1 && j == 1:
+			ch.step, ch.even = v-ch.base, 2
+			return
+		case j <= ch.even && j > 0 && v == ch.base+j*ch.step:
+			ch.even = max(ch.even, j+1)
+			return
+		case ch.even == 0:
+			ch.base = v // the chunk's first value, not at its start
+		}
+		ch.uneven(want)
+	}
 	if ch.off != nil {
 		if d := v - ch.base; d >= math.MinInt32 && d <= math.MaxInt32 && (v >= ch.base) == (d >= 0) {
 			ch.off = grown(ch.off, j+1, want, 0)
@@ -304,6 +330,29 @@ func (c *intColumn) setAhead(i, v, end int) {
 	}
 	ch.wide = grown(ch.wide, j+1, want, 0)
 	ch.wide[j] = v
+}
+
+// maxEvenOffset bounds the step whose multiples, up to chunkLen, fit an
+// int32 offset.
+const maxEvenOffset = math.MaxInt32 / chunkLen
+
+// uneven turns a chunk of evenly stepping values into offsets from its
+// first, or plain values when the steps do not fit an int32, in room for
+// want values.
+func (ch *intChunk) uneven(want int) {
+	n := ch.even
+	ch.even = 0
+	if ch.step >= -maxEvenOffset && ch.step <= maxEvenOffset { // j·step fits an int32
+		ch.off = grown([]int32{}, n, want, 0)
+		for j := range n {
+			ch.off[j] = int32(j * ch.step)
+		}
+		return
+	}
+	ch.wide = grown([]int{}, n, want, 0)
+	for j := range n {
+		ch.wide[j] = ch.base + j*ch.step
+	}
 }
 
 // widen turns a chunk of offsets into plain values, in room as large.
@@ -322,10 +371,13 @@ func (c *intColumn) truncate(n int) {
 		return
 	}
 	ch, j := &c.chunks[n/chunkLen], n%chunkLen
-	if ch.off != nil {
+	switch {
+	case ch.off != nil:
 		ch.off = ch.off[:min(j, len(ch.off))]
-	} else {
+	case ch.wide != nil:
 		ch.wide = ch.wide[:min(j, len(ch.wide))]
+	default:
+		ch.even = min(j, ch.even)
 	}
 }
 

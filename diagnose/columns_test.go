@@ -3,6 +3,7 @@ package diagnose
 import (
 	"encoding/binary"
 	"math"
+	"slices"
 	"strconv"
 	"testing"
 )
@@ -145,16 +146,25 @@ func FuzzFloatColumn(f *testing.F) {
 }
 
 func TestIntColumn(t *testing.T) {
+	const (
+		even    = "even steps"
+		offsets = "offsets"
+		plain   = "plain values"
+	)
 	tests := []struct {
 		name string
 		vals []int
-		off  bool // the chunk stays in offsets
+		kind string // how the chunk keeps them
 	}{
-		{"Epochs", []int{1, 2, 3, 5, 8}, true},
-		{"LinesGoBack", []int{1000, 2000, 2, 3}, true},
-		{"FarApartWidens", []int{0, math.MaxInt32 + 1}, false},
-		{"ExtremesWiden", []int{math.MaxInt, math.MinInt}, false},
-		{"NegativeEpochs", []int{-5, -4, -3}, true},
+		{"EvenEpochs", []int{1, 2, 3, 4, 5}, even},
+		{"EvenLines", []int{2, 5, 8, 11}, even},
+		{"Epochs", []int{1, 2, 3, 5, 8}, offsets},
+		{"LinesGoBack", []int{1000, 2000, 2, 3}, offsets},
+		{"FarApartWidens", []int{0, math.MaxInt32 + 1, 5}, plain},
+		{"ExtremesWiden", []int{math.MaxInt, math.MinInt, 0}, plain},
+		{"ExtremesStepEvenly", []int{math.MaxInt, math.MinInt}, even},
+		{"NegativeEpochs", []int{-5, -4, -3}, even},
+		{"OneValue", []int{7}, even},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -167,8 +177,53 @@ func TestIntColumn(t *testing.T) {
 					t.Errorf("at(%d) = %d, want %d", i, got, v)
 				}
 			}
-			if off := c.chunks[0].off != nil; off != tc.off {
-				t.Errorf("offsets kept %v, want %v", off, tc.off)
+			kind := even
+			if ch := c.chunks[0]; ch.off != nil {
+				kind = offsets
+			} else if ch.wide != nil {
+				kind = plain
+			}
+			if kind != tc.kind {
+				t.Errorf("kept as %s, want %s", kind, tc.kind)
+			}
+		})
+	}
+}
+
+// TestIntColumn_Truncate cuts a column of even steps and of offsets and
+// sets other values after the cut: every value reads back as set.
+func TestIntColumn_Truncate(t *testing.T) {
+	for _, tc := range []struct {
+		name       string
+		vals, then []int
+	}{
+		{"EvenThenEven", []int{1, 2, 3, 4, 5}, []int{3, 4}},
+		{"EvenThenUneven", []int{1, 2, 3, 4, 5}, []int{30, 31}},
+		{"UnevenThenEven", []int{1, 4, 9, 16}, []int{5, 6, 7}},
+		{"PastAChunk", nil, nil},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			vals, then := tc.vals, tc.then
+			if vals == nil {
+				for i := range chunkLen + 5 {
+					vals = append(vals, 10+i)
+				}
+				then = []int{1, 2}
+			}
+			var c intColumn
+			for i, v := range vals {
+				c.set(i, v)
+			}
+			cut := len(vals) - 3
+			c.truncate(cut)
+			want := append(slices.Clone(vals[:cut]), then...)
+			for i, v := range then {
+				c.set(cut+i, v)
+			}
+			for i, v := range want {
+				if got := c.at(i); got != v {
+					t.Fatalf("at(%d) = %d, want %d", i, got, v)
+				}
 			}
 		})
 	}
@@ -220,4 +275,46 @@ func TestFloatColumn_Room(t *testing.T) {
 			}
 		})
 	}
+}
+
+// FuzzIntColumn appends values from arbitrary bytes in order, as the
+// history does (some continuing the last step, some anywhere), with
+// truncations, and compares every read with a plain slice.
+func FuzzIntColumn(f *testing.F) {
+	f.Add([]byte{1, 1, 0, 0, 0, 0, 0, 0, 0, 1, 2, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0xff, 1, 0, 0, 0, 0, 0, 0, 0})
+	f.Add([]byte{1, 0xff, 0xff, 0xff, 0xff, 0xff, 0xff, 0xff, 0x7f, 1, 0, 0, 0, 0, 0, 0, 0, 0x80, 0, 0, 0, 0, 0, 0, 0, 0, 0})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		var c intColumn
+		var want []int
+		for len(data) >= 9 {
+			op, v := data[0], int(int64(binary.LittleEndian.Uint64(data[1:9])))
+			data = data[9:]
+			switch {
+			case op == 0xff:
+				n := int(uint(v) % uint(len(want)+1))
+				c.truncate(n)
+				want = want[:n]
+				continue
+			case op&3 == 0 && len(want) >= 2:
+				v = 2*want[len(want)-1] - want[len(want)-2] // the same step again
+			case op&3 == 2:
+				// A long run of even steps, past a chunk's end.
+				for range int(op) * 5 {
+					if len(want) < 2 {
+						break
+					}
+					w := 2*want[len(want)-1] - want[len(want)-2]
+					c.set(len(want), w)
+					want = append(want, w)
+				}
+			}
+			c.set(len(want), v)
+			want = append(want, v)
+		}
+		for i, w := range want {
+			if got := c.at(i); got != w {
+				t.Fatalf("at(%d) = %d, want %d", i, got, w)
+			}
+		}
+	})
 }

@@ -53,7 +53,7 @@ func (c *floatColumn) clone() floatColumn {
 func (c *intColumn) clone() intColumn {
 	out := intColumn{chunks: make([]intChunk, len(c.chunks))}
 	for i, ch := range c.chunks {
-		out.chunks[i].base = ch.base
+		out.chunks[i].base, out.chunks[i].step, out.chunks[i].even = ch.base, ch.step, ch.even
 		if ch.off != nil {
 			out.chunks[i].off = slices.Clone(ch.off)
 		}
