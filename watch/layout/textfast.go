@@ -396,7 +396,7 @@ func (d *textDecoder) fileShaped(line []byte, n int) bool {
 		if p.totalRun >= 0 {
 			total = sh.integer(p.totalRun)
 		}
-		d.value(inf.col, sh.number(line, p.value), total)
+		d.value(inf.col, sh.number(line, &p.value), total)
 	}
 	a.EndLine(n, !d.haveEpoch)
 	return true

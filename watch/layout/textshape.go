@@ -117,6 +117,9 @@ type textShape struct {
 	// or a name that makes a column).
 	counts bool
 
+	// tail is where the shape's bytes after its last run start.
+	tail int
+
 	// where are the runs of the line being matched.
 	where []runAt
 }
@@ -157,7 +160,7 @@ func (sh *textShape) match(line []byte) bool {
 	}
 	sh.where = sh.where[:len(runs)]
 	where := sh.where
-	i, j := 0, 0 // in line, in sh.text
+	i := 0 // in line
 	for k := range runs {
 		r := &runs[k]
 		at := i + r.gapLen
@@ -186,16 +189,16 @@ func (sh *textShape) match(line []byte) bool {
 					return false
 				}
 				where[k] = runAt{at, at + m, eightDigits(d << ((64 - 8*m) & 63))}
-				i, j = at+m, r.end
+				i = at + m
 				continue
 			}
 		}
 		var ok bool
-		if i, ok = sh.matchRun(line, i, j, k); !ok {
+		if i, ok = sh.matchRun(line, i, k); !ok {
 			return false
 		}
-		j = r.end
 	}
+	j := sh.tail
 	return len(line)-i == len(sh.text)-j && equalAt(line, i, sh.text, j, len(sh.text)-j)
 }
 
@@ -210,12 +213,16 @@ func wordAt(line []byte, i int) uint64 {
 	return binary.LittleEndian.Uint64(line[len(line)-8:]) >> ((8 * (i + 8 - len(line))) & 63)
 }
 
-// matchRun is match for any run k: the shape's bytes before it (from j
-// in the shape, i in the line), then the run; it returns where in the
+// matchRun is match for any run k: the shape's bytes before it (from i
+// in the line), then the run; it returns where in the
 // line the run ends, and notes the run in sh.where.
-func (sh *textShape) matchRun(line []byte, i, j, k int) (int, bool) {
+func (sh *textShape) matchRun(line []byte, i, k int) (int, bool) {
 	t := sh.text
 	r := &sh.runs[k]
+	j := 0 // in t
+	if k > 0 {
+		j = sh.runs[k-1].end
+	}
 	n := r.start - j
 	switch {
 	case i+n > len(line):
@@ -312,7 +319,7 @@ func digitsEnd(s []byte, i int) (int, bool) {
 
 // number reads the value at span sp of the matched line: the bytes of a
 // number readValueAt read there, so parseNumber's value.
-func (sh *textShape) number(line []byte, sp shapeSpan) float64 {
+func (sh *textShape) number(line []byte, sp *shapeSpan) float64 {
 	if sp.run < 0 {
 		return sp.constant
 	}
@@ -336,7 +343,7 @@ func (sh *textShape) number(line []byte, sp shapeSpan) float64 {
 // one, without looking for a point, an exponent or the digits' end again.
 // Beyond fastFloat's exact range (19 digits, 2^53, a power of ten beyond
 // ±22), false: number reads it as it reads any span.
-func (sh *textShape) plainNumber(line []byte, sp shapeSpan) (float64, bool) {
+func (sh *textShape) plainNumber(line []byte, sp *shapeSpan) (float64, bool) {
 	r := &sh.where[sp.run]
 	mant := r.val
 	digits, frac := r.end-r.start, 0
@@ -461,6 +468,10 @@ func (sh *textShape) record(line []byte, rc *shapeRecorder, m marker, pairs []fa
 	sh.text = append(sh.text[:0], line...)
 	sh.runs = digitRuns(line, sh.runs[:0])
 	setGaps(line, sh.runs)
+	sh.tail = 0
+	if len(sh.runs) > 0 {
+		sh.tail = sh.runs[len(sh.runs)-1].end
+	}
 	runAt := func(pos int) int { // the run starting at pos, or -1
 		for k, r := range sh.runs {
 			if r.start == pos {
