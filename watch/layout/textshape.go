@@ -178,7 +178,7 @@ func (sh *textShape) match(line []byte) bool {
 				return false
 			}
 			x := wordAt(line, at)
-			if other := (^((x | highs) - 0x30*ones) | ((x | highs) - 0x3a*ones) | x) & highs; other != 0 {
+			if other := nonDigits(x); other != 0 {
 				// The run's m digits are the low bytes of x: their value
 				// comes from the word already loaded, the digits moved
 				// to its top so that zero bytes lead.
@@ -255,11 +255,6 @@ func (sh *textShape) matchRun(line []byte, i, k int) (int, bool) {
 	return i, true
 }
 
-const (
-	ones  = 0x0101010101010101
-	highs = 0x8080808080808080
-)
-
 // equalAt reports whether a[i:i+n] equals b[j:j+n] (both in range): the
 // few bytes between two numbers in one masked word where both lines have
 // eight bytes from there, else by equalLong. Small enough to be inlined.
@@ -298,11 +293,7 @@ func digitsEnd(s []byte, i int) (int, bool) {
 	zero := true
 	for i+8 <= len(s) {
 		x := binary.LittleEndian.Uint64(s[i:])
-		// A byte is no digit when it is below '0', above '9', or not ASCII.
-		below := ^((x | highs) - 0x30*ones)
-		above := (x | highs) - 0x3a*ones
-		other := (below | above | x) & highs
-		if other != 0 {
+		if other := nonDigits(x); other != 0 {
 			n := bits.TrailingZeros64(other) / 8
 			mask := uint64(1)<<(8*n) - 1
 			return i + n, zero && x&mask == 0x30*ones&mask
@@ -388,35 +379,6 @@ func (sh *textShape) plainNumber(line []byte, sp *shapeSpan) (float64, bool) {
 // digits stay below the 10000 at which fastFloat stops reading an
 // exponent's digits. Unit: digits.
 const maxExpDigits = 4
-
-// pow10int holds the powers of ten up to 10^19, the largest in a uint64.
-var pow10int = func() (t [20]uint64) {
-	t[0] = 1
-	for k := 1; k < len(t); k++ {
-		t[k] = t[k-1] * 10
-	}
-	return t
-}()
-
-// eightDigits is the value of the eight ASCII digits of x, the first in
-// its lowest byte; zero bytes before the first digit count as zeros. Three
-// multiplications, each joining neighbouring groups of digits (Lemire,
-// "Number parsing at a gigabyte per second", Software: Practice and
-// Experience 51(8), 2021, section 6).
-func eightDigits(x uint64) uint64 {
-	x = (x & 0x0f0f0f0f0f0f0f0f) * (10<<8 + 1) >> 8
-	x = (x & 0x00ff00ff00ff00ff) * (100<<16 + 1) >> 16
-	return (x & 0x0000ffff0000ffff) * (10000<<32 + 1) >> 32
-}
-
-// digitsValue is the value of a run of ASCII digits (exact up to 19).
-func digitsValue(digits []byte) uint64 {
-	var n uint64
-	for _, c := range digits {
-		n = n*10 + uint64(c-'0')
-	}
-	return n
-}
 
 // smallInt reports whether run r of the matched line has no more digits
 // than an epoch or a total may have (maxIntDigits).
