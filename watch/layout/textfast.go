@@ -396,7 +396,14 @@ func (d *textDecoder) fileShaped(line []byte, n int) bool {
 		if p.totalRun >= 0 {
 			total = sh.integer(p.totalRun)
 		}
-		d.value(inf.col, sh.number(line, &p.value), total)
+		v, ok := 0.0, false
+		if p.value.plain {
+			v, ok = sh.plainNumber(line, &p.value)
+		}
+		if !ok {
+			v = sh.number(line, &p.value)
+		}
+		d.value(inf.col, v, total)
 	}
 	a.EndLine(n, !d.haveEpoch)
 	return true

@@ -309,7 +309,8 @@ func digitsEnd(s []byte, i int) (int, bool) {
 }
 
 // number reads the value at span sp of the matched line: the bytes of a
-// number readValueAt read there, so parseNumber's value.
+// number readValueAt read there, so parseNumber's value. (fileShaped
+// tries plainNumber first itself: one call a value.)
 func (sh *textShape) number(line []byte, sp *shapeSpan) float64 {
 	if sp.run < 0 {
 		return sp.constant
