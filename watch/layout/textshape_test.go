@@ -4,7 +4,6 @@ import (
 	"encoding/binary"
 	"math/bits"
 	"strconv"
-	"strings"
 	"testing"
 )
 
@@ -47,29 +46,4 @@ func TestEightDigits(t *testing.T) {
 			t.Errorf("eightDigits(%q) = %d, want %d", s, got, want)
 		}
 	}
-}
-
-// TestTextShape_ExponentNumbers reads lines of one shape whose values
-// have an exponent, read from their runs (plainNumber with exactScale):
-// both signs and cases, the ends of the exact range of powers of ten
-// (±22) and beyond, long exponents, a mantissa of 19 digits and beyond
-// 2^53, after the line that made the shape, through the fast and the
-// general path (strconv.ParseFloat beyond the exact range).
-// Source: Clinger (1990), "How to read floating point numbers
-// accurately": exact below 2^53 and 10^22; strconv is the reference.
-func TestTextShape_ExponentNumbers(t *testing.T) {
-	values := []string{"6.3e-05", "1e5", "1E+22", "1e22", "1e23", "9e-22", "1e-23", "-1.5e3", "+2.5E-1",
-		"0e-5", "-0.0e7", "1.5e0", "2.5e-9999", "1e00005", "1e0005", "1e10000", "12345678901234567.8e-3",
-		"9007199254740993e1", "9007199254740992e-1", "1234567.1234567e-7"}
-	otherDigits := strings.NewReplacer("0", "3", "1", "4", "2", "9", "5", "8", "9", "1")
-	n := 0
-	for _, first := range values {
-		for _, v := range []string{first, otherDigits.Replace(first)} {
-			line := func(step, v string) string { return "step " + step + " - loss: " + v + " - lr: " + v + "\n" }
-			log := "epoch 1\n" + line("1", first) + line("2", v) + line("3", first) + "epoch 2\n" + line("4", v)
-			checkFastPath(t, []byte(log), Config{Format: Text})
-			n++
-		}
-	}
-	t.Logf("%d logs", n)
 }
