@@ -4,6 +4,7 @@ import (
 	"math"
 	"sort"
 
+	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/tui/chart"
 )
 
@@ -48,6 +49,42 @@ func (s *stepSeries) add(step int64, v float64) {
 		}
 	}
 	s.addBlock(step, v)
+}
+
+// addRun appends the samples of a run of per-step rows: row k's step and
+// its value vals[at+k*stride]. It does what add does for each sample in
+// turn, but fills the last block in one loop while the steps go up and
+// the block has room, with the block's fields in registers; a sample
+// that opens a block, or goes back, takes addBlock.
+func (s *stepSeries) addRun(run []diagnose.StepRowAt, vals []float64, at, stride int) {
+	for k := 0; k < len(run); {
+		n := len(s.blocks)
+		if n == 0 || s.blocks[n-1].n >= s.width || run[k].Step <= s.blocks[n-1].last {
+			s.addBlock(run[k].Step, vals[at+k*stride])
+			k++
+			continue
+		}
+		b := &s.blocks[n-1]
+		end := min(len(run), k+int(s.width-b.n))
+		last, lo, hi, m := b.last, b.lo, b.hi, k
+		for ; m < end; m++ {
+			step := run[m].Step
+			if step <= last {
+				break
+			}
+			last = step
+			if f := float32(vals[at+m*stride]); f-f == 0 { // as take does
+				if f < lo {
+					lo = f
+				}
+				if f > hi {
+					hi = f
+				}
+			}
+		}
+		b.last, b.lo, b.hi, b.n = last, lo, hi, b.n+int32(m-k)
+		k = m
+	}
 }
 
 // addBlock appends a sample that opens a block, after dropping the samples
