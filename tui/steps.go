@@ -51,11 +51,12 @@ func (s *stepSeries) add(step int64, v float64) {
 	s.addBlock(step, v)
 }
 
-// addRun appends the samples of a run of per-step rows: row k's step and
-// its value vals[at+k*stride]. It does what add does for each sample in
-// turn, but fills the last block in one loop while the steps go up and
-// the block has room, with the block's fields in registers; a sample
-// that opens a block, or goes back, takes addBlock.
+// addRun appends the samples of a run of per-step rows whose steps go up
+// (stepRun): row k's step and its value vals[at+k*stride]. It does what
+// add does for each sample in turn, but fills the last block in one loop
+// of comparisons while it has room, with the block's range in registers;
+// a sample that opens a block, or goes back from the block before, takes
+// addBlock.
 func (s *stepSeries) addRun(run []diagnose.StepRowAt, vals []float64, at, stride int) {
 	for k := 0; k < len(run); {
 		n := len(s.blocks)
@@ -66,14 +67,9 @@ func (s *stepSeries) addRun(run []diagnose.StepRowAt, vals []float64, at, stride
 		}
 		b := &s.blocks[n-1]
 		end := min(len(run), k+int(s.width-b.n))
-		last, lo, hi, m := b.last, b.lo, b.hi, k
-		for ; m < end; m++ {
-			step := run[m].Step
-			if step <= last {
-				break
-			}
-			last = step
-			if f := float32(vals[at+m*stride]); f-f == 0 { // as take does
+		lo, hi := b.lo, b.hi
+		for i := at + k*stride; i < at+end*stride; i += stride {
+			if f := float32(vals[i]); f-f == 0 { // as take does
 				if f < lo {
 					lo = f
 				}
@@ -82,8 +78,8 @@ func (s *stepSeries) addRun(run []diagnose.StepRowAt, vals []float64, at, stride
 				}
 			}
 		}
-		b.last, b.lo, b.hi, b.n = last, lo, hi, b.n+int32(m-k)
-		k = m
+		b.last, b.lo, b.hi, b.n = run[end-1].Step, lo, hi, b.n+int32(end-k)
+		k = end
 	}
 }
 

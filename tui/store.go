@@ -239,9 +239,9 @@ func (s *store) addSteps(rows *diagnose.StepRows) {
 }
 
 // stepRun returns the end of the run of rows that starts at row i: rows
-// with a step, of row i's epoch and shape, each row's values right after
-// the row before's, all within rows' arrays. It returns i when row i
-// starts none (no step, or not Valid).
+// with a step above the row before's, of row i's epoch and shape, each
+// row's values right after the row before's, all within rows' arrays. It
+// returns i when row i starts none (no step, or not Valid).
 func stepRun(rows *diagnose.StepRows, i int) int {
 	all := rows.Rows
 	r := all[i]
@@ -253,7 +253,7 @@ func stepRun(rows *diagnose.StepRows, i int) int {
 	j := i + 1
 	for ; j < len(all); j++ {
 		q := all[j]
-		if q.Shape != r.Shape || q.Epoch != r.Epoch || q.Step < 0 || q.From != next || next > end-width {
+		if q.Shape != r.Shape || q.Epoch != r.Epoch || q.Step <= all[j-1].Step || q.From != next || next > end-width {
 			break
 		}
 		next += width
