@@ -68,8 +68,9 @@ func (s *stepSeries) addRun(run []diagnose.StepRowAt, vals []float64, at, stride
 		b := &s.blocks[n-1]
 		end := min(len(run), k+int(s.width-b.n))
 		lo, hi := b.lo, b.hi
-		for i := at + k*stride; i < at+end*stride; i += stride {
-			if f := float32(vals[i]); f-f == 0 { // as take does
+		vs := vals[at+k*stride : at+(end-1)*stride+1] // its values, a stride apart
+		for i := 0; i < len(vs); i += stride {
+			if f := float32(vs[i]); f-f == 0 { // as take does
 				if f < lo {
 					lo = f
 				}

@@ -249,14 +249,15 @@ func stepRun(rows *diagnose.StepRows, i int) int {
 		return i
 	}
 	width := int32(len(rows.Shapes[r.Shape]))
-	next, end := r.From+width, int32(len(rows.Values))
+	next, last, prev := r.From+width, int32(len(rows.Values))-width, r.Step
 	j := i + 1
 	for ; j < len(all); j++ {
-		q := all[j]
-		if q.Shape != r.Shape || q.Epoch != r.Epoch || q.Step <= all[j-1].Step || q.From != next || next > end-width {
+		q := &all[j]
+		if q.From != next || q.Step <= prev || q.Shape != r.Shape || q.Epoch != r.Epoch || next > last {
 			break
 		}
 		next += width
+		prev = q.Step
 	}
 	return j
 }
