@@ -251,7 +251,7 @@ func (s *store) addStepsByRow(rows *diagnose.StepRows) {
 // TestStore_AddStepsByRuns: taking rows a run at a time stores the same
 // blocks, clock and percent marks as taking them one by one, over random
 // batches with resumed runs (steps and epochs going back), rows without a
-// step, NaN and ±Inf, other shapes between runs, values of another row
+// step, NaN, ±Inf, values beyond float32's range and −0, other shapes between runs, values of another row
 // order (From not following), a last row whose values are cut short, and
 // enough rows to merge blocks.
 // Source: common practice (a fast path checked against the plain one).
@@ -292,6 +292,12 @@ func TestStore_AddStepsByRuns(t *testing.T) {
 						v = math.NaN()
 					case 1:
 						v = math.Inf(1)
+					case 2:
+						v = 1e39 // finite, beyond float32's range
+					case 3:
+						v = -math.MaxFloat32
+					case 4:
+						v = math.Copysign(0, -1)
 					}
 					if rng.Intn(50) == 0 {
 						b.Append(r, diagnose.StepValue{Col: 2, V: v})
