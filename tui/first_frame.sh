@@ -32,6 +32,17 @@ awk -F, 'NR == 1 || $6 != ""' "$tmp/steps.csv" >"$tmp/epochs.csv"
 last=$(tail -n 1 "$tmp/epochs.csv" | cut -d, -f1)
 cat "$tmp/steps.csv" "$tmp/epochs.csv" >/dev/null # page cache warm
 
+# waitfor FILE PATTERN: waits up to 30 s for a line of FILE matching PATTERN.
+waitfor() {
+	local i
+	for i in $(seq 600); do
+		grep -q "$2" "$1" 2>/dev/null && return 0
+		sleep 0.05
+	done
+	echo "first_frame.sh: nothing in $1 after 30 s" >&2
+	exit 1
+}
+
 # once KIND [BIN [TAG]]: one run of BIN (this build) on $tmp/KIND.csv;
 # appends "ms rss_kib cpu_ms" to $tmp/TAGKIND.
 once() {
@@ -40,17 +51,24 @@ once() {
 	t0=$(date +%s%N)
 	tmux -L "$name" new-session -d -s "$name" -x 200 -y 60 \
 		"$cpu /usr/bin/time -f '%M %U %S' -o $tmp/rss $bin watch $tmp/$kind.csv"
+	local deadline=$((t0 + 120 * 1000000000)) # a frame that never comes is an error, not a hang
 	until tmux -L "$name" capture-pane -p -t "$name" 2>/dev/null | grep -q "epoch $last "; do
+		if [ "$(date +%s%N)" -gt "$deadline" ]; then
+			echo "first_frame.sh: $bin on $kind.csv showed no frame with epoch $last in 120 s" >&2
+			exit 1
+		fi
 		sleep 0.005
 	done
 	t1=$(date +%s%N)
 	tmux -L "$name" send-keys -t "$name" q
-	while [ ! -s "$tmp/rss" ]; do sleep 0.05; done
+	# The pane goes once its command is done: GNU time's and perf's
+	# figures are written by then (killing the pane first lost perf's).
+	waitfor "$tmp/rss" .
+	[ -z "$cpu" ] || waitfor "$tmp/cpu" task-clock
 	tmux -L "$name" kill-server 2>/dev/null || true
 	local used
 	used=$(tail -n 1 "$tmp/rss" | awk '{printf "%d", ($2 + $3) * 1000}')
 	if [ -n "$cpu" ]; then
-		while ! grep -q task-clock "$tmp/cpu" 2>/dev/null; do sleep 0.05; done
 		used=$(grep task-clock "$tmp/cpu" | cut -d, -f1 | awk '{printf "%d", $1}')
 	fi
 	echo "$(((t1 - t0) / 1000000)) $(tail -n 1 "$tmp/rss" | cut -d' ' -f1) $used" >>"$tmp/$tag$kind"
