@@ -205,8 +205,8 @@ type stepCol struct {
 // on the epoch axis. A column is looked up by name once, when it first
 // comes, and a shape of the batch's rows is resolved to the series its
 // values feed once a batch. The rows are then taken a run at a time (rows
-// of one epoch and shape whose values follow each other: nearly a whole
-// batch of a per-step log), and each series takes its values of the run
+// of one epoch and shape whose steps go up and whose values follow each
+// other: nearly a whole batch of a per-step log), and each series takes its values of the run
 // in one loop that fills its last block (stepSeries.addRun), instead of a
 // shape lookup and a call per value (tui/addsteps_bench_test.go). The
 // result is that of adding the rows one by one (TestStore_AddStepsByRuns).
@@ -262,23 +262,16 @@ func stepRun(rows *diagnose.StepRows, i int) int {
 	return j
 }
 
-// observeRun notes a run's steps on the clock. The rows share an epoch,
-// so after the first row the clock only moves its epoch's last step on
-// (stepClock.observe) — but while it knows a single epoch, a step below
-// the first also moves its start, so each row is noted then.
+// observeRun notes a run's steps on the clock. The rows share an epoch
+// and their steps go up, so after the first row each only moves that
+// epoch's last step on (stepClock.observe; the first step of the clock
+// moves only to a step below it, which no later row of the run is): the
+// last row says what all of them would.
 func (s *store) observeRun(run []diagnose.StepRowAt) {
-	epoch := int(run[0].Epoch)
-	s.clock.observe(epoch, run[0].Step)
-	if len(run) == 1 {
-		return
+	s.clock.observe(int(run[0].Epoch), run[0].Step)
+	if n := len(run); n > 1 {
+		s.clock.observe(int(run[n-1].Epoch), run[n-1].Step)
 	}
-	if len(s.clock.ends) <= 1 {
-		for _, r := range run[1:] {
-			s.clock.observe(epoch, r.Step)
-		}
-		return
-	}
-	s.clock.observe(epoch, run[len(run)-1].Step)
 }
 
 // anyAbove reports whether a value of vals[at], vals[at+stride], … is
