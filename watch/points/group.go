@@ -206,20 +206,18 @@ func (a *Assembler) emit() {
 		Rows:        g.rows,
 		Line:        g.line,
 	}
-	n := len(a.touched)
-	if cap(a.pointSlab)-len(a.pointSlab) < n {
-		a.pointSlab = make([]diagnose.Sample, 0, max(nextSlab(cap(a.pointSlab)), n))
-	}
-	start := len(a.pointSlab)
+	a.samples = a.samples[:0]
 	for _, ci := range a.touched {
 		c := &a.cols[ci]
 		v := c.last
 		if !c.eval && c.n > 1 {
 			v = c.sum / float64(c.n)
 		}
-		a.pointSlab = append(a.pointSlab, diagnose.Sample{Column: c.meaning(), Value: v, Last: c.last})
+		a.samples = append(a.samples, diagnose.Sample{Column: c.meaning(), Value: v, Last: c.last})
 	}
-	p.Samples = a.pointSlab[start:len(a.pointSlab):len(a.pointSlab)]
+	// Capped: an Out that appends to them copies rather than writing
+	// into the scratch.
+	p.Samples = a.samples[:len(a.samples):len(a.samples)]
 	g.emitted, g.dirty, g.provisional = true, false, false
 	a.lastEpoch, a.haveLast = g.epoch, true
 	a.out.Point(p)
