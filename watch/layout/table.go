@@ -2,6 +2,8 @@ package layout
 
 import (
 	"bytes"
+	"encoding/binary"
+	"math/bits"
 
 	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/column"
@@ -252,25 +254,21 @@ func (d *tableDecoder) fastRow(line []byte) ([]float64, bool) {
 	vals := d.vals[:len(d.header)]
 	i := 0
 	for k := range vals {
-		for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
-			i++
-		}
+		i = skipBlanks(line, i)
 		if i == len(line) {
 			return nil, false // fewer cells than names
 		}
 		if d.roles[k] == cellTime {
-			start := i
-			for i < len(line) && line[i] != ' ' && line[i] != '\t' {
-				i++
-			}
-			v, ok := plainClock(line[start:i])
+			v, end, ok := plainClockAt(line, i)
 			if !ok {
-				v, ok = d.timeCell(line[start:i])
+				start := i
+				for end = i; end < len(line) && line[end] != ' ' && line[end] != '\t'; end++ {
+				}
+				if v, ok = d.timeCell(line[start:end]); !ok {
+					return nil, false
+				}
 			}
-			if !ok {
-				return nil, false
-			}
-			vals[k] = v
+			vals[k], i = v, end
 			continue
 		}
 		v, end, ok := fastFloat(line, i)
@@ -279,40 +277,82 @@ func (d *tableDecoder) fastRow(line []byte) ([]float64, bool) {
 		}
 		vals[k], i = v, end
 	}
+	return vals, skipBlanks(line, i) == len(line)
+}
+
+// blanks is eight spaces in one word, for skipBlanks.
+const blanks = 0x2020202020202020
+
+// skipBlanks returns the index of the first byte of line from i on that
+// is neither a space nor a tab (len(line) when there is none). An aligned
+// table pads its cells with runs of spaces, a third of its bytes: they
+// are passed over eight at a time, the first other byte found from the
+// lowest set bit of the word XOR eight spaces (little-endian loads: the
+// lowest byte is the first).
+func skipBlanks(line []byte, i int) int {
+	for i+8 <= len(line) {
+		if x := binary.LittleEndian.Uint64(line[i:]) ^ blanks; x != 0 {
+			i += bits.TrailingZeros64(x) >> 3
+			if line[i] != '\t' {
+				return i
+			}
+			break
+		}
+		i += 8
+	}
 	for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
 		i++
 	}
-	return vals, i == len(line)
+	return i
 }
 
 // plainClock reads a clock of two or three parts of plain digits ("00:01",
-// "1:02:03") in one pass, as parseClock reads it: each part of at most 15
-// digits is an integer that parseNumber reads exactly, and the seconds
-// are summed in the same order. Anything else, false (timeCell reads it).
+// "1:02:03"), the whole of c, as plainClockAt does.
 func plainClock(c []byte) (float64, bool) {
+	v, end, ok := plainClockAt(c, 0)
+	return v, ok && end == len(c)
+}
+
+// plainClockAt reads the clock that starts at line[i] and ends at the next
+// space, tab or the line's end (returned), in one pass, as parseClock
+// reads it: each part of at most 15 digits is an integer that
+// parseNumber reads exactly, and the seconds are summed in the same
+// order. Anything else, false (timeCell reads it).
+func plainClockAt(line []byte, i int) (float64, int, bool) {
+	// "mm:ss", the clock tables print, at once: the same two sums.
+	if j := i + 5; j <= len(line) && (j == len(line) || line[j] == ' ' || line[j] == '\t') && line[i+2] == ':' {
+		m1, m2, s1, s2 := line[i]-'0', line[i+1]-'0', line[i+3]-'0', line[i+4]-'0'
+		if m1 <= 9 && m2 <= 9 && s1 <= 9 && s2 <= 9 {
+			return float64(m1*10+m2)*60 + float64(s1*10+s2), j, true
+		}
+	}
 	secs, parts := 0.0, 0
 	var part uint64
 	digits := 0
-	for _, ch := range c {
+	for ; i < len(line); i++ {
+		ch := line[i]
 		if ch == ':' {
 			if digits == 0 {
-				return 0, false
+				return 0, i, false
 			}
 			secs = secs*60 + float64(part)
 			part, digits = 0, 0
 			parts++
 			continue
 		}
+		if ch == ' ' || ch == '\t' {
+			break
+		}
 		if ch-'0' > 9 || digits == 15 {
-			return 0, false
+			return 0, i, false
 		}
 		part = part*10 + uint64(ch-'0')
 		digits++
 	}
 	if digits == 0 {
-		return 0, false
+		return 0, i, false
 	}
-	return secs*60 + float64(part), parts == 1 || parts == 2
+	return secs*60 + float64(part), i, parts == 1 || parts == 2
 }
 
 // timeCell reads a time cell: "mm:ss", "h:mm:ss" or a number of seconds.
