@@ -196,16 +196,6 @@ func (a *Assembler) emit() {
 	if !slices.IsSorted(a.touched) { // rows usually name their columns in order
 		slices.Sort(a.touched)
 	}
-	p := diagnose.Point{
-		Segment:     a.segment,
-		Epoch:       g.epoch,
-		EpochLogged: g.epochLogged,
-		Step:        g.step,
-		Total:       g.total,
-		Time:        g.time,
-		Rows:        g.rows,
-		Line:        g.line,
-	}
 	a.samples = a.samples[:0]
 	for _, ci := range a.touched {
 		c := &a.cols[ci]
@@ -215,9 +205,26 @@ func (a *Assembler) emit() {
 		}
 		a.samples = append(a.samples, diagnose.Sample{Column: c.meaning(), Value: v, Last: c.last})
 	}
-	// Capped: an Out that appends to them copies rather than writing
-	// into the scratch.
-	p.Samples = a.samples[:len(a.samples):len(a.samples)]
+	a.handOn()
+}
+
+// handOn hands the open group on as a point with the samples in
+// a.samples, made by emit (or by NextEpoch, in the same order).
+func (a *Assembler) handOn() {
+	g := &a.g
+	p := diagnose.Point{
+		Segment:     a.segment,
+		Epoch:       g.epoch,
+		EpochLogged: g.epochLogged,
+		Step:        g.step,
+		Total:       g.total,
+		Time:        g.time,
+		Rows:        g.rows,
+		Line:        g.line,
+		// Capped: an Out that appends to them copies rather than
+		// writing into the scratch.
+		Samples: a.samples[:len(a.samples):len(a.samples)],
+	}
 	g.emitted, g.dirty, g.provisional = true, false, false
 	a.lastEpoch, a.haveLast = g.epoch, true
 	a.out.Point(p)

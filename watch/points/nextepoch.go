@@ -1,6 +1,10 @@
 package points
 
-import "math"
+import (
+	"math"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
 
 // Cell is one value of a row for NextEpoch: the column it goes to (an
 // index from Column or ColumnAs) and the number.
@@ -37,6 +41,10 @@ func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
 	// The row's columns must be the open epoch's, each once: then the
 	// point's columns (touched, sorted by emit) are the same.
 	a.rowSeq++
+	// inOrder: the cells name their columns in rising order, the order
+	// of the point's samples (emit sorts touched), so the samples are
+	// made here as the values are filed.
+	inOrder, prev := true, -1
 	for _, cl := range cells {
 		if cl.Col < 0 {
 			return false
@@ -46,9 +54,12 @@ func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
 			return false
 		}
 		c.rowMark = a.rowSeq
+		inOrder = inOrder && cl.Col > prev
+		prev = cl.Col
 	}
 	a.singleRow++ // ClosePoint of the open epoch, of one row
 	eval := false
+	a.samples = a.samples[:0]
 	for _, cl := range cells {
 		v := cl.V
 		if v-v != 0 { // NaN or ±Inf, in one subtraction
@@ -61,12 +72,20 @@ func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
 			c.markPercent()
 		}
 		eval = eval || c.eval
+		if inOrder {
+			// As emit makes it for a column of one value: v itself.
+			a.samples = append(a.samples, diagnose.Sample{Column: c.meaning(), Value: v, Last: v})
+		}
 	}
 	if eval {
 		a.evalSeen = true
 	}
 	*g = group{open: true, epoch: e, epochLogged: true, step: -1, rows: 1, line: line, hasEval: eval, dirty: true}
-	a.emit()
+	if inOrder {
+		a.handOn()
+	} else {
+		a.emit()
+	}
 	if a.steps {
 		a.row = a.row[:0]
 		for _, cl := range cells {
