@@ -39,23 +39,29 @@ func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
 		return false // a repeat or a step back: a resume
 	}
 	// The row's columns must be the open epoch's, each once: then the
-	// point's columns (touched, sorted by emit) are the same.
-	a.rowSeq++
-	// inOrder: the cells name their columns in rising order, the order
-	// of the point's samples (emit sorts touched), so the samples are
-	// made here as the values are filed.
-	inOrder, prev := true, -1
-	for _, cl := range cells {
-		if cl.Col < 0 {
-			return false
+	// point's columns (touched, sorted by emit) are the same. inOrder:
+	// the cells name their columns in rising order, the order of the
+	// point's samples, so the samples are made here as the values are
+	// filed. Most rows name the columns of touched, in its order: one
+	// comparison a cell says both (touched lists the columns in the
+	// group).
+	inOrder := sameRising(cells, a.touched)
+	if !inOrder {
+		a.rowSeq++
+		prev := -1
+		inOrder = true
+		for _, cl := range cells {
+			if cl.Col < 0 {
+				return false
+			}
+			c := &a.cols[cl.Col]
+			if !c.inGroup || c.rowMark == a.rowSeq {
+				return false
+			}
+			c.rowMark = a.rowSeq
+			inOrder = inOrder && cl.Col > prev
+			prev = cl.Col
 		}
-		c := &a.cols[cl.Col]
-		if !c.inGroup || c.rowMark == a.rowSeq {
-			return false
-		}
-		c.rowMark = a.rowSeq
-		inOrder = inOrder && cl.Col > prev
-		prev = cl.Col
 	}
 	a.singleRow++ // ClosePoint of the open epoch, of one row
 	eval := false
@@ -93,6 +99,22 @@ func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
 		}
 		a.rowHasStep = false
 		a.emitStep()
+	}
+	return true
+}
+
+// sameRising reports cells that name the columns cols, one for one, in
+// rising order (so each once).
+func sameRising(cells []Cell, cols []int) bool {
+	if len(cells) != len(cols) {
+		return false
+	}
+	prev := -1
+	for i, cl := range cells {
+		if cl.Col != cols[i] || cl.Col <= prev {
+			return false
+		}
+		prev = cl.Col
 	}
 	return true
 }
