@@ -199,11 +199,8 @@ func (d *tableDecoder) Decode(line []byte, n int) {
 		d.vals = make([]float64, len(d.header))
 	}
 	if !d.r.general {
-		if vals, ok := d.fastRow(line); ok {
-			if d.oneRow && d.nextEpoch(vals, n) {
-				return
-			}
-			d.file(vals, n)
+		if vals, _, ok := d.fastRow(line); ok {
+			d.fileFast(vals, n)
 			return
 		}
 	}
@@ -247,38 +244,98 @@ func (d *tableDecoder) Decode(line []byte, n int) {
 // by parseNumber too, and a row whose first cell is a number is not the
 // header (headerLike refuses numbers). Any other row, false: the general
 // path reads it.
-func (d *tableDecoder) fastRow(line []byte) ([]float64, bool) {
+func (d *tableDecoder) fastRow(line []byte) (vals []float64, end int, ok bool) {
 	if len(d.header) == 0 {
-		return nil, false
+		return nil, 0, false
 	}
-	vals := d.vals[:len(d.header)]
+	vals = d.vals[:len(d.header)]
 	i := 0
-	for k := range vals {
+	for k, role := range d.roles[:len(vals)] {
+		// At the row's end (fewer cells than names) neither reader
+		// finds a digit: false.
 		i = skipBlanks(line, i)
-		if i == len(line) {
-			return nil, false // fewer cells than names
-		}
-		if d.roles[k] == cellTime {
+		if role == cellTime {
 			v, end, ok := plainClockAt(line, i)
 			if !ok {
 				start := i
-				for end = i; end < len(line) && line[end] != ' ' && line[end] != '\t'; end++ {
+				for end = i; !cellEnd(line, end); end++ {
 				}
 				if v, ok = d.timeCell(line[start:end]); !ok {
-					return nil, false
+					return nil, 0, false
 				}
 			}
 			vals[k], i = v, end
 			continue
 		}
 		v, end, ok := fastFloat(line, i)
-		if !ok || end < len(line) && line[end] != ' ' && line[end] != '\t' {
-			return nil, false
+		if !ok || !cellEnd(line, end) {
+			return nil, 0, false
 		}
 		vals[k], i = v, end
 	}
-	return vals, skipBlanks(line, i) == len(line)
+	i = skipBlanks(line, i)
+	return vals, i, rowEnd(line, i)
 }
+
+// fileFast files a row fastRow read, as row n.
+func (d *tableDecoder) fileFast(vals []float64, n int) {
+	if d.oneRow && d.nextEpoch(vals, n) {
+		return
+	}
+	d.file(vals, n)
+}
+
+// plainLines reads a run of whole rows of plain numbers straight from the
+// bytes fed (plainLiner): fastRow reads each up to its newline, which it
+// finds as it goes, and the row is filed as Decode files it, with no
+// search for the newline first and no call per line. It stops at the
+// first other line (the line loop reads it: a header printed again, a
+// partial line, a comment) and returns the bytes read.
+func (d *tableDecoder) plainLines(p []byte) int {
+	r := d.r
+	if r.general || len(d.header) == 0 || r.lineNo == 0 {
+		return 0 // line 1 may start with a byte order mark: Reader.line
+	}
+	if cap(d.vals) < len(d.header) {
+		d.vals = make([]float64, len(d.header))
+	}
+	read := 0
+	for read < len(p) && !r.bailed {
+		row := p[read:]
+		vals, end, ok := d.fastRow(row)
+		if !ok || end == len(row) || end > maxLineBytes {
+			break // another line, no newline in p yet, or one the Reader skips
+		}
+		r.lineNo++
+		r.lines++
+		d.fileFast(vals, r.lineNo)
+		if row[end] == '\r' {
+			end++ // the newline after it
+		}
+		read += end + 1
+	}
+	if read > 0 {
+		r.midLine = false
+	}
+	return read
+}
+
+// rowEnd reports where a row fed whole ends: at its end, at a newline, or
+// at a carriage return right before one (the Reader takes it off the
+// line). A line handed to Decode has neither.
+func rowEnd(b []byte, i int) bool {
+	return i == len(b) || b[i] == '\n' || b[i] == '\r' && i+1 < len(b) && b[i+1] == '\n'
+}
+
+// cellEnd reports where a cell ends: a blank, a row's end, or a carriage
+// return (one not before a newline ends the cell, and the row then fails
+// fastRow: the general path reads it).
+func cellEnd(b []byte, i int) bool {
+	return i == len(b) || b[i] <= ' ' && cellEnders>>b[i]&1 != 0
+}
+
+// cellEnders has the bits of the bytes that end a cell.
+const cellEnders uint64 = 1<<' ' | 1<<'\t' | 1<<'\n' | 1<<'\r'
 
 // blanks is eight spaces in one word, for skipBlanks.
 const blanks = 0x2020202020202020
@@ -313,14 +370,14 @@ func plainClock(c []byte) (float64, bool) {
 	return v, ok && end == len(c)
 }
 
-// plainClockAt reads the clock that starts at line[i] and ends at the next
-// space, tab or the line's end (returned), in one pass, as parseClock
+// plainClockAt reads the clock that starts at line[i] and ends where its
+// cell ends (cellEnd; returned), in one pass, as parseClock
 // reads it: each part of at most 15 digits is an integer that
 // parseNumber reads exactly, and the seconds are summed in the same
 // order. Anything else, false (timeCell reads it).
 func plainClockAt(line []byte, i int) (float64, int, bool) {
 	// "mm:ss", the clock tables print, at once: the same two sums.
-	if j := i + 5; j <= len(line) && (j == len(line) || line[j] == ' ' || line[j] == '\t') && line[i+2] == ':' {
+	if j := i + 5; j <= len(line) && cellEnd(line, j) && line[i+2] == ':' {
 		m1, m2, s1, s2 := line[i]-'0', line[i+1]-'0', line[i+3]-'0', line[i+4]-'0'
 		if m1 <= 9 && m2 <= 9 && s1 <= 9 && s2 <= 9 {
 			return float64(m1*10+m2)*60 + float64(s1*10+s2), j, true
@@ -340,8 +397,8 @@ func plainClockAt(line []byte, i int) (float64, int, bool) {
 			parts++
 			continue
 		}
-		if ch == ' ' || ch == '\t' {
-			break
+		if ch == ' ' || ch == '\t' || ch == '\n' || ch == '\r' {
+			break // cellEnd
 		}
 		if ch-'0' > 9 || digits == 15 {
 			return 0, i, false
