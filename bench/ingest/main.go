@@ -25,7 +25,6 @@ import (
 	"runtime/trace"
 	"syscall"
 
-	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch"
 	tailpkg "github.com/fitgap/fitgap/watch/tail"
 )
@@ -114,18 +113,19 @@ func run() error {
 		return err
 	}
 	var (
-		st              watch.Stats
-		points          int
-		last            diagnose.Point
-		stepRows, sends int // per-step rows, and the batches that held any
+		st                  watch.Stats
+		points              int
+		lastEpoch, lastRows int
+		stepRows, sends     int // per-step rows, and the batches that held any
 	)
 	for b := range ch {
-		for _, p := range b.Points {
-			if p.Epoch <= last.Epoch && points > 0 {
+		for i := range b.Points {
+			p := &b.Points[i]
+			if p.Epoch <= lastEpoch && points > 0 {
 				points-- // replaces the point of its epoch (watch.Batch)
 			}
 			points++
-			last = p
+			lastEpoch, lastRows = p.Epoch, p.Rows
 		}
 		st = b.Stats
 		if n := b.Steps.Len(); n > 0 {
@@ -133,10 +133,11 @@ func run() error {
 			sends++
 		}
 		b.Steps.Release() // as the screen does once it has downsampled them
+		b.ReleasePoints() // as report does once its Tracker took them
 	}
 	tail := ""
 	if points > 0 {
-		tail = fmt.Sprintf(", last epoch %d (%d rows)", last.Epoch, last.Rows)
+		tail = fmt.Sprintf(", last epoch %d (%d rows)", lastEpoch, lastRows)
 	}
 	if *memStats {
 		var ms runtime.MemStats
