@@ -13,6 +13,8 @@
 #   INSTR=1 bench/ingest.sh      # also instruction counts (valgrind), at INSTR_LINES (200,000)
 #   BASE=/tmp/ingest.old bench/ingest.sh   # also a build of bench/ingest from another
 #                                # commit, interleaved: before and after under one load
+#   FRAME=0 bench/ingest.sh      # without the screen's first frame at the end
+#                                # (tui/first_frame.sh, when tmux is there)
 #
 # Wall times are medians over RUNS interleaved runs (the machine may be
 # shared: the load average is printed before and after); ratios are of
@@ -161,3 +163,11 @@ esac
 
 # Follow latency: write a line to a followed file, wait for its point.
 go test ./watch -run '^$' -bench FollowLatency -benchtime 500x | grep -E 'Benchmark'
+
+# The screen's first frame of a per-step log against the same epochs
+# without step rows (issue goal ≤ 2×), when tmux is there; FRAME=0 skips
+# it. Its runs are capped at 7: a frame takes a second or more.
+if [ "${FRAME:-1}" = 1 ] && command -v tmux >/dev/null; then
+	echo "first frame (tui/first_frame.sh $lines $((runs < 7 ? runs : 7))):"
+	tui/first_frame.sh "$lines" "$((runs < 7 ? runs : 7))" | sed 's/^/  /'
+fi

@@ -14,11 +14,46 @@ import "math"
 // chunk that meets a value that does not fit is widened to plain float64
 // bits at once. Epochs and line numbers are kept as int32 offsets from the
 // first value of their chunk, widened the same way.
+//
+// A chunk's values grow with the points set in it (growth below), so a
+// short run costs its values, not a whole chunk: a sweep of a thousand
+// runs of 300 epochs kept 24 KiB a run in chunks of 1,024 values, of which
+// 7 KiB were values (bench/sweep.sh, heap profile).
 
-// chunkLen is how many values a chunk holds: 4 or 8 KiB, so a short run
-// costs little more than its values and a long one a short list of chunks
-// (design choice).
+// chunkLen is how many values a chunk holds at most: 4 or 8 KiB, so a
+// long run is a short list of chunks (design choice).
 const chunkLen = 1024
+
+// minGrowth is the least room a chunk's values are grown to, and
+// growthDiv what they grow by beyond it (a quarter of their room): at most
+// a quarter of a chunk's room stands empty, and a run appended one point
+// at a time copies its chunk some 13 times on its way to 300 values (a few
+// KiB in all), where doubling would leave half the room empty (design
+// choice). Reserve gives a batch of points exactly the room it needs.
+const (
+	minGrowth = 16
+	growthDiv = 4
+)
+
+// grown returns s with at least n values (n ≤ chunkLen), the new ones
+// set to fill: s itself while its room suffices, else in new room of
+// exactly want values when more are announced (want > n, clamped to
+// chunkLen), or grown by a quarter.
+func grown[T any](s []T, n, want int, fill T) []T {
+	if n > cap(s) {
+		room := min(chunkLen, max(n, cap(s)+cap(s)/growthDiv, minGrowth))
+		if want > n {
+			room = min(chunkLen, want)
+		}
+		t := make([]T, len(s), room)
+		copy(t, s)
+		s = t
+	}
+	for len(s) < n {
+		s = append(s, fill)
+	}
+	return s
+}
 
 // maxScale is the largest power of ten a decimal chunk divides by: 10⁹ is
 // exact in float64, and nine decimals cover what logs print.
@@ -42,12 +77,14 @@ type floatColumn struct {
 }
 
 type floatChunk struct {
-	dec  *decimalChunk      // values as decimals; nil once widened
-	wide *[chunkLen]float64 // values as they are; absentValue where unset
+	dec  *decimalChunk // values as decimals; nil once widened
+	wide []float64     // values as they are; absentValue where unset or beyond
 }
 
+// decimalChunk holds the chunk's first len(m) positions; later ones are
+// absent.
 type decimalChunk struct {
-	m     [chunkLen]int32
+	m     []int32
 	scale uint8 // values are m / 10^scale
 }
 
@@ -64,7 +101,11 @@ func (c *floatColumn) at(i int) (float64, bool) {
 	ch := &c.chunks[k]
 	switch {
 	case ch.dec != nil:
-		m := ch.dec.m[i%chunkLen]
+		j := i % chunkLen
+		if j >= len(ch.dec.m) {
+			return 0, false
+		}
+		m := ch.dec.m[j]
 		switch m {
 		case codeAbsent:
 			return 0, false
@@ -77,7 +118,11 @@ func (c *floatColumn) at(i int) (float64, bool) {
 		}
 		return float64(m) / pow10[ch.dec.scale], true
 	case ch.wide != nil:
-		v := ch.wide[i%chunkLen]
+		j := i % chunkLen
+		if j >= len(ch.wide) {
+			return 0, false
+		}
+		v := ch.wide[j]
 		if math.Float64bits(v) == math.Float64bits(absentValue) {
 			return 0, false
 		}
@@ -88,7 +133,11 @@ func (c *floatColumn) at(i int) (float64, bool) {
 
 // set stores v at i. A NaN is stored as math.NaN(): the judgement does not
 // tell NaNs apart.
-func (c *floatColumn) set(i int, v float64) {
+func (c *floatColumn) set(i int, v float64) { c.setAhead(i, v, 0) }
+
+// setAhead is set where positions up to end−1 are about to be set too (a
+// batch of points): the chunk grows once to hold them.
+func (c *floatColumn) setAhead(i int, v float64, end int) {
 	if v != v {
 		v = math.NaN()
 	}
@@ -99,15 +148,17 @@ func (c *floatColumn) set(i int, v float64) {
 	ch := &c.chunks[k]
 	if ch.dec == nil && ch.wide == nil {
 		ch.dec = new(decimalChunk)
-		for j := range ch.dec.m {
-			ch.dec.m[j] = codeAbsent
+	}
+	j, want := i%chunkLen, end-k*chunkLen
+	if ch.dec != nil {
+		ch.dec.m = grown(ch.dec.m, j+1, want, codeAbsent)
+		if !ch.dec.put(j, v) {
+			ch.widen()
 		}
 	}
-	if ch.dec != nil && !ch.dec.put(i%chunkLen, v) {
-		ch.widen()
-	}
 	if ch.wide != nil {
-		ch.wide[i%chunkLen] = v
+		ch.wide = grown(ch.wide, j+1, want, absentValue)
+		ch.wide[j] = v
 	}
 }
 
@@ -171,15 +222,14 @@ func (d *decimalChunk) rescale(s uint8) bool {
 	return true
 }
 
-// widen turns a decimal chunk into plain values.
+// widen turns a decimal chunk into plain values, in room as large.
 func (ch *floatChunk) widen() {
-	w := new([chunkLen]float64)
-	for j := range w {
-		w[j] = absentValue
-	}
+	var w []float64
 	if d := ch.dec; d != nil {
+		w = make([]float64, len(d.m), cap(d.m))
 		col := floatColumn{chunks: []floatChunk{{dec: d}}}
 		for j := range w {
+			w[j] = absentValue
 			if v, ok := col.at(j); ok {
 				w[j] = v
 			}
@@ -194,27 +244,36 @@ func (c *floatColumn) truncate(n int) {
 	if n%chunkLen == 0 || n/chunkLen >= len(c.chunks) {
 		return
 	}
-	ch := &c.chunks[n/chunkLen]
-	for j := n % chunkLen; j < chunkLen; j++ {
-		switch {
-		case ch.dec != nil:
-			ch.dec.m[j] = codeAbsent
-		case ch.wide != nil:
-			ch.wide[j] = absentValue
-		}
+	ch, j := &c.chunks[n/chunkLen], n%chunkLen
+	switch {
+	case ch.dec != nil:
+		ch.dec.m = ch.dec.m[:min(j, len(ch.dec.m))]
+	case ch.wide != nil:
+		ch.wide = ch.wide[:min(j, len(ch.wide))]
 	}
 }
 
 // intColumn holds integers by position (epochs, line numbers). Only the
 // positions set are read.
+//
+// A chunk whose values so far step evenly (epochs 1, 2, 3, …; the lines of
+// a table of one row per epoch) keeps only its first value and the step:
+// nothing a value. The first value that breaks the step, or a gap, turns
+// the chunk into offsets (then plain values, as above). Each value is
+// checked as it is stored against the very sum that reads it back, in
+// the same wrapping integer arithmetic, so the values read are those set.
 type intColumn struct {
 	chunks []intChunk
 }
 
 type intChunk struct {
 	base int
-	off  *[chunkLen]int32 // values as offsets from base; nil once widened
-	wide *[chunkLen]int
+	// step and even: the chunk's first even values are base + j·step,
+	// while off and wide are nil.
+	step int
+	even int
+	off  []int32 // values as offsets from base; nil once widened
+	wide []int
 }
 
 func (c *intColumn) at(i int) int {
@@ -222,47 +281,105 @@ func (c *intColumn) at(i int) int {
 	if k >= len(c.chunks) {
 		return 0
 	}
-	ch := &c.chunks[k]
+	ch, j := &c.chunks[k], i%chunkLen
 	switch {
-	case ch.off != nil:
-		return ch.base + int(ch.off[i%chunkLen])
-	case ch.wide != nil:
-		return ch.wide[i%chunkLen]
+	case j < ch.even:
+		return ch.base + j*ch.step
+	case j < len(ch.off):
+		return ch.base + int(ch.off[j])
+	case j < len(ch.wide):
+		return ch.wide[j]
 	}
 	return 0
 }
 
-func (c *intColumn) set(i, v int) {
+func (c *intColumn) set(i, v int) { c.setAhead(i, v, 0) }
+
+// setAhead is set where positions up to end−1 are about to be set too (a
+// batch of points): the chunk grows once to hold them.
+func (c *intColumn) setAhead(i, v, end int) {
 	k := i / chunkLen
 	for len(c.chunks) <= k {
 		c.chunks = append(c.chunks, intChunk{})
 	}
 	ch := &c.chunks[k]
+	j, want := i%chunkLen, end-k*chunkLen
 	if ch.off == nil && ch.wide == nil {
-		ch.base, ch.off = v, new([chunkLen]int32)
+		switch {
+		case ch.even == 0 && j == 0:
+			ch.base, ch.even = v, 1
+			return
+		case ch.even == 1 && j == 1:
+			ch.step, ch.even = v-ch.base, 2
+			return
+		case j <= ch.even && j > 0 && v == ch.base+j*ch.step:
+			ch.even = max(ch.even, j+1)
+			return
+		case ch.even == 0:
+			ch.base = v // the chunk's first value, not at its start
+		}
+		ch.uneven(want)
 	}
 	if ch.off != nil {
 		if d := v - ch.base; d >= math.MinInt32 && d <= math.MaxInt32 && (v >= ch.base) == (d >= 0) {
-			ch.off[i%chunkLen] = int32(d)
+			ch.off = grown(ch.off, j+1, want, 0)
+			ch.off[j] = int32(d)
 			return
 		}
 		ch.widen()
 	}
-	ch.wide[i%chunkLen] = v
+	ch.wide = grown(ch.wide, j+1, want, 0)
+	ch.wide[j] = v
 }
 
-func (ch *intChunk) widen() {
-	w := new([chunkLen]int)
-	if ch.off != nil {
-		for j, d := range ch.off {
-			w[j] = ch.base + int(d)
+// maxEvenOffset bounds the step whose multiples, up to chunkLen, fit an
+// int32 offset.
+const maxEvenOffset = math.MaxInt32 / chunkLen
+
+// uneven turns a chunk of evenly stepping values into offsets from its
+// first, or plain values when the steps do not fit an int32, in room for
+// want values.
+func (ch *intChunk) uneven(want int) {
+	n := ch.even
+	ch.even = 0
+	if ch.step >= -maxEvenOffset && ch.step <= maxEvenOffset { // j·step fits an int32
+		ch.off = grown([]int32{}, n, want, 0)
+		for j := range n {
+			ch.off[j] = int32(j * ch.step)
 		}
+		return
+	}
+	ch.wide = grown([]int{}, n, want, 0)
+	for j := range n {
+		ch.wide[j] = ch.base + j*ch.step
+	}
+}
+
+// widen turns a chunk of offsets into plain values, in room as large.
+func (ch *intChunk) widen() {
+	w := make([]int, len(ch.off), max(1, cap(ch.off)))
+	for j, d := range ch.off {
+		w[j] = ch.base + int(d)
 	}
 	ch.off, ch.wide = nil, w
 }
 
 // truncate keeps the first n positions.
-func (c *intColumn) truncate(n int) { c.chunks = keepChunks(c.chunks, n) }
+func (c *intColumn) truncate(n int) {
+	c.chunks = keepChunks(c.chunks, n)
+	if n%chunkLen == 0 || n/chunkLen >= len(c.chunks) {
+		return
+	}
+	ch, j := &c.chunks[n/chunkLen], n%chunkLen
+	switch {
+	case ch.off != nil:
+		ch.off = ch.off[:min(j, len(ch.off))]
+	case ch.wide != nil:
+		ch.wide = ch.wide[:min(j, len(ch.wide))]
+	default:
+		ch.even = min(j, ch.even)
+	}
+}
 
 // keepChunks drops the chunks that hold no position below n, letting
 // their memory go.

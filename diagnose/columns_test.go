@@ -3,6 +3,7 @@ package diagnose
 import (
 	"encoding/binary"
 	"math"
+	"slices"
 	"strconv"
 	"testing"
 )
@@ -145,16 +146,25 @@ func FuzzFloatColumn(f *testing.F) {
 }
 
 func TestIntColumn(t *testing.T) {
+	const (
+		even    = "even steps"
+		offsets = "offsets"
+		plain   = "plain values"
+	)
 	tests := []struct {
 		name string
 		vals []int
-		off  bool // the chunk stays in offsets
+		kind string // how the chunk keeps them
 	}{
-		{"Epochs", []int{1, 2, 3, 5, 8}, true},
-		{"LinesGoBack", []int{1000, 2000, 2, 3}, true},
-		{"FarApartWidens", []int{0, math.MaxInt32 + 1}, false},
-		{"ExtremesWiden", []int{math.MaxInt, math.MinInt}, false},
-		{"NegativeEpochs", []int{-5, -4, -3}, true},
+		{"EvenEpochs", []int{1, 2, 3, 4, 5}, even},
+		{"EvenLines", []int{2, 5, 8, 11}, even},
+		{"Epochs", []int{1, 2, 3, 5, 8}, offsets},
+		{"LinesGoBack", []int{1000, 2000, 2, 3}, offsets},
+		{"FarApartWidens", []int{0, math.MaxInt32 + 1, 5}, plain},
+		{"ExtremesWiden", []int{math.MaxInt, math.MinInt, 0}, plain},
+		{"ExtremesStepEvenly", []int{math.MaxInt, math.MinInt}, even},
+		{"NegativeEpochs", []int{-5, -4, -3}, even},
+		{"OneValue", []int{7}, even},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -167,9 +177,144 @@ func TestIntColumn(t *testing.T) {
 					t.Errorf("at(%d) = %d, want %d", i, got, v)
 				}
 			}
-			if off := c.chunks[0].off != nil; off != tc.off {
-				t.Errorf("offsets kept %v, want %v", off, tc.off)
+			kind := even
+			if ch := c.chunks[0]; ch.off != nil {
+				kind = offsets
+			} else if ch.wide != nil {
+				kind = plain
+			}
+			if kind != tc.kind {
+				t.Errorf("kept as %s, want %s", kind, tc.kind)
 			}
 		})
 	}
+}
+
+// TestIntColumn_Truncate cuts a column of even steps and of offsets and
+// sets other values after the cut: every value reads back as set.
+func TestIntColumn_Truncate(t *testing.T) {
+	for _, tc := range []struct {
+		name       string
+		vals, then []int
+	}{
+		{"EvenThenEven", []int{1, 2, 3, 4, 5}, []int{3, 4}},
+		{"EvenThenUneven", []int{1, 2, 3, 4, 5}, []int{30, 31}},
+		{"UnevenThenEven", []int{1, 4, 9, 16}, []int{5, 6, 7}},
+		{"PastAChunk", nil, nil},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			vals, then := tc.vals, tc.then
+			if vals == nil {
+				for i := range chunkLen + 5 {
+					vals = append(vals, 10+i)
+				}
+				then = []int{1, 2}
+			}
+			var c intColumn
+			for i, v := range vals {
+				c.set(i, v)
+			}
+			cut := len(vals) - 3
+			c.truncate(cut)
+			want := append(slices.Clone(vals[:cut]), then...)
+			for i, v := range then {
+				c.set(cut+i, v)
+			}
+			for i, v := range want {
+				if got := c.at(i); got != v {
+					t.Fatalf("at(%d) = %d, want %d", i, got, v)
+				}
+			}
+		})
+	}
+}
+
+// TestFloatColumn_Room checks that a column's room follows the values set:
+// a batch announced with setAhead gets exactly its room, values set one at
+// a time leave at most a quarter of it empty, and a position past the
+// values set, or cut by truncate, reads as absent. Source: design choice
+// (columns.go, growth).
+func TestFloatColumn_Room(t *testing.T) {
+	tests := []struct {
+		name    string
+		n, end  int // values set; end announced (0: none)
+		maxRoom int
+	}{
+		{"BatchAnnounced", 300, 300, 300},
+		{"OneAtATime", 300, 0, 300 + 300/growthDiv},
+		{"Short", 3, 0, minGrowth},
+		{"PastAChunk", chunkLen + 10, chunkLen + 10, 10},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var c floatColumn
+			var e intColumn
+			for i := range tc.n {
+				c.setAhead(i, float64(i)/4, tc.end)
+				e.setAhead(i, i+1, tc.end)
+			}
+			last := c.chunks[len(c.chunks)-1]
+			if room := cap(last.dec.m); room > tc.maxRoom || room < tc.n%chunkLen {
+				t.Errorf("room of the last chunk %d, want %d to %d", room, tc.n%chunkLen, tc.maxRoom)
+			}
+			if room := cap(e.chunks[len(e.chunks)-1].off); room > tc.maxRoom {
+				t.Errorf("room of the last epoch chunk %d, want at most %d", room, tc.maxRoom)
+			}
+			for i := range tc.n {
+				if v, ok := c.at(i); !ok || v != float64(i)/4 || e.at(i) != i+1 {
+					t.Fatalf("at(%d) = %v, %v, %d", i, v, ok, e.at(i))
+				}
+			}
+			if _, ok := c.at(tc.n); ok {
+				t.Errorf("at(%d) is set past the values", tc.n)
+			}
+			c.truncate(tc.n - 2)
+			c.set(tc.n, 1)
+			if _, ok := c.at(tc.n - 1); ok {
+				t.Errorf("at(%d) is set after truncate(%d)", tc.n-1, tc.n-2)
+			}
+		})
+	}
+}
+
+// FuzzIntColumn appends values from arbitrary bytes in order, as the
+// history does (some continuing the last step, some anywhere), with
+// truncations, and compares every read with a plain slice.
+func FuzzIntColumn(f *testing.F) {
+	f.Add([]byte{1, 1, 0, 0, 0, 0, 0, 0, 0, 1, 2, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0xff, 1, 0, 0, 0, 0, 0, 0, 0})
+	f.Add([]byte{1, 0xff, 0xff, 0xff, 0xff, 0xff, 0xff, 0xff, 0x7f, 1, 0, 0, 0, 0, 0, 0, 0, 0x80, 0, 0, 0, 0, 0, 0, 0, 0, 0})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		var c intColumn
+		var want []int
+		for len(data) >= 9 {
+			op, v := data[0], int(int64(binary.LittleEndian.Uint64(data[1:9])))
+			data = data[9:]
+			switch {
+			case op == 0xff:
+				n := int(uint(v) % uint(len(want)+1))
+				c.truncate(n)
+				want = want[:n]
+				continue
+			case op&3 == 0 && len(want) >= 2:
+				v = 2*want[len(want)-1] - want[len(want)-2] // the same step again
+			case op&3 == 2:
+				// A long run of even steps, past a chunk's end.
+				for range int(op) * 5 {
+					if len(want) < 2 {
+						break
+					}
+					w := 2*want[len(want)-1] - want[len(want)-2]
+					c.set(len(want), w)
+					want = append(want, w)
+				}
+			}
+			c.set(len(want), v)
+			want = append(want, v)
+		}
+		for i, w := range want {
+			if got := c.at(i); got != w {
+				t.Fatalf("at(%d) = %d, want %d", i, got, w)
+			}
+		}
+	})
 }

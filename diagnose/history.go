@@ -23,6 +23,9 @@ type history struct {
 	// sample, whatever its base or split (it makes the point diverging).
 	bad   []badMark
 	names []string // column names of bad marks, each kept once
+	// ahead is the position a batch being added is to reach (Reserve):
+	// the columns grow once to hold it.
+	ahead int
 }
 
 type segRun struct{ from, segment int }
@@ -90,8 +93,8 @@ func (h *history) seriesOf(base string, split Split) int {
 func (h *history) add(p *Point, keep func(c *Column) int) {
 	i := h.n
 	h.n++
-	h.epochs.set(i, p.Epoch)
-	h.lines.set(i, p.Line)
+	h.epochs.setAhead(i, p.Epoch, h.ahead)
+	h.lines.setAhead(i, p.Line, h.ahead)
 	if len(h.segs) == 0 && p.Segment != 0 || len(h.segs) > 0 && h.segs[len(h.segs)-1].segment != p.Segment {
 		h.segs = append(h.segs, segRun{from: i, segment: p.Segment})
 	}
@@ -107,7 +110,7 @@ func (h *history) add(p *Point, keep func(c *Column) int) {
 			h.bad = append(h.bad, badMark{i: i, name: h.nameID(c.Name), value: smp.Value})
 		}
 		if s := keep(c); s >= 0 {
-			h.series[s].vals.set(i, smp.Value)
+			h.series[s].vals.setAhead(i, smp.Value, h.ahead)
 		}
 	}
 }

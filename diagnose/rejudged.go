@@ -1,5 +1,7 @@
 package diagnose
 
+import "slices"
+
 // Rejudged returns a new Tracker that holds the same points as t, judged
 // with cfg: the screen's "what if" (another optimal error, another metric)
 // while t, which other readers share, stays as it is. It costs one copy of
@@ -39,12 +41,10 @@ func (c *floatColumn) clone() floatColumn {
 	out := floatColumn{chunks: make([]floatChunk, len(c.chunks))}
 	for i, ch := range c.chunks {
 		if ch.dec != nil {
-			d := *ch.dec
-			out.chunks[i].dec = &d
+			out.chunks[i].dec = &decimalChunk{m: slices.Clone(ch.dec.m), scale: ch.dec.scale}
 		}
 		if ch.wide != nil {
-			w := *ch.wide
-			out.chunks[i].wide = &w
+			out.chunks[i].wide = slices.Clone(ch.wide)
 		}
 	}
 	return out
@@ -53,14 +53,12 @@ func (c *floatColumn) clone() floatColumn {
 func (c *intColumn) clone() intColumn {
 	out := intColumn{chunks: make([]intChunk, len(c.chunks))}
 	for i, ch := range c.chunks {
-		out.chunks[i].base = ch.base
+		out.chunks[i].base, out.chunks[i].step, out.chunks[i].even = ch.base, ch.step, ch.even
 		if ch.off != nil {
-			o := *ch.off
-			out.chunks[i].off = &o
+			out.chunks[i].off = slices.Clone(ch.off)
 		}
 		if ch.wide != nil {
-			w := *ch.wide
-			out.chunks[i].wide = &w
+			out.chunks[i].wide = slices.Clone(ch.wide)
 		}
 	}
 	return out

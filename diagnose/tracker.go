@@ -11,11 +11,12 @@ import "sort"
 // replaces the judgements from that epoch on (a run resumed from a
 // checkpoint, or a reader refining a point it already handed on).
 //
-// Cost: the Tracker keeps the inputs of each point compactly (its epoch,
-// its line and the values of each judgeable series: about 48 bytes for a
-// log of train and validation loss and accuracy) and a copy of its running
-// state every ckptEvery points (about 14 bytes per point), never a Point
-// or a judgement. Add does O(1) work from the state of the previous point
+// Cost: the Tracker keeps the inputs of each point compactly (its epoch
+// and line, nothing while they step evenly, and the values of each
+// judgeable series, 4 bytes each for printed decimals: 30 bytes a point
+// for a log of train and validation loss and accuracy, BenchmarkTrackerMemory)
+// and a copy of its running state every ckptEvery points (about 14 bytes
+// per point), never a Point or a judgement. Add does O(1) work from the state of the previous point
 // plus one strip of look-back at strip ends; At(i) restores the copy at or
 // before i and judges at most ckptEvery−1 points again (tens of µs); a
 // rewind does the same at the point it goes back to.
@@ -26,10 +27,13 @@ import "sort"
 // new terms (Revision counts it); that happens at most a few times per
 // log.
 type Tracker struct {
-	cfg   Config // normalized
-	hist  history
-	cur   state    // the state after the last point
-	ckpts []*state // ckpts[c]: the state before point c·ckptEvery
+	cfg  Config // normalized
+	hist history
+	cur  state // the state after the last point
+	// ckpts[c] is the state before point c·ckptEvery; ckpts[0] is nil,
+	// since the state before the first point is always newState() (a
+	// thousand runs of 300 epochs kept 1.7 MB of it).
+	ckpts []*state
 	// lastRec is the record of the last point (cur is the state after it).
 	lastRec rec
 	// revision counts the times every kept point was judged again.
@@ -61,8 +65,10 @@ type Tracker struct {
 	bayesNote    string
 
 	// last caches the judgement of the last point: Latest and At(n−1)
-	// after Add return it without building the texts again.
-	last      Judgement
+	// after Add return it without building the texts again. It is
+	// allocated by the first Add: a Tracker fed by Push alone (a sweep's
+	// runs) keeps no room for it (760 bytes).
+	last      *Judgement
 	lastValid bool
 	scratch   text // the texts of Add's judgements are built here
 }
@@ -128,9 +134,17 @@ func (t *Tracker) Metrics() []string {
 // itself: p may be reused afterwards.
 func (t *Tracker) Add(p Point) Judgement {
 	t.Push(p)
-	t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
+	t.keepLast()
+	return *t.last
+}
+
+// keepLast judges the last point into the cache Latest reads.
+func (t *Tracker) keepLast() {
+	if t.last == nil {
+		t.last = new(Judgement)
+	}
+	*t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
 	t.lastValid = true
-	return t.last
 }
 
 // Push is Add without building the judgement of p: for reading a whole
@@ -149,6 +163,11 @@ func (t *Tracker) Push(p Point) {
 		t.advance(t.hist.n - 1)
 	}
 }
+
+// Reserve says that the next n points are about to be pushed (a batch of
+// a log's backlog): the history grows once to hold them, not step by step
+// with room to spare. It changes no judgement.
+func (t *Tracker) Reserve(n int) { t.hist.ahead = t.hist.n + max(0, n) }
 
 // keep returns the series that holds metric column c, or -1 when its base
 // cannot be judged (learn has seen every base of the point).
@@ -171,7 +190,9 @@ func (t *Tracker) keep(c *Column) int {
 func (t *Tracker) advance(i int) {
 	if i%ckptEvery == 0 {
 		c := i / ckptEvery
-		if c < len(t.ckpts) {
+		if c == 0 {
+			t.ckpts = append(t.ckpts[:0], nil)
+		} else if c < len(t.ckpts) {
 			*t.ckpts[c] = t.cur
 			t.ckpts = t.ckpts[:c+1]
 		} else {
@@ -189,19 +210,27 @@ func (t *Tracker) At(i int) Judgement {
 	n := t.hist.n
 	if i == n-1 {
 		if t.lastValid {
-			return t.last
+			return *t.last
 		}
 		return t.judgement(i, &t.lastRec, &t.cur, nil)
 	}
 	// Judge again from the state copy at or before i: the same inputs in
 	// the same order give the same record, bit for bit.
 	c := i / ckptEvery
-	st := *t.ckpts[c]
+	st := t.ckpt(c)
 	var r rec
 	for k := c * ckptEvery; k <= i; k++ {
 		t.step(&st, k, &r)
 	}
 	return t.judgement(i, &r, &st, nil)
+}
+
+// ckpt returns the state before point c·ckptEvery.
+func (t *Tracker) ckpt(c int) state {
+	if p := t.ckpts[c]; p != nil {
+		return *p
+	}
+	return newState()
 }
 
 func (t *Tracker) check(i int) {
@@ -225,8 +254,7 @@ func (t *Tracker) Reconfigure(cfg Config) {
 	t.choose()
 	t.replay()
 	if t.hist.n > 0 {
-		t.last = t.judgement(t.hist.n-1, &t.lastRec, &t.cur, &t.scratch)
-		t.lastValid = true
+		t.keepLast()
 	}
 }
 
@@ -241,7 +269,7 @@ func (t *Tracker) truncate(epoch int) {
 	// (same inputs, same records).
 	c := n / ckptEvery
 	if c < len(t.ckpts) {
-		t.cur = *t.ckpts[c]
+		t.cur = t.ckpt(c)
 		t.ckpts = t.ckpts[:c]
 	}
 	for i := c * ckptEvery; i < n; i++ {

@@ -168,6 +168,9 @@ func (r *Run) Apply(b watch.Batch) Update {
 	r.mu.Unlock()
 	if len(b.Points) > 0 {
 		u.Judgements = make([]diagnose.Judgement, 0, len(b.Points))
+		r.mu.Lock()
+		r.tracker.Reserve(len(b.Points))
+		r.mu.Unlock()
 	}
 	for i := range b.Points {
 		p := &b.Points[i]
@@ -231,6 +234,7 @@ func (r *Run) Load(b watch.Batch) error {
 	if err := r.checkLocked(); err != nil {
 		return err
 	}
+	r.tracker.Reserve(len(b.Points))
 	for i := range b.Points {
 		r.tracker.Push(b.Points[i])
 		r.took(&b.Points[i])

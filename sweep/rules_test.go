@@ -64,6 +64,26 @@ func TestCurve_MeanBestFrom(t *testing.T) {
 	}
 }
 
+// TestCurve_RewindPastNonFinite rewinds a curve to before its non-finite
+// values: the running mean counts the values that replace them, and the
+// best is found among the points kept. Source: the running mean checked
+// against gonum's stat.Mean on the same values.
+func TestCurve_RewindPastNonFinite(t *testing.T) {
+	c := curveOf(0.5, 0.4, math.NaN(), math.Inf(1), 0.1)
+	c.Set(2, []int{3, 4}, []float64{0.45, 0.3})
+	m, ok := c.MeanBy(4)
+	if want := stat.Mean([]float64{0.5, 0.4, 0.45, 0.3}, nil); !ok || math.Abs(m-want) > 1e-15 {
+		t.Errorf("MeanBy(4) = %v, %v; want %v (gonum stat.Mean)", m, ok, want)
+	}
+	if b, ok := c.BestBy(4); !ok || b != 0.3 {
+		t.Errorf("BestBy(4) = %v, %v; want 0.3", b, ok)
+	}
+	only := curveOf(math.NaN())
+	if _, ok := only.BestBy(1); ok {
+		t.Error("BestBy of a curve of NaN only should have no value")
+	}
+}
+
 // TestMedian_WorkedByHand applies the median stopping rule as Golovin et
 // al. state it (KDD 2017, §3.2: stop a pending trial at step s when its
 // best objective by s is strictly worse than the median of the running

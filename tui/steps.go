@@ -4,6 +4,7 @@ import (
 	"math"
 	"sort"
 
+	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/tui/chart"
 )
 
@@ -48,6 +49,39 @@ func (s *stepSeries) add(step int64, v float64) {
 		}
 	}
 	s.addBlock(step, v)
+}
+
+// addRun appends the samples of a run of per-step rows whose steps go up
+// (stepRun): row k's step and its value vals[at+k*stride]. It does what
+// add does for each sample in turn, but fills the last block in one loop
+// of comparisons while it has room, with the block's range in registers;
+// a sample that opens a block, or goes back from the block before, takes
+// addBlock.
+func (s *stepSeries) addRun(run []diagnose.StepRowAt, vals []float64, at, stride int) {
+	for k := 0; k < len(run); {
+		n := len(s.blocks)
+		if n == 0 || s.blocks[n-1].n >= s.width || run[k].Step <= s.blocks[n-1].last {
+			s.addBlock(run[k].Step, vals[at+k*stride])
+			k++
+			continue
+		}
+		b := &s.blocks[n-1]
+		end := min(len(run), k+int(s.width-b.n))
+		lo, hi := b.lo, b.hi
+		vs := vals[at+k*stride : at+(end-1)*stride+1] // its values, a stride apart
+		for i := 0; i < len(vs); i += stride {
+			if f := float32(vs[i]); f-f == 0 { // as take does
+				if f < lo {
+					lo = f
+				}
+				if f > hi {
+					hi = f
+				}
+			}
+		}
+		b.last, b.lo, b.hi, b.n = run[end-1].Step, lo, hi, b.n+int32(end-k)
+		k = end
+	}
 }
 
 // addBlock appends a sample that opens a block, after dropping the samples

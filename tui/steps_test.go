@@ -1,7 +1,11 @@
 package tui
 
 import (
+	"fmt"
+	"maps"
 	"math"
+	"math/rand"
+	"slices"
 	"testing"
 
 	"github.com/fitgap/fitgap/diagnose"
@@ -220,5 +224,108 @@ func TestStore_AddSteps(t *testing.T) {
 	s.addSteps(&more)
 	if ss := s.steps["val_loss"]; ss == nil || len(ss.blocks) != 1 {
 		t.Errorf("val_loss not stored once its column was described: %+v", ss)
+	}
+}
+
+// addStepsByRow is the reference for store.addSteps: each row in turn,
+// each value by stepSeries.add, as the store did before it took runs.
+func (s *store) addStepsByRow(rows *diagnose.StepRows) {
+	shapes := s.shapeFeeds(rows)
+	for _, r := range rows.Rows {
+		if r.Step < 0 || !rows.Valid(r) {
+			continue
+		}
+		s.clock.observe(int(r.Epoch), r.Step)
+		vals := rows.Values[r.From:]
+		for _, f := range shapes[r.Shape] {
+			v, c := vals[f.at], f.col
+			if c.bounded && v > 1 && !c.seen {
+				c.seen = true
+				s.percent[c.base] = true
+			}
+			c.series.add(r.Step, v)
+		}
+	}
+}
+
+// TestStore_AddStepsByRuns: taking rows a run at a time stores the same
+// blocks, clock and percent marks as taking them one by one, over random
+// batches with resumed runs (steps and epochs going back), rows without a
+// step, NaN, ±Inf, values beyond float32's range and −0, other shapes between runs, values of another row
+// order (From not following), a last row whose values are cut short, and
+// enough rows to merge blocks.
+// Source: common practice (a fast path checked against the plain one).
+func TestStore_AddStepsByRuns(t *testing.T) {
+	cols := []diagnose.Column{
+		metricCol("train_acc", "acc", diagnose.SplitTrain, diagnose.HigherIsBetter, true),
+		otherCol("lr"),
+		metricCol("loss", "loss", diagnose.SplitTrain, diagnose.LowerIsBetter, false),
+	}
+	for seed := int64(1); seed <= 40; seed++ {
+		t.Run(fmt.Sprintf("Seed%d", seed), func(t *testing.T) {
+			rng := rand.New(rand.NewSource(seed))
+			runs, rows := newStore(), newStore()
+			step, epoch := int64(rng.Intn(5)), int32(1)
+			for batch := 0; batch < 6; batch++ {
+				b := diagnose.StepRows{Columns: cols}
+				n := rng.Intn(3000) + 1
+				if seed%4 == 0 {
+					n = 8192 * 2 // blocks merge
+				}
+				for k := 0; k < n; k++ {
+					switch x := rng.Intn(1000); {
+					case x < 3:
+						step -= int64(rng.Intn(50)) // resumed
+					case x < 6:
+						epoch = max(1, epoch-int32(rng.Intn(3)))
+					case x < 20:
+						epoch++
+					}
+					step += int64(rng.Intn(3)) // sometimes the same step again
+					r := diagnose.StepRowAt{Epoch: epoch, Step: step}
+					if rng.Intn(200) == 0 {
+						r.Step = -1
+					}
+					v := rng.Float64() * 1.2
+					switch rng.Intn(300) {
+					case 0:
+						v = math.NaN()
+					case 1:
+						v = math.Inf(1)
+					case 2:
+						v = 1e39 // finite, beyond float32's range
+					case 3:
+						v = -math.MaxFloat32
+					case 4:
+						v = math.Copysign(0, -1)
+					}
+					if rng.Intn(50) == 0 {
+						b.Append(r, diagnose.StepValue{Col: 2, V: v})
+					} else {
+						b.Append(r, diagnose.StepValue{Col: 0, V: v}, diagnose.StepValue{Col: 1, V: 0.1}, diagnose.StepValue{Col: 2, V: v * 3})
+					}
+				}
+				if seed%5 == 0 && len(b.Rows) > 2 {
+					b.Rows[1].From, b.Rows[2].From = b.Rows[2].From, b.Rows[1].From // values out of row order
+				}
+				if seed%7 == 0 {
+					b.Values = b.Values[:len(b.Values)-2] // the last row's values cut short
+				}
+				runs.addSteps(&b)
+				rows.addStepsByRow(&b)
+			}
+			for name, want := range rows.steps {
+				got := runs.steps[name]
+				if got == nil || got.width != want.width || !slices.Equal(got.blocks, want.blocks) {
+					t.Fatalf("series %s: runs and rows differ (%d and %d blocks)", name, len(got.blocks), len(want.blocks))
+				}
+			}
+			if runs.clock.first != rows.clock.first || !slices.Equal(runs.clock.ends, rows.clock.ends) {
+				t.Errorf("clock: runs %v %v, rows %v %v", runs.clock.first, runs.clock.ends, rows.clock.first, rows.clock.ends)
+			}
+			if !maps.Equal(runs.percent, rows.percent) {
+				t.Errorf("percent: runs %v, rows %v", runs.percent, rows.percent)
+			}
+		})
 	}
 }

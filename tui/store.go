@@ -204,28 +204,85 @@ type stepCol struct {
 // addSteps stores per-step rows: their metric columns, and their places
 // on the epoch axis. A column is looked up by name once, when it first
 // comes, and a shape of the batch's rows is resolved to the series its
-// values feed once a batch; a value then costs an index and a min/max
-// into its series' last block (tui/addsteps_bench_test.go).
+// values feed once a batch. The rows are then taken a run at a time (rows
+// of one epoch and shape whose steps go up and whose values follow each
+// other: nearly a whole batch of a per-step log), and each series takes its values of the run
+// in one loop that fills its last block (stepSeries.addRun), instead of a
+// shape lookup and a call per value (tui/addsteps_bench_test.go). The
+// result is that of adding the rows one by one (TestStore_AddStepsByRuns).
 func (s *store) addSteps(rows *diagnose.StepRows) {
 	if len(rows.Rows) == 0 {
 		return
 	}
 	shapes := s.shapeFeeds(rows)
-	for _, r := range rows.Rows {
-		if r.Step < 0 || !rows.Valid(r) {
+	all := rows.Rows
+	for i := 0; i < len(all); {
+		j := stepRun(rows, i)
+		if j == i {
+			i++ // a row without a step, or one outside the arrays
 			continue
 		}
-		s.clock.observe(int(r.Epoch), r.Step)
-		vals := rows.Values[r.From:]
+		r, run := all[i], all[i:j]
+		s.observeRun(run)
+		width := len(rows.Shapes[r.Shape])
+		vals := rows.Values[r.From : int(r.From)+len(run)*width]
 		for _, f := range shapes[r.Shape] {
-			v, c := vals[f.at], f.col
-			if c.bounded && v > 1 && !c.seen {
+			c := f.col
+			if c.bounded && !c.seen && anyAbove(vals, f.at, width, 1) {
 				c.seen = true
 				s.percent[c.base] = true
 			}
-			c.series.add(r.Step, v)
+			c.series.addRun(run, vals, f.at, width)
+		}
+		i = j
+	}
+}
+
+// stepRun returns the end of the run of rows that starts at row i: rows
+// with a step above the row before's, of row i's epoch and shape, each
+// row's values right after the row before's, all within rows' arrays. It
+// returns i when row i starts none (no step, or not Valid).
+func stepRun(rows *diagnose.StepRows, i int) int {
+	all := rows.Rows
+	r := all[i]
+	if r.Step < 0 || !rows.Valid(r) {
+		return i
+	}
+	width := int32(len(rows.Shapes[r.Shape]))
+	next, last, prev := r.From+width, int32(len(rows.Values))-width, r.Step
+	j := i + 1
+	for ; j < len(all); j++ {
+		q := &all[j]
+		if q.From != next || q.Step <= prev || q.Shape != r.Shape || q.Epoch != r.Epoch || next > last {
+			break
+		}
+		next += width
+		prev = q.Step
+	}
+	return j
+}
+
+// observeRun notes a run's steps on the clock. The rows share an epoch
+// and their steps go up, so after the first row each only moves that
+// epoch's last step on (stepClock.observe; the first step of the clock
+// moves only to a step below it, which no later row of the run is): the
+// last row says what all of them would.
+func (s *store) observeRun(run []diagnose.StepRowAt) {
+	s.clock.observe(int(run[0].Epoch), run[0].Step)
+	if n := len(run); n > 1 {
+		s.clock.observe(int(run[n-1].Epoch), run[n-1].Step)
+	}
+}
+
+// anyAbove reports whether a value of vals[at], vals[at+stride], … is
+// above limit.
+func anyAbove(vals []float64, at, stride int, limit float64) bool {
+	for k := at; k < len(vals); k += stride {
+		if vals[k] > limit {
+			return true
 		}
 	}
+	return false
 }
 
 // shapeFeed is a value of a row of one shape that feeds a series: its

@@ -87,6 +87,11 @@ func TestView_Golden(t *testing.T) {
 		{"forecast_120x40", 120, 40, forecastRun, nil, false, false},
 		{"forecast_inspect_120x40", 120, 40, forecastRun, []string{"left", "left", "left", "left", "left", "left", "left", "left", "left", "left"}, true, false},
 		{"forecast_off_80x24", 80, 24, forecastRun, []string{"f"}, false, false},
+		// Validation below training (augmentation or dropout at training
+		// time, an easier validation split): the variance part is negative,
+		// drawn as none in the bar, its number kept with its sign, and the
+		// total adds up to the training value.
+		{"negvariance_80x24", 80, 24, runSpec{epochs: 20, total: 60, trainBase: 0.10, valBase: 0.07}, nil, false, false},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

@@ -44,9 +44,13 @@ type ingester struct {
 	firstEpoch      int
 	pointsSeen      int
 	secondEpoch     bool
-	// lastPoints, lastSteps and lastValues are how many points, per-step
-	// rows and their values the last batch held.
-	lastPoints, lastSteps, lastValues int
+	// lastPoints, lastSamples, lastSteps and lastValues are how many
+	// points, samples, per-step rows and their values the last batch held.
+	lastPoints, lastSamples, lastSteps, lastValues int
+	// room holds the batch's points and samples (nil before its first
+	// point); samples counts the samples copied into it.
+	room    *pointRoom
+	samples int
 	// merged: the batch holds pieces of the parallel backlog, whose
 	// workers' rows it took whole; its size says nothing of the room the
 	// rows the Reader adds itself will need (those before a piece's sync
@@ -70,14 +74,30 @@ func newIngester(opts Options, out chan<- Batch, now func() time.Time) *ingester
 // written as an evaluation row and a summary row, goes out as its last
 // version).
 func (g *ingester) Point(p diagnose.Point) {
-	if g.batch.Points == nil {
-		// As many as the last batch held (a backlog fills batches), so
-		// that a batch is not copied as it grows: a piece of the backlog
-		// decoded ahead is merged whole before the batch is handed on, so
-		// a batch holds up to a piece's points (about 5,000 lines of a
-		// table in 256 KiB), not batchPoints, and growing it from 1,000
-		// cost a sixth of reading a table.
-		g.batch.Points = make([]diagnose.Point, 0, max(8, g.lastPoints))
+	if g.room == nil {
+		// Arrays a consumer released (Batch.ReleasePoints), or as many as
+		// the last batch held (a backlog fills batches), so that a batch
+		// is not copied as it grows: a piece of the backlog decoded ahead
+		// is merged whole before the batch is handed on, so a batch holds
+		// up to a piece's points (about 5,000 lines of a table in
+		// 256 KiB), not batchPoints, and growing it from 1,000 cost a
+		// sixth of reading a table.
+		g.room = newRoom(max(8, g.lastPoints), max(8, g.lastSamples))
+		g.batch.Points = g.room.points
+		g.samples = 0
+	}
+	// The samples are the Assembler's scratch: copied into the batch's
+	// array. When it is full a new one is started (the points before
+	// keep theirs; only the last goes round).
+	if n := len(p.Samples); n > 0 {
+		s := g.room.samples
+		if cap(s)-len(s) < n {
+			s = make([]diagnose.Sample, 0, max(n, 2*cap(s), 64))
+		}
+		s = append(s, p.Samples...)
+		p.Samples = s[len(s)-n : len(s) : len(s)]
+		g.room.samples = s
+		g.samples += n
 	}
 	g.batch.Points = points.Append(g.batch.Points, p)
 	switch {
@@ -189,6 +209,11 @@ func (g *ingester) take() Batch {
 	b := g.batch
 	g.batch = Batch{}
 	g.lastPoints = len(b.Points)
+	if r := g.room; r != nil {
+		r.points = b.Points
+		b.room, b.round = r, r.round.Load()
+		g.room, g.lastSamples = nil, g.samples
+	}
 	g.lastSteps, g.lastValues = len(b.Steps.Rows), len(b.Steps.Values)
 	if g.merged {
 		g.lastSteps, g.lastValues, g.merged = 0, 0, false

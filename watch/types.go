@@ -160,6 +160,11 @@ type Batch struct {
 	// follows at once. A consumer may leave what only the newest state
 	// needs (a forecast) to a batch without More.
 	More bool
+
+	// room holds the arrays of Points and their samples (ReleasePoints),
+	// in the round it was in when the batch was taken.
+	room  *pointRoom
+	round uint64
 }
 
 // AppendPoint adds p to points with the replacement rule of Batch: points

@@ -10,7 +10,8 @@
 //	ingest -memstats FILE         also print the bytes allocated and the GC cycles
 //	ingest -piece BYTES FILE      cut the backlog into pieces of BYTES (tail.PieceBytes)
 //	ingest -busyload L FILE       read on one core from load average L per core (0: never; tail.BusyLoadPerCore)
-//	ingest -steps FILE     also make the per-step rows (the live screen's reading)
+//	ingest -steps FILE     also make the per-step rows (the live screen's reading),
+//	                       and say how many rows came in how many batches
 package main
 
 import (
@@ -24,7 +25,6 @@ import (
 	"runtime/trace"
 	"syscall"
 
-	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch"
 	tailpkg "github.com/fitgap/fitgap/watch/tail"
 )
@@ -113,29 +113,39 @@ func run() error {
 		return err
 	}
 	var (
-		st     watch.Stats
-		points int
-		last   diagnose.Point
+		st                  watch.Stats
+		points              int
+		lastEpoch, lastRows int
+		stepRows, sends     int // per-step rows, and the batches that held any
 	)
 	for b := range ch {
-		for _, p := range b.Points {
-			if p.Epoch <= last.Epoch && points > 0 {
+		for i := range b.Points {
+			p := &b.Points[i]
+			if p.Epoch <= lastEpoch && points > 0 {
 				points-- // replaces the point of its epoch (watch.Batch)
 			}
 			points++
-			last = p
+			lastEpoch, lastRows = p.Epoch, p.Rows
 		}
 		st = b.Stats
+		if n := b.Steps.Len(); n > 0 {
+			stepRows += n
+			sends++
+		}
 		b.Steps.Release() // as the screen does once it has downsampled them
+		b.ReleasePoints() // as report does once its Tracker took them
 	}
 	tail := ""
 	if points > 0 {
-		tail = fmt.Sprintf(", last epoch %d (%d rows)", last.Epoch, last.Rows)
+		tail = fmt.Sprintf(", last epoch %d (%d rows)", lastEpoch, lastRows)
 	}
 	if *memStats {
 		var ms runtime.MemStats
 		runtime.ReadMemStats(&ms)
 		fmt.Fprintf(os.Stderr, "allocated %.2f MB in %d objects, %d GC cycles\n", float64(ms.TotalAlloc)/1e6, ms.Mallocs, ms.NumGC)
+	}
+	if *steps {
+		tail += fmt.Sprintf(", %d per-step rows in %d batches", stepRows, sends)
 	}
 	fmt.Printf("%s: %d lines, %d points, %d skipped%s\n", st.Format, st.Lines, points, st.Skipped, tail)
 	return nil

@@ -5,6 +5,7 @@
 //	go run ./bench/sweepbench append -runs 100 -every 1s -for 30s DIR
 //	go run ./bench/sweepbench touch DIR RUN        (one epoch appended to one run)
 //	go run ./bench/sweepbench screen -fitgap BIN [-poll 2s] DIR   (the run table, measured)
+//	go run ./bench/sweepbench heap [-for 8s] [-profile P] DIR    (the live heap of following DIR)
 //
 // The runs are invented: a validation error that falls towards a floor
 // set by the run's learning rate and width, with noise, in three layouts
@@ -28,7 +29,7 @@ import (
 
 func main() {
 	if len(os.Args) < 2 {
-		fmt.Fprintln(os.Stderr, "usage: sweepbench build|append|touch|screen [flags] DIR")
+		fmt.Fprintln(os.Stderr, "usage: sweepbench build|append|touch|screen|heap [flags] DIR")
 		os.Exit(2)
 	}
 	var err error
@@ -41,6 +42,8 @@ func main() {
 		err = touch(os.Args[2:])
 	case "screen":
 		err = screen(os.Args[2:])
+	case "heap":
+		err = heap(os.Args[2:])
 	default:
 		err = fmt.Errorf("unknown command %q", os.Args[1])
 	}

@@ -121,6 +121,7 @@ func judgeWholeLog(src pipeline.Source, opts pipeline.Options) (*pipeline.Run, e
 		if err := run.Load(b); err != nil {
 			return nil, runError(src.Name(), err)
 		}
+		b.ReleasePoints() // the run keeps nothing of them: the reader fills them again
 	}
 	if run.Len() == 0 {
 		return nil, emptyLogError(src.Name(), run.Stats())

@@ -196,9 +196,9 @@ func (s *Sweep) observeFrom(e *entry, fromEpoch int, revision uint64) {
 			fromEpoch = math.MinInt
 		}
 		// The tracker's points from fromEpoch on replace the curve's.
+		// (Into the sweep's scratch room: Set copies them.)
 		k := sort.Search(t.Len(), func(i int) bool { return t.Epoch(i) >= fromEpoch })
-		epochs := make([]int, 0, t.Len()-k)
-		vals := make([]float64, 0, t.Len()-k)
+		epochs, vals := s.scratchEpochs[:0], s.scratchVals[:0]
 		for i := k; i < t.Len(); i++ {
 			if v := t.Logged(i, diagnose.SplitVal); v.OK {
 				epochs = append(epochs, t.Epoch(i))
@@ -206,6 +206,7 @@ func (s *Sweep) observeFrom(e *entry, fromEpoch int, revision uint64) {
 			}
 		}
 		curve.Set(curve.IndexOf(fromEpoch), epochs, vals)
+		s.scratchEpochs, s.scratchVals = epochs, vals
 		s.dom.CurveChanged(e.id)
 	})
 	s.dom.Observe(e.id, o)

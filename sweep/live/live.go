@@ -78,6 +78,10 @@ type Sweep struct {
 	// fcTokensAt (forecasts.go).
 	fcTokens   float64
 	fcTokensAt time.Time
+	// scratchEpochs and scratchVals are observe's room for the points
+	// a batch changed, reused from run to run.
+	scratchEpochs []int
+	scratchVals   []float64
 }
 
 // maxNotices bounds the notices kept for the screen.

@@ -104,12 +104,16 @@ func (s *Sweep) loadOne(ctx context.Context, e *entry) {
 				total = b.Points[i].Total
 			}
 		}
-		last = b
 		for _, n := range b.Notices {
 			s.mu.Lock()
 			s.notice(e.found.Name + ": " + n.Text)
 			s.mu.Unlock()
 		}
+		// The Tracker and the constants copied what they keep: the
+		// arrays go back to the reader (only the last batch's Stats are
+		// used below).
+		b.ReleasePoints()
+		last = b
 	}
 	// A snapshot: the log was last written when the file was.
 	if fi, err := os.Stat(e.found.Path); err == nil {

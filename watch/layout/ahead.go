@@ -171,7 +171,10 @@ type collector struct {
 	// row per epoch holds thousands, which a growing slice would copy
 	// again and again.
 	points [][]diagnose.Point
-	steps  diagnose.StepRows
+	// samples hold the points' samples (the Assembler's are scratch), in
+	// chunks that go round like the points'.
+	samples [][]diagnose.Sample
+	steps   diagnose.StepRows
 	// frontRows and frontValues are room reserved in front of steps.Rows
 	// and steps.Values, in the same arrays, for the rows the Reader reads
 	// itself before the sync line: takeSteps puts them there rather than
@@ -213,23 +216,52 @@ func (c *collector) Point(p diagnose.Point) {
 		}
 		c.points = append(c.points, chunk)
 	}
+	n := len(p.Samples)
+	if k := len(c.samples); k == 0 || cap(c.samples[k-1])-len(c.samples[k-1]) < n {
+		var chunk []diagnose.Sample
+		if s, ok := sampleChunks.Get().(*[]diagnose.Sample); ok && cap(*s) >= n {
+			chunk = (*s)[:0]
+		} else if k == 0 {
+			chunk = make([]diagnose.Sample, 0, max(n, firstSampleChunk))
+		} else {
+			chunk = make([]diagnose.Sample, 0, max(n, sampleChunk))
+		}
+		c.samples = append(c.samples, chunk)
+	}
+	s := &c.samples[len(c.samples)-1]
+	*s = append(*s, p.Samples...)
+	p.Samples = (*s)[len(*s)-n : len(*s) : len(*s)]
 	last := &c.points[len(c.points)-1]
 	*last = append(*last, p)
 }
 
-// chunks are collectors' chunks whose points were handed on: the pieces of
-// a backlog reuse them.
-var chunks sync.Pool
+// sampleChunk is how many samples one chunk of a collector holds: a
+// piece of a table's log (about 5,000 rows of four values) fills a few.
+// Unit: samples.
+const sampleChunk = 4096
 
-// release hands the collector's chunks back, cleared (their points refer
-// to samples that must not be kept alive).
+// firstSampleChunk is the size of a collector's first chunk of samples
+// when the pool has none, small for the few points of a per-step log's
+// piece (as firstChunk). Unit: samples.
+const firstSampleChunk = 64
+
+// chunks and sampleChunks are collectors' chunks whose points were handed
+// on: the pieces of a backlog reuse them. A reused chunk keeps what it
+// held until overwritten (its points refer only to pooled samples and to
+// columns' meanings, shared and small), so it is not cleared.
+var chunks, sampleChunks sync.Pool
+
+// release hands the collector's chunks back.
 func (c *collector) release() {
 	for _, chunk := range c.points {
-		clear(chunk[:cap(chunk)])
 		chunk = chunk[:0]
 		chunks.Put(&chunk)
 	}
-	c.points = nil
+	for _, chunk := range c.samples {
+		chunk = chunk[:0]
+		sampleChunks.Put(&chunk)
+	}
+	c.points, c.samples = nil, nil
 }
 func (c *collector) Steps() *diagnose.StepRows { return &c.steps }
 func (c *collector) Notice(string)             { c.w.bailed = true }

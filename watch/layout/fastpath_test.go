@@ -232,12 +232,17 @@ func FuzzJSONNumberAt(f *testing.F) {
 
 // TestTextShape_PlainNumbers reads lines of one shape whose values are
 // read from their runs (textShape.plainNumber): signs, zeros, the limits
-// of the exact range (19 digits, 2^53) and beyond, after the line that
-// made the shape, through the fast and the general path.
+// of the exact range (19 digits, 2^53) and beyond, exponents of both signs
+// and cases, at the ends of the exact powers of ten (±22, Clinger 1990)
+// and beyond, long exponents, after the line that made the shape, through
+// the fast and the general path (strconv beyond the exact range).
 func TestTextShape_PlainNumbers(t *testing.T) {
 	values := []string{"0.5", "-0.5", "+0.5", "-0", "0.0", "12", "-12", "+7",
 		"9007199254740992", "9007199254740993", "9007199254740992.5", "1234567890123456789", "12345678901234567890",
-		"0.1234567890123456789", "1.2345678901234567890", "00000000000000000001.5", "1e5"}
+		"0.1234567890123456789", "1.2345678901234567890", "00000000000000000001.5", "1e5",
+		"6.3e-05", "1E+22", "1e22", "1e23", "9e-22", "1e-23", "-1.5e3", "+2.5E-1", "0e-5", "-0.0e7", "1.5e0",
+		"2.5e-9999", "1e00005", "1e0005", "1e10000", "12345678901234567.8e-3", "9007199254740993e1",
+		"9007199254740992e-1", "1234567.1234567e-7"}
 	otherDigits := strings.NewReplacer("0", "3", "1", "4", "2", "9", "5", "8", "9", "1")
 	n := 0
 	for _, first := range values {

@@ -2,6 +2,7 @@ package layout
 
 import (
 	"github.com/fitgap/fitgap/watch/column"
+	"slices"
 	"strings"
 	"testing"
 
@@ -59,7 +60,11 @@ func (o *recorder) allSteps() diagnose.StepRows {
 	return o.steps
 }
 
-func (o *recorder) Point(p diagnose.Point)    { o.points = append(o.points, p) }
+// Point keeps p with a copy of its samples (the Assembler's scratch).
+func (o *recorder) Point(p diagnose.Point) {
+	p.Samples = slices.Clone(p.Samples)
+	o.points = append(o.points, p)
+}
 func (o *recorder) Steps() *diagnose.StepRows { return &o.steps }
 func (o *recorder) Notice(text string)        { o.notices = append(o.notices, diagnose.Printable(text)) }
 

@@ -120,24 +120,31 @@ func withExponent(b []byte, i int, mant uint64, exp int, neg bool) (float64, int
 	if eneg {
 		e = -e
 	}
-	exp += e
-	var v float64
-	switch {
-	case mant == 0:
-		v = 0
-	case exp == 0:
-		v = float64(mant)
-	case exp > 0 && exp <= 22:
-		v = float64(mant) * pow10[exp]
-	case exp < 0 && exp >= -22:
-		v = float64(mant) / pow10[-exp]
-	default:
+	v, ok := exactScale(mant, exp+e)
+	if !ok {
 		return 0, i, false
 	}
 	if neg {
 		v = -v
 	}
 	return v, i, true
+}
+
+// exactScale is mant × 10^exp when one multiplication or division of
+// exact numbers makes it (mant ≤ 2^53, |exp| ≤ 22: correctly rounded,
+// Clinger 1990); false beyond.
+func exactScale(mant uint64, exp int) (float64, bool) {
+	switch {
+	case mant == 0:
+		return 0, true
+	case exp == 0:
+		return float64(mant), true
+	case exp > 0 && exp <= 22:
+		return float64(mant) * pow10[exp], true
+	case exp < 0 && exp >= -22:
+		return float64(mant) / pow10[-exp], true
+	}
+	return 0, false
 }
 
 func slowNumber(b []byte) (float64, bool) {

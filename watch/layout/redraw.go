@@ -18,8 +18,12 @@ type redrawer interface {
 // come and make it irrelevant.
 func (r *Reader) feedRedrawn(p []byte) {
 	for len(p) > 0 && !r.bailed {
-		part, rest, ended := bytes.Cut(p, []byte{'\n'})
-		p = rest
+		part, ended := p, false
+		if nl := bytes.IndexByte(p, '\n'); nl >= 0 {
+			part, p, ended = p[:nl], p[nl+1:], true
+		} else {
+			p = nil
+		}
 		if j := lastCR(part); j >= 0 {
 			r.carry, r.skipping, r.midLine = r.carry[:0], false, true
 			part = part[j+1:]

@@ -197,11 +197,8 @@ func (d *tableDecoder) Decode(line []byte, n int) {
 		d.vals = make([]float64, len(d.header))
 	}
 	if !d.r.general {
-		if vals, ok := d.fastRow(line); ok {
-			if d.oneRow && d.nextEpoch(vals, n) {
-				return
-			}
-			d.file(vals, n)
+		if vals, _, ok := d.fastRow(line); ok {
+			d.fileFast(vals, n)
 			return
 		}
 	}
@@ -235,84 +232,6 @@ func (d *tableDecoder) Decode(line []byte, n int) {
 		vals[i] = v
 	}
 	d.file(vals, n)
-}
-
-// fastRow reads a row of plain numbers, one under each of the header's
-// names, in one pass over the line: each cell is read as a number where it
-// starts and must end at a space, a tab or the line's end. It gives what
-// the general path (tableCells, then parseNumber or parseClock per cell)
-// gives for such a row: a cell that fastFloat reads to its end is read so
-// by parseNumber too, and a row whose first cell is a number is not the
-// header (headerLike refuses numbers). Any other row, false: the general
-// path reads it.
-func (d *tableDecoder) fastRow(line []byte) ([]float64, bool) {
-	if len(d.header) == 0 {
-		return nil, false
-	}
-	vals := d.vals[:len(d.header)]
-	i := 0
-	for k := range vals {
-		for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
-			i++
-		}
-		if i == len(line) {
-			return nil, false // fewer cells than names
-		}
-		if d.roles[k] == cellTime {
-			start := i
-			for i < len(line) && line[i] != ' ' && line[i] != '\t' {
-				i++
-			}
-			v, ok := plainClock(line[start:i])
-			if !ok {
-				v, ok = d.timeCell(line[start:i])
-			}
-			if !ok {
-				return nil, false
-			}
-			vals[k] = v
-			continue
-		}
-		v, end, ok := fastFloat(line, i)
-		if !ok || end < len(line) && line[end] != ' ' && line[end] != '\t' {
-			return nil, false
-		}
-		vals[k], i = v, end
-	}
-	for i < len(line) && (line[i] == ' ' || line[i] == '\t') {
-		i++
-	}
-	return vals, i == len(line)
-}
-
-// plainClock reads a clock of two or three parts of plain digits ("00:01",
-// "1:02:03") in one pass, as parseClock reads it: each part of at most 15
-// digits is an integer that parseNumber reads exactly, and the seconds
-// are summed in the same order. Anything else, false (timeCell reads it).
-func plainClock(c []byte) (float64, bool) {
-	secs, parts := 0.0, 0
-	var part uint64
-	digits := 0
-	for _, ch := range c {
-		if ch == ':' {
-			if digits == 0 {
-				return 0, false
-			}
-			secs = secs*60 + float64(part)
-			part, digits = 0, 0
-			parts++
-			continue
-		}
-		if ch-'0' > 9 || digits == 15 {
-			return 0, false
-		}
-		part = part*10 + uint64(ch-'0')
-		digits++
-	}
-	if digits == 0 {
-		return 0, false
-	}
-	return secs*60 + float64(part), parts == 1 || parts == 2
 }
 
 // timeCell reads a time cell: "mm:ss", "h:mm:ss" or a number of seconds.

@@ -210,6 +210,7 @@ func FuzzText(f *testing.F) {
 		"[3/50] loss=nan acc=0.1\n\x1b[31mERR\x1b[0m x: 1\n",
 		"step: 1000/5000 loss: 1e-3\n",
 		"Epoch 1\nstep 1 - loss: -2.5 - lr: 0.001\nstep 2 - loss: +12345678901234567890.5 - lr: 0.009\nstep 3 - loss: 0.0 - lr: 10\nstep 4 - loss: 9007199254740993 - lr: 7\n",
+		"Epoch 1\nstep 1 - loss: 6.3e-05 - lr: 1E+22\nstep 2 - loss: 7.1e-22 - lr: 9E+23\nstep 3 - loss: 0.0e-0 - lr: 1E+00005\n",
 	} {
 		f.Add([]byte(s))
 	}

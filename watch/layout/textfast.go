@@ -307,26 +307,7 @@ func (d *textDecoder) contextFast(s, mode []byte, lead int) string {
 // becomes the shape.
 func (d *textDecoder) decodeFast(line []byte, n int) bool {
 	if sh := &d.shape; sh.match(line) {
-		m := sh.mark
-		if m.ok && (!sh.smallInt(sh.epochRun) || sh.totalRun >= 0 && !sh.smallInt(sh.totalRun)) {
-			return false // too many digits for an epoch: the general path says why
-		}
-		if m.ok {
-			m.epoch = sh.integer(line, sh.epochRun)
-			if sh.totalRun >= 0 {
-				m.total = sh.integer(line, sh.totalRun)
-			}
-		}
-		d.fastPairs = d.fastPairs[:0]
-		for _, p := range sh.pairs {
-			fp := fastPair{info: p.info, value: sh.number(line, p.value)}
-			if p.totalRun >= 0 {
-				fp.total = sh.integer(line, p.totalRun)
-			}
-			d.fastPairs = append(d.fastPairs, fp)
-		}
-		d.fileFast(m, n)
-		return true
+		return d.fileShaped(line, n)
 	}
 	s, ok := d.fast.plainASCII(line)
 	if !ok {
@@ -380,4 +361,50 @@ func (d *textDecoder) fileFast(m marker, n int) {
 		d.value(inf.col, p.value, p.total)
 	}
 	a.EndLine(n, !d.haveEpoch)
+}
+
+// fileShaped files a line that matched the shape, as fileFast files the
+// same pairs: each value goes to its column as it is read, without a pair
+// list, and whether the line counts is the shape's (its marker and names
+// are the shape's).
+func (d *textDecoder) fileShaped(line []byte, n int) bool {
+	sh := &d.shape
+	m := sh.mark
+	if m.ok {
+		if !sh.smallInt(sh.epochRun) || sh.totalRun >= 0 && !sh.smallInt(sh.totalRun) {
+			return false // too many digits for an epoch: the general path says why
+		}
+		m.epoch = sh.integer(sh.epochRun)
+		if sh.totalRun >= 0 {
+			m.total = sh.integer(sh.totalRun)
+		}
+	}
+	if !sh.counts {
+		return true
+	}
+	d.beginLine(m, n)
+	a := d.asm
+	for k := range sh.pairs {
+		p := &sh.pairs[k]
+		inf := p.info
+		if inf.col < 0 {
+			if inf.col = a.Column(inf.name); inf.col < 0 {
+				continue
+			}
+		}
+		total := 0
+		if p.totalRun >= 0 {
+			total = sh.integer(p.totalRun)
+		}
+		v, ok := 0.0, false
+		if p.value.plain {
+			v, ok = sh.plainNumber(line, &p.value)
+		}
+		if !ok {
+			v = sh.number(line, &p.value)
+		}
+		d.value(inf.col, v, total)
+	}
+	a.EndLine(n, !d.haveEpoch)
+	return true
 }

@@ -5,6 +5,7 @@ import (
 	"math/bits"
 	"strings"
 
+	"github.com/fitgap/fitgap/diagnose"
 	"github.com/fitgap/fitgap/watch/column"
 )
 
@@ -31,6 +32,14 @@ type shapeRun struct {
 	// covers them; gapLong: more than eight, compared by equalLong.
 	gap, gapMask uint64
 	gapLong      bool
+	gapLen       int
+	// gapEnd: for a gap of nine to sixteen bytes, gap holds its first
+	// eight and gapEnd its last eight.
+	gapEnd uint64
+	// quick: a run match reads in a few words when the line allows (a
+	// gap of at most sixteen bytes, not literal, and not too long for
+	// readInt).
+	quick bool
 }
 
 // setGaps notes in each run the bytes of t before it, since the run
@@ -40,12 +49,15 @@ func setGaps(t []byte, runs []shapeRun) {
 	for k := range runs {
 		r := &runs[k]
 		n := r.start - j
-		r.gap, r.gapMask, r.gapLong = 0, 0, n > 8
+		r.gap, r.gapMask, r.gapLong, r.gapLen = 0, 0, n > 8, n
 		if !r.gapLong {
 			for b := n - 1; b >= 0; b-- {
 				r.gap = r.gap<<8 | uint64(t[j+b])
 				r.gapMask = r.gapMask<<8 | 0xff
 			}
+		} else if n <= 16 {
+			r.gap = binary.LittleEndian.Uint64(t[j:])
+			r.gapEnd = binary.LittleEndian.Uint64(t[r.start-8:])
 		}
 		j = r.end
 	}
@@ -74,8 +86,12 @@ type shapeSpan struct {
 	run, off, endRun, endOff int
 	constant                 float64
 	// plain: the number is its runs alone, a sign before them or not:
-	// digits, or digits, a point and digits (plainSpan).
-	plain bool
+	// digits, or digits, a point and digits, then an exponent or not
+	// (plainSpan): fracRun is the run after the point and expRun the
+	// exponent's (-1 without), expNeg its sign.
+	plain           bool
+	fracRun, expRun int
+	expNeg          bool
 }
 
 // shapePair is a pair of the shape: its name (its split context applied),
@@ -97,13 +113,23 @@ type textShape struct {
 	mark               marker
 	epochRun, totalRun int
 	pairs              []shapePair
+	// counts: a line of this shape counts (fileFast's evidence: a marker
+	// or a name that makes a column).
+	counts bool
+
+	// tail is where the shape's bytes after its last run start.
+	tail int
 
 	// where are the runs of the line being matched.
 	where []runAt
 }
 
-// runAt is where a run of digits of the matched line lies.
-type runAt struct{ start, end int }
+// runAt is where a run of digits of the matched line lies, and the value
+// of its digits (exact for at most 19 digits; beyond, unused).
+type runAt struct {
+	start, end int
+	val        uint64
+}
 
 // digitRuns appends the runs of ASCII digits of s to dst.
 func digitRuns(s []byte, dst []shapeRun) []shapeRun {
@@ -121,81 +147,113 @@ func digitRuns(s []byte, dst []shapeRun) []shapeRun {
 }
 
 // match reports whether line has the shape's bytes outside its runs of
-// digits and runs of the same kind; sh.where then holds its runs. Bytes
-// are compared and digits found eight at a time where the line allows.
+// digits and runs of the same kind; sh.where then holds its runs and
+// their values. Bytes are compared and digits found eight at a time
+// where the line allows.
 func (sh *textShape) match(line []byte) bool {
 	if !sh.valid {
 		return false
 	}
-	t := sh.text
-	if cap(sh.where) < len(sh.runs) {
-		sh.where = make([]runAt, len(sh.runs))
+	runs := sh.runs
+	if cap(sh.where) < len(runs) {
+		sh.where = make([]runAt, len(runs))
 	}
-	where := sh.where[:len(sh.runs)]
-	i, j := 0, 0 // in line, in t
-	for k := range sh.runs {
-		r := &sh.runs[k]
-		n := r.start - j
-		switch {
-		case i+n > len(line):
-			return false
-		case !r.gapLong && i+8 <= len(line):
-			// The shape's bytes before the run, in one masked word.
-			if binary.LittleEndian.Uint64(line[i:])&r.gapMask != r.gap {
+	sh.where = sh.where[:len(runs)]
+	where := sh.where
+	i := 0 // in line
+	for k := range runs {
+		r := &runs[k]
+		at := i + r.gapLen
+		if r.quick && at <= len(line) && len(line) >= 8 {
+			// The common run: the shape's bytes before it in one masked
+			// word (or, from nine to sixteen bytes, in their first and
+			// last eight), then its digits, fewer than eight, in the
+			// next word (past the line's end, zero bytes: they end the
+			// run there).
+			if r.gapLen <= 8 {
+				if wordAt(line, i)&r.gapMask != r.gap {
+					return false
+				}
+			} else if binary.LittleEndian.Uint64(line[i:]) != r.gap || binary.LittleEndian.Uint64(line[at-8:]) != r.gapEnd {
 				return false
 			}
-		case !equalLong(line, i, t, j, n):
-			return false
-		}
-		i += n
-		start := i
-		var zero bool
-		if len(line) < 8 {
-			i, zero = digitsEnd(line, i)
-		} else {
-			// digitsEnd's first word, by hand: runs are short. Near the
-			// line's end, its last eight bytes with those before i
-			// shifted out: the zero bytes shifted in end the run there.
-			var x uint64
-			if i+8 <= len(line) {
-				x = binary.LittleEndian.Uint64(line[i:])
-			} else {
-				x = binary.LittleEndian.Uint64(line[len(line)-8:]) >> (8 * (i + 8 - len(line)))
-			}
-			other := (^((x | highs) - 0x30*ones) | ((x | highs) - 0x3a*ones) | x) & highs
-			if other != 0 {
-				m := bits.TrailingZeros64(other) / 8
-				mask := uint64(1)<<(8*m) - 1
-				i, zero = i+m, x&mask == 0x30*ones&mask
-			} else {
-				i, zero = digitsEnd(line, i)
+			x := wordAt(line, at)
+			if other := nonDigits(x); other != 0 {
+				// The run's m digits are the low bytes of x: their value
+				// comes from the word already loaded, the digits moved
+				// to its top so that zero bytes lead.
+				m := bits.TrailingZeros64(other) >> 3
+				mask := (other&-other)>>7 - 1 // the bytes below the first that is no digit
+				d := x & mask
+				if m == 0 || (d == 0x30*ones&mask) != (r.class == 0) {
+					return false
+				}
+				where[k] = runAt{at, at + m, eightDigits(d << ((64 - 8*m) & 63))}
+				i = at + m
+				continue
 			}
 		}
-		switch {
-		case i == start:
-			return false
-		case r.literal:
-			if i-start != r.end-r.start || !equalAt(line, start, t, r.start, i-start) {
-				return false
-			}
-		case i-start > maxIntDigits:
-			if r.class != 2 {
-				return false
-			}
-		case zero != (r.class == 0) || r.class == 2:
+		var ok bool
+		if i, ok = sh.matchRun(line, i, k); !ok {
 			return false
 		}
-		where[k] = runAt{start, i}
-		j = r.end
 	}
-	sh.where = where
-	return len(line)-i == len(t)-j && equalAt(line, i, t, j, len(t)-j)
+	j := sh.tail
+	return len(line)-i == len(sh.text)-j && equalAt(line, i, sh.text, j, len(sh.text)-j)
 }
 
-const (
-	ones  = 0x0101010101010101
-	highs = 0x8080808080808080
-)
+// wordAt is the eight bytes of line from i, the first in the lowest byte;
+// near the line's end, its last eight bytes with those before i shifted
+// out, so that zero bytes stand for the bytes past its end. line has at
+// least eight bytes and i is at most its length.
+func wordAt(line []byte, i int) uint64 {
+	if i+8 <= len(line) {
+		return binary.LittleEndian.Uint64(line[i:])
+	}
+	return binary.LittleEndian.Uint64(line[len(line)-8:]) >> ((8 * (i + 8 - len(line))) & 63)
+}
+
+// matchRun is match for any run k: the shape's bytes before it (from i
+// in the line), then the run; it returns where in the
+// line the run ends, and notes the run in sh.where.
+func (sh *textShape) matchRun(line []byte, i, k int) (int, bool) {
+	t := sh.text
+	r := &sh.runs[k]
+	j := 0 // in t
+	if k > 0 {
+		j = sh.runs[k-1].end
+	}
+	n := r.start - j
+	switch {
+	case i+n > len(line):
+		return 0, false
+	case !r.gapLong && i+8 <= len(line):
+		if binary.LittleEndian.Uint64(line[i:])&r.gapMask != r.gap {
+			return 0, false
+		}
+	case !equalLong(line, i, t, j, n):
+		return 0, false
+	}
+	i += n
+	start := i
+	i, zero := digitsEnd(line, i)
+	switch {
+	case i == start:
+		return 0, false
+	case r.literal:
+		if i-start != r.end-r.start || !equalAt(line, start, t, r.start, i-start) {
+			return 0, false
+		}
+	case i-start > maxIntDigits:
+		if r.class != 2 {
+			return 0, false
+		}
+	case zero != (r.class == 0) || r.class == 2:
+		return 0, false
+	}
+	sh.where[k] = runAt{start, i, digitsValue(line[start:i])}
+	return i, true
+}
 
 // equalAt reports whether a[i:i+n] equals b[j:j+n] (both in range): the
 // few bytes between two numbers in one masked word where both lines have
@@ -235,11 +293,7 @@ func digitsEnd(s []byte, i int) (int, bool) {
 	zero := true
 	for i+8 <= len(s) {
 		x := binary.LittleEndian.Uint64(s[i:])
-		// A byte is no digit when it is below '0', above '9', or not ASCII.
-		below := ^((x | highs) - 0x30*ones)
-		above := (x | highs) - 0x3a*ones
-		other := (below | above | x) & highs
-		if other != 0 {
+		if other := nonDigits(x); other != 0 {
 			n := bits.TrailingZeros64(other) / 8
 			mask := uint64(1)<<(8*n) - 1
 			return i + n, zero && x&mask == 0x30*ones&mask
@@ -255,8 +309,9 @@ func digitsEnd(s []byte, i int) (int, bool) {
 }
 
 // number reads the value at span sp of the matched line: the bytes of a
-// number readValueAt read there, so parseNumber's value.
-func (sh *textShape) number(line []byte, sp shapeSpan) float64 {
+// number readValueAt read there, so parseNumber's value. (fileShaped
+// tries plainNumber first itself: one call a value.)
+func (sh *textShape) number(line []byte, sp *shapeSpan) float64 {
 	if sp.run < 0 {
 		return sp.constant
 	}
@@ -273,51 +328,68 @@ func (sh *textShape) number(line []byte, sp shapeSpan) float64 {
 	return v
 }
 
-// plainNumber reads a plain span (digits, or digits, a point and digits,
-// a sign before them or not) from its runs, which match found to be
-// digits: fastFloat's mantissa and division without looking for a point,
-// an exponent or the digits' end again. Beyond fastFloat's exact range
-// (19 digits, 2^53), false: number reads it as it reads any span.
-func (sh *textShape) plainNumber(line []byte, sp shapeSpan) (float64, bool) {
+// plainNumber reads a plain span (plainSpan: digits, a point and digits or
+// not, an exponent or not, a sign before them or not) from the values of
+// its runs, which match read: fastFloat's mantissa, its exact division by
+// the power of ten of a point without an exponent, and exactScale with
+// one, without looking for a point, an exponent or the digits' end again.
+// Beyond fastFloat's exact range (19 digits, 2^53, a power of ten beyond
+// ±22), false: number reads it as it reads any span.
+func (sh *textShape) plainNumber(line []byte, sp *shapeSpan) (float64, bool) {
 	r := &sh.where[sp.run]
-	var mant uint64
-	for _, c := range line[r.start:r.end] {
-		mant = mant*10 + uint64(c-'0')
-	}
+	mant := r.val
 	digits, frac := r.end-r.start, 0
-	if sp.endRun != sp.run {
-		f := &sh.where[sp.endRun]
-		for _, c := range line[f.start:f.end] {
-			mant = mant*10 + uint64(c-'0')
-		}
+	if sp.fracRun >= 0 {
+		f := &sh.where[sp.fracRun]
 		frac = f.end - f.start
 		digits += frac
+		if digits > 19 {
+			return 0, false
+		}
+		mant = mant*pow10int[frac] + f.val
 	}
 	if digits > 19 || mant > 1<<53 {
 		return 0, false
 	}
-	v := float64(int64(mant)) / pow10[frac]
+	var v float64
+	if sp.expRun < 0 {
+		v = float64(int64(mant)) / pow10[frac]
+	} else {
+		// At most maxExpDigits digits: fastFloat's exponent, which it
+		// stops growing only from 10000.
+		e := &sh.where[sp.expRun]
+		if e.end-e.start > maxExpDigits {
+			return 0, false
+		}
+		exp := int(e.val)
+		if sp.expNeg {
+			exp = -exp
+		}
+		var ok bool
+		if v, ok = exactScale(mant, exp-frac); !ok {
+			return 0, false
+		}
+	}
 	if sp.off < 0 && line[r.start-1] == '-' {
 		v = -v
 	}
 	return v, true
 }
 
-// integer reads run r of the matched line (a run readInt reads: its class
-// says so).
+// maxExpDigits bounds the exponent plainNumber reads from its run: four
+// digits stay below the 10000 at which fastFloat stops reading an
+// exponent's digits. Unit: digits.
+const maxExpDigits = 4
+
 // smallInt reports whether run r of the matched line has no more digits
 // than an epoch or a total may have (maxIntDigits).
 func (sh *textShape) smallInt(r int) bool {
 	return sh.where[r].end-sh.where[r].start <= maxIntDigits
 }
 
-func (sh *textShape) integer(line []byte, r int) int {
-	n := 0
-	for _, c := range line[sh.where[r].start:sh.where[r].end] {
-		n = n*10 + int(c-'0')
-	}
-	return n
-}
+// integer reads run r of the matched line (a run readInt reads: its class
+// says so, and smallInt that it has at most maxIntDigits digits).
+func (sh *textShape) integer(r int) int { return int(sh.where[r].val) }
 
 // shapeRecorder collects, while a plain line is read in full, where its
 // numbers and its names lie, so that the line can become the shape.
@@ -359,6 +431,10 @@ func (sh *textShape) record(line []byte, rc *shapeRecorder, m marker, pairs []fa
 	sh.text = append(sh.text[:0], line...)
 	sh.runs = digitRuns(line, sh.runs[:0])
 	setGaps(line, sh.runs)
+	sh.tail = 0
+	if len(sh.runs) > 0 {
+		sh.tail = sh.runs[len(sh.runs)-1].end
+	}
 	runAt := func(pos int) int { // the run starting at pos, or -1
 		for k, r := range sh.runs {
 			if r.start == pos {
@@ -373,6 +449,10 @@ func (sh *textShape) record(line []byte, rc *shapeRecorder, m marker, pairs []fa
 				r.literal = true
 			}
 		}
+	}
+	for k := range sh.runs {
+		r := &sh.runs[k]
+		r.quick = r.gapLen <= 16 && !r.literal && r.class != 2
 	}
 	sh.mark = m
 	sh.epochRun, sh.totalRun = -1, -1
@@ -403,6 +483,10 @@ func (sh *textShape) record(line []byte, rc *shapeRecorder, m marker, pairs []fa
 		}
 		sh.pairs = append(sh.pairs, shapePair{info: pairs[k].info, value: sp, totalRun: tr})
 	}
+	sh.counts = m.ok
+	for _, p := range pairs {
+		sh.counts = sh.counts || p.info.rowKind != diagnose.KindOther
+	}
 	sh.valid = true
 }
 
@@ -424,26 +508,42 @@ func (sh *textShape) span(from, to int, v float64) (shapeSpan, bool) {
 		return shapeSpan{run: -1, constant: v}, true
 	}
 	sp := shapeSpan{run: first, off: from - sh.runs[first].start, endRun: last, endOff: to - sh.runs[last].end}
-	sp.plain = sh.plainSpan(sp)
+	sh.plainSpan(&sp)
 	return sp, true
 }
 
-// plainSpan reports a span that is its runs alone: one run, or two with
-// only a point between them, from the first run's start or from a sign
+// plainSpan sets the runs of a span that is its runs alone, with only
+// the shape's point and exponent marker between them: one run, or two
+// with a point between them, then, or not, an "e" or "E", a sign or
+// none, and the exponent's run; from the first run's start or from a sign
 // just before it, to the last run's end. The bytes between and before the
 // runs are the shape's, so every line that matches has them too.
-func (sh *textShape) plainSpan(sp shapeSpan) bool {
+func (sh *textShape) plainSpan(sp *shapeSpan) {
+	sp.fracRun, sp.expRun = -1, -1
 	if sp.endOff != 0 || sp.off != 0 && sp.off != -1 {
-		return false
+		return
 	}
 	r := sh.runs[sp.run]
 	if sp.off == -1 && sh.text[r.start-1] != '-' && sh.text[r.start-1] != '+' {
-		return false
+		return
 	}
-	if sp.endRun == sp.run {
-		return true
+	k := sp.run
+	if k < sp.endRun && sh.runs[k+1].start == r.end+1 && sh.text[r.end] == '.' {
+		sp.fracRun = k + 1
+		k++
 	}
-	return sp.endRun == sp.run+1 && sh.runs[sp.endRun].start == r.end+1 && sh.text[r.end] == '.'
+	if k < sp.endRun {
+		// The exponent: the last run, after "e", "e-" or "e+".
+		gap := sh.text[sh.runs[k].end:sh.runs[k+1].start]
+		if k+1 != sp.endRun || len(gap) == 0 || len(gap) > 2 || gap[0]|0x20 != 'e' ||
+			len(gap) == 2 && gap[1] != '-' && gap[1] != '+' {
+			sp.fracRun = -1
+			return
+		}
+		sp.expRun = k + 1
+		sp.expNeg = len(gap) == 2 && gap[1] == '-'
+	}
+	sp.plain = true
 }
 
 // keptFrom is the offset in raw of the first word cleanName keeps (the

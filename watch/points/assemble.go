@@ -23,6 +23,10 @@ const MaxEpoch = 1e9
 // the log ("epoch went back…"); they may quote column names, which are
 // sanitized.
 type Out interface {
+	// Point receives a point. Its Samples are the Assembler's scratch,
+	// valid only during the call and overwritten by the next point: an
+	// Out that keeps the point copies them (into arrays of its own that
+	// can go round, so that a point per line makes no garbage).
 	Point(p diagnose.Point)
 	// Steps returns where per-step rows go: the Assembler appends them
 	// (diagnose.StepRows.Append), their values by its column index.
@@ -161,7 +165,7 @@ type Assembler struct {
 	// frozen: the column table is shared with the ingester (a worker of
 	// the parallel path) and must not grow; a new name gives up instead.
 	frozen    bool
-	pointSlab []diagnose.Sample // shared storage of the points' samples
+	samples   []diagnose.Sample // the scratch of the point handed on (Out.Point)
 	nonFinite int
 
 	// guesses are the roles assumed (roles.go); version counts changes

@@ -196,6 +196,22 @@ func (a *Assembler) emit() {
 	if !slices.IsSorted(a.touched) { // rows usually name their columns in order
 		slices.Sort(a.touched)
 	}
+	a.samples = a.samples[:0]
+	for _, ci := range a.touched {
+		c := &a.cols[ci]
+		v := c.last
+		if !c.eval && c.n > 1 {
+			v = c.sum / float64(c.n)
+		}
+		a.samples = append(a.samples, diagnose.Sample{Column: c.meaning(), Value: v, Last: c.last})
+	}
+	a.handOn()
+}
+
+// handOn hands the open group on as a point with the samples in
+// a.samples, made by emit (or by NextEpoch, in the same order).
+func (a *Assembler) handOn() {
+	g := &a.g
 	p := diagnose.Point{
 		Segment:     a.segment,
 		Epoch:       g.epoch,
@@ -205,21 +221,10 @@ func (a *Assembler) emit() {
 		Time:        g.time,
 		Rows:        g.rows,
 		Line:        g.line,
+		// Capped: an Out that appends to them copies rather than
+		// writing into the scratch.
+		Samples: a.samples[:len(a.samples):len(a.samples)],
 	}
-	n := len(a.touched)
-	if cap(a.pointSlab)-len(a.pointSlab) < n {
-		a.pointSlab = make([]diagnose.Sample, 0, max(nextSlab(cap(a.pointSlab)), n))
-	}
-	start := len(a.pointSlab)
-	for _, ci := range a.touched {
-		c := &a.cols[ci]
-		v := c.last
-		if !c.eval && c.n > 1 {
-			v = c.sum / float64(c.n)
-		}
-		a.pointSlab = append(a.pointSlab, diagnose.Sample{Column: c.meaning(), Value: v, Last: c.last})
-	}
-	p.Samples = a.pointSlab[start:len(a.pointSlab):len(a.pointSlab)]
 	g.emitted, g.dirty, g.provisional = true, false, false
 	a.lastEpoch, a.haveLast = g.epoch, true
 	a.out.Point(p)

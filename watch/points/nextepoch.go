@@ -1,6 +1,10 @@
 package points
 
-import "math"
+import (
+	"math"
+
+	"github.com/fitgap/fitgap/diagnose"
+)
 
 // Cell is one value of a row for NextEpoch: the column it goes to (an
 // index from Column or ColumnAs) and the number.
@@ -35,20 +39,33 @@ func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
 		return false // a repeat or a step back: a resume
 	}
 	// The row's columns must be the open epoch's, each once: then the
-	// point's columns (touched, sorted by emit) are the same.
-	a.rowSeq++
-	for _, cl := range cells {
-		if cl.Col < 0 {
-			return false
+	// point's columns (touched, sorted by emit) are the same. inOrder:
+	// the cells name their columns in rising order, the order of the
+	// point's samples, so the samples are made here as the values are
+	// filed. Most rows name the columns of touched, in its order: one
+	// comparison a cell says both (touched lists the columns in the
+	// group).
+	inOrder := sameRising(cells, a.touched)
+	if !inOrder {
+		a.rowSeq++
+		prev := -1
+		inOrder = true
+		for _, cl := range cells {
+			if cl.Col < 0 {
+				return false
+			}
+			c := &a.cols[cl.Col]
+			if !c.inGroup || c.rowMark == a.rowSeq {
+				return false
+			}
+			c.rowMark = a.rowSeq
+			inOrder = inOrder && cl.Col > prev
+			prev = cl.Col
 		}
-		c := &a.cols[cl.Col]
-		if !c.inGroup || c.rowMark == a.rowSeq {
-			return false
-		}
-		c.rowMark = a.rowSeq
 	}
 	a.singleRow++ // ClosePoint of the open epoch, of one row
 	eval := false
+	a.samples = a.samples[:0]
 	for _, cl := range cells {
 		v := cl.V
 		if v-v != 0 { // NaN or ±Inf, in one subtraction
@@ -61,12 +78,20 @@ func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
 			c.markPercent()
 		}
 		eval = eval || c.eval
+		if inOrder {
+			// As emit makes it for a column of one value: v itself.
+			a.samples = append(a.samples, diagnose.Sample{Column: c.meaning(), Value: v, Last: v})
+		}
 	}
 	if eval {
 		a.evalSeen = true
 	}
 	*g = group{open: true, epoch: e, epochLogged: true, step: -1, rows: 1, line: line, hasEval: eval, dirty: true}
-	a.emit()
+	if inOrder {
+		a.handOn()
+	} else {
+		a.emit()
+	}
 	if a.steps {
 		a.row = a.row[:0]
 		for _, cl := range cells {
@@ -74,6 +99,22 @@ func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
 		}
 		a.rowHasStep = false
 		a.emitStep()
+	}
+	return true
+}
+
+// sameRising reports cells that name the columns cols, one for one, in
+// rising order (so each once).
+func sameRising(cells []Cell, cols []int) bool {
+	if len(cells) != len(cols) {
+		return false
+	}
+	prev := -1
+	for i, cl := range cells {
+		if cl.Col != cols[i] || cl.Col <= prev {
+			return false
+		}
+		prev = cl.Col
 	}
 	return true
 }

@@ -1,11 +1,6 @@
 package points
 
-import (
-	"math"
-	"slices"
-
-	"github.com/fitgap/fitgap/diagnose"
-)
+import "math"
 
 // Plan says, for the header in force, where a decoder's fast path finds
 // the epoch, the step and the value columns of a plain row (fields that
@@ -107,54 +102,3 @@ func (a *Assembler) PlainRow(p *Plan, vals []float64, mask uint64, line int) boo
 
 // Steps reports whether per-step rows are wanted.
 func (a *Assembler) Steps() bool { return a.steps }
-
-// PlainStep hands a plain row that PlainRow filed on as a per-step row, as
-// emitStep does for the row the general path builds: its values in field
-// order. (Apart from PlainRow, whose loop stays as short as it was.)
-func (a *Assembler) PlainStep(p *Plan, vals []float64, mask uint64) {
-	hasStep, step := false, int64(0)
-	if mask&p.StepBit != 0 {
-		if sv := vals[p.Step]; sv-sv == 0 && math.Abs(sv) <= math.MaxInt64/2 {
-			hasStep, step = true, int64(sv)
-		}
-	}
-	s := a.out.Steps()
-	// Most rows have the columns of the row before: its shape is checked
-	// as the values are copied, and only another row's columns are listed
-	// and looked up (StepRows.ShapeOf).
-	shape, prev := int32(-1), []int32(nil)
-	if n := len(s.Rows); n > 0 {
-		shape = s.Rows[n-1].Shape
-		prev = s.Shapes[shape]
-	}
-	from := len(s.Values)
-	s.Values = slices.Grow(s.Values, len(p.Vals))
-	out := s.Values[from : from+len(p.Vals)]
-	n, same := 0, true
-	for _, f := range p.Vals {
-		if mask&f.Bit != 0 {
-			out[n] = vals[f.Field]
-			same = same && n < len(prev) && prev[n] == int32(f.Col)
-			n++
-		}
-	}
-	if n == 0 {
-		return
-	}
-	s.Values = s.Values[:from+n]
-	if !same || n != len(prev) {
-		var room [stepColsRoom]int32 // the columns, on the stack for most rows
-		cols := room[:0]
-		for _, f := range p.Vals {
-			if mask&f.Bit != 0 {
-				cols = append(cols, int32(f.Col))
-			}
-		}
-		shape = s.ShapeOf(cols)
-	}
-	r := diagnose.StepRowAt{Segment: int32(a.segment), Epoch: int32(a.g.epoch), Step: -1, From: int32(from), Shape: shape}
-	if hasStep {
-		r.Step = step
-	}
-	s.Rows = append(s.Rows, r)
-}

@@ -20,7 +20,11 @@ type recorder struct {
 	notices []string
 }
 
-func (o *recorder) Point(p diagnose.Point)    { o.points = append(o.points, p) }
+// Point keeps p with a copy of its samples (the Assembler's scratch).
+func (o *recorder) Point(p diagnose.Point) {
+	p.Samples = slices.Clone(p.Samples)
+	o.points = append(o.points, p)
+}
 func (o *recorder) Steps() *diagnose.StepRows { return &o.steps }
 func (o *recorder) Notice(text string)        { o.notices = append(o.notices, text) }
 
