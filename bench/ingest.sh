@@ -15,6 +15,7 @@
 #                                # commit, interleaved: before and after under one load
 #   FRAME=0 bench/ingest.sh      # without the screen's first frame at the end
 #                                # (tui/first_frame.sh, when tmux is there)
+#   FRAME_BASE=/tmp/fitgap.old bench/ingest.sh   # the frame of another fitgap build too
 #
 # Wall times are medians over RUNS interleaved runs (the machine may be
 # shared: the load average is printed before and after); ratios are of
@@ -169,5 +170,7 @@ go test ./watch -run '^$' -bench FollowLatency -benchtime 500x | grep -E 'Benchm
 # it. Its runs are capped at 7: a frame takes a second or more.
 if [ "${FRAME:-1}" = 1 ] && command -v tmux >/dev/null; then
 	echo "first frame (tui/first_frame.sh $lines $((runs < 7 ? runs : 7))):"
-	tui/first_frame.sh "$lines" "$((runs < 7 ? runs : 7))" | sed 's/^/  /'
+	# BASE above is a build of bench/ingest; the frame's is FRAME_BASE, a
+	# build of fitgap.
+	env -u BASE ${FRAME_BASE:+BASE="$FRAME_BASE"} tui/first_frame.sh "$lines" "$((runs < 7 ? runs : 7))" | sed 's/^/  /'
 fi

@@ -36,14 +36,20 @@ const (
 )
 
 // grown returns s with at least n values (n ≤ chunkLen), the new ones
-// set to fill: s itself while its room suffices, else in new room of
-// exactly want values when more are announced (want > n, clamped to
-// chunkLen), or grown by a quarter.
+// set to fill: s itself while its room suffices, else in new room: of
+// exactly want values for a first batch announced (want > n, clamped to
+// chunkLen), else of want values or a quarter more, whichever is larger.
 func grown[T any](s []T, n, want int, fill T) []T {
 	if n > cap(s) {
 		room := min(chunkLen, max(n, cap(s)+cap(s)/growthDiv, minGrowth))
-		if want > n {
-			room = min(chunkLen, want)
+		switch {
+		case want > n && cap(s) == 0:
+			room = min(chunkLen, want) // a first batch: exactly its room
+		case want > n:
+			// Never less than the quarter's growth: batches of a few
+			// points each, as a live run sends them, would otherwise
+			// copy the chunk at every batch.
+			room = min(chunkLen, max(want, room))
 		}
 		t := make([]T, len(s), room)
 		copy(t, s)

@@ -318,3 +318,22 @@ func FuzzIntColumn(f *testing.F) {
 		}
 	})
 }
+
+// TestFloatColumn_SmallBatchesGrowByAQuarter: a live run sends a point or
+// two a batch, each announced; the chunk must still grow by a quarter, not
+// to each batch's end (a copy of the chunk at every batch).
+func TestFloatColumn_SmallBatchesGrowByAQuarter(t *testing.T) {
+	var c floatColumn
+	grows, room := 0, 0
+	for i := 0; i < chunkLen; i += 2 {
+		c.setAhead(i, 0.5, i+2)
+		c.setAhead(i+1, 0.25, i+2)
+		if r := cap(c.chunks[0].dec.m); r != room {
+			grows, room = grows+1, r
+		}
+	}
+	// 16 → 1,024 by quarters is 19 steps; a copy per batch would be 512.
+	if grows > 25 {
+		t.Errorf("the chunk grew %d times over %d batches of 2", grows, chunkLen/2)
+	}
+}
