@@ -62,6 +62,7 @@ type run struct {
 	// params) and its values at the rungs, made again when the curve or
 	// the params change.
 	length     int
+	trainSize  float64   // the params' training-set size; 0: none
 	rungVals   []float64 // value at rung k; NaN: not reached
 	rungsStale bool
 	// fc is the run's validation forecast, bare (forecast.Forecast.Bare:
@@ -117,7 +118,8 @@ func (s *Sweep) Config() Config { return s.cfg }
 
 // Add adds a run and returns its id (0, 1, …). name is untrusted text.
 func (s *Sweep) Add(name string, p Params) int {
-	r := &run{name: name, params: Sorted(append(Params(nil), p...)), rungsStale: true, reachBar: math.NaN()}
+	r := &run{name: name, rungsStale: true, reachBar: math.NaN()}
+	r.setParams(p)
 	r.length = s.total(r)
 	s.runs = append(s.runs, r)
 	s.dirty, s.paramsDirty = true, true
@@ -133,9 +135,17 @@ func (s *Sweep) Name(id int) string { return s.runs[id].name }
 // SetParams replaces run id's hyperparameters.
 func (s *Sweep) SetParams(id int, p Params) {
 	r := s.runs[id]
-	r.params = Sorted(append(Params(nil), p...))
+	r.setParams(p)
 	r.length = s.total(r)
 	s.dirty, s.paramsDirty = true, true
+}
+
+// setParams keeps a copy of p, sorted, and what the evaluations read of
+// it (the training-set size: a thousand runs' keys normalised at every
+// evaluation were a fortieth of a watched sweep's CPU).
+func (r *run) setParams(p Params) {
+	r.params = Sorted(append(Params(nil), p...))
+	r.trainSize, _ = r.params.TrainSize()
 }
 
 // Params returns run id's hyperparameters.

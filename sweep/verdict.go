@@ -117,8 +117,8 @@ func (s *Sweep) dataForecast(opts forecast.DataOptions) (forecast.DataForecast, 
 		if !r.Comparable || !r.Best.OK || !finite(r.Best.V) {
 			continue
 		}
-		size, ok := s.runs[i].params.TrainSize()
-		if !ok {
+		size := s.runs[i].trainSize
+		if size == 0 {
 			continue
 		}
 		if b, seen := best[size]; !seen || r.Best.V < b {

@@ -59,6 +59,18 @@ const (
 	// evalEvery is the least time between two evaluations while batches
 	// keep coming: ten a second are more than a screen shows. Unit: time.
 	evalEvery = 100 * time.Millisecond
+	// evalShare bounds the share of a core the evaluations take while
+	// batches keep coming: the next waits at least evalShare times as long
+	// as the last one's rules took (the screen's rebuild follows each
+	// evaluation and costs about as much again). A dozen runs evaluate in microseconds and keep evalEvery; a
+	// thousand take a few milliseconds, which at ten a second was a third
+	// of the CPU of 100 runs appending (`bench/sweep.sh`). Design choice:
+	// a run table refreshed five times a second shows the same. Unit:
+	// times the evaluation's wall time.
+	evalShare = 100
+	// evalGapMax is the longest wait between two evaluations the cost
+	// rule may set. Unit: time.
+	evalGapMax = time.Second
 	// tickEvery re-evaluates for what time alone changes (a run going
 	// quiet) and acts on it. Unit: time.
 	tickEvery = time.Second
@@ -99,6 +111,7 @@ func (s *Sweep) Follow(ctx context.Context, emit func(Update) error) error {
 	defer tick.Stop()
 	lastPending := s.now()
 	var lastEval time.Time
+	gap := evalEvery // the least time to the next evaluation (evalShare)
 	for {
 		var u Update
 		evaluate := false
@@ -111,7 +124,7 @@ func (s *Sweep) Follow(ctx context.Context, emit func(Update) error) error {
 				evaluate = true
 			} else if !settling {
 				settling = true
-				settle.Reset(max(settleAfter, evalEvery-time.Since(lastEval)))
+				settle.Reset(max(settleAfter, gap-time.Since(lastEval)))
 			}
 		case <-g.Changed():
 			u = Update{Run: -1}
@@ -140,6 +153,11 @@ func (s *Sweep) Follow(ctx context.Context, emit func(Update) error) error {
 			lastEval = time.Now()
 		}
 		u = s.finish(u, evaluate)
+		if evaluate {
+			// The rules' cost, not the forecasts' (those have a budget of
+			// their own, and forecasts left over come back at evalEvery).
+			gap = min(max(evalEvery, evalShare*s.evalCost), evalGapMax)
+		}
 		if u.more && !settling {
 			// Forecasts left for lack of time: another evaluation soon.
 			settling = true
@@ -225,7 +243,9 @@ func (s *Sweep) evaluate() (stops []StopEvent, changed, more bool) {
 	ms, more := forecastWithin(due, budget)
 	s.mu.Lock()
 	s.keep(ms, now)
+	t0 := time.Now()
 	changed = s.dom.Evaluate(now)
+	s.evalCost = time.Since(t0)
 	s.markFinished()
 	if changed && s.opts.StopFileName != "" {
 		rows := s.dom.Rows()

@@ -69,7 +69,10 @@ type Sweep struct {
 	pending []string // notices not yet handed on in an Update
 	group   *watch.Group
 	tagged  chan watch.Tagged
-	ctx     context.Context
+	// evalCost is how long the last evaluation's rules took (the follow
+	// loop's goroutine writes and reads it).
+	evalCost time.Duration
+	ctx      context.Context
 	// observed are the directories already watched for new runs.
 	observed map[string]bool
 	// read counts the runs whose log was read to its end once.
