@@ -271,3 +271,20 @@ func TestGroup_MemberEnds(t *testing.T) {
 		t.Error("following a directory gave no error")
 	}
 }
+
+// TestSafetyEvery: the safety net keeps its period for a few files and
+// stats at most safetyFilesPerSecond a second for many.
+func TestSafetyEvery(t *testing.T) {
+	tests := []struct {
+		files int
+		want  time.Duration
+	}{
+		{0, safetyPoll}, {1, safetyPoll}, {safetyFilesPerSecond, safetyPoll},
+		{1000, 4 * time.Second}, {10000, 40 * time.Second},
+	}
+	for _, tt := range tests {
+		if got := safetyEvery(tt.files); got != tt.want {
+			t.Errorf("safetyEvery(%d) = %v, want %v", tt.files, got, tt.want)
+		}
+	}
+}
