@@ -127,15 +127,9 @@ func (d *csvDecoder) plainLines(p []byte) int {
 		} else {
 			d.generalRow(vals, mask, r.lineNo)
 		}
-		if row[end] == '\r' {
-			end++ // the newline after it
-		}
-		read += end + 1
+		read += rowLen(row, end)
 	}
-	if read > 0 {
-		r.midLine = false
-	}
-	return read
+	return r.tookLines(read)
 }
 
 // applyPlain files the numbers of a plain row (vals by field, mask the

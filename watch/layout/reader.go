@@ -525,3 +525,22 @@ func sanitizeBytes(p []byte, max int) string {
 	}
 	return diagnose.Printable(string(p))
 }
+
+// rowLen is the bytes a row read in place takes with its line end: end is
+// where the row stopped, at its newline or at a carriage return right
+// before one.
+func rowLen(row []byte, end int) int {
+	if row[end] == '\r' {
+		end++ // the newline after it
+	}
+	return end + 1
+}
+
+// tookLines notes that the first read bytes fed were whole lines read in
+// place (a decoder's run of plain rows), and returns read.
+func (r *Reader) tookLines(read int) int {
+	if read > 0 {
+		r.midLine = false
+	}
+	return read
+}

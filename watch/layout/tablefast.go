@@ -84,15 +84,9 @@ func (d *tableDecoder) plainLines(p []byte) int {
 		r.lineNo++
 		r.lines++
 		d.fileFast(vals, r.lineNo)
-		if row[end] == '\r' {
-			end++ // the newline after it
-		}
-		read += end + 1
+		read += rowLen(row, end)
 	}
-	if read > 0 {
-		r.midLine = false
-	}
-	return read
+	return r.tookLines(read)
 }
 
 // rowEnd reports where a row fed whole ends: at its end, at a newline, or
