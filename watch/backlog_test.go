@@ -228,3 +228,51 @@ func keepParallel() func() {
 	tail.BusyLoadPerCore = 0
 	return func() { tail.BusyLoadPerCore = old }
 }
+
+// TestParallel_ScaledPieces: a layout with larger pieces (console text:
+// Layout.PieceScale) is still read on every core, and gives what a
+// sequential read gives.
+func TestParallel_ScaledPieces(t *testing.T) {
+	var gen bytes.Buffer
+	// Long enough that the reader knows every shape of line while most
+	// pieces are still to come (a worker's piece is taken only when the
+	// reader stands where the worker assumed).
+	if err := loggen.WriteText(&gen, 100_000); err != nil {
+		t.Fatal(err)
+	}
+	data := gen.String()
+	path := filepath.Join(t.TempDir(), "train.log")
+	if err := os.WriteFile(path, []byte(data), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	g := newIngester(Options{}, nil, func() time.Time { return time.Time{} })
+	g.Feed([]byte(data))
+	g.End()
+	want := ingestResult{points: g.batch.Points}
+	for _, n := range g.batch.Notices {
+		want.notices = append(want.notices, n.Text)
+	}
+	want.stats = g.take().Stats
+	want.stats.State = StateFinished
+	if scale := g.r.PieceScale(); scale < 2 {
+		t.Fatalf("console text's pieces are %d× the nominal size, want more", scale)
+	}
+	defer func(chunk, procs int) {
+		tail.PieceBytes = chunk
+		runtime.GOMAXPROCS(procs)
+	}(tail.PieceBytes, runtime.GOMAXPROCS(0))
+	defer keepParallel()()
+	for _, procs := range []int{2, 3} {
+		t.Run(fmt.Sprint(procs), func(t *testing.T) {
+			tail.PieceBytes = 16 << 10 // console text's pieces: 64 KiB
+			runtime.GOMAXPROCS(procs)
+			got, taken := readFileCounting(t, path, Options{})
+			if d := diffResults(got, want); d != "" {
+				t.Fatal(d)
+			}
+			if taken == 0 {
+				t.Fatal("no piece was taken from a worker")
+			}
+		})
+	}
+}

@@ -233,6 +233,8 @@ func (g *ingester) take() Batch {
 
 func (g *ingester) ReadsAhead() bool { return g.r.ReadsAhead() }
 
+func (g *ingester) PieceScale() int { return g.r.PieceScale() }
+
 func (g *ingester) Piece() tail.Piece {
 	p := g.r.Piece()
 	if p == nil {

@@ -109,6 +109,14 @@ func (r *Reader) ReadsAhead() bool {
 	return ok && d.readsAhead()
 }
 
+// PieceScale is the layout's PieceScale (Layout), at least 1.
+func (r *Reader) PieceScale() int {
+	if l, ok := lookup(r.format); ok && l.PieceScale > 1 {
+		return l.PieceScale
+	}
+	return 1
+}
+
 // Piece returns the work of the next piece of the backlog, or nil when it
 // is to be fed as bytes (see ahead.go). Pieces are taken in order.
 func (r *Reader) Piece() *AheadPiece {

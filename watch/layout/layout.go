@@ -56,6 +56,11 @@ type Layout struct {
 	// New makes the decoder for a log whose first non-empty line is
 	// first, reading into r.
 	New func(r *Reader, first []byte) Decoder
+	// PieceScale is how many times the backlog's nominal piece
+	// (tail.PieceBytes) a piece of this layout is, when its per-piece costs
+	// (finding the sync line, a decoder learning its lines again) call for
+	// larger pieces; 0 or 1: as is.
+	PieceScale int
 }
 
 // registry holds the layouts, by rank. It is filled by the init functions

@@ -69,7 +69,8 @@ type piece struct {
 func (t *File) readBacklog(ctx context.Context, sink Sink, size int64) bool {
 	ahead := sink.(Ahead)
 	end := t.lastLineEnd(size)
-	chunk := int64(PieceBytes)
+	pieceBytes := PieceBytes * max(1, ahead.PieceScale())
+	chunk := int64(pieceBytes)
 	if end-t.offset < chunk*int64(t.procs) {
 		return true
 	}
@@ -84,8 +85,8 @@ func (t *File) readBacklog(ctx context.Context, sink Sink, size int64) bool {
 	next := 0
 	start := func() {
 		buf := <-free
-		if cap(buf) < PieceBytes+lineProbe+1 {
-			buf = make([]byte, PieceBytes+lineProbe+1)
+		if cap(buf) < pieceBytes+lineProbe+1 {
+			buf = make([]byte, pieceBytes+lineProbe+1)
 		}
 		ch := make(chan *piece, 1)
 		results[next] = ch
