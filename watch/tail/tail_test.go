@@ -264,7 +264,7 @@ type aheadRecorder struct {
 }
 
 func (a *aheadRecorder) ReadsAhead() bool { return true }
-func (a *aheadRecorder) PieceScale() int { return 1 }
+func (a *aheadRecorder) PieceScale() int  { return 1 }
 
 func (a *aheadRecorder) Piece() Piece {
 	a.pieces++
