@@ -98,56 +98,30 @@ const (
 // statusWords are each status's machine name, its word (a table cell:
 // "too few"), its phrase (a few words for a screen line: "no forecast:
 // the curve has turned") and what it means (the JSON reference).
-var statusWords = [...]struct{ name, word, phrase, about string }{
-	OK:        {"ok", "ok", "a forecast with its intervals", "a forecast was made; every number comes with its interval"},
-	TooFew:    {"too-few-points", "too few", "too few epochs", "too few epochs to fit, since the start or since a break in the curve"},
-	Turned:    {"turned", "turned", "the curve has turned", "the curve has turned upward (overfitting, or a blow-up beginning): extrapolating a falling curve would hide it"},
-	Diverging: {"diverging", "diverging", "diverging", "the latest value is NaN or infinite"},
-	NoFit:     {"no-fit", "no fit", "no curve family fits", "no learning-curve family could be fitted to the curve"},
-	LRRising:  {"lr-rising", "lr rising", "the learning rate is rising", "the learning rate keeps rising (a range test, a warm-up, the rising half of a cycle): the curve's shape is still changing with it"},
-	BadInput:  {"bad-input", "bad input", "inconsistent input", "the series given are inconsistent (their lengths differ)"},
-}
+var statusWords = diagnose.NewWords[Status]("status", []diagnose.Wording{
+	OK:        {Name: "ok", Short: "ok", Phrase: "a forecast with its intervals", About: "a forecast was made; every number comes with its interval"},
+	TooFew:    {Name: "too-few-points", Short: "too few", Phrase: "too few epochs", About: "too few epochs to fit, since the start or since a break in the curve"},
+	Turned:    {Name: "turned", Short: "turned", Phrase: "the curve has turned", About: "the curve has turned upward (overfitting, or a blow-up beginning): extrapolating a falling curve would hide it"},
+	Diverging: {Name: "diverging", Short: "diverging", Phrase: "diverging", About: "the latest value is NaN or infinite"},
+	NoFit:     {Name: "no-fit", Short: "no fit", Phrase: "no curve family fits", About: "no learning-curve family could be fitted to the curve"},
+	LRRising:  {Name: "lr-rising", Short: "lr rising", Phrase: "the learning rate is rising", About: "the learning rate keeps rising (a range test, a warm-up, the rising half of a cycle): the curve's shape is still changing with it"},
+	BadInput:  {Name: "bad-input", Short: "bad input", Phrase: "inconsistent input", About: "the series given are inconsistent (their lengths differ)"},
+})
 
 // Statuses lists every status, in order.
-func Statuses() []Status {
-	out := make([]Status, len(statusWords))
-	for i := range out {
-		out[i] = Status(i)
-	}
-	return out
-}
+func Statuses() []Status { return statusWords.Values() }
 
 // Word returns the status in a word or two, for a table cell ("too few").
-func (s Status) Word() string {
-	if int(s) < len(statusWords) {
-		return statusWords[s].word
-	}
-	return s.String()
-}
+func (s Status) Word() string { return statusWords.Short(s) }
 
 // String returns the stable machine name used in JSON ("turned").
-func (s Status) String() string {
-	if int(s) < len(statusWords) {
-		return statusWords[s].name
-	}
-	return fmt.Sprintf("status(%d)", uint8(s))
-}
+func (s Status) String() string { return statusWords.Name(s) }
 
-// Phrase says the status in a few words ("the curve has turned").
-func (s Status) Phrase() string {
-	if int(s) < len(statusWords) {
-		return statusWords[s].phrase
-	}
-	return s.String()
-}
+// Phrase returns the status in a few words for a screen line.
+func (s Status) Phrase() string { return statusWords.Phrase(s) }
 
-// Description says what the status means.
-func (s Status) Description() string {
-	if int(s) < len(statusWords) {
-		return statusWords[s].about
-	}
-	return s.String()
-}
+// Description says what the status means (the JSON reference).
+func (s Status) Description() string { return statusWords.About(s) }
 
 // MarshalText makes a Status a JSON string.
 func (s Status) MarshalText() ([]byte, error) { return []byte(s.String()), nil }
