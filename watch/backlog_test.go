@@ -116,25 +116,13 @@ func TestParallel_SmallPieces(t *testing.T) {
 		12_001: "garbage \"line",
 	})
 	crlf := strings.TrimSuffix(strings.ReplaceAll(gen.String(), "\n", "\r\n"), "\r\n")
-	defer func(chunk, procs int) {
-		tail.PieceBytes = chunk
-		runtime.GOMAXPROCS(procs)
-	}(tail.PieceBytes, runtime.GOMAXPROCS(0))
-	defer keepParallel()()
+	defer keepPieces()()
 	for name, data := range map[string]string{"Plain": gen.String(), "CRLF": crlf, "Mixed": mixed} {
 		path := filepath.Join(t.TempDir(), "run.csv")
 		if err := os.WriteFile(path, []byte(data), 0o644); err != nil {
 			t.Fatal(err)
 		}
-		g := newIngester(Options{}, nil, func() time.Time { return time.Time{} })
-		g.Feed([]byte(data))
-		g.End()
-		want := ingestResult{points: g.batch.Points}
-		for _, n := range g.batch.Notices {
-			want.notices = append(want.notices, n.Text)
-		}
-		want.stats = g.take().Stats
-		want.stats.State = StateFinished
+		want, _ := readSequentially(data)
 		for _, chunk := range []int{1 << 10, 4 << 10, 64 << 10} {
 			for _, procs := range []int{2, 3, 5} {
 				t.Run(fmt.Sprintf("%s/%d/%d", name, chunk, procs), func(t *testing.T) {
@@ -223,6 +211,33 @@ func TestFollow_BacklogBatchesSayMore(t *testing.T) {
 // keepParallel turns off the busy-machine check (tail.BusyLoadPerCore),
 // so that the parallel path is taken whatever the load of the machine the
 // tests run on; the returned function turns it back on.
+// keepPieces keeps the parallel path on (keepParallel) and restores the
+// piece size and GOMAXPROCS a test changes.
+func keepPieces() func() {
+	undo := keepParallel()
+	chunk, procs := tail.PieceBytes, runtime.GOMAXPROCS(0)
+	return func() {
+		tail.PieceBytes = chunk
+		runtime.GOMAXPROCS(procs)
+		undo()
+	}
+}
+
+// readSequentially reads data in one feed, as the parallel reads must
+// read it, and returns the result with the ingester that read it.
+func readSequentially(data string) (ingestResult, *ingester) {
+	g := newIngester(Options{}, nil, func() time.Time { return time.Time{} })
+	g.Feed([]byte(data))
+	g.End()
+	want := ingestResult{points: g.batch.Points}
+	for _, n := range g.batch.Notices {
+		want.notices = append(want.notices, n.Text)
+	}
+	want.stats = g.take().Stats
+	want.stats.State = StateFinished
+	return want, g
+}
+
 func keepParallel() func() {
 	old := tail.BusyLoadPerCore
 	tail.BusyLoadPerCore = 0
@@ -245,23 +260,11 @@ func TestParallel_ScaledPieces(t *testing.T) {
 	if err := os.WriteFile(path, []byte(data), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	g := newIngester(Options{}, nil, func() time.Time { return time.Time{} })
-	g.Feed([]byte(data))
-	g.End()
-	want := ingestResult{points: g.batch.Points}
-	for _, n := range g.batch.Notices {
-		want.notices = append(want.notices, n.Text)
-	}
-	want.stats = g.take().Stats
-	want.stats.State = StateFinished
+	want, g := readSequentially(data)
 	if scale := g.r.PieceScale(); scale < 2 {
 		t.Fatalf("console text's pieces are %d× the nominal size, want more", scale)
 	}
-	defer func(chunk, procs int) {
-		tail.PieceBytes = chunk
-		runtime.GOMAXPROCS(procs)
-	}(tail.PieceBytes, runtime.GOMAXPROCS(0))
-	defer keepParallel()()
+	defer keepPieces()()
 	for _, procs := range []int{2, 3} {
 		t.Run(fmt.Sprint(procs), func(t *testing.T) {
 			tail.PieceBytes = 16 << 10 // console text's pieces: 64 KiB
