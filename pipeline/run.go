@@ -165,12 +165,10 @@ func (r *Run) Apply(b watch.Batch) Update {
 		u.Err, u.Ended = err, true
 		return u
 	}
+	r.tracker.Reserve(len(b.Points))
 	r.mu.Unlock()
 	if len(b.Points) > 0 {
 		u.Judgements = make([]diagnose.Judgement, 0, len(b.Points))
-		r.mu.Lock()
-		r.tracker.Reserve(len(b.Points))
-		r.mu.Unlock()
 	}
 	for i := range b.Points {
 		p := &b.Points[i]

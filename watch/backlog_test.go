@@ -208,9 +208,6 @@ func TestFollow_BacklogBatchesSayMore(t *testing.T) {
 	}
 }
 
-// keepParallel turns off the busy-machine check (tail.BusyLoadPerCore),
-// so that the parallel path is taken whatever the load of the machine the
-// tests run on; the returned function turns it back on.
 // keepPieces keeps the parallel path on (keepParallel) and restores the
 // piece size and GOMAXPROCS a test changes.
 func keepPieces() func() {
@@ -238,6 +235,9 @@ func readSequentially(data string) (ingestResult, *ingester) {
 	return want, g
 }
 
+// keepParallel turns off the busy-machine check (tail.BusyLoadPerCore),
+// so that the parallel path is taken whatever the load of the machine the
+// tests run on; the returned function turns it back on.
 func keepParallel() func() {
 	old := tail.BusyLoadPerCore
 	tail.BusyLoadPerCore = 0

@@ -40,12 +40,16 @@ const (
 // sequentially, and a machine not too busy to lend the other cores
 // (busy.go).
 func (t *File) parallel(sink Sink, size int64) bool {
-	if t.procs < 2 || size-t.offset < int64(t.procs*PieceBytes) {
+	a, ok := sink.(Ahead)
+	if !ok || t.procs < 2 || size-t.offset < int64(t.procs)*pieceBytes(a) {
 		return false
 	}
-	a, ok := sink.(Ahead)
-	return ok && a.ReadsAhead() && !t.busy()
+	return a.ReadsAhead() && !t.busy()
 }
+
+// pieceBytes is the nominal size of the sink's pieces: PieceBytes times
+// its layout's scale (Ahead.PieceScale).
+func pieceBytes(a Ahead) int64 { return int64(PieceBytes * a.PieceScale()) }
 
 // piece is one part of the backlog, read and decoded by a worker: the
 // lines that start in its nominal range of PieceBytes (the first piece
@@ -69,10 +73,9 @@ type piece struct {
 func (t *File) readBacklog(ctx context.Context, sink Sink, size int64) bool {
 	ahead := sink.(Ahead)
 	end := t.lastLineEnd(size)
-	pieceBytes := PieceBytes * max(1, ahead.PieceScale())
-	chunk := int64(pieceBytes)
+	chunk := pieceBytes(ahead)
 	if end-t.offset < chunk*int64(t.procs) {
-		return true
+		return true // the last line end is before the pieces' worth (parallel saw size)
 	}
 	from := t.offset
 	count := int((end - from + chunk - 1) / chunk)
@@ -85,8 +88,8 @@ func (t *File) readBacklog(ctx context.Context, sink Sink, size int64) bool {
 	next := 0
 	start := func() {
 		buf := <-free
-		if cap(buf) < pieceBytes+lineProbe+1 {
-			buf = make([]byte, pieceBytes+lineProbe+1)
+		if int64(cap(buf)) < chunk+lineProbe+1 {
+			buf = make([]byte, chunk+lineProbe+1)
 		}
 		ch := make(chan *piece, 1)
 		results[next] = ch

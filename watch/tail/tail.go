@@ -73,8 +73,8 @@ type Ahead interface {
 	// Piece returns the work for the next piece of the backlog, in order,
 	// or nil: then the piece is fed as bytes.
 	Piece() Piece
-	// PieceScale is how many times PieceBytes the sink's pieces are (at
-	// least 1).
+	// PieceScale is how many times PieceBytes the sink's pieces are; at
+	// least 1.
 	PieceScale() int
 }
 
