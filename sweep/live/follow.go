@@ -37,6 +37,8 @@ type Update struct {
 	FirstRead bool
 	// more: forecasts are still due (the evaluation's budget ran out).
 	more bool
+	// rulesTook is how long the evaluation's rules took (evalShare).
+	rulesTook time.Duration
 }
 
 // StopEvent is a stop file created for a run, or why it could not be.
@@ -156,7 +158,7 @@ func (s *Sweep) Follow(ctx context.Context, emit func(Update) error) error {
 		if evaluate {
 			// The rules' cost, not the forecasts' (those have a budget of
 			// their own, and forecasts left over come back at evalEvery).
-			gap = min(max(evalEvery, evalShare*s.evalCost), evalGapMax)
+			gap = min(max(evalEvery, evalShare*u.rulesTook), evalGapMax)
 		}
 		if u.more && !settling {
 			// Forecasts left for lack of time: another evaluation soon.
@@ -207,7 +209,7 @@ func (s *Sweep) apply(b watch.Tagged) Update {
 // for, and adds the pending notices to u.
 func (s *Sweep) finish(u Update, evaluate bool) Update {
 	if evaluate {
-		u.Stops, u.Evaluated, u.more = s.evaluate()
+		u.Stops, u.Evaluated, u.more, u.rulesTook = s.evaluate()
 	}
 	s.mu.Lock()
 	defer s.mu.Unlock()
@@ -222,7 +224,7 @@ func (s *Sweep) finish(u Update, evaluate bool) Update {
 // evaluate makes the forecasts due, judges the sweep as of now and
 // creates the stop files of the runs it finds hopeless or told to stop,
 // outside the lock; more says forecasts are still due.
-func (s *Sweep) evaluate() (stops []StopEvent, changed, more bool) {
+func (s *Sweep) evaluate() (stops []StopEvent, changed, more bool, rulesTook time.Duration) {
 	type todo struct {
 		e      *entry
 		j      diagnose.Judgement
@@ -245,7 +247,7 @@ func (s *Sweep) evaluate() (stops []StopEvent, changed, more bool) {
 	s.keep(ms, now)
 	t0 := time.Now()
 	changed = s.dom.Evaluate(now)
-	s.evalCost = time.Since(t0)
+	rulesTook = time.Since(t0)
 	s.markFinished()
 	if changed && s.opts.StopFileName != "" {
 		rows := s.dom.Rows()
@@ -288,5 +290,5 @@ func (s *Sweep) evaluate() (stops []StopEvent, changed, more bool) {
 		}
 		s.mu.Unlock()
 	}
-	return stops, changed || len(stops) > 0, more
+	return stops, changed || len(stops) > 0, more, rulesTook
 }

@@ -69,10 +69,7 @@ type Sweep struct {
 	pending []string // notices not yet handed on in an Update
 	group   *watch.Group
 	tagged  chan watch.Tagged
-	// evalCost is how long the last evaluation's rules took (the follow
-	// loop's goroutine writes and reads it).
-	evalCost time.Duration
-	ctx      context.Context
+	ctx     context.Context
 	// observed are the directories already watched for new runs.
 	observed map[string]bool
 	// read counts the runs whose log was read to its end once.
