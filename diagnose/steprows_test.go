@@ -24,10 +24,10 @@ func TestStepRoom_Lengths(t *testing.T) {
 	}
 }
 
-// A released array comes back, as asked, for a request it fits; one far
-// too big for a request is not handed out for it (the pool may drop any
-// array at a collection, or at random under the race detector, so a new
-// one is always a right answer too).
+// Release empties the rows (twice is harmless), and an array far too big
+// for a request is not handed out for it (the pool may drop any array at
+// a collection, or at random under the race detector, so whether one comes
+// back at all cannot be asserted).
 func TestStepRows_Release(t *testing.T) {
 	rows, values := StepRoom(4096, 12288)
 	s := StepRows{Rows: rows[:0], Values: values[:0]}
@@ -38,18 +38,12 @@ func TestStepRows_Release(t *testing.T) {
 	}
 	s.Release() // twice is harmless
 
-	again, vals := StepRoom(4000, 12000)
-	if len(again) != 4000 || len(vals) != 12000 {
-		t.Fatalf("StepRoom(4000, 12000) lengths %d, %d", len(again), len(vals))
-	}
-	small, _ := StepRoom(reuseMin, 0)
 	big, _ := StepRoom(100_000, 0)
 	(&StepRows{Rows: big}).Release()
 	small2, _ := StepRoom(reuseMin, 0)
 	if c := cap(small2); c > reuseSlack*reuseMin {
 		t.Errorf("StepRoom(%d) after releasing %d rows: cap %d, want at most %d", reuseMin, cap(big), c, reuseSlack*reuseMin)
 	}
-	_ = small
 }
 
 // BenchmarkStepRoom takes and releases the arrays of a per-step log's

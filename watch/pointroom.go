@@ -61,10 +61,11 @@ func (b *Batch) ReleasePoints() {
 // poison overwrites what a released room holds (tests only).
 func poison(r *pointRoom) {
 	bad := &diagnose.Column{Name: "released", Base: "released"}
-	for i := range r.samples[:cap(r.samples)] {
-		r.samples[:cap(r.samples)][i] = diagnose.Sample{Column: bad, Value: -1e300, Last: -1e300}
+	samples, points := r.samples[:cap(r.samples)], r.points[:cap(r.points)]
+	for i := range samples {
+		samples[i] = diagnose.Sample{Column: bad, Value: -1e300, Last: -1e300}
 	}
-	for i := range r.points[:cap(r.points)] {
-		r.points[:cap(r.points)][i] = diagnose.Point{Epoch: -1 << 40, Line: -1}
+	for i := range points {
+		points[i] = diagnose.Point{Epoch: -1 << 40, Line: -1}
 	}
 }

@@ -28,8 +28,9 @@ type Out interface {
 	// Out that keeps the point copies them (into arrays of its own that
 	// can go round, so that a point per line makes no garbage).
 	Point(p diagnose.Point)
-	// Steps returns where per-step rows go: the Assembler appends them
-	// (diagnose.StepRows.Append), their values by its column index.
+	// Steps returns where per-step rows go: the Assembler adds them
+	// (diagnose.StepRows.ShapeOf and Add), their values by its column
+	// index.
 	Steps() *diagnose.StepRows
 	Notice(text string)
 }

@@ -2,6 +2,7 @@ package points
 
 import (
 	"math"
+	"slices"
 
 	"github.com/fitgap/fitgap/diagnose"
 )
@@ -103,18 +104,9 @@ func (a *Assembler) NextEpoch(epoch float64, cells []Cell, line int) bool {
 	return true
 }
 
-// sameRising reports cells that name the columns cols, one for one, in
-// rising order (so each once).
+// sameRising reports cells that name the columns cols, one for one (cols
+// rises: the open point's columns, sorted and each once, so the cells
+// rise too).
 func sameRising(cells []Cell, cols []int) bool {
-	if len(cells) != len(cols) {
-		return false
-	}
-	prev := -1
-	for i, cl := range cells {
-		if cl.Col != cols[i] || cl.Col <= prev {
-			return false
-		}
-		prev = cl.Col
-	}
-	return true
+	return slices.EqualFunc(cells, cols, func(c Cell, k int) bool { return c.Col == k })
 }
