@@ -141,12 +141,13 @@ func FuzzPyDictNum(f *testing.F) {
 	})
 }
 
-// TestPlainClock_ExhaustiveBytes: every clock plainClock reads is read the
+// TestPlainClock_ExhaustiveBytes: every whole clock plainClockAt reads is read the
 // same by parseClock, on every string of up to six (eight with
 // -exhaustive) of the bytes clocks are made of, and on long parts.
 func TestPlainClock_ExhaustiveBytes(t *testing.T) {
 	check := func(c []byte) {
-		v, ok := plainClock(c)
+		v, end, ok := plainClockAt(c, 0)
+		ok = ok && end == len(c) // the whole cell a clock
 		if !ok {
 			return // timeCell reads it
 		}

@@ -177,7 +177,7 @@ func (d *tableDecoder) nextEpoch(vals []float64, n int) bool {
 	cells := d.next[:len(vals)-1]
 	for i := range cells {
 		v := vals[i+1]
-		if d.roles[i+1] == cellTime && v >= 1e8 && !isNonFinite(v) {
+		if d.roles[i+1] == cellTime && v >= points.MinUnixSeconds && !isNonFinite(v) {
 			return false
 		}
 		cells[i].V = v

@@ -132,13 +132,6 @@ func skipBlanks(line []byte, i int) int {
 	return i
 }
 
-// plainClock reads a clock of two or three parts of plain digits ("00:01",
-// "1:02:03"), the whole of c, as plainClockAt does.
-func plainClock(c []byte) (float64, bool) {
-	v, end, ok := plainClockAt(c, 0)
-	return v, ok && end == len(c)
-}
-
 // plainClockAt reads the clock that starts at line[i] and ends where its
 // cell ends (cellEnd; returned), in one pass, as parseClock
 // reads it: each part of at most 15 digits is an integer that

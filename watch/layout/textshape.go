@@ -309,16 +309,12 @@ func digitsEnd(s []byte, i int) (int, bool) {
 }
 
 // number reads the value at span sp of the matched line: the bytes of a
-// number readValueAt read there, so parseNumber's value. (fileShaped
-// tries plainNumber first itself: one call a value.)
+// number readValueAt read there, so parseNumber's value. Its caller
+// (fileShaped) tries plainNumber first: this is the path for the spans
+// plainNumber leaves.
 func (sh *textShape) number(line []byte, sp *shapeSpan) float64 {
 	if sp.run < 0 {
 		return sp.constant
-	}
-	if sp.plain {
-		if v, ok := sh.plainNumber(line, sp); ok {
-			return v
-		}
 	}
 	b := line[sh.where[sp.run].start+sp.off : sh.where[sp.endRun].end+sp.endOff]
 	if v, end, ok := fastFloat(b, 0); ok && end == len(b) {

@@ -307,13 +307,17 @@ func (a *Assembler) Step(v float64) {
 // Time sets the row's time stamp.
 func (a *Assembler) Time(t time.Time) { a.rowTime = t }
 
-// TimeNumber reads a numeric time column. Unix seconds are at least 1e8
-// (March 1973); smaller values are elapsed seconds, a common habit, kept as
-// an ordinary column. Larger magnitudes are milliseconds (≥1e11 s would be
+// MinUnixSeconds is the least value a numeric time column is read as a
+// Unix time at: 1e8 s is March 1973; smaller values are elapsed seconds, a
+// common habit, kept as an ordinary column. Unit: seconds.
+const MinUnixSeconds = 1e8
+
+// TimeNumber reads a numeric time column. Unix seconds are at least
+// MinUnixSeconds; smaller values are an ordinary column. Larger magnitudes are milliseconds (≥1e11 s would be
 // after the year 5000), microseconds (≥1e14) or nanoseconds (≥1e17).
 func (a *Assembler) TimeNumber(ci int, v float64) {
 	switch {
-	case isNonFinite(v) || v < 1e8:
+	case isNonFinite(v) || v < MinUnixSeconds:
 		a.Value(ci, v)
 	case v >= 1e17:
 		a.rowTime = time.Unix(0, int64(v)).UTC()
