@@ -1,6 +1,7 @@
 package layout
 
 import (
+	"math"
 	"strings"
 	"testing"
 )
@@ -74,11 +75,14 @@ func TestRecordWalker_DialectsAgree(t *testing.T) {
 	if len(jp[0].Samples) != 4 || len(pp[0].Samples) != len(jp[0].Samples) {
 		t.Fatalf("samples: JSON %+v, Python %+v", jp[0].Samples, pp[0].Samples)
 	}
-	for _, name := range []string{"train/loss", "train/acc", "val/loss", "lr"} {
+	// The values as the line writes them: both dialects go through one
+	// walker, so agreeing with each other alone would not catch a shared
+	// misreading.
+	for name, want := range map[string]float64{"train/loss": 0.25, "train/acc": 0.9, "val/loss": math.NaN(), "lr": 0.001} {
 		a, _ := sample(t, jp[0], name)
 		b, _ := sample(t, pp[0], name)
-		if !sameFloat(a, b) {
-			t.Errorf("%s: JSON %v, Python %v", name, a, b)
+		if !sameFloat(a, want) || !sameFloat(b, want) {
+			t.Errorf("%s: JSON %v, Python %v, want %v", name, a, b, want)
 		}
 	}
 }
