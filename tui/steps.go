@@ -35,33 +35,17 @@ type stepSeries struct {
 	blocks []stepBlock
 }
 
-// add appends one sample. A step not above the last one replaces the samples
-// from that step on: the run was resumed from a checkpoint, and the old
-// future did not happen. The common case, a later step into a block with
-// room, is kept small enough to inline.
-func (s *stepSeries) add(step int64, v float64) {
-	if n := len(s.blocks); n > 0 {
-		if b := &s.blocks[n-1]; step > b.last && b.n < s.width {
-			b.last = step
-			b.n++
-			b.take(v)
-			return
-		}
-	}
-	s.addBlock(step, v)
-}
-
 // addRun appends the samples of a run of per-step rows whose steps go up
 // (stepRun): row k's step and its value vals[at+k*stride]. It does what
 // add does for each sample in turn, but fills the last block in one loop
 // of comparisons while it has room, with the block's range in registers;
 // a sample that opens a block, or goes back from the block before, takes
-// addBlock.
+// add.
 func (s *stepSeries) addRun(run []diagnose.StepRowAt, vals []float64, at, stride int) {
 	for k := 0; k < len(run); {
 		n := len(s.blocks)
 		if n == 0 || s.blocks[n-1].n >= s.width || run[k].Step <= s.blocks[n-1].last {
-			s.addBlock(run[k].Step, vals[at+k*stride])
+			s.add(run[k].Step, vals[at+k*stride])
 			k++
 			continue
 		}
@@ -84,9 +68,10 @@ func (s *stepSeries) addRun(run []diagnose.StepRowAt, vals []float64, at, stride
 	}
 }
 
-// addBlock appends a sample that opens a block, after dropping the samples
-// from its step on when it is not above the last one.
-func (s *stepSeries) addBlock(step int64, v float64) {
+// add appends one sample, in a new block when the last is full. A step not
+// above the last one replaces the samples from that step on: the run was
+// resumed from a checkpoint, and the old future did not happen.
+func (s *stepSeries) add(step int64, v float64) {
 	if n := len(s.blocks); n > 0 && step <= s.blocks[n-1].last {
 		s.truncate(step)
 	}

@@ -314,9 +314,15 @@ func TestStore_AddStepsByRuns(t *testing.T) {
 				runs.addSteps(&b)
 				rows.addStepsByRow(&b)
 			}
+			if len(runs.steps) != len(rows.steps) {
+				t.Fatalf("series: %d by runs, %d by rows", len(runs.steps), len(rows.steps))
+			}
 			for name, want := range rows.steps {
 				got := runs.steps[name]
-				if got == nil || got.width != want.width || !slices.Equal(got.blocks, want.blocks) {
+				if got == nil {
+					t.Fatalf("series %s only by rows", name)
+				}
+				if got.width != want.width || !slices.Equal(got.blocks, want.blocks) {
 					t.Fatalf("series %s: runs and rows differ (%d and %d blocks)", name, len(got.blocks), len(want.blocks))
 				}
 			}

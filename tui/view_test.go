@@ -92,6 +92,7 @@ func TestView_Golden(t *testing.T) {
 		// drawn as none in the bar, its number kept with its sign, and the
 		// total adds up to the training value.
 		{"negvariance_80x24", 80, 24, runSpec{epochs: 20, total: 60, trainBase: 0.10, valBase: 0.07}, nil, false, false},
+		{"negvariance_120x40", 120, 40, runSpec{epochs: 20, total: 60, trainBase: 0.10, valBase: 0.07}, nil, false, false},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
