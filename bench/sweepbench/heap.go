@@ -28,12 +28,13 @@ func heap(args []string) error {
 	if fs.NArg() != 1 {
 		return fmt.Errorf("heap: give the sweep's directory")
 	}
+	if *dur < time.Second {
+		return fmt.Errorf("heap: -for %v: at least 1s (it looks once a second)", *dur)
+	}
 	s, err := live.New(live.Options{Paths: []string{fs.Arg(0)}, Rules: sweep.DefaultConfig()})
 	if err != nil {
 		return err
 	}
-	// The sweep is followed past the last look, so that the last look and
-	// the profile see it whole.
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
 	done := make(chan error, 1)
@@ -56,20 +57,26 @@ func heap(args []string) error {
 		made, wanted := s.Forecasts()
 		fmt.Printf("%4.0f s: read %d/%d, forecast %d/%d; heap %.1f MB, live %.1f MB (after a collection), from the system %.1f MB\n",
 			time.Since(start).Seconds(), read, runs, made, wanted, float64(before)/1e6, float64(ms.HeapAlloc)/1e6, float64(ms.HeapSys)/1e6)
-		if *profile != "" && time.Duration(n+1)*time.Second > *dur {
-			f, err := os.Create(*profile)
-			if err != nil {
-				return err
-			}
-			if err := pprof.WriteHeapProfile(f); err != nil {
-				f.Close()
-				return err
-			}
-			if err := f.Close(); err != nil {
-				return err
-			}
+	}
+	// Written while the sweep is still followed, right after the last look.
+	if *profile != "" {
+		if err := writeHeapProfile(*profile); err != nil {
+			return err
 		}
 	}
 	cancel()
 	return <-done
+}
+
+// writeHeapProfile writes the heap profile to path.
+func writeHeapProfile(path string) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	if err := pprof.WriteHeapProfile(f); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
 }
