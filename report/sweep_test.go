@@ -133,6 +133,9 @@ func TestSweepReport_Forecasts(t *testing.T) {
 	if got := ForecastText(byName["lr=0.0003"], false); got != "– too few epochs" {
 		t.Errorf("young run's forecast %q", got)
 	}
+	if got := ForecastText(byName["lr=0.0003"], true); got != "– too few" {
+		t.Errorf("young run's forecast in a table cell %q, want the status's word", got)
+	}
 	if got := ForecastText(byName["lr=1"], true); got != "– diverging" {
 		t.Errorf("diverged run's forecast %q", got)
 	}

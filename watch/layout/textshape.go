@@ -29,9 +29,9 @@ type shapeRun struct {
 	literal    bool // its digits must be the same
 	// gap is the (at most eight) bytes of the shape between the run
 	// before and this one, in the low bytes of a word, and gapMask
-	// covers them; gapLong: more than eight, compared by equalLong.
+	// covers them; gapLen is their count (more than eight: compared by
+	// equalLong).
 	gap, gapMask uint64
-	gapLong      bool
 	gapLen       int
 	// gapEnd: for a gap of nine to sixteen bytes, gap holds its first
 	// eight and gapEnd its last eight.
@@ -49,8 +49,8 @@ func setGaps(t []byte, runs []shapeRun) {
 	for k := range runs {
 		r := &runs[k]
 		n := r.start - j
-		r.gap, r.gapMask, r.gapLong, r.gapLen = 0, 0, n > 8, n
-		if !r.gapLong {
+		r.gap, r.gapMask, r.gapLen = 0, 0, n
+		if n <= 8 {
 			for b := n - 1; b >= 0; b-- {
 				r.gap = r.gap<<8 | uint64(t[j+b])
 				r.gapMask = r.gapMask<<8 | 0xff
@@ -223,11 +223,11 @@ func (sh *textShape) matchRun(line []byte, i, k int) (int, bool) {
 	if k > 0 {
 		j = sh.runs[k-1].end
 	}
-	n := r.start - j
+	n := r.gapLen // r.start − j
 	switch {
 	case i+n > len(line):
 		return 0, false
-	case !r.gapLong && i+8 <= len(line):
+	case n <= 8 && i+8 <= len(line):
 		if binary.LittleEndian.Uint64(line[i:])&r.gapMask != r.gap {
 			return 0, false
 		}
